@@ -1,0 +1,40 @@
+// The command line of `sliceplan optimize`, parsed into a config struct (the
+// only place flags exist; the library takes the struct).
+#ifndef SLICEPLAN_CLI_CLI_CONFIG_H_
+#define SLICEPLAN_CLI_CLI_CONFIG_H_
+
+#include <cstdint>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "absl/status/statusor.h"
+#include "core/slice_solver.h"
+
+namespace sliceplan::cli {
+
+enum class OutputFormat { kText, kJson, kDot };
+
+struct OptimizeConfig {
+  std::string query_path;
+  SearchOptions search;
+  std::optional<uint32_t> slices;  // --slices=P; else the planner's choice
+  int workers = 1;                 // --workers=N; default: the machine's cores
+  std::optional<std::string> coordinator;
+  OutputFormat format = OutputFormat::kText;
+};
+
+// Parses the arguments after "optimize". Errors (INVALID_ARGUMENT) name the
+// flag: an unknown flag, a bad value, a missing or second query file.
+absl::StatusOr<OptimizeConfig> ParseOptimizeArgs(
+    const std::vector<std::string>& args, int default_workers);
+
+// Parses a byte count: a number with an optional KiB, MiB or GiB suffix.
+absl::StatusOr<uint64_t> ParseBytes(const std::string& text);
+
+// The usage text of `sliceplan`.
+std::string Usage();
+
+}  // namespace sliceplan::cli
+
+#endif  // SLICEPLAN_CLI_CLI_CONFIG_H_

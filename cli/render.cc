@@ -1,0 +1,153 @@
+#include "cli/render.h"
+
+#include <algorithm>
+
+#include "absl/strings/str_cat.h"
+#include "absl/strings/str_format.h"
+
+namespace sliceplan::cli {
+namespace {
+
+const char* ShapeName(PlanShape shape) {
+  return shape == PlanShape::kBushy ? "bushy" : "left-deep";
+}
+
+std::string NodeLabel(const PlanNode& node, const Query& query) {
+  if (node.is_leaf()) return query.relation(Lowest(node.relations)).name;
+  return "join";
+}
+
+void AppendTextTree(const Plan& plan, int i, int depth, const Query& query,
+                    std::string& out) {
+  const PlanNode& node = plan.nodes[i];
+  absl::StrAppendFormat(&out, "%*s%-*s card %-11.4g cost %.4g\n", 2 * depth,
+                        "", std::max(1, 24 - 2 * depth),
+                        NodeLabel(node, query), node.cardinality, node.cost);
+  if (node.is_leaf()) return;
+  AppendTextTree(plan, node.left, depth + 1, query, out);
+  AppendTextTree(plan, node.right, depth + 1, query, out);
+}
+
+// %.17g round-trips a double; JSON has no inf or nan, so those become null.
+std::string JsonNumber(double x) {
+  if (!(x == x) || x == 1.0 / 0.0 || x == -1.0 / 0.0) return "null";
+  return absl::StrFormat("%.17g", x);
+}
+
+}  // namespace
+
+std::string JsonString(const std::string& s) {
+  std::string out = "\"";
+  for (const char c : s) {
+    switch (c) {
+      case '"': out += "\\\""; break;
+      case '\\': out += "\\\\"; break;
+      case '\n': out += "\\n"; break;
+      case '\t': out += "\\t"; break;
+      case '\r': out += "\\r"; break;
+      default:
+        if (static_cast<unsigned char>(c) < 0x20) {
+          absl::StrAppendFormat(&out, "\\u%04x", c);
+        } else {
+          out += c;
+        }
+    }
+  }
+  return out + "\"";
+}
+
+SliceBalance Balance(const OptimizeResult& result) {
+  SliceBalance b;
+  double total = 0, most = 0;
+  for (const SliceResult& s : result.slices) {
+    const double splits = static_cast<double>(s.stats.splits);
+    total += splits;
+    most = std::max(most, splits);
+    if (s.stats.seconds >= b.slowest_seconds) {
+      b.slowest_seconds = s.stats.seconds;
+      b.slowest = s.slice.index;
+    }
+  }
+  const double mean =
+      total / static_cast<double>(std::max<size_t>(1, result.slices.size()));
+  b.max_over_mean_splits = mean > 0 ? most / mean : 1;
+  return b;
+}
+
+std::string RenderText(const OptimizeResult& result, const RunInfo& info) {
+  const Query& query = *info.query;
+  std::string out = absl::StrFormat(
+      "best %s plan of %d relations (cross products %s): %s %.6g\n\n",
+      ShapeName(info.search.shape), query.size(),
+      info.search.cross_products ? "allowed" : "excluded",
+      MetricName(info.search.cost), result.plan.root().cost);
+  out += TreeString(result.plan, query) + "\n\n";
+  AppendTextTree(result.plan, static_cast<int>(result.plan.nodes.size()) - 1,
+                 0, query, out);
+  const SliceBalance b = Balance(result);
+  absl::StrAppendFormat(
+      &out, "\nslices: %u (%s), workers: %d, wall time %.3f s\n",
+      result.slice_count, info.slices_chosen ? "chosen by the coordinator"
+                                             : "as requested",
+      info.workers, result.wall_seconds);
+  absl::StrAppendFormat(&out, "  %-6s %14s %16s %10s\n", "slice", "subsets",
+                        "splits", "seconds");
+  for (const SliceResult& s : result.slices) {
+    absl::StrAppendFormat(&out, "  %-6u %14u %16u %10.4f%s\n", s.slice.index,
+                          s.stats.subsets, s.stats.splits, s.stats.seconds,
+                          s.slice.index == result.best_slice ? "  <- best plan"
+                                                             : "");
+  }
+  absl::StrAppendFormat(
+      &out, "slowest slice: %u (%.4f s); balance (max/mean splits): %.3f\n",
+      b.slowest, b.slowest_seconds, b.max_over_mean_splits);
+  return out;
+}
+
+std::string RenderJson(const OptimizeResult& result, const RunInfo& info) {
+  const Query& query = *info.query;
+  std::string out = "{\n  \"plans\": [\n    {";
+  absl::StrAppend(&out, "\"tree\": ", JsonString(TreeString(result.plan, query)),
+                  ", \"costs\": {", JsonString(MetricName(info.search.cost)),
+                  ": ", JsonNumber(result.plan.root().cost),
+                  "}, \"cardinality\": ",
+                  JsonNumber(result.plan.root().cardinality), ", \"slice\": ",
+                  result.best_slice, "}\n  ],\n");
+  absl::StrAppend(&out, "  \"shape\": \"", ShapeName(info.search.shape),
+                  "\",\n  \"cross_products\": ",
+                  info.search.cross_products ? "true" : "false", ",\n");
+  absl::StrAppend(&out, "  \"stats\": {\n    \"slice_count\": ",
+                  result.slice_count, ",\n    \"workers\": ", info.workers,
+                  ",\n    \"wall_seconds\": ", JsonNumber(result.wall_seconds),
+                  ",\n    \"slices\": [\n");
+  for (size_t i = 0; i < result.slices.size(); ++i) {
+    const SliceResult& s = result.slices[i];
+    absl::StrAppend(&out, "      {\"index\": ", s.slice.index,
+                    ", \"subsets\": ", s.stats.subsets, ", \"splits\": ",
+                    s.stats.splits, ", \"seconds\": ",
+                    JsonNumber(s.stats.seconds), ", \"memo_bytes\": ",
+                    s.stats.memo_bytes, "}",
+                    i + 1 < result.slices.size() ? ",\n" : "\n");
+  }
+  out += "    ]\n  }\n}\n";
+  return out;
+}
+
+std::string RenderDot(const OptimizeResult& result, const RunInfo& info) {
+  const Query& query = *info.query;
+  std::string out = "digraph plan {\n  node [shape=box, fontname=\"Helvetica\"];\n";
+  const Plan& plan = result.plan;
+  for (size_t i = 0; i < plan.nodes.size(); ++i) {
+    const PlanNode& node = plan.nodes[i];
+    absl::StrAppendFormat(&out, "  n%d [label=\"%s\\ncard %.4g\\ncost %.4g\"%s];\n",
+                          i, NodeLabel(node, query), node.cardinality, node.cost,
+                          node.is_leaf() ? ", shape=ellipse" : "");
+    if (!node.is_leaf()) {
+      absl::StrAppendFormat(&out, "  n%d -> n%d [label=\"L\"];\n  n%d -> n%d [label=\"R\"];\n",
+                            i, node.left, i, node.right);
+    }
+  }
+  return out + "}\n";
+}
+
+}  // namespace sliceplan::cli

@@ -1,0 +1,6 @@
+# All dependencies come from Debian packages (see .ci/run for the list).
+find_package(Threads REQUIRED)
+find_package(absl REQUIRED CONFIG)
+find_package(Protobuf REQUIRED)
+find_package(GTest CONFIG)
+find_package(benchmark CONFIG)

@@ -1,0 +1,34 @@
+// Which relations the slice constraints use: a deterministic function of the
+// query, so the coordinator and every worker derive the same choice from the
+// query alone (slicing.md, invariant 1).
+//
+// In the cross-product space every disjoint choice gives the same work per
+// slice. Without cross products the slices' sizes depend on the choice: a
+// pair {a, c} splits evenly when swapping a and c is a symmetry of the join
+// graph, a triple {r, t, u} when swapping t and u is one that fixes r. The
+// choice approximates the graph's symmetry classes by colour refinement
+// (iterated degree signatures) and builds constraints inside one class
+// first. Pure function; thread-safe.
+#ifndef SLICEPLAN_CORE_CONSTRAINT_CHOICE_H_
+#define SLICEPLAN_CORE_CONSTRAINT_CHOICE_H_
+
+#include <vector>
+
+#include "core/query.h"
+#include "core/slice_constraints.h"
+#include "core/slice_spec.h"
+
+namespace sliceplan {
+
+// k disjoint constraints for `shape`. REQUIRES: k <= MaxSliceBits(n, shape).
+std::vector<ConstraintRelations> ChooseConstraintRelations(const Query& query,
+                                                           PlanShape shape,
+                                                           int k);
+
+// The colour refinement used above, exposed for tests: relations with equal
+// colour have equal iterated degree signatures. Colours are dense ranks.
+std::vector<int> RefinedColours(const Query& query);
+
+}  // namespace sliceplan
+
+#endif  // SLICEPLAN_CORE_CONSTRAINT_CHOICE_H_

@@ -1,0 +1,88 @@
+// The `cout` cost model as a search policy (cost-models.md):
+//   C_out(leaf) = 0;  C_out(L join R) = card(L u R) + C_out(L) + C_out(R).
+// One metric, symmetric in L and R, so enumerators offer each unordered
+// split once. Memo: 8 bytes of cost and 4 of best left operand per slot
+// (plus 8 of cardinality in scattered mode). Single-threaded.
+#ifndef SLICEPLAN_CORE_COUT_POLICY_H_
+#define SLICEPLAN_CORE_COUT_POLICY_H_
+
+#include <limits>
+#include <vector>
+
+#include "core/cardinality.h"
+#include "core/dense_layout.h"
+#include "core/search_policy.h"
+
+namespace sliceplan {
+
+// One join's cout cost from its output cardinality and its inputs' costs.
+// Shared by the policy and by plan costing so both round identically.
+inline double CoutJoin(double card, double left_cost, double right_cost) {
+  return card + (left_cost + right_cost);
+}
+
+class CoutPolicy {
+ public:
+  static constexpr bool kSymmetric = true;
+  static constexpr size_t kBytesPerSlot = sizeof(double) + sizeof(Slot);
+  static constexpr double kInf = std::numeric_limits<double>::infinity();
+
+  struct Acc {
+    double best;
+    Slot left;
+  };
+
+  // `card` must outlive the policy and use the enumerator's numbering.
+  explicit CoutPolicy(const Cardinality& card) : card_(card) {}
+
+  void Resize(size_t slots) {
+    cost_.resize(slots, kInf);
+    left_.resize(slots, kNoSlot);
+  }
+  void InitLeaf(Slot s, RelationId) { cost_[s] = 0; }
+
+  Acc Begin() const { return {kInf, kNoSlot}; }
+  void Offer(Acc& a, Slot left, Slot right) const {
+    const double v = cost_[left] + cost_[right];
+    if (v < a.best) a = {v, left};
+  }
+  void OfferLeafRight(Acc& a, Slot left, RelationId) const {
+    const double v = cost_[left] + 0.0;
+    if (v < a.best) a = {v, left};
+  }
+  void Finish(Slot s, RelSet set, const Acc& a) {
+    if (a.left == kNoSlot) return;
+    cost_[s] = card_.Of(set) + a.best;
+    left_[s] = a.left;
+  }
+
+  void InitSet(Slot s, RelSet set) {
+    if (set_card_.size() <= s) set_card_.resize(cost_.size());
+    set_card_[s] = card_.Of(set);
+  }
+  void Relax(Slot s, Slot left, Slot right) {
+    const double v = CoutJoin(set_card_[s], cost_[left], cost_[right]);
+    if (v < cost_[s]) cost_[s] = v, left_[s] = left;
+  }
+  void RelaxLeafRight(Slot s, Slot left, RelationId) {
+    const double v = CoutJoin(set_card_[s], cost_[left], 0.0);
+    if (v < cost_[s]) cost_[s] = v, left_[s] = left;
+  }
+
+  bool HasPlan(Slot s) const { return cost_[s] < kInf; }
+  double Cost(Slot s) const { return cost_[s]; }
+  // The slot of the best plan's left operand; kNoSlot for a leaf.
+  Slot BestLeft(Slot s) const { return left_[s]; }
+
+ private:
+  const Cardinality& card_;
+  std::vector<double> cost_;
+  std::vector<Slot> left_;
+  std::vector<double> set_card_;  // scattered mode only
+};
+
+static_assert(SearchPolicy<CoutPolicy>);
+
+}  // namespace sliceplan
+
+#endif  // SLICEPLAN_CORE_COUT_POLICY_H_

@@ -1,0 +1,48 @@
+#include "core/join_graph.h"
+
+namespace sliceplan {
+
+JoinGraph::JoinGraph(const Query& query)
+    : simple_(query.size(), 0), touching_(query.size(), 0) {
+  for (const Predicate& p : query.predicates()) {
+    const bool binary = Size(p.relations) == 2;
+    if (!binary) hyper_.push_back(p.relations);
+    ForEachMember(p.relations, [&](RelationId r) {
+      const RelSet others = p.relations & ~Singleton(r);
+      touching_[r.value] |= others;
+      if (binary) simple_[r.value] |= others;
+    });
+  }
+}
+
+RelSet JoinGraph::Neighbourhood(RelSet s, RelSet x) const {
+  RelSet out = 0;
+  ForEachMember(s, [&](RelationId r) { out |= simple_[r.value]; });
+  out &= ~(s | x);
+  for (RelSet p : hyper_) {
+    const RelSet outside = p & ~s;
+    if ((p & s) != 0 && outside != 0 && (outside & x) == 0) {
+      out |= LowestBit(outside);
+    }
+  }
+  return out;
+}
+
+RelSet JoinGraph::Around(RelSet s) const {
+  RelSet out = 0;
+  ForEachMember(s, [&](RelationId r) { out |= touching_[r.value]; });
+  return out & ~s;
+}
+
+bool JoinGraph::IsConnected(RelSet s) const {
+  if (s == 0) return true;
+  RelSet reached = LowestBit(s);
+  for (RelSet frontier = reached; frontier != 0;) {
+    const RelSet next = Around(reached) & s & ~reached;
+    reached |= next;
+    frontier = next;
+  }
+  return reached == s;
+}
+
+}  // namespace sliceplan

@@ -1,0 +1,34 @@
+// The join graph seen by the connected-sets enumerators: binary predicates
+// as adjacency masks, wider predicates as hyperedges. Immutable;
+// thread-safe.
+#ifndef SLICEPLAN_CORE_JOIN_GRAPH_H_
+#define SLICEPLAN_CORE_JOIN_GRAPH_H_
+
+#include <vector>
+
+#include "core/query.h"
+
+namespace sliceplan {
+
+class JoinGraph {
+ public:
+  explicit JoinGraph(const Query& query);
+
+  // DPhyp's neighbourhood N(S, X): relations outside S and X reachable from
+  // S by one edge; for a hyperedge P touching S whose part outside S avoids
+  // X, that part's lowest relation stands for it.
+  RelSet Neighbourhood(RelSet s, RelSet x) const;
+  // Relations sharing any predicate with a member of S, S excluded.
+  RelSet Around(RelSet s) const;
+  // True when the relations of `s` form one connected component.
+  bool IsConnected(RelSet s) const;
+
+ private:
+  std::vector<RelSet> simple_;    // relation -> binary-predicate neighbours
+  std::vector<RelSet> touching_;  // relation -> all co-members of predicates
+  std::vector<RelSet> hyper_;     // predicates over three or more relations
+};
+
+}  // namespace sliceplan
+
+#endif  // SLICEPLAN_CORE_JOIN_GRAPH_H_

@@ -1,0 +1,34 @@
+// Merging the answers of a query's slices (single metric: the minimum).
+//
+// The slices cover the plan space (slicing.md, invariant 2), so the best
+// of their optima is the global optimum. Ties go to the lowest slice index
+// so that every merge of the same answers picks the same plan.
+#ifndef SLICEPLAN_CORE_MERGE_H_
+#define SLICEPLAN_CORE_MERGE_H_
+
+#include <optional>
+#include <vector>
+
+#include "absl/status/statusor.h"
+#include "core/slice_solver.h"
+
+namespace sliceplan {
+
+struct OptimizeResult {
+  Plan plan;
+  uint32_t slice_count = 1;
+  uint32_t best_slice = 0;               // the slice the plan came from
+  std::vector<SliceResult> slices;       // by slice index; plans dropped
+  double wall_seconds = 0;
+};
+
+// Merges the answers of all `slice_count` slices (any order). Errors:
+// INVALID_ARGUMENT when a slice is missing or repeated; NOT_FOUND when no
+// slice holds a plan (only possible without cross products: the join graph
+// cannot be joined without one).
+absl::StatusOr<OptimizeResult> MergeSlices(std::vector<SliceResult> slices,
+                                           uint32_t slice_count);
+
+}  // namespace sliceplan
+
+#endif  // SLICEPLAN_CORE_MERGE_H_

@@ -1,0 +1,123 @@
+#include "core/query.h"
+
+#include <cmath>
+
+#include "absl/container/flat_hash_set.h"
+#include "absl/strings/str_cat.h"
+#include "core/status_macros.h"
+
+namespace sliceplan {
+namespace {
+
+absl::Status Invalid(absl::string_view where, absl::string_view what) {
+  return absl::InvalidArgumentError(absl::StrCat(where, ": ", what));
+}
+
+bool PositiveFinite(double x) { return std::isfinite(x) && x > 0; }
+
+absl::Status CheckRelation(const Relation& rel, size_t i,
+                           absl::flat_hash_set<std::string_view>& seen) {
+  const std::string at = absl::StrCat("relations[", i, "]");
+  if (!IsValidRelationName(rel.name)) {
+    return Invalid(absl::StrCat(at, ".name"),
+                   absl::StrCat("\"", rel.name,
+                                "\" is not a name of the form "
+                                "[A-Za-z_][A-Za-z0-9_]*"));
+  }
+  if (!seen.insert(rel.name).second) {
+    return Invalid(absl::StrCat(at, ".name"),
+                   absl::StrCat("duplicate relation name \"", rel.name, "\""));
+  }
+  const std::string named = absl::StrCat(at, " (", rel.name, ")");
+  if (!PositiveFinite(rel.rows)) {
+    return Invalid(absl::StrCat(named, ".rows"),
+                   absl::StrCat("must be a finite number > 0, got ", rel.rows));
+  }
+  if (!PositiveFinite(rel.row_bytes)) {
+    return Invalid(absl::StrCat(named, ".row_bytes"),
+                   absl::StrCat("must be a finite number > 0, got ",
+                                rel.row_bytes));
+  }
+  return absl::OkStatus();
+}
+
+absl::Status CheckPredicate(const Predicate& p, size_t j, int n) {
+  const std::string at = absl::StrCat("predicates[", j, "]");
+  if (!IsSubset(p.relations, FullSet(n))) {
+    return Invalid(absl::StrCat(at, ".relations"),
+                   "names a relation id outside the query");
+  }
+  if (Size(p.relations) < 2) {
+    return Invalid(absl::StrCat(at, ".relations"),
+                   "must name two or more distinct relations");
+  }
+  if (!(p.selectivity > 0 && p.selectivity <= 1)) {
+    return Invalid(absl::StrCat(at, ".selectivity"),
+                   absl::StrCat("must lie in (0, 1], got ", p.selectivity));
+  }
+  return absl::OkStatus();
+}
+
+}  // namespace
+
+bool IsValidRelationName(std::string_view name) {
+  if (name.empty()) return false;
+  const auto alpha = [](char c) {
+    return (c >= 'a' && c <= 'z') || (c >= 'A' && c <= 'Z') || c == '_';
+  };
+  if (!alpha(name[0])) return false;
+  for (char c : name) {
+    if (!alpha(c) && !(c >= '0' && c <= '9')) return false;
+  }
+  return true;
+}
+
+absl::StatusOr<Query> Query::Create(std::vector<Relation> relations,
+                                    std::vector<Predicate> predicates) {
+  if (relations.empty()) {
+    return Invalid("relations", "the query has no relations");
+  }
+  if (relations.size() > static_cast<size_t>(kMaxRelations)) {
+    return Invalid("relations",
+                   absl::StrCat(relations.size(),
+                                " relations given; the exact search takes at "
+                                "most ",
+                                kMaxRelations));
+  }
+  absl::flat_hash_set<std::string_view> seen;
+  for (size_t i = 0; i < relations.size(); ++i) {
+    RETURN_IF_ERROR(CheckRelation(relations[i], i, seen));
+  }
+  const int n = static_cast<int>(relations.size());
+  for (size_t j = 0; j < predicates.size(); ++j) {
+    RETURN_IF_ERROR(CheckPredicate(predicates[j], j, n));
+  }
+  return Query(std::move(relations), std::move(predicates));
+}
+
+std::optional<RelationId> Query::Find(std::string_view name) const {
+  for (size_t i = 0; i < relations_.size(); ++i) {
+    if (relations_[i].name == name) {
+      return RelationId{static_cast<uint8_t>(i)};
+    }
+  }
+  return std::nullopt;
+}
+
+RelSet PermuteSet(RelSet s, std::span<const RelationId> perm) {
+  RelSet out = 0;
+  ForEachMember(s, [&](RelationId r) { out |= Singleton(perm[r.value]); });
+  return out;
+}
+
+Query Query::Permuted(std::span<const RelationId> perm) const {
+  std::vector<Relation> rels(relations_.size());
+  for (size_t i = 0; i < relations_.size(); ++i) {
+    rels[perm[i].value] = relations_[i];
+  }
+  std::vector<Predicate> preds = predicates_;
+  for (Predicate& p : preds) p.relations = PermuteSet(p.relations, perm);
+  return Query(std::move(rels), std::move(preds));
+}
+
+}  // namespace sliceplan

@@ -1,0 +1,38 @@
+// Conversion between the query message of proto/query.proto, its JSON form
+// (the query file) and the core Query.
+//
+// The JSON goes through protobuf's own JSON mapping, so a query file and an
+// RPC request are one format by construction. Unknown fields are rejected.
+// All functions are thread-safe.
+#ifndef SLICEPLAN_CORE_QUERY_PROTO_H_
+#define SLICEPLAN_CORE_QUERY_PROTO_H_
+
+#include <string>
+#include <string_view>
+
+#include "absl/status/statusor.h"
+#include "core/query.h"
+#include "query.pb.h"
+
+namespace sliceplan {
+
+// Validates a query message and resolves predicate names to ids. Errors
+// (INVALID_ARGUMENT) name the field and its position: a missing rows or
+// selectivity, a predicate naming an unknown or a repeated relation, and
+// everything Query::Create checks.
+absl::StatusOr<Query> QueryFromProto(const v1::Query& message);
+
+v1::Query QueryToProto(const Query& query);
+
+// Parses the JSON form of v1::Query. A syntax error, an unknown field or a
+// value of the wrong type is INVALID_ARGUMENT with protobuf's description of
+// where it is.
+absl::StatusOr<Query> ParseQueryJson(std::string_view json);
+
+// Reads and parses a query file. A file that cannot be read is NOT_FOUND
+// (or PERMISSION_DENIED) with the path in the message.
+absl::StatusOr<Query> ReadQueryFile(const std::string& path);
+
+}  // namespace sliceplan
+
+#endif  // SLICEPLAN_CORE_QUERY_PROTO_H_

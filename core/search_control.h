@@ -1,0 +1,53 @@
+// Cancellation and deadline checks for a running search.
+//
+// The enumerators call Tick(work) after each memo entry with the number of
+// splits it evaluated; every kTickWork splits Tick consults the clock and
+// the cancel flag, so the check costs nothing on the hot path. A control is
+// owned by one search (one thread); the cancel flag may be set from any
+// thread.
+#ifndef SLICEPLAN_CORE_SEARCH_CONTROL_H_
+#define SLICEPLAN_CORE_SEARCH_CONTROL_H_
+
+#include <atomic>
+#include <chrono>
+#include <cstdint>
+#include <optional>
+
+#include "absl/status/status.h"
+
+namespace sliceplan {
+
+class SearchControl {
+ public:
+  using Clock = std::chrono::steady_clock;
+  static constexpr int64_t kTickWork = 1 << 16;
+
+  // Never stops.
+  SearchControl() = default;
+  // Stops once *cancel is true (if given) or the deadline passed (if given).
+  SearchControl(const std::atomic<bool>* cancel,
+                std::optional<Clock::time_point> deadline)
+      : cancel_(cancel), deadline_(deadline) {}
+
+  // Returns true when the search must stop; status() then says why.
+  bool Tick(uint64_t work) {
+    budget_ -= static_cast<int64_t>(work);
+    if (budget_ > 0) return false;
+    budget_ = kTickWork;
+    return Check();
+  }
+  // CANCELLED or DEADLINE_EXCEEDED after Tick returned true, else OK.
+  absl::Status status() const { return status_; }
+
+ private:
+  bool Check();
+
+  const std::atomic<bool>* cancel_ = nullptr;
+  std::optional<Clock::time_point> deadline_;
+  int64_t budget_ = kTickWork;
+  absl::Status status_;
+};
+
+}  // namespace sliceplan
+
+#endif  // SLICEPLAN_CORE_SEARCH_CONTROL_H_

@@ -1,0 +1,58 @@
+// The contract between an enumerator and what it computes per memo entry.
+//
+// An enumerator (dense_bushy.h, dense_left_deep.h, connected_*.h) visits
+// relation sets in a valid dynamic-programming order and hands every split
+// it generates to a policy; the policy owns the memo arrays, indexed by slot.
+// A cost model plugs in as a policy (cout_policy.h) and so does plan
+// counting (count_policy.h); the enumerators never change for a new model.
+//
+// A policy P provides:
+//   static constexpr bool kSymmetric;   // cost(L, R) == cost(R, L): the
+//                                       // enumerator offers one order only
+//   static constexpr size_t kBytesPerSlot;  // memo bytes per entry
+//   void Resize(size_t slots);          // memo holds slots [0, slots)
+//   void InitLeaf(Slot s, RelationId r);
+// Dense enumeration, all splits of one set in a row:
+//   Acc Begin() const;
+//   void Offer(Acc&, Slot left, Slot right) const;         // bushy
+//   void OfferLeafRight(Acc&, Slot left, RelationId right) const;  // left-deep
+//   void Finish(Slot s, RelSet set, const Acc&);
+// Scattered enumeration (connected sets, splits of a set interleaved):
+//   void InitSet(Slot s, RelSet set);
+//   void Relax(Slot s, Slot left, Slot right);
+//   void RelaxLeafRight(Slot s, Slot left, RelationId right);
+// Both:
+//   bool HasPlan(Slot s) const;   // leaf, or some split was offered
+// Sets are in the enumerator's numbering; slots of the operands were
+// finished before they are offered. Policies are single-threaded.
+#ifndef SLICEPLAN_CORE_SEARCH_POLICY_H_
+#define SLICEPLAN_CORE_SEARCH_POLICY_H_
+
+#include <concepts>
+#include <cstddef>
+
+#include "core/dense_layout.h"
+#include "core/relation_set.h"
+
+namespace sliceplan {
+
+template <class P>
+concept SearchPolicy = requires(P p, const P cp, typename P::Acc acc, Slot s,
+                                RelSet set, RelationId r) {
+  { P::kSymmetric } -> std::convertible_to<bool>;
+  { P::kBytesPerSlot } -> std::convertible_to<size_t>;
+  p.Resize(size_t{1});
+  p.InitLeaf(s, r);
+  { cp.Begin() } -> std::same_as<typename P::Acc>;
+  cp.Offer(acc, s, s);
+  cp.OfferLeafRight(acc, s, r);
+  p.Finish(s, set, acc);
+  p.InitSet(s, set);
+  p.Relax(s, s, s);
+  p.RelaxLeafRight(s, s, r);
+  { cp.HasPlan(s) } -> std::convertible_to<bool>;
+};
+
+}  // namespace sliceplan
+
+#endif  // SLICEPLAN_CORE_SEARCH_POLICY_H_

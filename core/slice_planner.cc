@@ -1,0 +1,86 @@
+#include "core/slice_planner.h"
+
+#include <algorithm>
+#include <cmath>
+
+#include "core/cout_policy.h"
+#include "core/join_graph.h"
+#include "core/search_estimate.h"
+
+namespace sliceplan {
+namespace {
+
+// DPccp's csg enumeration (Moerkotte and Neumann, VLDB 2006), counting only.
+class CsgCounter {
+ public:
+  CsgCounter(const Query& query, uint64_t cap) : graph_(query), cap_(cap) {}
+
+  uint64_t Count(int n) {
+    for (int v = n - 1; v >= 0 && count_ < cap_; --v) {
+      const RelSet start = RelSet{1} << v;
+      ++count_;
+      Grow(start, FullSet(v + 1));
+    }
+    return std::min(count_, cap_);
+  }
+
+ private:
+  void Grow(RelSet s, RelSet x) {
+    const RelSet nb = graph_.Around(s) & ~x;
+    if (nb == 0) return;
+    for (RelSet sub = nb & (0 - nb); count_ < cap_; sub = (sub - nb) & nb) {
+      ++count_;
+      if (sub == nb) break;
+    }
+    for (RelSet sub = nb & (0 - nb); count_ < cap_; sub = (sub - nb) & nb) {
+      Grow(s | sub, x | nb);
+      if (sub == nb) break;
+    }
+  }
+
+  JoinGraph graph_;
+  uint64_t cap_;
+  uint64_t count_ = 0;
+};
+
+uint32_t ChooseDense(const Query& query, const SearchOptions& options,
+                     int workers) {
+  const int n = query.size();
+  const PlanShape shape = options.shape;
+  if (DenseSplits(n, shape, 0, true) < kMinSplitsToSlice) return 1;
+  const int max_k = std::min(MaxSliceBits(n, shape), kMaxPlannedSliceBits);
+  int best_k = -1;
+  double best_time = 0;
+  for (int k = 0; k <= max_k; ++k) {
+    const double bytes = DenseSlots(n, shape, k) * CoutPolicy::kBytesPerSlot;
+    if (bytes > static_cast<double>(options.memo_limit_bytes)) continue;
+    const double rounds = std::ceil(std::ldexp(1.0, k) / workers);
+    const double time = rounds * DenseSplits(n, shape, k, true);
+    if (best_k < 0 || time < best_time * (1 - 1e-9)) best_k = k, best_time = time;
+  }
+  // Nothing fits: the smallest memo, which SolveSlice then refuses with the
+  // numbers.
+  return uint32_t{1} << (best_k < 0 ? max_k : best_k);
+}
+
+}  // namespace
+
+uint64_t CountConnectedSets(const Query& query, uint64_t cap) {
+  return CsgCounter(query, cap).Count(query.size());
+}
+
+uint32_t ChooseSliceCount(const Query& query, const SearchOptions& options,
+                          int workers) {
+  if (options.cross_products) return ChooseDense(query, options, workers);
+  // Connected sets only: small searches stay whole; large ones get one
+  // slice per worker (the shrink per slice depends on the graph).
+  constexpr uint64_t kSmallSearchSets = 100000;
+  if (CountConnectedSets(query, kSmallSearchSets) < kSmallSearchSets) return 1;
+  int k = 0;
+  const int max_k = std::min(MaxSliceBits(query.size(), options.shape),
+                             kMaxPlannedSliceBits);
+  while (k < max_k && (1 << k) < workers) ++k;
+  return uint32_t{1} << k;
+}
+
+}  // namespace sliceplan

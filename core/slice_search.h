@@ -1,0 +1,143 @@
+// One slice's search for one policy: picks the enumerator (dense memo with
+// cross products, connected-sets memo without; bushy or left-deep), owns the
+// memo and answers questions about the finished memo. Internal to
+// slice_solver.cc and the tests; single-threaded, single use.
+#ifndef SLICEPLAN_CORE_SLICE_SEARCH_H_
+#define SLICEPLAN_CORE_SLICE_SEARCH_H_
+
+#include <chrono>
+#include <cmath>
+#include <optional>
+
+#include "absl/status/status.h"
+#include "absl/strings/str_cat.h"
+#include "absl/strings/str_format.h"
+#include "core/cardinality.h"
+#include "core/connected_bushy.h"
+#include "core/connected_left_deep.h"
+#include "core/connected_memo.h"
+#include "core/dense_bushy.h"
+#include "core/dense_layout.h"
+#include "core/dense_left_deep.h"
+#include "core/join_graph.h"
+#include "core/search_estimate.h"
+#include "core/slice_constraints.h"
+#include "core/slice_solver.h"
+
+namespace sliceplan {
+
+// RESOURCE_EXHAUSTED, naming the memo size, the limit and the smallest slice
+// count that would fit, when a dense slice memo of `bytes_per_slot` entries
+// passes `limit` bytes or 2^32 slots. Checked before anything is allocated.
+absl::Status CheckDenseMemo(int n, PlanShape shape, int k,
+                            size_t bytes_per_slot, uint64_t limit);
+
+template <SearchPolicy Policy>
+class SliceSearch {
+ public:
+  // REQUIRES: CheckDenseMemo passed when options.cross_products.
+  SliceSearch(const Query& query, const SearchOptions& options,
+              SliceConstraints constraints)
+      : options_(options),
+        constraints_(std::move(constraints)),
+        layout_(MakeLayout(query)),
+        working_(layout_ ? query.Permuted(layout_->perm()) : query),
+        card_(working_),
+        policy_(card_),
+        memo_(options.memo_limit_bytes / kConnectedBytesPerSlot) {}
+
+  absl::Status Run(SearchControl& control) {
+    const auto start = std::chrono::steady_clock::now();
+    absl::Status status = layout_ ? RunDense(control) : RunConnected(control);
+    stats_.seconds = std::chrono::duration<double>(
+                         std::chrono::steady_clock::now() - start).count();
+    return status;
+  }
+
+  // The slot of the whole query, if the slice holds a plan for it.
+  std::optional<Slot> RootSlot() const {
+    const RelSet all = working_.all();
+    if (layout_) return layout_->SlotOf(all);
+    const auto slot = memo_.Find(all);
+    if (!slot || !policy_.HasPlan(*slot)) return std::nullopt;
+    return slot;
+  }
+
+  // The best plan, in original relation ids. REQUIRES: RootSlot() and a
+  // policy with BestLeft (a cost model).
+  Plan ExtractPlan() const {
+    Plan plan = BuildPlan(
+        working_.all(),
+        [&](RelSet set) { return SetOf(policy_.BestLeft(SlotOf(set))); },
+        card_);
+    if (layout_) RenumberPlan(plan, layout_->inverse_perm());
+    return plan;
+  }
+
+  const Policy& policy() const { return policy_; }
+  const SearchStats& stats() const { return stats_; }
+
+ private:
+  static constexpr size_t kConnectedBytesPerSlot =
+      Policy::kBytesPerSlot + ConnectedMemo::kOverheadBytesPerSlot +
+      sizeof(double);
+
+  std::optional<DenseLayout> MakeLayout(const Query& query) const {
+    if (!options_.cross_products) return std::nullopt;
+    return DenseLayout(query.size(), constraints_);
+  }
+
+  Slot SlotOf(RelSet set) const {
+    return layout_ ? layout_->SlotOf(set) : *memo_.Find(set);
+  }
+  RelSet SetOf(Slot slot) const {
+    return layout_ ? layout_->SetOf(slot) : memo_.SetOf(slot);
+  }
+
+  absl::Status RunDense(SearchControl& control) {
+    const uint64_t slots = layout_->slot_count();
+    policy_.Resize(slots);
+    stats_.subsets = slots;
+    stats_.memo_bytes = slots * Policy::kBytesPerSlot;
+    // The enumerators see the renumbered constraints through the layout.
+    return options_.shape == PlanShape::kBushy
+               ? RunDenseBushy(*layout_, policy_, control, stats_)
+               : RunDenseLeftDeep(*layout_, policy_, control, stats_);
+  }
+
+  absl::Status RunConnected(SearchControl& control) {
+    const JoinGraph graph(working_);
+    absl::Status status;
+    if (options_.shape == PlanShape::kBushy) {
+      status = ConnectedBushy<Policy>(working_.size(), graph, card_,
+                                      constraints_, policy_, memo_, control,
+                                      stats_)
+                   .Run();
+    } else {
+      status = RunConnectedLeftDeep(working_.size(), graph, card_,
+                                    constraints_, policy_, memo_, control,
+                                    stats_);
+    }
+    stats_.subsets = memo_.size();
+    stats_.memo_bytes = memo_.size() * kConnectedBytesPerSlot;
+    if (absl::IsResourceExhausted(status)) {
+      return absl::ResourceExhaustedError(absl::StrCat(
+          status.message(), " (memo limit ", options_.memo_limit_bytes,
+          " bytes at ", kConnectedBytesPerSlot, " bytes per entry)"));
+    }
+    return status;
+  }
+
+  SearchOptions options_;
+  SliceConstraints constraints_;
+  std::optional<DenseLayout> layout_;
+  Query working_;  // renumbered for the dense layout, else the query itself
+  Cardinality card_;
+  Policy policy_;
+  ConnectedMemo memo_;
+  SearchStats stats_;
+};
+
+}  // namespace sliceplan
+
+#endif  // SLICEPLAN_CORE_SLICE_SEARCH_H_
