@@ -27,10 +27,12 @@ class CountPolicy {
   void InitLeaf(Slot s, RelationId) { count_[s] = 1; }
 
   Acc Begin() const { return 0; }
-  void Offer(Acc& a, Slot left, Slot right) const {
-    a += count_[left] * count_[right];
+  Acc Offer(Acc a, Slot left, Slot right) const {
+    return a + count_[left] * count_[right];
   }
-  void OfferLeafRight(Acc& a, Slot left, RelationId) const { a += count_[left]; }
+  Acc OfferLeafRight(Acc a, Slot left, RelationId) const {
+    return a + count_[left];
+  }
   void Finish(Slot s, RelSet, const Acc& a) { count_[s] = a; }
 
   void InitSet(Slot s, RelSet) { count_[s] = 0; }

@@ -42,18 +42,25 @@ class CoutPolicy {
   void InitLeaf(Slot s, RelationId) { cost_[s] = 0; }
 
   Acc Begin() const { return {kInf, kNoSlot}; }
-  void Offer(Acc& a, Slot left, Slot right) const {
+  // An improvement is rare once a good split is found, so the branch is
+  // predicted; a branch-free min would chain every split on the last one.
+  Acc Offer(Acc a, Slot left, Slot right) const {
     const double v = cost_[left] + cost_[right];
-    if (v < a.best) a = {v, left};
+    if (__builtin_expect(v < a.best, 0)) a = {v, left};
+    return a;
   }
-  void OfferLeafRight(Acc& a, Slot left, RelationId) const {
+  Acc OfferLeafRight(Acc a, Slot left, RelationId) const {
     const double v = cost_[left] + 0.0;
-    if (v < a.best) a = {v, left};
+    if (__builtin_expect(v < a.best, 0)) a = {v, left};
+    return a;
   }
   void Finish(Slot s, RelSet set, const Acc& a) {
     if (a.left == kNoSlot) return;
-    cost_[s] = card_.Of(set) + a.best;
+    // Store before calling Of(): no SSE register survives a call, and a
+    // best cost live across one is kept in memory for the whole hot loop.
+    cost_[s] = a.best;
     left_[s] = a.left;
+    cost_[s] += card_.Of(set);  // = CoutJoin(card, left, right): + commutes
   }
 
   void InitSet(Slot s, RelSet set) {

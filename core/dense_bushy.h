@@ -21,52 +21,66 @@
 namespace sliceplan {
 namespace dense_bushy_internal {
 
+// Offers the split (l, low ^ l) of the low bits into blocks (lb, rb).
+#define SLICEPLAN_OFFER_(l) \
+  a = policy.Offer(a, lb + static_cast<Slot>(l), rb + static_cast<Slot>(low ^ (l)))
+
 // Offers every split of a set whose low bits are `low` into the block pair
-// (lb, rb), given as slot bases; returns how many it offered.
+// (lb, rb), given as slot bases; returns how many it offered. The
+// accumulator is taken and returned by value so that it stays in registers
+// (through a reference GCC spills it and chains every split on a
+// store-to-load round trip: 3.3 instead of 1 ns per split).
 template <SearchPolicy Policy>
-uint64_t OfferBlockPair(const Policy& policy, typename Policy::Acc& acc,
-                        Slot lb, Slot rb, bool left_empty, bool right_empty,
-                        RelSet low) {
+[[gnu::always_inline]] inline typename Policy::Acc OfferBlockPair(
+    const Policy& policy, typename Policy::Acc a, Slot lb, Slot rb,
+    bool left_empty, bool right_empty, RelSet low, uint64_t& work) {
   const uint64_t subsets = uint64_t{1} << Size(low);
-  const auto offer = [&](RelSet l) {
-    policy.Offer(acc, lb + static_cast<Slot>(l), rb + static_cast<Slot>(low ^ l));
-  };
   if (left_empty && right_empty) {  // both parts come from the low bits
     if constexpr (Policy::kSymmetric) {
       // The left part holds the lowest relation: each unordered split once.
       const RelSet lowest = LowestBit(low);
       const RelSet rest = low ^ lowest;
-      for (RelSet sub = 0; sub != rest; sub = (sub - rest) & rest) offer(sub | lowest);
-      return subsets / 2 - 1;
+      for (RelSet sub = 0; sub != rest; sub = (sub - rest) & rest) {
+        SLICEPLAN_OFFER_(sub | lowest);
+      }
+      work += subsets / 2 - 1;
     } else {
-      for (RelSet l = (0 - low) & low; l != low; l = (l - low) & low) offer(l);
-      return subsets - 2;
+      for (RelSet l = (0 - low) & low; l != low; l = (l - low) & low) {
+        SLICEPLAN_OFFER_(l);
+      }
+      work += subsets - 2;
     }
+    return a;
   }
   if (low == 0) {  // the high parts alone make the split
-    if (left_empty || right_empty) return 0;
-    offer(0);
-    return 1;
+    if (!left_empty && !right_empty) {
+      SLICEPLAN_OFFER_(RelSet{0});
+      work += 1;
+    }
+    return a;
   }
   if (left_empty) {  // left part non-empty: l != 0
     RelSet l = 0;
     do {
       l = (l - low) & low;
-      offer(l);
+      SLICEPLAN_OFFER_(l);
     } while (l != low);
-    return subsets - 1;
+    work += subsets - 1;
+  } else if (right_empty) {  // right part non-empty: l != low
+    for (RelSet l = 0; l != low; l = (l - low) & low) SLICEPLAN_OFFER_(l);
+    work += subsets - 1;
+  } else {
+    RelSet l = 0;
+    do {
+      SLICEPLAN_OFFER_(l);
+      l = (l - low) & low;
+    } while (l != 0);
+    work += subsets;
   }
-  if (right_empty) {  // right part non-empty: l != low
-    for (RelSet l = 0; l != low; l = (l - low) & low) offer(l);
-    return subsets - 1;
-  }
-  RelSet l = 0;
-  do {
-    offer(l);
-    l = (l - low) & low;
-  } while (l != 0);
-  return subsets;
+  return a;
 }
+
+#undef SLICEPLAN_OFFER_
 
 }  // namespace dense_bushy_internal
 
@@ -93,9 +107,10 @@ absl::Status RunDenseBushy(const DenseLayout& layout, Policy& policy,
       auto acc = policy.Begin();
       uint64_t work = 0;
       for (const BlockSplit& bs : splits) {
-        work += dense_bushy_internal::OfferBlockPair(
+        acc = dense_bushy_internal::OfferBlockPair(
             policy, acc, static_cast<Slot>(bs.left << f),
-            static_cast<Slot>(bs.right << f), bs.left == 0, bs.right == 0, low);
+            static_cast<Slot>(bs.right << f), bs.left == 0, bs.right == 0, low,
+            work);
       }
       policy.Finish(s, set, acc);
       stats.splits += work;

@@ -40,10 +40,10 @@ absl::Status RunDenseLeftDeep(const DenseLayout& layout, Policy& policy,
       auto acc = policy.Begin();
       for (RelSet rest = low; rest != 0; rest &= rest - 1) {
         const RelSet bit = LowestBit(rest);
-        policy.OfferLeafRight(acc, s - static_cast<Slot>(bit), Lowest(bit));
+        acc = policy.OfferLeafRight(acc, s - static_cast<Slot>(bit), Lowest(bit));
       }
       for (const BlockRemoval& rm : removals) {
-        policy.OfferLeafRight(acc, static_cast<Slot>((rm.rest_block << f) | low),
+        acc = policy.OfferLeafRight(acc, static_cast<Slot>((rm.rest_block << f) | low),
                               rm.relation);
       }
       policy.Finish(s, set, acc);

@@ -14,8 +14,10 @@
 //   void InitLeaf(Slot s, RelationId r);
 // Dense enumeration, all splits of one set in a row:
 //   Acc Begin() const;
-//   void Offer(Acc&, Slot left, Slot right) const;         // bushy
-//   void OfferLeafRight(Acc&, Slot left, RelationId right) const;  // left-deep
+//   Acc Offer(Acc, Slot left, Slot right) const;          // bushy
+//   Acc OfferLeafRight(Acc, Slot left, RelationId right) const;  // left-deep
+// (Offer takes and returns the accumulator by value so that it stays in
+// registers in the hot loop.)
 //   void Finish(Slot s, RelSet set, const Acc&);
 // Scattered enumeration (connected sets, splits of a set interleaved):
 //   void InitSet(Slot s, RelSet set);
@@ -44,8 +46,8 @@ concept SearchPolicy = requires(P p, const P cp, typename P::Acc acc, Slot s,
   p.Resize(size_t{1});
   p.InitLeaf(s, r);
   { cp.Begin() } -> std::same_as<typename P::Acc>;
-  cp.Offer(acc, s, s);
-  cp.OfferLeafRight(acc, s, r);
+  { cp.Offer(acc, s, s) } -> std::same_as<typename P::Acc>;
+  { cp.OfferLeafRight(acc, s, r) } -> std::same_as<typename P::Acc>;
   p.Finish(s, set, acc);
   p.InitSet(s, set);
   p.Relax(s, s, s);
