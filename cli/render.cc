@@ -1,6 +1,7 @@
 #include "cli/render.h"
 
 #include <algorithm>
+#include <vector>
 
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_format.h"
@@ -17,15 +18,31 @@ std::string NodeLabel(const PlanNode& node, const Query& query) {
   return "join";
 }
 
-void AppendTextTree(const Plan& plan, int i, int depth, const Query& query,
-                    std::string& out) {
+struct TextLine {
+  std::string head;  // indentation and label
+  const PlanNode* node;
+};
+
+void CollectLines(const Plan& plan, int i, int depth, const Query& query,
+                  std::vector<TextLine>& out) {
   const PlanNode& node = plan.nodes[i];
-  absl::StrAppendFormat(&out, "%*s%-*s card %-11.4g cost %.4g\n", 2 * depth,
-                        "", std::max(1, 24 - 2 * depth),
-                        NodeLabel(node, query), node.cardinality, node.cost);
+  out.push_back({std::string(2 * depth, ' ') + NodeLabel(node, query), &node});
   if (node.is_leaf()) return;
-  AppendTextTree(plan, node.left, depth + 1, query, out);
-  AppendTextTree(plan, node.right, depth + 1, query, out);
+  CollectLines(plan, node.left, depth + 1, query, out);
+  CollectLines(plan, node.right, depth + 1, query, out);
+}
+
+// One line per node, children indented under their join, figures aligned.
+void AppendTextTree(const Plan& plan, const Query& query, std::string& out) {
+  std::vector<TextLine> lines;
+  CollectLines(plan, static_cast<int>(plan.nodes.size()) - 1, 0, query, lines);
+  size_t width = 0;
+  for (const TextLine& l : lines) width = std::max(width, l.head.size());
+  absl::StrAppendFormat(&out, "%-*s  %12s  %12s\n", width, "node", "card", "cost");
+  for (const TextLine& l : lines) {
+    absl::StrAppendFormat(&out, "%-*s  %12.4g  %12.4g\n", width, l.head,
+                          l.node->cardinality, l.node->cost);
+  }
 }
 
 // %.17g round-trips a double; JSON has no inf or nan, so those become null.
@@ -82,8 +99,7 @@ std::string RenderText(const OptimizeResult& result, const RunInfo& info) {
       info.search.cross_products ? "allowed" : "excluded",
       MetricName(info.search.cost), result.plan.root().cost);
   out += TreeString(result.plan, query) + "\n\n";
-  AppendTextTree(result.plan, static_cast<int>(result.plan.nodes.size()) - 1,
-                 0, query, out);
+  AppendTextTree(result.plan, query, out);
   const SliceBalance b = Balance(result);
   absl::StrAppendFormat(
       &out, "\nslices: %u (%s), workers: %d, wall time %.3f s\n",

@@ -1,0 +1,86 @@
+#!/usr/bin/env bash
+# End-to-end checks of `sliceplan optimize` (interfaces.md): bad input exits
+# with status 2, a message naming the field on stderr and nothing on stdout;
+# good input prints the JSON result with the fields outside checks read.
+# Usage: cli_test.sh SLICEPLAN_BINARY SOURCE_DIR
+set -u
+bin=$1
+src=$2
+bad=$src/tests/cli/bad
+examples=$src/examples
+passed=0
+failed=0
+tmp=$(mktemp -d)
+trap 'rm -rf "$tmp"' EXIT
+
+check() {  # NAME WANT_STATUS WANT_STDERR_PART ARGS...
+  local name=$1 want=$2 part=$3
+  shift 3
+  "$bin" "$@" >"$tmp/out" 2>"$tmp/err"
+  local got=$?
+  local why=""
+  [ "$got" -eq "$want" ] || why="exit status $got, want $want"
+  if [ "$want" -ne 0 ]; then
+    [ -s "$tmp/out" ] && why="$why; stdout not empty"
+    grep -qF -- "$part" "$tmp/err" || why="$why; stderr lacks '$part'"
+  fi
+  if [ -z "$why" ]; then
+    passed=$((passed + 1))
+  else
+    failed=$((failed + 1))
+    echo "FAIL $name: $why"
+    sed 's/^/  stderr: /' "$tmp/err"
+  fi
+}
+
+check unknown_field 2 "(relations[0]) depth" optimize "$bad/unknown_field.json"
+check duplicate_name 2 "relations[1].name: duplicate relation name" optimize "$bad/duplicate_name.json"
+check missing_rows 2 "relations[1] (cranes).rows: missing" optimize "$bad/missing_rows.json"
+check rows_zero 2 "relations[0] (berths).rows" optimize "$bad/rows_zero.json"
+check rows_negative 2 "relations[0] (berths).rows: must be a finite number > 0, got -3" optimize "$bad/rows_negative.json"
+check selectivity_high 2 "predicates[0].selectivity: must lie in (0, 1]" optimize "$bad/selectivity_high.json"
+check selectivity_zero 2 "predicates[0].selectivity" optimize "$bad/selectivity_zero.json"
+check unknown_relation 2 "predicates[0].relations[1]: unknown relation \"tugboats\"" optimize "$bad/unknown_relation.json"
+check repeated_relation 2 "predicates[0].relations[1]: relation \"berths\" is named twice" optimize "$bad/repeated_relation.json"
+check truncated 2 "query JSON" optimize "$bad/truncated.json"
+check too_many_relations 2 "65 relations given; the exact search takes at most 64" optimize "$bad/too_many_relations.json"
+check missing_file 2 "no_such_query.json" optimize "$tmp/no_such_query.json"
+check no_file 2 "QUERY.json: no query file given" optimize
+check slices_not_power 2 "--slices=3: expected a power of two" optimize "$examples/port_calls_small.json" --slices=3
+check slices_too_many 2 "slices: 8 slices need 3 disjoint triples" optimize "$examples/port_calls_small.json" --slices=8
+check slices_too_many_left 2 "slices: 16 slices need 4 disjoint pairs" optimize "$examples/port_calls_small.json" --slices=16 --shape=left-deep
+check bad_shape 2 "--shape=round: expected bushy or left-deep" optimize "$examples/port_calls_small.json" --shape=round
+check unknown_flag 2 "--speed: unknown flag" optimize "$examples/port_calls_small.json" --speed=3
+check unknown_command 2 "unknown command" reorder "$examples/port_calls_small.json"
+check memo_limit 2 "over the limit" optimize "$examples/port_logistics.json" --slices=1 --memo-limit=1MiB
+
+# A good run: JSON with the fields of interfaces.md, one plan, P slices.
+check json_ok 0 "" optimize "$examples/port_calls_small.json" --format=json --slices=4 --workers=2
+if python3 - "$tmp/out" <<'PY'
+import json, sys
+doc = json.load(open(sys.argv[1]))
+plans = doc["plans"]
+assert len(plans) == 1, plans
+tree = plans[0]["tree"]
+assert tree.startswith("(") and tree.count("(") == 5, tree
+for name in ["shipments", "containers", "voyages", "vessels", "ports", "customers"]:
+    assert tree.count(name) == 1, (name, tree)
+assert plans[0]["costs"]["cout"] > 0
+slices = doc["stats"]["slices"]
+assert [s["index"] for s in slices] == [0, 1, 2, 3], slices
+for s in slices:
+    assert s["subsets"] == 7 ** 2 * 2 ** 0 and s["splits"] > 0 and s["seconds"] >= 0, s
+PY
+then passed=$((passed + 1)); else failed=$((failed + 1)); echo "FAIL json_fields"; fi
+
+# Every format of the same run names the same plan.
+"$bin" optimize "$examples/port_calls_small.json" --format=text --slices=2 >"$tmp/text" 2>/dev/null
+"$bin" optimize "$examples/port_calls_small.json" --format=json --slices=2 >"$tmp/json" 2>/dev/null
+tree=$(python3 -c 'import json,sys; print(json.load(open(sys.argv[1]))["plans"][0]["tree"])' "$tmp/json")
+if grep -qF -- "$tree" "$tmp/text"; then passed=$((passed + 1)); else failed=$((failed + 1)); echo "FAIL text_tree"; fi
+check dot_ok 0 "" optimize "$examples/port_calls_small.json" --format=dot
+if grep -q '^digraph plan {' "$tmp/out" && [ "$(grep -c -- '->' "$tmp/out")" -eq 10 ]; then
+  passed=$((passed + 1)); else failed=$((failed + 1)); echo "FAIL dot_edges"; fi
+
+echo "$passed passed, $failed failed"
+[ "$failed" -eq 0 ]
