@@ -1,12 +1,18 @@
 #include "core/constraint_choice.h"
 
 #include <algorithm>
-#include <limits>
 #include <map>
-#include <queue>
+#include <array>
+#include <bit>
+
+#include "core/connected_sets.h"
 
 namespace sliceplan {
 namespace {
+
+// Connected sets sampled to score candidate constraints (the first ones
+// DPccp finds, so the whole set for graphs up to this size).
+constexpr uint64_t kSampleSets = 4096;
 
 using Adjacency = std::vector<RelSet>;
 
@@ -19,24 +25,6 @@ Adjacency BuildAdjacency(const Query& query) {
     });
   }
   return adj;
-}
-
-std::vector<int> Distances(const Adjacency& adj, int from) {
-  std::vector<int> dist(adj.size(), std::numeric_limits<int>::max());
-  std::queue<int> todo;
-  dist[from] = 0;
-  todo.push(from);
-  while (!todo.empty()) {
-    const int v = todo.front();
-    todo.pop();
-    ForEachMember(adj[v], [&](RelationId w) {
-      if (dist[w.value] == std::numeric_limits<int>::max()) {
-        dist[w.value] = dist[v] + 1;
-        todo.push(w.value);
-      }
-    });
-  }
-  return dist;
 }
 
 std::vector<int> Refine(const Adjacency& adj, const std::vector<int>& colour) {
@@ -57,70 +45,106 @@ std::vector<int> Refine(const Adjacency& adj, const std::vector<int>& colour) {
   return out;
 }
 
-// Relations grouped by colour, each group in id order, groups by colour.
-std::vector<std::vector<int>> ColourClasses(const std::vector<int>& colour) {
-  const int classes = *std::max_element(colour.begin(), colour.end()) + 1;
-  std::vector<std::vector<int>> out(classes);
-  for (size_t v = 0; v < colour.size(); ++v) {
-    out[colour[v]].push_back(static_cast<int>(v));
-  }
-  return out;
-}
-
 RelationId Id(int v) { return RelationId{static_cast<uint8_t>(v)}; }
 
-// Pairs inside each colour class first, then the leftovers in colour order.
-std::vector<ConstraintRelations> ChoosePairs(const std::vector<int>& colour,
-                                             int k) {
-  std::vector<ConstraintRelations> out;
-  std::vector<int> leftover;
-  for (const std::vector<int>& cls : ColourClasses(colour)) {
-    size_t i = 0;
-    for (; i + 1 < cls.size(); i += 2) {
-      out.push_back({{Id(cls[i]), Id(cls[i + 1]), Id(0)}, 2});
+// Which sampled connected sets hold each relation: bit i of member[v] is
+// set when sample set i holds v.
+class Membership {
+ public:
+  Membership(const std::vector<RelSet>& sample, int n)
+      : words_((sample.size() + 63) / 64), bits_(n * words_, 0) {
+    for (size_t i = 0; i < sample.size(); ++i) {
+      ForEachMember(sample[i], [&](RelationId r) {
+        bits_[r.value * words_ + i / 64] |= uint64_t{1} << (i % 64);
+      });
     }
-    if (i < cls.size()) leftover.push_back(cls[i]);
   }
-  for (size_t i = 0; i + 1 < leftover.size(); i += 2) {
-    out.push_back({{Id(leftover[i]), Id(leftover[i + 1]), Id(0)}, 2});
+  // Sample sets holding all of `with` (one or two ids) and not `without`.
+  uint64_t Count(int with_a, int with_b, int without) const {
+    const uint64_t* a = &bits_[with_a * words_];
+    const uint64_t* b = &bits_[with_b * words_];
+    const uint64_t* c = &bits_[without * words_];
+    uint64_t count = 0;
+    for (size_t w = 0; w < words_; ++w) count += std::popcount(a[w] & b[w] & ~c[w]);
+    return count;
   }
-  out.resize(k);
+
+ private:
+  size_t words_;
+  std::vector<uint64_t> bits_;
+};
+
+// Ranks candidates: most sets forbidden on the weaker side first (that
+// both shrinks and balances the two halves), then a pair of equal colours
+// (a likely symmetry), then the lowest ids.
+struct Candidate {
+  uint64_t score = 0;
+  bool same_colour = false;
+  std::array<int, 3> ids{};
+  bool BetterThan(const Candidate& o) const {
+    if (score != o.score) return score > o.score;
+    if (same_colour != o.same_colour) return same_colour;
+    return ids < o.ids;
+  }
+};
+
+ConstraintRelations ToRelations(const Candidate& c, int size) {
+  ConstraintRelations out;
+  out.size = size;
+  for (int d = 0; d < size; ++d) out.ids[d] = Id(c.ids[d]);
   return out;
 }
 
-// Greedy: a same-colour pair {t, u} and the nearest unused anchor r that is
-// as far from t as from u; without such a pair, the lowest unused ids.
-std::vector<ConstraintRelations> ChooseTriples(const Query& query,
-                                               const Adjacency& adj,
+// Precedence pair {a, c}: one slice forbids the sets with c but not a, the
+// other those with a but not c.
+std::vector<ConstraintRelations> ChoosePairs(const Membership& m,
+                                             const std::vector<int>& colour,
+                                             int k) {
+  const int n = static_cast<int>(colour.size());
+  RelSet used = 0;
+  std::vector<ConstraintRelations> out;
+  while (static_cast<int>(out.size()) < k) {
+    Candidate best;
+    bool found = false;
+    for (int a = 0; a < n; ++a) {
+      for (int c = a + 1; c < n; ++c) {
+        if (Contains(used, Id(a)) || Contains(used, Id(c))) continue;
+        Candidate cand{std::min(m.Count(c, c, a), m.Count(a, a, c)),
+                       colour[a] == colour[c], {a, c, 0}};
+        if (!found || cand.BetterThan(best)) best = cand, found = true;
+      }
+    }
+    out.push_back(ToRelations(best, 2));
+    used |= Singleton(Id(best.ids[0])) | Singleton(Id(best.ids[1]));
+  }
+  return out;
+}
+
+// Path triple {r, t, u}: one slice forbids the sets with r and t but not u,
+// the other those with r and u but not t.
+std::vector<ConstraintRelations> ChooseTriples(const Membership& m,
                                                const std::vector<int>& colour,
                                                int k) {
-  const int n = query.size();
-  std::vector<std::vector<int>> dist;
-  for (int v = 0; v < n; ++v) dist.push_back(Distances(adj, v));
+  const int n = static_cast<int>(colour.size());
   RelSet used = 0;
   std::vector<ConstraintRelations> out;
   const auto free = [&](int v) { return !Contains(used, Id(v)); };
   while (static_cast<int>(out.size()) < k) {
-    int best_t = -1, best_u = -1, best_r = -1;
-    for (int t = 0; t < n && best_r < 0; ++t) {
-      for (int u = t + 1; u < n && best_r < 0; ++u) {
-        if (!free(t) || !free(u) || colour[t] != colour[u]) continue;
+    Candidate best;
+    bool found = false;
+    for (int t = 0; t < n; ++t) {
+      for (int u = t + 1; u < n; ++u) {
+        if (!free(t) || !free(u)) continue;
         for (int r = 0; r < n; ++r) {
-          if (!free(r) || r == t || r == u || dist[r][t] != dist[r][u]) continue;
-          if (best_r < 0 || dist[r][t] < dist[best_r][t]) best_r = r;
+          if (!free(r) || r == t || r == u) continue;
+          Candidate cand{std::min(m.Count(r, t, u), m.Count(r, u, t)),
+                         colour[t] == colour[u], {r, t, u}};
+          if (!found || cand.BetterThan(best)) best = cand, found = true;
         }
-        if (best_r >= 0) best_t = t, best_u = u;
       }
     }
-    if (best_r < 0) {  // no symmetric triple left: take the lowest ids
-      std::vector<int> pick;
-      for (int v = 0; v < n && pick.size() < 3; ++v) {
-        if (free(v)) pick.push_back(v);
-      }
-      best_r = pick[0], best_t = pick[1], best_u = pick[2];
-    }
-    out.push_back({{Id(best_r), Id(best_t), Id(best_u)}, 3});
-    used |= Singleton(Id(best_r)) | Singleton(Id(best_t)) | Singleton(Id(best_u));
+    out.push_back(ToRelations(best, 3));
+    for (int d = 0; d < 3; ++d) used |= Singleton(Id(best.ids[d]));
   }
   return out;
 }
@@ -149,8 +173,9 @@ std::vector<ConstraintRelations> ChooseConstraintRelations(const Query& query,
                                                            int k) {
   if (k == 0) return {};
   const std::vector<int> colour = RefinedColours(query);
-  if (shape == PlanShape::kLeftDeep) return ChoosePairs(colour, k);
-  return ChooseTriples(query, BuildAdjacency(query), colour, k);
+  const Membership members(ConnectedSets(query, kSampleSets), query.size());
+  if (shape == PlanShape::kLeftDeep) return ChoosePairs(members, colour, k);
+  return ChooseTriples(members, colour, k);
 }
 
 }  // namespace sliceplan

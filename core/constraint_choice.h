@@ -4,11 +4,13 @@
 //
 // In the cross-product space every disjoint choice gives the same work per
 // slice. Without cross products the slices' sizes depend on the choice: a
-// pair {a, c} splits evenly when swapping a and c is a symmetry of the join
-// graph, a triple {r, t, u} when swapping t and u is one that fixes r. The
-// choice approximates the graph's symmetry classes by colour refinement
-// (iterated degree signatures) and builds constraints inside one class
-// first. Pure function; thread-safe.
+// constraint helps when each of its two sides forbids many connected sets.
+// The choice samples the join graph's connected sets (all of them up to a
+// few thousand), scores each candidate by the sets forbidden on its weaker
+// side, and picks greedily; ties go to relations of equal colour under
+// colour refinement (iterated degree signatures, a cheap stand-in for
+// graph symmetry, under which the two sides are equal), then to the lowest
+// ids. Pure function; thread-safe.
 #ifndef SLICEPLAN_CORE_CONSTRAINT_CHOICE_H_
 #define SLICEPLAN_CORE_CONSTRAINT_CHOICE_H_
 

@@ -4,44 +4,11 @@
 #include <cmath>
 
 #include "core/cout_policy.h"
-#include "core/join_graph.h"
+#include "core/connected_sets.h"
 #include "core/search_estimate.h"
 
 namespace sliceplan {
 namespace {
-
-// DPccp's csg enumeration (Moerkotte and Neumann, VLDB 2006), counting only.
-class CsgCounter {
- public:
-  CsgCounter(const Query& query, uint64_t cap) : graph_(query), cap_(cap) {}
-
-  uint64_t Count(int n) {
-    for (int v = n - 1; v >= 0 && count_ < cap_; --v) {
-      const RelSet start = RelSet{1} << v;
-      ++count_;
-      Grow(start, FullSet(v + 1));
-    }
-    return std::min(count_, cap_);
-  }
-
- private:
-  void Grow(RelSet s, RelSet x) {
-    const RelSet nb = graph_.Around(s) & ~x;
-    if (nb == 0) return;
-    for (RelSet sub = nb & (0 - nb); count_ < cap_; sub = (sub - nb) & nb) {
-      ++count_;
-      if (sub == nb) break;
-    }
-    for (RelSet sub = nb & (0 - nb); count_ < cap_; sub = (sub - nb) & nb) {
-      Grow(s | sub, x | nb);
-      if (sub == nb) break;
-    }
-  }
-
-  JoinGraph graph_;
-  uint64_t cap_;
-  uint64_t count_ = 0;
-};
 
 uint32_t ChooseDense(const Query& query, const SearchOptions& options,
                      int workers) {
@@ -66,7 +33,7 @@ uint32_t ChooseDense(const Query& query, const SearchOptions& options,
 }  // namespace
 
 uint64_t CountConnectedSets(const Query& query, uint64_t cap) {
-  return CsgCounter(query, cap).Count(query.size());
+  return ConnectedSets(query, cap).size();
 }
 
 uint32_t ChooseSliceCount(const Query& query, const SearchOptions& options,

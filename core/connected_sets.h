@@ -1,0 +1,21 @@
+// Enumerating the connected relation sets of a join graph (predicates taken
+// as cliques), without a memo: DPccp's EnumerateCsg (Moerkotte and Neumann,
+// VLDB 2006), which emits each connected set exactly once. Used to size
+// searches without cross products and to score slice constraints.
+#ifndef SLICEPLAN_CORE_CONNECTED_SETS_H_
+#define SLICEPLAN_CORE_CONNECTED_SETS_H_
+
+#include <cstdint>
+#include <vector>
+
+#include "core/query.h"
+
+namespace sliceplan {
+
+// Up to `cap` connected sets of the query's join graph, singletons
+// included, in DPccp's order (sets holding high ids first).
+std::vector<RelSet> ConnectedSets(const Query& query, uint64_t cap);
+
+}  // namespace sliceplan
+
+#endif  // SLICEPLAN_CORE_CONNECTED_SETS_H_
