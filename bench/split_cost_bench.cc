@@ -53,7 +53,7 @@ void NsPerSplit(int n) {
 
 void SliceRatios(int n, PlanShape shape) {
   const Query q = testing::MakeQuery(testing::GraphShape::kRandom, n, 1);
-  const Run whole = Best(q, shape, {0, 1}, 3);
+  const Run whole = Best(q, shape, {0, 1}, 5);
   const double per_bit = shape == PlanShape::kBushy ? 21.0 / 27.0 : 0.75;
   std::printf("%s n=%d unsliced %.3f s\n", shape == PlanShape::kBushy ? "bushy" : "left-deep",
               n, whole.seconds);
@@ -64,7 +64,7 @@ void SliceRatios(int n, PlanShape shape) {
     double slowest = 0;
     uint64_t memo = 0;
     for (uint32_t i = 0; i < p; ++i) {
-      const Run r = Best(q, shape, {i, p}, 2);
+      const Run r = Best(q, shape, {i, p}, 5);
       slowest = std::max(slowest, r.seconds);
       memo = std::max(memo, r.memo_bytes);
     }

@@ -1,22 +1,25 @@
-// The embedded mode: an in-process coordinator that solves all slices of a
-// query on a pool of worker threads and merges them, with no servers.
-//
-// Each thread takes the next unsolved slice until none is left (so fast
-// threads take more). Thread-safe: a call owns its pool.
+// The embedded mode: the coordinator's scheduler (slice_scheduler.h) over a
+// pool of in-process workers (local_worker.h), with no servers. The same
+// scheduling and merging path as the RPC coordinator. Thread-safe.
 #ifndef SLICEPLAN_CORE_EMBEDDED_POOL_H_
 #define SLICEPLAN_CORE_EMBEDDED_POOL_H_
 
 #include "absl/status/statusor.h"
 #include "core/merge.h"
 #include "core/query.h"
+#include "core/slice_scheduler.h"
 #include "core/slice_solver.h"
 
 namespace sliceplan {
 
-// Solves slices 0..slice_count-1 on `workers` threads and merges them.
-// Errors: the first failing slice's status (by slice index); the other
-// slices are cancelled. Errors of the slice count itself (ValidateSlice)
-// come before any thread starts. REQUIRES: workers >= 1.
+// Solves slices 0..slice_count-1 on `workers` in-process workers and
+// merges them. Errors as RunSlices. REQUIRES: workers >= 1.
+absl::StatusOr<ScheduleOutcome> RunEmbedded(const Query& query,
+                                            const SearchOptions& options,
+                                            uint32_t slice_count, int workers,
+                                            const ScheduleOptions& schedule = {});
+
+// RunEmbedded's merged result alone.
 absl::StatusOr<OptimizeResult> OptimizeEmbedded(const Query& query,
                                                 const SearchOptions& options,
                                                 uint32_t slice_count,

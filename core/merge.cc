@@ -6,13 +6,15 @@
 
 namespace sliceplan {
 
-absl::StatusOr<OptimizeResult> MergeSlices(std::vector<SliceResult> slices,
-                                           uint32_t slice_count) {
+namespace {
+
+absl::StatusOr<OptimizeResult> Merge(std::vector<SliceResult> slices,
+                                     uint32_t slice_count, bool all) {
   std::sort(slices.begin(), slices.end(),
             [](const SliceResult& a, const SliceResult& b) {
               return a.slice.index < b.slice.index;
             });
-  if (slices.size() != slice_count) {
+  if (all && slices.size() != slice_count) {
     return absl::InvalidArgumentError(absl::StrCat(
         "merge: ", slices.size(), " slice answers for ", slice_count,
         " slices"));
@@ -20,15 +22,16 @@ absl::StatusOr<OptimizeResult> MergeSlices(std::vector<SliceResult> slices,
   OptimizeResult out;
   out.slice_count = slice_count;
   const Plan* best = nullptr;
-  for (uint32_t i = 0; i < slice_count; ++i) {
+  for (size_t i = 0; i < slices.size(); ++i) {
     const SliceResult& r = slices[i];
-    if (r.slice.index != i) {
-      return absl::InvalidArgumentError(
-          absl::StrCat("merge: slice ", i, " is missing"));
+    const bool repeated = i > 0 && slices[i - 1].slice.index == r.slice.index;
+    if ((all && r.slice.index != i) || repeated || r.slice.index >= slice_count) {
+      return absl::InvalidArgumentError(absl::StrCat(
+          "merge: slice ", all ? i : r.slice.index, " is missing or repeated"));
     }
     if (r.plan && (best == nullptr || r.plan->root().cost < best->root().cost)) {
       best = &*r.plan;
-      out.best_slice = i;
+      out.best_slice = r.slice.index;
     }
   }
   if (best == nullptr) {
@@ -40,6 +43,18 @@ absl::StatusOr<OptimizeResult> MergeSlices(std::vector<SliceResult> slices,
   for (SliceResult& r : slices) r.plan.reset();
   out.slices = std::move(slices);
   return out;
+}
+
+}  // namespace
+
+absl::StatusOr<OptimizeResult> MergeSlices(std::vector<SliceResult> slices,
+                                           uint32_t slice_count) {
+  return Merge(std::move(slices), slice_count, true);
+}
+
+absl::StatusOr<OptimizeResult> MergeSolvedSlices(std::vector<SliceResult> slices,
+                                                 uint32_t slice_count) {
+  return Merge(std::move(slices), slice_count, false);
 }
 
 }  // namespace sliceplan

@@ -3,7 +3,8 @@
 namespace sliceplan {
 
 bool SearchControl::Check() {
-  if (cancel_ != nullptr && cancel_->load(std::memory_order_relaxed)) {
+  if ((cancel_ != nullptr && cancel_->load(std::memory_order_relaxed)) ||
+      (cancelled_ && cancelled_())) {
     status_ = absl::CancelledError("search cancelled");
     return true;
   }

@@ -11,6 +11,7 @@
 #include <atomic>
 #include <chrono>
 #include <cstdint>
+#include <functional>
 #include <optional>
 
 #include "absl/status/status.h"
@@ -28,6 +29,11 @@ class SearchControl {
   SearchControl(const std::atomic<bool>* cancel,
                 std::optional<Clock::time_point> deadline)
       : cancel_(cancel), deadline_(deadline) {}
+  // Also stops once `cancelled()` returns true (polled with the clock, so
+  // it may take a lock or ask an RPC context).
+  void set_cancel_check(std::function<bool()> cancelled) {
+    cancelled_ = std::move(cancelled);
+  }
 
   // Returns true when the search must stop; status() then says why.
   bool Tick(uint64_t work) {
@@ -43,6 +49,7 @@ class SearchControl {
   bool Check();
 
   const std::atomic<bool>* cancel_ = nullptr;
+  std::function<bool()> cancelled_;
   std::optional<Clock::time_point> deadline_;
   int64_t budget_ = kTickWork;
   absl::Status status_;

@@ -1,0 +1,317 @@
+#include "core/slice_scheduler.h"
+
+#include <algorithm>
+#include <condition_variable>
+#include <deque>
+#include <memory>
+#include <mutex>
+
+#include "absl/strings/str_cat.h"
+#include "absl/strings/str_join.h"
+#include "core/status_macros.h"
+
+namespace sliceplan {
+
+bool IsRetryable(const absl::Status& status) {
+  switch (status.code()) {
+    case absl::StatusCode::kUnavailable:
+    case absl::StatusCode::kInternal:
+    case absl::StatusCode::kUnknown:
+    case absl::StatusCode::kAborted:
+    case absl::StatusCode::kDeadlineExceeded:  // the call's, not the run's
+    case absl::StatusCode::kCancelled:         // not cancelled by us
+    case absl::StatusCode::kDataLoss:
+      return true;
+    default:
+      return false;
+  }
+}
+
+namespace {
+
+using Clock = std::chrono::steady_clock;
+
+struct Attempt {
+  uint32_t slice;
+  size_t worker;
+  Clock::time_point started;
+  std::unique_ptr<SliceCall> call;  // set right after Start returns
+  bool finished = false;
+};
+
+// One Run: all state behind one mutex; calls report back via Finish().
+class Run {
+ public:
+  Run(const Query& query, const SearchOptions& options, uint32_t slice_count,
+      std::span<SliceWorker* const> workers, const ScheduleOptions& schedule)
+      : query_(query), options_(options), count_(slice_count),
+        workers_(workers.begin(), workers.end()), schedule_(schedule),
+        busy_(workers_.size(), 0), failed_(workers_.size()),
+        solved_by_(workers_.size(), 0), attempts_of_(slice_count, 0),
+        running_of_(slice_count, 0), answers_(slice_count),
+        answer_worker_(slice_count, 0) {
+    for (uint32_t i = 0; i < slice_count; ++i) pending_.push_back(i);
+  }
+
+  absl::StatusOr<ScheduleOutcome> Execute() {
+    std::unique_lock<std::mutex> lock(mu_);
+    while (error_.ok() && done_ < count_) {
+      if (schedule_.deadline && Clock::now() >= *schedule_.deadline) {
+        deadline_passed_ = true;
+        break;
+      }
+      Dispatch();
+      if (error_.ok() && running_ == 0 && done_ < count_ && !AnyUsable()) {
+        error_ = NoWorkerLeft();
+      }
+      if (!error_.ok() || done_ == count_) break;
+      const auto wake = NextWakeUp();
+      if (wake) {
+        changed_.wait_until(lock, *wake);
+      } else {
+        changed_.wait(lock);
+      }
+    }
+    CancelAll();
+    changed_.wait(lock, [&] { return running_ == 0; });
+    lock.unlock();
+    attempts_.clear();  // joins local threads; no call is running now
+    return Outcome();
+  }
+
+ private:
+  // REQUIRES: mu_ held. Starts work on every free slot.
+  void Dispatch() {
+    for (;;) {
+      if (!pending_.empty()) {
+        const uint32_t slice = pending_.front();
+        const auto w = FreeWorker();
+        if (!w) return;
+        pending_.pop_front();
+        StartAttempt(slice, *w);
+        continue;
+      }
+      if (!TryHedge()) return;
+    }
+  }
+
+  // REQUIRES: mu_ held. Starts a second copy of the oldest lone slice that
+  // has run longer than hedge_after, on a free slot of another worker.
+  bool TryHedge() {
+    if (!schedule_.hedge_after) return false;
+    const auto now = Clock::now();
+    for (const auto& a : attempts_) {
+      if (a->finished || answers_[a->slice] || running_of_[a->slice] != 1) continue;
+      if (now - a->started < *schedule_.hedge_after) continue;
+      const auto w = FreeWorker(a->worker);
+      if (!w) continue;
+      ++hedges_;
+      StartAttempt(a->slice, *w);
+      return true;
+    }
+    return false;
+  }
+
+  // REQUIRES: mu_ held. A usable worker with a free slot, preferring one
+  // other than `avoid`, and the least busy.
+  std::optional<size_t> FreeWorker(std::optional<size_t> avoid = {}) const {
+    std::optional<size_t> best;
+    for (size_t w = 0; w < workers_.size(); ++w) {
+      if (!Usable(w) || busy_[w] >= workers_[w]->Slots()) continue;
+      if (avoid && w == *avoid) continue;
+      if (!best || busy_[w] < busy_[*best]) best = w;
+    }
+    return best;
+  }
+
+  bool Usable(size_t w) const { return failed_[w].ok() && workers_[w]->Healthy(); }
+  bool AnyUsable() const {
+    for (size_t w = 0; w < workers_.size(); ++w) {
+      if (Usable(w)) return true;
+    }
+    return false;
+  }
+
+  // REQUIRES: mu_ held.
+  void StartAttempt(uint32_t slice, size_t w) {
+    auto attempt = std::make_unique<Attempt>(Attempt{slice, w, Clock::now(), nullptr});
+    Attempt* a = attempt.get();
+    attempts_.push_back(std::move(attempt));
+    ++busy_[w];
+    ++running_;
+    ++running_of_[slice];
+    ++attempts_of_[slice];
+    SliceTask task{&query_, options_, {slice, count_}, schedule_.deadline};
+    // Start may call Finish at once on this thread: release the lock.
+    mu_.unlock();
+    auto call = workers_[w]->Start(task, [this, a](absl::StatusOr<SliceResult> r) {
+      Finish(a, std::move(r));
+    });
+    mu_.lock();
+    a->call = std::move(call);
+    if (cancelled_ && !a->finished) a->call->Cancel();
+  }
+
+  void Finish(Attempt* a, absl::StatusOr<SliceResult> r) {
+    std::optional<ScheduleProgress> progress;
+    {
+      std::lock_guard<std::mutex> lock(mu_);
+      a->finished = true;
+      --busy_[a->worker];
+      --running_;
+      --running_of_[a->slice];
+      progress = Record(a, std::move(r));
+    }
+    if (progress && schedule_.on_progress) schedule_.on_progress(*progress);
+    changed_.notify_all();
+  }
+
+  // REQUIRES: mu_ held. Returns progress to report when a slice completed.
+  std::optional<ScheduleProgress> Record(Attempt* a, absl::StatusOr<SliceResult> r) {
+    if (answers_[a->slice]) return std::nullopt;  // a twin answered first
+    if (r.ok()) {
+      answers_[a->slice] = std::move(r);
+      answer_worker_[a->slice] = a->worker;
+      ++solved_by_[a->worker];
+      ++done_;
+      const auto& plan = answers_[a->slice]->value().plan;
+      if (plan && (!best_cost_ || plan->root().cost < *best_cost_)) {
+        best_cost_ = plan->root().cost;
+      }
+      for (const auto& other : attempts_) {  // cancel the twin, if any
+        if (other.get() != a && other->slice == a->slice && !other->finished &&
+            other->call) {
+          other->call->Cancel();
+        }
+      }
+      return ScheduleProgress{done_, count_, best_cost_, Elapsed()};
+    }
+    if (cancelled_) return std::nullopt;
+    if (!IsRetryable(r.status())) {
+      if (error_.ok()) error_ = r.status();
+      return std::nullopt;
+    }
+    failed_[a->worker] = r.status();
+    if (running_of_[a->slice] > 0) return std::nullopt;  // its twin still runs
+    if (attempts_of_[a->slice] >= schedule_.max_attempts_per_slice) {
+      error_ = absl::Status(r.status().code(),
+                            absl::StrCat("slice ", a->slice, " failed ",
+                                         attempts_of_[a->slice],
+                                         " times; last: ", r.status().message()));
+      return std::nullopt;
+    }
+    ++retries_;
+    pending_.push_front(a->slice);
+    return std::nullopt;
+  }
+
+  // REQUIRES: mu_ held. When the loop must look again without an event:
+  // the deadline, or the moment the oldest lone slice becomes hedgeable.
+  std::optional<Clock::time_point> NextWakeUp() const {
+    std::optional<Clock::time_point> wake = schedule_.deadline;
+    if (schedule_.hedge_after && pending_.empty()) {
+      for (const auto& a : attempts_) {
+        if (a->finished || answers_[a->slice] || running_of_[a->slice] != 1) continue;
+        const auto t = a->started + *schedule_.hedge_after;
+        if (!wake || t < *wake) wake = t;
+      }
+    }
+    return wake;
+  }
+
+  // REQUIRES: mu_ held.
+  void CancelAll() {
+    cancelled_ = true;
+    for (const auto& a : attempts_) {
+      if (!a->finished && a->call) a->call->Cancel();
+    }
+  }
+
+  absl::Status NoWorkerLeft() const {
+    std::vector<std::string> why;
+    for (size_t w = 0; w < workers_.size(); ++w) {
+      why.push_back(absl::StrCat(workers_[w]->Name(), ": ",
+                                 failed_[w].ok() ? "unhealthy" : failed_[w].message()));
+    }
+    return absl::UnavailableError(absl::StrCat(
+        "no worker available with ", count_ - done_, " of ", count_,
+        " slices unsolved (", why.empty() ? "no workers configured" : absl::StrJoin(why, "; "),
+        ")"));
+  }
+
+  double Elapsed() const {
+    return std::chrono::duration<double>(Clock::now() - start_).count();
+  }
+
+  absl::StatusOr<ScheduleOutcome> Outcome() {
+    if (!error_.ok()) return error_;
+    std::vector<SliceResult> solved;
+    std::vector<std::string> names;
+    for (uint32_t i = 0; i < count_; ++i) {
+      if (!answers_[i]) continue;
+      solved.push_back(*std::move(*answers_[i]));
+      names.push_back(workers_[answer_worker_[i]]->Name());
+    }
+    const double coverage = static_cast<double>(done_) / count_;
+    if (deadline_passed_ && done_ < count_) {
+      if (!schedule_.partial_on_deadline || !best_cost_) {
+        return absl::DeadlineExceededError(absl::StrCat(
+            "deadline passed with ", done_, " of ", count_, " slices solved"));
+      }
+    }
+    absl::StatusOr<OptimizeResult> merged =
+        done_ == count_ ? MergeSlices(std::move(solved), count_)
+                        : MergeSolvedSlices(std::move(solved), count_);
+    if (!merged.ok()) return merged.status();
+    ScheduleOutcome out;
+    out.result = *std::move(merged);
+    out.result.wall_seconds = Elapsed();
+    out.proven_optimal = done_ == count_;
+    out.coverage = coverage;
+    out.retries = retries_;
+    out.hedges = hedges_;
+    out.slice_workers = std::move(names);
+    for (uint32_t n : solved_by_) out.workers_used += n > 0;
+    return out;
+  }
+
+  const Query& query_;
+  const SearchOptions options_;
+  const uint32_t count_;
+  const std::vector<SliceWorker*> workers_;
+  const ScheduleOptions& schedule_;
+  const Clock::time_point start_ = Clock::now();
+
+  std::mutex mu_;
+  std::condition_variable changed_;
+  std::deque<uint32_t> pending_;
+  std::vector<std::unique_ptr<Attempt>> attempts_;
+  std::vector<int> busy_;
+  std::vector<absl::Status> failed_;
+  std::vector<uint32_t> solved_by_;
+  std::vector<int> attempts_of_;
+  std::vector<int> running_of_;
+  std::vector<std::optional<absl::StatusOr<SliceResult>>> answers_;
+  std::vector<size_t> answer_worker_;
+  std::optional<double> best_cost_;
+  uint32_t done_ = 0;
+  int running_ = 0;
+  uint32_t retries_ = 0;
+  uint32_t hedges_ = 0;
+  bool cancelled_ = false;
+  bool deadline_passed_ = false;
+  absl::Status error_;
+};
+
+}  // namespace
+
+absl::StatusOr<ScheduleOutcome> RunSlices(const Query& query,
+                                          const SearchOptions& options,
+                                          uint32_t slice_count,
+                                          std::span<SliceWorker* const> workers,
+                                          const ScheduleOptions& schedule) {
+  RETURN_IF_ERROR(ValidateSlice({0, slice_count}, query.size(), options.shape));
+  return Run(query, options, slice_count, workers, schedule).Execute();
+}
+
+}  // namespace sliceplan

@@ -1,0 +1,77 @@
+// The coordinator's scheduling and merging path, shared by the embedded
+// mode and the RPC coordinator: queue the P slices, hand the next one to
+// whichever worker slot frees up, re-dispatch a slice whose worker fails,
+// hedge a straggler with a second copy, enforce the deadline, merge.
+//
+// Invariants:
+//   1. a slice is merged at most once: the first answer wins, the other
+//      copies are cancelled;
+//   2. a worker whose call failed is not used again in the same run;
+//   3. an error that re-running cannot change (bad input, memo limit) ends
+//      the run at once with that error;
+//   4. every call started is finished (its `done` ran) and destroyed
+//      before Run returns.
+// Thread-safe: one Run per call, any number at once.
+#ifndef SLICEPLAN_CORE_SLICE_SCHEDULER_H_
+#define SLICEPLAN_CORE_SLICE_SCHEDULER_H_
+
+#include <chrono>
+#include <functional>
+#include <optional>
+#include <span>
+#include <string>
+#include <vector>
+
+#include "absl/status/statusor.h"
+#include "core/merge.h"
+#include "core/slice_worker.h"
+
+namespace sliceplan {
+
+struct ScheduleProgress {
+  uint32_t slices_done = 0;
+  uint32_t slice_count = 0;
+  std::optional<double> best_cost;  // of the slices done so far
+  double elapsed_seconds = 0;
+};
+
+struct ScheduleOptions {
+  // Start a second copy of a slice that has run this long while a slot is
+  // free and no slice waits; none: never hedge.
+  std::optional<std::chrono::steady_clock::duration> hedge_after;
+  std::optional<std::chrono::steady_clock::time_point> deadline;
+  // At the deadline: the best plan so far (true) or DEADLINE_EXCEEDED.
+  bool partial_on_deadline = false;
+  int max_attempts_per_slice = 3;
+  // Called (without locks held) after every slice that completes.
+  std::function<void(const ScheduleProgress&)> on_progress;
+};
+
+struct ScheduleOutcome {
+  OptimizeResult result;
+  bool proven_optimal = true;  // every slice solved
+  double coverage = 1;         // fraction of slices solved
+  uint32_t retries = 0;        // re-dispatches after a failed call
+  uint32_t hedges = 0;         // second copies started
+  uint32_t workers_used = 0;   // workers that solved at least one slice
+  std::vector<std::string> slice_workers;  // by result.slices position
+};
+
+// Solves slices 0..slice_count-1 of `query` on `workers` and merges them.
+// Errors: ValidateSlice's; UNAVAILABLE naming each worker's last error when
+// no usable worker is left; DEADLINE_EXCEEDED with the coverage when the
+// deadline passes (unless partial_on_deadline and some slice has a plan);
+// a slice's own error when re-running cannot change it.
+absl::StatusOr<ScheduleOutcome> RunSlices(const Query& query,
+                                          const SearchOptions& options,
+                                          uint32_t slice_count,
+                                          std::span<SliceWorker* const> workers,
+                                          const ScheduleOptions& schedule);
+
+// True for errors a re-run on another worker can fix (lost or failing
+// workers); false for those every run reproduces.
+bool IsRetryable(const absl::Status& status);
+
+}  // namespace sliceplan
+
+#endif  // SLICEPLAN_CORE_SLICE_SCHEDULER_H_

@@ -1,0 +1,55 @@
+// What the coordinator's scheduler talks to: something that solves one
+// slice at a time per slot, in this process (local_worker.h) or over RPC
+// (coordinator/rpc_worker.h). Slices are deterministic and idempotent, so a
+// slice may be run twice (a retry, a hedge) and either answer used.
+#ifndef SLICEPLAN_CORE_SLICE_WORKER_H_
+#define SLICEPLAN_CORE_SLICE_WORKER_H_
+
+#include <chrono>
+#include <functional>
+#include <memory>
+#include <optional>
+#include <string>
+
+#include "absl/status/statusor.h"
+#include "core/query.h"
+#include "core/slice_solver.h"
+
+namespace sliceplan {
+
+struct SliceTask {
+  const Query* query = nullptr;  // outlives the call
+  SearchOptions options;
+  SliceSpec slice;
+  std::optional<std::chrono::steady_clock::time_point> deadline;
+};
+
+// One running slice. Destroying it waits for the work to end.
+class SliceCall {
+ public:
+  virtual ~SliceCall() = default;
+  // Asks the work to stop soon; `done` still runs (with CANCELLED, or with
+  // the answer if it was already there).
+  virtual void Cancel() = 0;
+};
+
+using SliceDone = std::function<void(absl::StatusOr<SliceResult>)>;
+
+// Thread-safe.
+class SliceWorker {
+ public:
+  virtual ~SliceWorker() = default;
+  virtual std::string Name() const = 0;
+  // Slices it solves at once.
+  virtual int Slots() const { return 1; }
+  // False while health checks fail; the scheduler skips it.
+  virtual bool Healthy() const { return true; }
+  // Starts solving `task`; `done` runs exactly once, on any thread. The
+  // returned call must not be destroyed from inside `done`.
+  virtual std::unique_ptr<SliceCall> Start(const SliceTask& task,
+                                           SliceDone done) = 0;
+};
+
+}  // namespace sliceplan
+
+#endif  // SLICEPLAN_CORE_SLICE_WORKER_H_

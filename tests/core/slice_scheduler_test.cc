@@ -1,0 +1,170 @@
+// The shared scheduling path with fake workers in one process: failures
+// are re-dispatched, stragglers hedged, deadlines enforced, and the answer
+// is still the optimum (slicing.md, invariant 3).
+#include "core/slice_scheduler.h"
+
+#include <atomic>
+#include <thread>
+
+#include "core/local_worker.h"
+#include "gtest/gtest.h"
+#include "tests/support/test_queries.h"
+
+namespace sliceplan {
+namespace {
+
+using namespace std::chrono_literals;
+
+// Finishes every call with `status` after `delay`, or CANCELLED when
+// cancelled first (a hung or dying worker).
+class FaultyWorker : public SliceWorker {
+ public:
+  FaultyWorker(std::string name, absl::Status status, std::chrono::milliseconds delay)
+      : name_(std::move(name)), status_(std::move(status)), delay_(delay) {}
+  std::string Name() const override { return name_; }
+  std::unique_ptr<SliceCall> Start(const SliceTask&, SliceDone done) override {
+    ++calls;
+    return std::make_unique<Call>(status_, delay_, std::move(done));
+  }
+  std::atomic<int> calls{0};
+
+ private:
+  class Call : public SliceCall {
+   public:
+    Call(absl::Status status, std::chrono::milliseconds delay, SliceDone done)
+        : thread_([this, status, delay, done = std::move(done)] {
+            const auto end = std::chrono::steady_clock::now() + delay;
+            while (!cancel_ && std::chrono::steady_clock::now() < end) {
+              std::this_thread::sleep_for(1ms);
+            }
+            done(cancel_ ? absl::CancelledError("cancelled") : status);
+          }) {}
+    ~Call() override { thread_.join(); }
+    void Cancel() override { cancel_ = true; }
+
+   private:
+    std::atomic<bool> cancel_{false};
+    std::thread thread_;
+  };
+  std::string name_;
+  absl::Status status_;
+  std::chrono::milliseconds delay_;
+};
+
+Query TestQuery() { return testing::MakeQuery(testing::GraphShape::kRandom, 10, 7); }
+
+double Optimum(const Query& q) {
+  SearchControl control;
+  return SolveSlice(q, {}, {0, 1}, control)->plan->root().cost;
+}
+
+TEST(SliceSchedulerTest, FailedWorkerSlicesAreRedispatched) {
+  const Query q = TestQuery();
+  FaultyWorker broken("broken", absl::UnavailableError("connection reset"), 0ms);
+  LocalWorker good("good");
+  SliceWorker* workers[] = {&broken, &good};
+  auto out = RunSlices(q, {}, 8, workers, {});
+  ASSERT_TRUE(out.ok()) << out.status();
+  EXPECT_DOUBLE_EQ(out->result.plan.root().cost, Optimum(q));
+  EXPECT_GE(out->retries, 1u);
+  EXPECT_EQ(broken.calls, 1);  // not used again after its failure
+  EXPECT_TRUE(out->proven_optimal);
+  EXPECT_EQ(out->result.slices.size(), 8u);
+}
+
+TEST(SliceSchedulerTest, AllWorkersDownIsUnavailableNamingThem) {
+  const Query q = TestQuery();
+  FaultyWorker a("worker-a", absl::UnavailableError("connection refused"), 0ms);
+  FaultyWorker b("worker-b", absl::UnavailableError("socket closed"), 5ms);
+  SliceWorker* workers[] = {&a, &b};
+  auto out = RunSlices(q, {}, 4, workers, {});
+  ASSERT_FALSE(out.ok());
+  EXPECT_EQ(out.status().code(), absl::StatusCode::kUnavailable);
+  EXPECT_NE(out.status().message().find("worker-a: connection refused"), std::string::npos)
+      << out.status();
+  EXPECT_NE(out.status().message().find("worker-b: socket closed"), std::string::npos);
+}
+
+TEST(SliceSchedulerTest, NoWorkersIsUnavailable) {
+  const Query q = TestQuery();
+  auto out = RunSlices(q, {}, 2, {}, {});
+  EXPECT_EQ(out.status().code(), absl::StatusCode::kUnavailable);
+}
+
+TEST(SliceSchedulerTest, StragglerIsHedgedAndTheAnswerArrives) {
+  const Query q = TestQuery();
+  FaultyWorker hung("hung", absl::InternalError("never"), 60000ms);
+  LocalWorker good("good");
+  SliceWorker* workers[] = {&hung, &good};
+  ScheduleOptions schedule;
+  schedule.hedge_after = 20ms;
+  const auto start = std::chrono::steady_clock::now();
+  auto out = RunSlices(q, {}, 4, workers, schedule);
+  ASSERT_TRUE(out.ok()) << out.status();
+  EXPECT_LT(std::chrono::steady_clock::now() - start, 10s);
+  EXPECT_GE(out->hedges, 1u);
+  EXPECT_DOUBLE_EQ(out->result.plan.root().cost, Optimum(q));
+  for (const std::string& w : out->slice_workers) EXPECT_EQ(w, "good");
+}
+
+TEST(SliceSchedulerTest, DeadlineGivesPartialAnswerWhenAsked) {
+  const Query q = TestQuery();
+  FaultyWorker hung("hung", absl::InternalError("never"), 60000ms);
+  LocalWorker good("good");
+  SliceWorker* workers[] = {&hung, &good};
+  ScheduleOptions schedule;
+  schedule.deadline = std::chrono::steady_clock::now() + 300ms;
+  schedule.partial_on_deadline = true;
+  auto out = RunSlices(q, {}, 4, workers, schedule);
+  ASSERT_TRUE(out.ok()) << out.status();
+  EXPECT_FALSE(out->proven_optimal);
+  EXPECT_DOUBLE_EQ(out->coverage, 0.75);  // the hung worker held one slice
+  EXPECT_GE(out->result.plan.root().cost, Optimum(q));
+}
+
+TEST(SliceSchedulerTest, DeadlineExceededWhenNoPartialAnswerIsWanted) {
+  const Query q = TestQuery();
+  FaultyWorker hung("hung", absl::InternalError("never"), 60000ms);
+  SliceWorker* workers[] = {&hung};
+  ScheduleOptions schedule;
+  schedule.deadline = std::chrono::steady_clock::now() + 100ms;
+  const auto start = std::chrono::steady_clock::now();
+  auto out = RunSlices(q, {}, 2, workers, schedule);
+  EXPECT_LT(std::chrono::steady_clock::now() - start, 5s);
+  ASSERT_FALSE(out.ok());
+  EXPECT_EQ(out.status().code(), absl::StatusCode::kDeadlineExceeded);
+  EXPECT_NE(out.status().message().find("0 of 2 slices solved"), std::string::npos);
+}
+
+TEST(SliceSchedulerTest, ErrorThatRerunsReproduceEndsTheRun) {
+  const Query q = testing::MakeQuery(testing::GraphShape::kChain, 22, 1);
+  LocalWorker a("a"), b("b");
+  SliceWorker* workers[] = {&a, &b};
+  SearchOptions options;
+  options.memo_limit_bytes = 1 << 20;
+  auto out = RunSlices(q, options, 2, workers, {});
+  EXPECT_EQ(out.status().code(), absl::StatusCode::kResourceExhausted);
+}
+
+TEST(SliceSchedulerTest, ProgressIsReportedOncePerSlice) {
+  const Query q = TestQuery();
+  LocalWorker a("a"), b("b");
+  SliceWorker* workers[] = {&a, &b};
+  std::atomic<int> reports{0};
+  std::atomic<uint32_t> last{0};
+  ScheduleOptions schedule;
+  schedule.on_progress = [&](const ScheduleProgress& p) {
+    ++reports;
+    last = std::max<uint32_t>(last, p.slices_done);
+    EXPECT_EQ(p.slice_count, 8u);
+    EXPECT_TRUE(p.best_cost.has_value());
+  };
+  auto out = RunSlices(q, {}, 8, workers, schedule);
+  ASSERT_TRUE(out.ok());
+  EXPECT_EQ(reports, 8);
+  EXPECT_EQ(last, 8u);
+  EXPECT_EQ(out->workers_used, 2u);
+}
+
+}  // namespace
+}  // namespace sliceplan
