@@ -1,6 +1,7 @@
 #include "cli/cli_config.h"
 
 #include <charconv>
+#include <cstdlib>
 
 #include "absl/strings/str_cat.h"
 #include "core/status_macros.h"
@@ -59,6 +60,17 @@ absl::Status SetFlag(OptimizeConfig& config, const std::string& flag,
     else if (value == "json") config.format = OutputFormat::kJson;
     else if (value == "dot") config.format = OutputFormat::kDot;
     else return BadFlag(flag, value, "text, json or dot");
+  } else if (flag == "deadline-seconds") {
+    char* end = nullptr;
+    const double d = std::strtod(value.c_str(), &end);
+    if (value.empty() || *end != '\0' || !(d > 0)) {
+      return BadFlag(flag, value, "a number of seconds > 0");
+    }
+    config.deadline_seconds = d;
+  } else if (flag == "partial-on-deadline") {
+    if (value == "true") config.partial_on_deadline = true;
+    else if (value == "false") config.partial_on_deadline = false;
+    else return BadFlag(flag, value, "true or false");
   } else if (flag == "memo-limit") {
     auto bytes = ParseBytes(value);
     if (!bytes.ok()) return BadFlag(flag, value, "bytes, e.g. 512MiB or 8GiB");
@@ -93,6 +105,10 @@ absl::StatusOr<OptimizeConfig> ParseOptimizeArgs(
   OptimizeConfig config;
   config.workers = default_workers;
   for (const std::string& arg : args) {
+    if (arg == "--quiet") {
+      config.quiet = true;
+      continue;
+    }
     if (arg.rfind("--", 0) != 0) {
       if (!config.query_path.empty()) {
         return absl::InvalidArgumentError(absl::StrCat(
@@ -114,6 +130,21 @@ absl::StatusOr<OptimizeConfig> ParseOptimizeArgs(
   return config;
 }
 
+absl::StatusOr<WorkersConfig> ParseWorkersArgs(const std::vector<std::string>& args) {
+  WorkersConfig config;
+  for (const std::string& arg : args) {
+    if (arg.rfind("--coordinator=", 0) == 0 && arg.size() > 14) {
+      config.coordinator = arg.substr(14);
+    } else {
+      return absl::InvalidArgumentError(absl::StrCat(arg, ": unknown argument"));
+    }
+  }
+  if (config.coordinator.empty()) {
+    return absl::InvalidArgumentError("--coordinator=HOST:PORT: missing");
+  }
+  return config;
+}
+
 std::string Usage() {
   return R"(usage: sliceplan optimize QUERY.json [flags]
 
@@ -129,6 +160,14 @@ space on workers and merging their optima.
   --coordinator=HOST:PORT        solve on a running coordinator
   --format=text|json|dot         output (default text)
   --memo-limit=BYTES             per-slice memo limit (default 8GiB)
+  --deadline-seconds=S           give up after S seconds
+  --partial-on-deadline=true     at the deadline, print the best plan so far
+                                 (marked not proven optimal) instead of failing
+  --quiet                        no progress bar on stderr
+
+usage: sliceplan workers --coordinator=HOST:PORT
+
+Lists the coordinator's worker pool and its health.
 
 Exit status: 0 success, 2 bad input, 1 any other failure.
 )";

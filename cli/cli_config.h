@@ -22,7 +22,16 @@ struct OptimizeConfig {
   int workers = 1;                 // --workers=N; default: the machine's cores
   std::optional<std::string> coordinator;
   OutputFormat format = OutputFormat::kText;
+  double deadline_seconds = 0;       // 0: none
+  bool partial_on_deadline = false;  // best plan so far instead of an error
+  bool quiet = false;                // no progress bar
 };
+
+// `sliceplan workers --coordinator=HOST:PORT`.
+struct WorkersConfig {
+  std::string coordinator;
+};
+absl::StatusOr<WorkersConfig> ParseWorkersArgs(const std::vector<std::string>& args);
 
 // Parses the arguments after "optimize". Errors (INVALID_ARGUMENT) name the
 // flag: an unknown flag, a bad value, a missing or second query file.

@@ -1,12 +1,15 @@
 // sliceplan: the command-line front end. Parses flags into a config, runs
-// the embedded coordinator (or, later, the RPC one) and prints the result.
+// the embedded coordinator or calls a remote one, and prints the result.
 #include <iostream>
 #include <string>
 #include <thread>
 #include <vector>
 
+#include "absl/strings/str_format.h"
 #include "cli/cli_config.h"
+#include "cli/progress_bar.h"
 #include "cli/render.h"
+#include "cli/rpc_client.h"
 #include "core/embedded_pool.h"
 #include "core/query_proto.h"
 #include "core/slice_planner.h"
@@ -39,29 +42,66 @@ int Fail(const absl::Status& status) {
   return ExitCodeFor(status);
 }
 
+absl::StatusOr<ScheduleOutcome> Solve(const OptimizeConfig& config, const Query& query,
+                                      ProgressBar& bar) {
+  const auto progress = [&bar](const ScheduleProgress& p) { bar.Update(p); };
+  if (config.coordinator) {
+    RemoteRequest request{*config.coordinator, config.search, config.slices.value_or(0),
+                          config.deadline_seconds, config.partial_on_deadline};
+    return OptimizeRemote(request, query, progress);
+  }
+  const uint32_t slices =
+      config.slices.value_or(ChooseSliceCount(query, config.search, config.workers));
+  ScheduleOptions schedule;
+  schedule.on_progress = progress;
+  schedule.partial_on_deadline = config.partial_on_deadline;
+  if (config.deadline_seconds > 0) {
+    schedule.deadline = std::chrono::steady_clock::now() +
+                        std::chrono::duration_cast<std::chrono::steady_clock::duration>(
+                            std::chrono::duration<double>(config.deadline_seconds));
+  }
+  return RunEmbedded(query, config.search, slices, config.workers, schedule);
+}
+
 int Optimize(const std::vector<std::string>& args) {
   const int cores = static_cast<int>(std::max(1u, std::thread::hardware_concurrency()));
   auto config = ParseOptimizeArgs(args, cores);
   if (!config.ok()) return Fail(config.status());
-  if (config->coordinator) {
-    return Fail(absl::UnimplementedError(
-        "--coordinator: the RPC path is not in this build yet; omit the flag "
-        "to run embedded"));
-  }
   auto query = ReadQueryFile(config->query_path);
   if (!query.ok()) return Fail(query.status());
+  absl::StatusOr<ScheduleOutcome> outcome;
+  {
+    ProgressBar bar(!config->quiet);
+    outcome = Solve(*config, *query, bar);
+  }
+  if (!outcome.ok()) return Fail(outcome.status());
   RunInfo info{&*query, config->search, config->workers, !config->slices};
-  const uint32_t slices = config->slices.value_or(
-      ChooseSliceCount(*query, config->search, config->workers));
-  auto result = OptimizeEmbedded(*query, config->search, slices, config->workers);
-  if (!result.ok()) return Fail(result.status());
+  if (config->coordinator) info.workers = static_cast<int>(outcome->workers_used);
   switch (config->format) {
-    case OutputFormat::kText: std::cout << RenderText(*result, info); break;
-    case OutputFormat::kJson: std::cout << RenderJson(*result, info); break;
-    case OutputFormat::kDot: std::cout << RenderDot(*result, info); break;
+    case OutputFormat::kText: std::cout << RenderText(*outcome, info); break;
+    case OutputFormat::kJson: std::cout << RenderJson(*outcome, info); break;
+    case OutputFormat::kDot: std::cout << RenderDot(*outcome, info); break;
   }
   std::cout.flush();
   return std::cout ? kExitOk : kExitFailure;
+}
+
+int Workers(const std::vector<std::string>& args) {
+  auto config = ParseWorkersArgs(args);
+  if (!config.ok()) return Fail(config.status());
+  auto pool = ListWorkersRemote(config->coordinator);
+  if (!pool.ok()) return Fail(pool.status());
+  std::cout << absl::StrFormat("%-28s %-9s %7s %8s %8s  %s\n", "worker", "health", "threads",
+                               "solved", "failed", "last error");
+  int healthy = 0;
+  for (const auto& w : pool->workers()) {
+    healthy += w.healthy();
+    std::cout << absl::StrFormat("%-28s %-9s %7u %8u %8u  %s\n", w.address(),
+                                 w.healthy() ? "healthy" : "down", w.threads(),
+                                 w.slices_solved(), w.failures(), w.last_error());
+  }
+  std::cout << healthy << " of " << pool->workers_size() << " workers healthy\n";
+  return kExitOk;
 }
 
 }  // namespace
@@ -74,10 +114,7 @@ int main(int argc, char** argv) {
     (args.empty() ? std::cerr : std::cout) << Usage();
     return args.empty() ? kExitBadInput : kExitOk;
   }
-  if (args[0] != "optimize") {
-    std::cerr << "sliceplan: unknown command \"" << args[0] << "\"\n" << Usage();
-    return kExitBadInput;
-  }
+  const std::string command = args[0];
   args.erase(args.begin());
   for (const std::string& a : args) {
     if (a == "--help") {
@@ -85,5 +122,8 @@ int main(int argc, char** argv) {
       return kExitOk;
     }
   }
-  return Optimize(args);
+  if (command == "optimize") return Optimize(args);
+  if (command == "workers") return Workers(args);
+  std::cerr << "sliceplan: unknown command \"" << command << "\"\n" << Usage();
+  return kExitBadInput;
 }

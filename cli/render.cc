@@ -91,13 +91,20 @@ SliceBalance Balance(const OptimizeResult& result) {
   return b;
 }
 
-std::string RenderText(const OptimizeResult& result, const RunInfo& info) {
+std::string RenderText(const ScheduleOutcome& outcome, const RunInfo& info) {
+  const OptimizeResult& result = outcome.result;
   const Query& query = *info.query;
   std::string out = absl::StrFormat(
       "best %s plan of %d relations (cross products %s): %s %.6g\n\n",
       ShapeName(info.search.shape), query.size(),
       info.search.cross_products ? "allowed" : "excluded",
       MetricName(info.search.cost), result.plan.root().cost);
+  if (!outcome.proven_optimal) {
+    absl::StrAppendFormat(&out,
+                          "NOT PROVEN OPTIMAL: the deadline passed with %.0f%% of the slices "
+                          "solved; this is the best plan found so far\n\n",
+                          100 * outcome.coverage);
+  }
   out += TreeString(result.plan, query) + "\n\n";
   AppendTextTree(result.plan, query, out);
   const SliceBalance b = Balance(result);
@@ -117,10 +124,15 @@ std::string RenderText(const OptimizeResult& result, const RunInfo& info) {
   absl::StrAppendFormat(
       &out, "slowest slice: %u (%.4f s); balance (max/mean splits): %.3f\n",
       b.slowest, b.slowest_seconds, b.max_over_mean_splits);
+  if (outcome.retries > 0 || outcome.hedges > 0) {
+    absl::StrAppendFormat(&out, "re-dispatched slices: %u, hedged slices: %u\n",
+                          outcome.retries, outcome.hedges);
+  }
   return out;
 }
 
-std::string RenderJson(const OptimizeResult& result, const RunInfo& info) {
+std::string RenderJson(const ScheduleOutcome& outcome, const RunInfo& info) {
+  const OptimizeResult& result = outcome.result;
   const Query& query = *info.query;
   std::string out = "{\n  \"plans\": [\n    {";
   absl::StrAppend(&out, "\"tree\": ", JsonString(TreeString(result.plan, query)),
@@ -131,7 +143,9 @@ std::string RenderJson(const OptimizeResult& result, const RunInfo& info) {
                   result.best_slice, "}\n  ],\n");
   absl::StrAppend(&out, "  \"shape\": \"", ShapeName(info.search.shape),
                   "\",\n  \"cross_products\": ",
-                  info.search.cross_products ? "true" : "false", ",\n");
+                  info.search.cross_products ? "true" : "false",
+                  ",\n  \"proven_optimal\": ", outcome.proven_optimal ? "true" : "false",
+                  ",\n  \"coverage\": ", JsonNumber(outcome.coverage), ",\n");
   absl::StrAppend(&out, "  \"stats\": {\n    \"slice_count\": ",
                   result.slice_count, ",\n    \"workers\": ", info.workers,
                   ",\n    \"wall_seconds\": ", JsonNumber(result.wall_seconds),
@@ -149,7 +163,8 @@ std::string RenderJson(const OptimizeResult& result, const RunInfo& info) {
   return out;
 }
 
-std::string RenderDot(const OptimizeResult& result, const RunInfo& info) {
+std::string RenderDot(const ScheduleOutcome& outcome, const RunInfo& info) {
+  const OptimizeResult& result = outcome.result;
   const Query& query = *info.query;
   std::string out = "digraph plan {\n  node [shape=box, fontname=\"Helvetica\"];\n";
   const Plan& plan = result.plan;

@@ -7,6 +7,7 @@
 
 #include "cli/cli_config.h"
 #include "core/merge.h"
+#include "core/slice_scheduler.h"
 #include "core/query.h"
 
 namespace sliceplan::cli {
@@ -19,9 +20,9 @@ struct RunInfo {
   bool slices_chosen = false;  // by the planner, not by --slices
 };
 
-std::string RenderText(const OptimizeResult& result, const RunInfo& info);
-std::string RenderJson(const OptimizeResult& result, const RunInfo& info);
-std::string RenderDot(const OptimizeResult& result, const RunInfo& info);
+std::string RenderText(const ScheduleOutcome& outcome, const RunInfo& info);
+std::string RenderJson(const ScheduleOutcome& outcome, const RunInfo& info);
+std::string RenderDot(const ScheduleOutcome& outcome, const RunInfo& info);
 
 // Summary figures of the slices: the slowest slice and max/mean splits.
 struct SliceBalance {

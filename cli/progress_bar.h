@@ -1,0 +1,27 @@
+// A one-line progress bar on stderr for long runs: slices done / total,
+// best cost so far, ETA. Silent for the first second and whenever stderr
+// is not a terminal (or the user asked for quiet). Thread-safe.
+#ifndef SLICEPLAN_CLI_PROGRESS_BAR_H_
+#define SLICEPLAN_CLI_PROGRESS_BAR_H_
+
+#include <mutex>
+
+#include "core/slice_scheduler.h"
+
+namespace sliceplan::cli {
+
+class ProgressBar {
+ public:
+  explicit ProgressBar(bool enabled);
+  ~ProgressBar();  // clears the line if one was drawn
+  void Update(const ScheduleProgress& p);
+
+ private:
+  const bool enabled_;
+  std::mutex mu_;
+  bool drawn_ = false;
+};
+
+}  // namespace sliceplan::cli
+
+#endif  // SLICEPLAN_CLI_PROGRESS_BAR_H_

@@ -1,0 +1,79 @@
+#include "cli/rpc_client.h"
+
+#include <chrono>
+
+#include "absl/strings/str_cat.h"
+#include "coordinator/rpc_status.h"
+#include "core/query_proto.h"
+#include "core/service_proto.h"
+#include "grpcpp/grpcpp.h"
+#include "sliceplan.grpc.pb.h"
+
+namespace sliceplan::cli {
+namespace {
+
+std::unique_ptr<v1::Coordinator::Stub> Connect(const std::string& address) {
+  grpc::ChannelArguments args;
+  args.SetMaxReceiveMessageSize(64 << 20);
+  return v1::Coordinator::NewStub(
+      grpc::CreateCustomChannel(address, grpc::InsecureChannelCredentials(), args));
+}
+
+}  // namespace
+
+absl::StatusOr<ScheduleOutcome> OptimizeRemote(
+    const RemoteRequest& request, const Query& query,
+    const std::function<void(const ScheduleProgress&)>& on_progress) {
+  auto stub = Connect(request.coordinator);
+  v1::OptimizeRequest m;
+  *m.mutable_query() = QueryToProto(query);
+  *m.mutable_options() = SearchOptionsToProto(request.options);
+  m.set_slice_count(request.slice_count);
+  m.set_deadline_seconds(request.deadline_seconds);
+  m.set_partial_on_deadline(request.partial_on_deadline);
+  grpc::ClientContext context;
+  if (request.deadline_seconds > 0) {  // room for the answer to travel back
+    context.set_deadline(std::chrono::system_clock::now() +
+                         std::chrono::milliseconds(
+                             static_cast<int64_t>(request.deadline_seconds * 1000) + 2000));
+  }
+  auto reader = stub->OptimizeStream(&context, m);
+  v1::OptimizeEvent event;
+  std::optional<v1::OptimizeResponse> result;
+  while (reader->Read(&event)) {
+    if (event.has_progress() && on_progress) {
+      const v1::Progress& p = event.progress();
+      ScheduleProgress progress{p.slices_done(), p.slice_count(), std::nullopt,
+                                p.elapsed_seconds()};
+      if (p.has_best_cost()) progress.best_cost = p.best_cost();
+      on_progress(progress);
+    }
+    if (event.has_result()) result = event.result();
+  }
+  const grpc::Status status = reader->Finish();
+  if (!status.ok()) {
+    absl::Status s = FromGrpc(status);
+    if (s.code() == absl::StatusCode::kUnavailable) {
+      return absl::UnavailableError(
+          absl::StrCat("coordinator ", request.coordinator, ": ", s.message()));
+    }
+    return s;
+  }
+  if (!result) return absl::InternalError("coordinator sent no result");
+  return OutcomeFromProto(*result, query, request.options.cost);
+}
+
+absl::StatusOr<v1::ListWorkersResponse> ListWorkersRemote(const std::string& coordinator) {
+  auto stub = Connect(coordinator);
+  grpc::ClientContext context;
+  context.set_deadline(std::chrono::system_clock::now() + std::chrono::seconds(5));
+  v1::ListWorkersResponse response;
+  const grpc::Status status = stub->ListWorkers(&context, v1::ListWorkersRequest(), &response);
+  if (!status.ok()) {
+    return absl::Status(static_cast<absl::StatusCode>(status.error_code()),
+                        absl::StrCat("coordinator ", coordinator, ": ", status.error_message()));
+  }
+  return response;
+}
+
+}  // namespace sliceplan::cli

@@ -1,0 +1,34 @@
+// The CLI's RPC path: the same request as embedded mode, sent to a running
+// coordinator, with progress streamed back.
+#ifndef SLICEPLAN_CLI_RPC_CLIENT_H_
+#define SLICEPLAN_CLI_RPC_CLIENT_H_
+
+#include <functional>
+#include <string>
+
+#include "absl/status/statusor.h"
+#include "core/query.h"
+#include "core/slice_scheduler.h"
+#include "sliceplan.pb.h"
+
+namespace sliceplan::cli {
+
+struct RemoteRequest {
+  std::string coordinator;  // HOST:PORT
+  SearchOptions options;
+  uint32_t slice_count = 0;  // 0: the coordinator chooses
+  double deadline_seconds = 0;
+  bool partial_on_deadline = false;
+};
+
+// Calls OptimizeStream and converts the answer (the plan is checked
+// against the query). Errors: the coordinator's status as it came.
+absl::StatusOr<ScheduleOutcome> OptimizeRemote(
+    const RemoteRequest& request, const Query& query,
+    const std::function<void(const ScheduleProgress&)>& on_progress);
+
+absl::StatusOr<v1::ListWorkersResponse> ListWorkersRemote(const std::string& coordinator);
+
+}  // namespace sliceplan::cli
+
+#endif  // SLICEPLAN_CLI_RPC_CLIENT_H_

@@ -1,0 +1,140 @@
+#include "coordinator/coordinator_service.h"
+
+#include <mutex>
+
+#include "absl/strings/str_cat.h"
+#include "coordinator/rpc_status.h"
+#include "core/query_proto.h"
+#include "core/service_proto.h"
+#include "core/slice_planner.h"
+#include "core/status_macros.h"
+#include "spdlog/spdlog.h"
+
+namespace sliceplan {
+namespace {
+
+using Clock = std::chrono::steady_clock;
+
+// The earlier of the call's deadline (less the margin) and the request's.
+std::optional<Clock::time_point> RunDeadline(const grpc::ServerContext* context,
+                                             const v1::OptimizeRequest& request,
+                                             std::chrono::milliseconds margin) {
+  std::optional<Clock::time_point> out;
+  const auto call = context->deadline();
+  if (call != std::chrono::system_clock::time_point::max()) {
+    out = Clock::now() + (call - std::chrono::system_clock::now()) - margin;
+  }
+  if (request.deadline_seconds() > 0) {
+    const auto own = Clock::now() + std::chrono::duration_cast<Clock::duration>(
+                                        std::chrono::duration<double>(request.deadline_seconds()));
+    if (!out || own < *out) out = own;
+  }
+  return out;
+}
+
+absl::Status ValidateRequest(const v1::OptimizeRequest& request) {
+  if (!request.has_query()) return absl::InvalidArgumentError("query: missing");
+  if (request.deadline_seconds() < 0) {
+    return absl::InvalidArgumentError("deadline_seconds: must be >= 0");
+  }
+  const uint32_t p = request.slice_count();
+  if (p != 0 && (p & (p - 1)) != 0) {
+    return absl::InvalidArgumentError(absl::StrCat(
+        "slice_count: ", p, " is not a power of two (1, 2, 4, ...; 0 to let the "
+        "coordinator choose)"));
+  }
+  return absl::OkStatus();
+}
+
+}  // namespace
+
+absl::StatusOr<v1::OptimizeResponse> CoordinatorService::Run(
+    grpc::ServerContext* context, const v1::OptimizeRequest& request,
+    const std::function<void(const ScheduleProgress&)>& on_progress) {
+  RETURN_IF_ERROR(ValidateRequest(request));
+  auto query = QueryFromProto(request.query());
+  if (!query.ok()) {
+    return absl::InvalidArgumentError(absl::StrCat("query.", query.status().message()));
+  }
+  ASSIGN_OR_RETURN(const SearchOptions options, SearchOptionsFromProto(request.options()));
+
+  std::vector<std::shared_ptr<RpcWorker>> pool = pool_.Workers();
+  std::vector<SliceWorker*> workers;
+  int slots = 0;
+  for (const auto& w : pool) {
+    if (request.max_workers() != 0 && workers.size() >= request.max_workers()) break;
+    if (!w->Healthy()) continue;
+    workers.push_back(w.get());
+    slots += w->Slots();
+  }
+  const uint32_t p = request.slice_count() != 0
+                         ? request.slice_count()
+                         : ChooseSliceCount(*query, options, std::max(1, slots));
+  if (auto s = ValidateSlice({0, p}, query->size(), options.shape); !s.ok()) {
+    return absl::InvalidArgumentError(absl::StrCat("slice_count: ", s.message()));
+  }
+  ScheduleOptions schedule;
+  if (config_.hedge_after) schedule.hedge_after = *config_.hedge_after;
+  schedule.deadline = RunDeadline(context, request, config_.deadline_margin);
+  schedule.partial_on_deadline = request.partial_on_deadline();
+  schedule.on_progress = on_progress;
+  const auto start = Clock::now();
+  auto outcome = RunSlices(*query, options, p, workers, schedule);
+  const double wall = std::chrono::duration<double>(Clock::now() - start).count();
+  spdlog::info("optimize: {} relations, P={}, {} workers ({} slots), retries={}, hedges={}, "
+               "wall {:.3f} s, {}",
+               query->size(), p, workers.size(), slots, outcome.ok() ? outcome->retries : 0,
+               outcome.ok() ? outcome->hedges : 0, wall,
+               outcome.ok() ? (outcome->proven_optimal ? "optimal" : "partial")
+                            : std::string(outcome.status().message()));
+  if (!outcome.ok()) return outcome.status();
+  return OutcomeToProto(*outcome, options.cost);
+}
+
+grpc::Status CoordinatorService::Optimize(grpc::ServerContext* context,
+                                          const v1::OptimizeRequest* request,
+                                          v1::OptimizeResponse* response) {
+  auto result = Run(context, *request, {});
+  if (!result.ok()) return ToGrpc(result.status());
+  *response = *std::move(result);
+  return grpc::Status::OK;
+}
+
+grpc::Status CoordinatorService::OptimizeStream(grpc::ServerContext* context,
+                                                const v1::OptimizeRequest* request,
+                                                grpc::ServerWriter<v1::OptimizeEvent>* writer) {
+  std::mutex write_mu;  // progress comes from the scheduler's threads
+  auto result = Run(context, *request, [&](const ScheduleProgress& p) {
+    v1::OptimizeEvent event;
+    v1::Progress* out = event.mutable_progress();
+    out->set_slices_done(p.slices_done);
+    out->set_slice_count(p.slice_count);
+    if (p.best_cost) out->set_best_cost(*p.best_cost);
+    out->set_elapsed_seconds(p.elapsed_seconds);
+    std::lock_guard<std::mutex> lock(write_mu);
+    writer->Write(event);
+  });
+  if (!result.ok()) return ToGrpc(result.status());
+  v1::OptimizeEvent event;
+  *event.mutable_result() = *std::move(result);
+  std::lock_guard<std::mutex> lock(write_mu);
+  writer->Write(event);
+  return grpc::Status::OK;
+}
+
+grpc::Status CoordinatorService::ListWorkers(grpc::ServerContext*, const v1::ListWorkersRequest*,
+                                             v1::ListWorkersResponse* response) {
+  for (const auto& w : pool_.Workers()) {
+    v1::WorkerStatus* s = response->add_workers();
+    const WorkerCounters c = w->counters();
+    s->set_address(w->Name());
+    s->set_healthy(w->Healthy());
+    s->set_threads(static_cast<uint32_t>(w->Slots()));
+    s->set_slices_solved(c.solved);
+    s->set_failures(c.failures);
+    s->set_last_error(c.last_error);
+  }
+  return grpc::Status::OK;
+}
+
+}  // namespace sliceplan

@@ -1,0 +1,49 @@
+// The coordinator's gRPC service: turns an OptimizeRequest into slices,
+// runs them on the pool with the shared scheduler (core/slice_scheduler.h)
+// and returns the merged plan; one log line per request. Thread-safe.
+#ifndef SLICEPLAN_COORDINATOR_COORDINATOR_SERVICE_H_
+#define SLICEPLAN_COORDINATOR_COORDINATOR_SERVICE_H_
+
+#include <chrono>
+#include <functional>
+#include <optional>
+
+#include "absl/status/statusor.h"
+#include "coordinator/worker_pool.h"
+#include "core/slice_scheduler.h"
+#include "sliceplan.grpc.pb.h"
+
+namespace sliceplan {
+
+struct CoordinatorConfig {
+  // Hedge a slice running this long while a slot is free; none: never.
+  std::optional<std::chrono::milliseconds> hedge_after = std::chrono::milliseconds(2000);
+  // Answer this long before the call's deadline, to get the answer back in time.
+  std::chrono::milliseconds deadline_margin{50};
+};
+
+class CoordinatorService final : public v1::Coordinator::Service {
+ public:
+  CoordinatorService(WorkerPool& pool, const CoordinatorConfig& config)
+      : pool_(pool), config_(config) {}
+
+  grpc::Status Optimize(grpc::ServerContext* context, const v1::OptimizeRequest* request,
+                        v1::OptimizeResponse* response) override;
+  grpc::Status OptimizeStream(grpc::ServerContext* context,
+                              const v1::OptimizeRequest* request,
+                              grpc::ServerWriter<v1::OptimizeEvent>* writer) override;
+  grpc::Status ListWorkers(grpc::ServerContext* context, const v1::ListWorkersRequest* request,
+                           v1::ListWorkersResponse* response) override;
+
+ private:
+  absl::StatusOr<v1::OptimizeResponse> Run(
+      grpc::ServerContext* context, const v1::OptimizeRequest& request,
+      const std::function<void(const ScheduleProgress&)>& on_progress);
+
+  WorkerPool& pool_;
+  const CoordinatorConfig config_;
+};
+
+}  // namespace sliceplan
+
+#endif  // SLICEPLAN_COORDINATOR_COORDINATOR_SERVICE_H_

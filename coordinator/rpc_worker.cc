@@ -1,0 +1,123 @@
+#include "coordinator/rpc_worker.h"
+
+#include <condition_variable>
+
+#include "absl/strings/str_cat.h"
+#include "coordinator/rpc_status.h"
+#include "core/query_proto.h"
+#include "core/service_proto.h"
+
+namespace sliceplan {
+namespace {
+
+std::chrono::system_clock::time_point ToSystem(std::chrono::steady_clock::time_point t) {
+  return std::chrono::system_clock::now() +
+         std::chrono::duration_cast<std::chrono::system_clock::duration>(
+             t - std::chrono::steady_clock::now());
+}
+
+class RpcCall : public SliceCall {
+ public:
+  RpcCall(v1::SliceWorker::Stub* stub, const SliceTask& task, SliceDone done,
+          std::function<void(const absl::Status&)> count)
+      : task_(task), done_(std::move(done)), count_(std::move(count)) {
+    request_.mutable_query()->CopyFrom(QueryToProto(*task.query));
+    *request_.mutable_options() = SearchOptionsToProto(task.options);
+    request_.set_slice_index(task.slice.index);
+    request_.set_slice_count(task.slice.count);
+    if (task.deadline) context_.set_deadline(ToSystem(*task.deadline));
+    stub->async()->SolveSlice(&context_, &request_, &response_,
+                              [this](grpc::Status s) { OnDone(s); });
+  }
+
+  ~RpcCall() override {
+    std::unique_lock<std::mutex> lock(mu_);
+    finished_cv_.wait(lock, [&] { return finished_; });
+  }
+
+  void Cancel() override { context_.TryCancel(); }
+
+ private:
+  void OnDone(const grpc::Status& s) {
+    absl::StatusOr<SliceResult> result =
+        s.ok() ? SliceResultFromProto(response_, *task_.query, task_.options.cost, task_.slice)
+               : absl::StatusOr<SliceResult>(FromGrpc(s));
+    if (s.ok() && !result.ok()) {
+      result = absl::InternalError(
+          absl::StrCat("worker sent a bad answer: ", result.status().message()));
+    }
+    count_(result.status());
+    done_(std::move(result));
+    std::lock_guard<std::mutex> lock(mu_);
+    finished_ = true;
+    finished_cv_.notify_all();
+  }
+
+  const SliceTask task_;
+  SliceDone done_;
+  std::function<void(const absl::Status&)> count_;
+  grpc::ClientContext context_;
+  v1::SolveSliceRequest request_;
+  v1::SolveSliceResponse response_;
+  std::mutex mu_;
+  std::condition_variable finished_cv_;
+  bool finished_ = false;
+};
+
+}  // namespace
+
+RpcWorker::RpcWorker(std::string address) : address_(std::move(address)) {
+  grpc::ChannelArguments args;
+  args.SetMaxReceiveMessageSize(64 << 20);
+  args.SetMaxSendMessageSize(64 << 20);
+  // Reconnect quickly after a worker restarts.
+  args.SetInt(GRPC_ARG_INITIAL_RECONNECT_BACKOFF_MS, 100);
+  args.SetInt(GRPC_ARG_MAX_RECONNECT_BACKOFF_MS, 1000);
+  channel_ = grpc::CreateCustomChannel(address_, grpc::InsecureChannelCredentials(), args);
+  stub_ = v1::SliceWorker::NewStub(channel_);
+  health_ = grpc::health::v1::Health::NewStub(channel_);
+}
+
+std::unique_ptr<SliceCall> RpcWorker::Start(const SliceTask& task, SliceDone done) {
+  return std::make_unique<RpcCall>(stub_.get(), task, std::move(done),
+                                   [this](const absl::Status& s) { Count(s); });
+}
+
+void RpcWorker::Count(const absl::Status& status) {
+  std::lock_guard<std::mutex> lock(mu_);
+  if (status.ok()) {
+    ++counters_.solved;
+  } else if (status.code() != absl::StatusCode::kCancelled) {
+    ++counters_.failures;
+    counters_.last_error = std::string(status.message());
+  }
+}
+
+void RpcWorker::CheckHealth(std::chrono::milliseconds timeout) {
+  grpc::ClientContext context;
+  context.set_deadline(std::chrono::system_clock::now() + timeout);
+  grpc::health::v1::HealthCheckRequest request;
+  grpc::health::v1::HealthCheckResponse response;
+  const grpc::Status s = health_->Check(&context, request, &response);
+  const bool serving =
+      s.ok() && response.status() == grpc::health::v1::HealthCheckResponse::SERVING;
+  healthy_ = serving;
+  if (!serving) {
+    std::lock_guard<std::mutex> lock(mu_);
+    counters_.last_error = s.ok() ? "not serving" : s.error_message();
+    return;
+  }
+  grpc::ClientContext describe_context;
+  describe_context.set_deadline(std::chrono::system_clock::now() + timeout);
+  v1::DescribeWorkerResponse info;
+  if (stub_->DescribeWorker(&describe_context, v1::DescribeWorkerRequest(), &info).ok()) {
+    slots_ = std::max(1, static_cast<int>(info.threads()));
+  }
+}
+
+WorkerCounters RpcWorker::counters() const {
+  std::lock_guard<std::mutex> lock(mu_);
+  return counters_;
+}
+
+}  // namespace sliceplan

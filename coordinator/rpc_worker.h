@@ -1,0 +1,58 @@
+// A remote worker as the scheduler sees it (slice_worker.h): one gRPC
+// channel to a sliceplan-worker, calls as asynchronous SolveSlice RPCs, and
+// health from the standard grpc.health.v1 check plus DescribeWorker (for
+// its slot count). Until the first check it counts as healthy with one
+// slot. Thread-safe.
+#ifndef SLICEPLAN_COORDINATOR_RPC_WORKER_H_
+#define SLICEPLAN_COORDINATOR_RPC_WORKER_H_
+
+#include <atomic>
+#include <chrono>
+#include <memory>
+#include <mutex>
+#include <string>
+
+#include "absl/base/thread_annotations.h"
+#include "core/slice_worker.h"
+#include "grpc/health/v1/health.grpc.pb.h"
+#include "grpcpp/grpcpp.h"
+#include "sliceplan.grpc.pb.h"
+
+namespace sliceplan {
+
+struct WorkerCounters {
+  uint64_t solved = 0;
+  uint64_t failures = 0;
+  std::string last_error;
+};
+
+class RpcWorker : public SliceWorker {
+ public:
+  explicit RpcWorker(std::string address);
+
+  std::string Name() const override { return address_; }
+  int Slots() const override { return slots_.load(); }
+  bool Healthy() const override { return healthy_.load(); }
+  std::unique_ptr<SliceCall> Start(const SliceTask& task, SliceDone done) override;
+
+  // Runs the health check and DescribeWorker with `timeout`; updates
+  // Healthy() and Slots().
+  void CheckHealth(std::chrono::milliseconds timeout);
+  WorkerCounters counters() const;
+
+ private:
+  void Count(const absl::Status& status);
+
+  const std::string address_;
+  std::shared_ptr<grpc::Channel> channel_;
+  std::unique_ptr<v1::SliceWorker::Stub> stub_;
+  std::unique_ptr<grpc::health::v1::Health::Stub> health_;
+  std::atomic<bool> healthy_{true};
+  std::atomic<int> slots_{1};
+  mutable std::mutex mu_;
+  WorkerCounters counters_ ABSL_GUARDED_BY(mu_);
+};
+
+}  // namespace sliceplan
+
+#endif  // SLICEPLAN_COORDINATOR_RPC_WORKER_H_

@@ -1,0 +1,58 @@
+// The coordinator's pool of remote workers, from a list of HOST:PORT
+// entries. A host that resolves to several addresses (a DNS name with many
+// records, e.g. a Kubernetes headless service) gives one worker per
+// address. A background thread re-checks every worker's health each
+// interval and re-resolves the names, adding workers that appeared.
+// Thread-safe.
+#ifndef SLICEPLAN_COORDINATOR_WORKER_POOL_H_
+#define SLICEPLAN_COORDINATOR_WORKER_POOL_H_
+
+#include <atomic>
+#include <chrono>
+#include <condition_variable>
+#include <memory>
+#include <mutex>
+#include <string>
+#include <thread>
+#include <vector>
+
+#include "absl/base/thread_annotations.h"
+#include "absl/status/statusor.h"
+#include "coordinator/rpc_worker.h"
+
+namespace sliceplan {
+
+// "a:1,b:2" -> {"a:1", "b:2"}. Errors (INVALID_ARGUMENT): an empty list or
+// an entry without a port.
+absl::StatusOr<std::vector<std::string>> ParseWorkerList(const std::string& list);
+
+// The addresses `entry` (HOST:PORT) resolves to, as IP:PORT; the entry
+// itself when it does not resolve (gRPC will keep trying).
+std::vector<std::string> ResolveEntry(const std::string& entry);
+
+class WorkerPool {
+ public:
+  WorkerPool(std::vector<std::string> entries, std::chrono::milliseconds interval);
+  ~WorkerPool();  // stops the health thread
+
+  // Every worker known now (healthy or not).
+  std::vector<std::shared_ptr<RpcWorker>> Workers() const;
+  // Checks every worker once, now (startup and tests).
+  void CheckNow();
+
+ private:
+  void Refresh();
+  void Loop();
+
+  const std::vector<std::string> entries_;
+  const std::chrono::milliseconds interval_;
+  mutable std::mutex mu_;
+  std::vector<std::shared_ptr<RpcWorker>> workers_ ABSL_GUARDED_BY(mu_);
+  std::condition_variable stop_cv_;
+  bool stop_ ABSL_GUARDED_BY(mu_) = false;
+  std::thread thread_;
+};
+
+}  // namespace sliceplan
+
+#endif  // SLICEPLAN_COORDINATOR_WORKER_POOL_H_

@@ -1,0 +1,46 @@
+// Conversion between the core types and the service messages of
+// proto/sliceplan.proto (protobuf messages only: no gRPC here). Every
+// field a caller sets is validated, and errors (INVALID_ARGUMENT) name it.
+// Thread-safe.
+#ifndef SLICEPLAN_CORE_SERVICE_PROTO_H_
+#define SLICEPLAN_CORE_SERVICE_PROTO_H_
+
+#include "absl/status/statusor.h"
+#include "core/merge.h"
+#include "core/query.h"
+#include "core/slice_scheduler.h"
+#include "core/slice_solver.h"
+#include "sliceplan.pb.h"
+
+namespace sliceplan {
+
+// Errors: an unknown enum value ("options.shape", "options.cost");
+// UNIMPLEMENTED for a cost model this build lacks.
+absl::StatusOr<SearchOptions> SearchOptionsFromProto(const v1::SearchOptions& m);
+v1::SearchOptions SearchOptionsToProto(const SearchOptions& options);
+
+v1::Plan PlanToProto(const Plan& plan, CostModelKind model);
+// Rebuilds a plan and checks it is a tree over the query: every relation
+// id known ("plan.nodes[i].relation: unknown relation id 7"), children
+// before parents, each relation once, the root covering the query.
+absl::StatusOr<Plan> PlanFromProto(const v1::Plan& m, const Query& query,
+                                   CostModelKind model);
+
+v1::SliceStats SliceStatsToProto(const SliceResult& r);
+SearchStats SliceStatsFromProto(const v1::SliceStats& m);
+
+v1::SolveSliceResponse SliceResultToProto(const SliceResult& r, CostModelKind model);
+absl::StatusOr<SliceResult> SliceResultFromProto(const v1::SolveSliceResponse& m,
+                                                 const Query& query,
+                                                 CostModelKind model,
+                                                 SliceSpec slice);
+
+// The coordinator's answer. `slice_workers` may be empty.
+v1::OptimizeResponse OutcomeToProto(const ScheduleOutcome& outcome, CostModelKind model);
+absl::StatusOr<ScheduleOutcome> OutcomeFromProto(const v1::OptimizeResponse& m,
+                                                 const Query& query,
+                                                 CostModelKind model);
+
+}  // namespace sliceplan
+
+#endif  // SLICEPLAN_CORE_SERVICE_PROTO_H_

@@ -1,0 +1,102 @@
+#include "worker/worker_service.h"
+
+#include <algorithm>
+#include <chrono>
+#include <thread>
+
+#include "absl/strings/str_cat.h"
+#include "coordinator/rpc_status.h"
+#include "core/query_proto.h"
+#include "core/service_proto.h"
+#include "core/slice_solver.h"
+#include "core/status_macros.h"
+
+namespace sliceplan {
+namespace {
+
+using Clock = std::chrono::steady_clock;
+
+// The call's deadline on the steady clock, if it has one.
+std::optional<Clock::time_point> Deadline(const grpc::ServerContext* context) {
+  const auto deadline = context->deadline();
+  if (deadline == std::chrono::system_clock::time_point::max()) return std::nullopt;
+  return Clock::now() + (deadline - std::chrono::system_clock::now());
+}
+
+struct Parsed {
+  Query query;
+  SearchOptions options;
+  SliceSpec slice;
+};
+
+absl::StatusOr<Parsed> Parse(const v1::SolveSliceRequest& request,
+                             uint64_t memo_limit) {
+  if (!request.has_query()) return absl::InvalidArgumentError("query: missing");
+  auto query = QueryFromProto(request.query());
+  if (!query.ok()) {
+    return absl::InvalidArgumentError(absl::StrCat("query.", query.status().message()));
+  }
+  ASSIGN_OR_RETURN(SearchOptions options, SearchOptionsFromProto(request.options()));
+  options.memo_limit_bytes = std::min(options.memo_limit_bytes, memo_limit);
+  const uint32_t count = request.slice_count();
+  if (count == 0 || (count & (count - 1)) != 0) {
+    return absl::InvalidArgumentError(absl::StrCat(
+        "slice_count: ", count, " is not a power of two (1, 2, 4, ...)"));
+  }
+  if (request.slice_index() >= count) {
+    return absl::InvalidArgumentError(absl::StrCat(
+        "slice_index: ", request.slice_index(), " is not below slice_count ", count));
+  }
+  return Parsed{*std::move(query), options, {request.slice_index(), count}};
+}
+
+}  // namespace
+
+bool WorkerService::Acquire(grpc::ServerContext* context) {
+  std::unique_lock<std::mutex> lock(mu_);
+  while (running_ >= config_.threads) {
+    if (context->IsCancelled()) return false;
+    freed_.wait_for(lock, std::chrono::milliseconds(10));
+  }
+  ++running_;
+  return true;
+}
+
+void WorkerService::Release() {
+  {
+    std::lock_guard<std::mutex> lock(mu_);
+    --running_;
+  }
+  freed_.notify_one();
+}
+
+grpc::Status WorkerService::SolveSlice(grpc::ServerContext* context,
+                                       const v1::SolveSliceRequest* request,
+                                       v1::SolveSliceResponse* response) {
+  auto parsed = Parse(*request, config_.memo_limit_bytes);
+  if (!parsed.ok()) return ToGrpc(parsed.status());
+  if (!Acquire(context)) return grpc::Status(grpc::StatusCode::CANCELLED, "call ended");
+  const auto hang_until = Clock::now() + std::chrono::duration_cast<Clock::duration>(
+                                             std::chrono::duration<double>(config_.test_hang_seconds));
+  while (Clock::now() < hang_until && !context->IsCancelled()) {
+    std::this_thread::sleep_for(std::chrono::milliseconds(5));
+  }
+  SearchControl control(nullptr, Deadline(context));
+  control.set_cancel_check([context] { return context->IsCancelled(); });
+  auto result = sliceplan::SolveSlice(parsed->query, parsed->options, parsed->slice, control);
+  Release();
+  if (!result.ok()) return ToGrpc(result.status());
+  *response = SliceResultToProto(*result, parsed->options.cost);
+  return grpc::Status::OK;
+}
+
+grpc::Status WorkerService::DescribeWorker(grpc::ServerContext*,
+                                           const v1::DescribeWorkerRequest*,
+                                           v1::DescribeWorkerResponse* response) {
+  response->set_threads(static_cast<uint32_t>(config_.threads));
+  response->set_memo_limit_bytes(config_.memo_limit_bytes);
+  response->set_version("sliceplan 0.1.0");
+  return grpc::Status::OK;
+}
+
+}  // namespace sliceplan

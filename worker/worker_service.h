@@ -1,0 +1,50 @@
+// The worker's gRPC service: solves one slice per call with the core
+// engine and keeps no state between calls. Honours the call's deadline and
+// cancellation inside the DP loop; refuses a slice over its memo limit with
+// RESOURCE_EXHAUSTED. At most `threads` slices run at once; further calls
+// wait for a slot (while their deadline allows). Thread-safe.
+#ifndef SLICEPLAN_WORKER_WORKER_SERVICE_H_
+#define SLICEPLAN_WORKER_WORKER_SERVICE_H_
+
+#include <condition_variable>
+#include <cstdint>
+#include <mutex>
+
+#include "absl/base/thread_annotations.h"
+#include "sliceplan.grpc.pb.h"
+
+namespace sliceplan {
+
+struct WorkerConfig {
+  int threads = 1;
+  uint64_t memo_limit_bytes = uint64_t{8} << 30;
+  // Test-only fault: every call first sleeps this long (cancellable), so
+  // tests can make a worker hang.
+  double test_hang_seconds = 0;
+};
+
+class WorkerService final : public v1::SliceWorker::Service {
+ public:
+  explicit WorkerService(const WorkerConfig& config) : config_(config) {}
+
+  grpc::Status SolveSlice(grpc::ServerContext* context,
+                          const v1::SolveSliceRequest* request,
+                          v1::SolveSliceResponse* response) override;
+  grpc::Status DescribeWorker(grpc::ServerContext* context,
+                              const v1::DescribeWorkerRequest* request,
+                              v1::DescribeWorkerResponse* response) override;
+
+ private:
+  // Waits for a free slot; false when the call ended first.
+  bool Acquire(grpc::ServerContext* context);
+  void Release();
+
+  const WorkerConfig config_;
+  std::mutex mu_;
+  std::condition_variable freed_;
+  int running_ ABSL_GUARDED_BY(mu_) = 0;
+};
+
+}  // namespace sliceplan
+
+#endif  // SLICEPLAN_WORKER_WORKER_SERVICE_H_
