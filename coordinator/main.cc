@@ -9,6 +9,7 @@
 #include "coordinator/coordinator_service.h"
 #include "coordinator/serve.h"
 #include "coordinator/worker_pool.h"
+#include "spdlog/sinks/stdout_color_sinks.h"
 #include "spdlog/spdlog.h"
 
 ABSL_FLAG(std::string, listen, "127.0.0.1:0", "address to serve on (port 0: any free port)");
@@ -22,6 +23,8 @@ int main(int argc, char** argv) {
   sliceplan::BlockStopSignals();
   absl::SetProgramUsageMessage("sliceplan-coordinator --listen=HOST:PORT --workers=HOST:PORT,...");
   absl::ParseCommandLine(argc, argv);
+  // Logs go to stderr: stdout carries only the listening line.
+  spdlog::set_default_logger(spdlog::stderr_color_mt("sliceplan"));
   auto entries = sliceplan::ParseWorkerList(absl::GetFlag(FLAGS_workers));
   if (!entries.ok()) {
     std::cerr << "sliceplan-coordinator: " << entries.status().message() << "\n";

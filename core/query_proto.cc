@@ -19,8 +19,8 @@ absl::StatusOr<Relation> RelationFromProto(const v1::Relation& m, int i) {
         "relations[", i, "] (", m.name(), ").rows: missing; every relation "
         "needs an estimated row count"));
   }
-  Relation rel{m.name(), m.rows(), kDefaultRowBytes};
-  if (m.has_row_bytes()) rel.row_bytes = m.row_bytes();
+  Relation rel{m.name(), m.rows().value(), kDefaultRowBytes};
+  if (m.has_row_bytes()) rel.row_bytes = m.row_bytes().value();
   return rel;
 }
 
@@ -47,7 +47,7 @@ absl::StatusOr<Predicate> PredicateFromProto(
     return absl::InvalidArgumentError(
         absl::StrCat("predicates[", j, "].selectivity: missing"));
   }
-  p.selectivity = m.selectivity();
+  p.selectivity = m.selectivity().value();
   return p;
 }
 
@@ -82,15 +82,15 @@ v1::Query QueryToProto(const Query& query) {
   for (const Relation& rel : query.relations()) {
     v1::Relation* r = m.add_relations();
     r->set_name(rel.name);
-    r->set_rows(rel.rows);
-    r->set_row_bytes(rel.row_bytes);
+    r->mutable_rows()->set_value(rel.rows);
+    r->mutable_row_bytes()->set_value(rel.row_bytes);
   }
   for (const Predicate& p : query.predicates()) {
     v1::Predicate* out = m.add_predicates();
     ForEachMember(p.relations, [&](RelationId r) {
       out->add_relations(query.relation(r).name);
     });
-    out->set_selectivity(p.selectivity);
+    out->mutable_selectivity()->set_value(p.selectivity);
   }
   return m;
 }

@@ -25,7 +25,7 @@ absl::StatusOr<SearchOptions> SearchOptionsFromProto(const v1::SearchOptions& m)
       return absl::InvalidArgumentError(
           absl::StrCat("options.cost: unknown cost model ", m.cost()));
   }
-  out.cross_products = !m.has_cross_products() || m.cross_products();
+  out.cross_products = !m.has_cross_products() || m.cross_products().value();
   if (m.memo_limit_bytes() != 0) out.memo_limit_bytes = m.memo_limit_bytes();
   return out;
 }
@@ -35,7 +35,7 @@ v1::SearchOptions SearchOptionsToProto(const SearchOptions& options) {
   m.set_shape(options.shape == PlanShape::kBushy ? v1::PLAN_SHAPE_BUSHY
                                                   : v1::PLAN_SHAPE_LEFT_DEEP);
   m.set_cost(v1::COST_MODEL_COUT);
-  m.set_cross_products(options.cross_products);
+  m.mutable_cross_products()->set_value(options.cross_products);
   m.set_memo_limit_bytes(options.memo_limit_bytes);
   return m;
 }

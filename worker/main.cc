@@ -8,6 +8,7 @@
 #include "absl/flags/parse.h"
 #include "absl/flags/usage.h"
 #include "coordinator/serve.h"
+#include "spdlog/sinks/stdout_color_sinks.h"
 #include "spdlog/spdlog.h"
 #include "worker/worker_service.h"
 
@@ -21,6 +22,8 @@ int main(int argc, char** argv) {
   sliceplan::BlockStopSignals();
   absl::SetProgramUsageMessage("sliceplan-worker --listen=HOST:PORT [--threads=N]");
   absl::ParseCommandLine(argc, argv);
+  // Logs go to stderr: stdout carries only the listening line.
+  spdlog::set_default_logger(spdlog::stderr_color_mt("sliceplan"));
   sliceplan::WorkerConfig config;
   config.threads = absl::GetFlag(FLAGS_threads);
   if (config.threads <= 0) {

@@ -1,0 +1,51 @@
+"""The foreign-client check: a client that is not ours (Debian's
+python3-grpcio, stubs generated from proto/ by python3-grpc-tools at test
+time) calls the coordinator and prints the plan tree it gets back.
+
+usage: foreign_client.py COORDINATOR_ADDRESS PROTO_DIR QUERY.json SLICES
+"""
+import os
+import sys
+import tempfile
+
+from grpc_tools import protoc
+
+
+def main():
+    address, proto_dir, query_path, slices = sys.argv[1:5]
+    out = tempfile.mkdtemp(prefix="sliceplan-stubs-")
+    well_known = os.path.join(os.path.dirname(protoc.__file__), "_proto")
+    status = protoc.main(["protoc", "-I" + proto_dir, "-I" + well_known,
+                          "--python_out=" + out,
+                          "--grpc_python_out=" + out,
+                          proto_dir + "/query.proto", proto_dir + "/sliceplan.proto"])
+    if status != 0:
+        sys.exit("protoc failed")
+    sys.path.insert(0, out)
+    import grpc
+    from google.protobuf import json_format
+    import query_pb2
+    import sliceplan_pb2
+    import sliceplan_pb2_grpc
+
+    with open(query_path) as f:
+        query = json_format.Parse(f.read(), query_pb2.Query())
+    request = sliceplan_pb2.OptimizeRequest(query=query, slice_count=int(slices))
+    with grpc.insecure_channel(address) as channel:
+        stub = sliceplan_pb2_grpc.CoordinatorStub(channel)
+        response = stub.Optimize(request, timeout=60)
+    nodes = response.plan.nodes
+    names = [r.name for r in query.relations]
+
+    def tree(i):
+        node = nodes[i]
+        if node.WhichOneof("kind") == "relation":
+            return names[node.relation]
+        return "(%s %s)" % (tree(node.join.left), tree(node.join.right))
+
+    print(tree(len(nodes) - 1))
+    print("%.17g" % nodes[-1].costs["cout"])
+
+
+if __name__ == "__main__":
+    main()

@@ -1,0 +1,245 @@
+// Process-level checks of the service: real worker and coordinator
+// processes on loopback (ports chosen by the servers, processes always
+// reaped), against the embedded mode and under failures.
+#include <signal.h>
+
+#include <chrono>
+#include <thread>
+
+#include "cli/rpc_client.h"
+#include "coordinator/rpc_status.h"
+#include "core/embedded_pool.h"
+#include "core/query_proto.h"
+#include "gtest/gtest.h"
+#include "grpcpp/grpcpp.h"
+#include "sliceplan.grpc.pb.h"
+#include "tests/support/process.h"
+#include "tests/support/test_queries.h"
+
+namespace sliceplan {
+namespace {
+
+using namespace std::chrono_literals;
+using testing::GraphShape;
+using testing::ServerProcess;
+using Clock = std::chrono::steady_clock;
+
+std::unique_ptr<ServerProcess> StartWorker(std::vector<std::string> extra = {}) {
+  std::vector<std::string> argv = {SLICEPLAN_WORKER_BIN, "--listen=127.0.0.1:0", "--threads=1"};
+  argv.insert(argv.end(), extra.begin(), extra.end());
+  auto p = ServerProcess::Start(argv);
+  EXPECT_TRUE(p.ok()) << p.status();
+  return p.ok() ? *std::move(p) : nullptr;
+}
+
+std::unique_ptr<ServerProcess> StartCoordinator(
+    const std::vector<std::unique_ptr<ServerProcess>>& workers, std::vector<std::string> extra = {},
+    std::string list = "") {
+  for (const auto& w : workers) list += (list.empty() ? "" : ",") + w->address();
+  std::vector<std::string> argv = {SLICEPLAN_COORDINATOR_BIN, "--listen=127.0.0.1:0",
+                                   "--workers=" + list, "--health_interval_ms=200"};
+  argv.insert(argv.end(), extra.begin(), extra.end());
+  auto p = ServerProcess::Start(argv);
+  EXPECT_TRUE(p.ok()) << p.status();
+  return p.ok() ? *std::move(p) : nullptr;
+}
+
+struct Cluster {
+  std::vector<std::unique_ptr<ServerProcess>> workers;
+  std::unique_ptr<ServerProcess> coordinator;
+};
+
+Cluster StartCluster(int n, std::vector<std::string> coordinator_flags = {}) {
+  Cluster c;
+  for (int i = 0; i < n; ++i) c.workers.push_back(StartWorker());
+  c.coordinator = StartCoordinator(c.workers, coordinator_flags);
+  return c;
+}
+
+// The unsliced optimum. Sliced runs may return another tree of equal cost
+// whose sum rounds differently in the last place, hence EXPECT_NEAR.
+double Optimum(const Query& q) {
+  SearchControl control;
+  return SolveSlice(q, {}, {0, 1}, control)->plan->root().cost;
+}
+
+absl::StatusOr<ScheduleOutcome> Remote(const std::string& coordinator, const Query& q,
+                                       SearchOptions options, uint32_t p,
+                                       double deadline = 0, bool partial = false) {
+  cli::RemoteRequest r{coordinator, options, p, deadline, partial};
+  return cli::OptimizeRemote(r, q, {});
+}
+
+TEST(ServiceTest, RpcAnswerEqualsEmbeddedAnswer) {
+  Cluster c = StartCluster(3);
+  ASSERT_TRUE(c.coordinator);
+  int checked = 0;
+  for (GraphShape g : {GraphShape::kChain, GraphShape::kStar, GraphShape::kRandom,
+                       GraphShape::kCycle}) {
+    for (PlanShape shape : {PlanShape::kBushy, PlanShape::kLeftDeep}) {
+      const Query q = testing::MakeQuery(g, shape == PlanShape::kBushy ? 12 : 10, 11);
+      for (uint32_t p : {1u, 2u, 4u, 8u, 16u}) {
+        if (std::countr_zero(p) > MaxSliceBits(q.size(), shape)) continue;
+        const SearchOptions options{shape, g != GraphShape::kCycle, CostModelKind::kCout};
+        auto remote = Remote(c.coordinator->address(), q, options, p);
+        ASSERT_TRUE(remote.ok()) << remote.status();
+        auto local = OptimizeEmbedded(q, options, p, 2);
+        ASSERT_TRUE(local.ok());
+        EXPECT_EQ(remote->result.plan.root().cost, local->plan.root().cost);
+        EXPECT_EQ(TreeString(remote->result.plan, q), TreeString(local->plan, q));
+        EXPECT_EQ(remote->result.slices.size(), p);
+        EXPECT_TRUE(remote->proven_optimal);
+        ++checked;
+      }
+    }
+  }
+  EXPECT_EQ(checked, 40);  // 4 graphs x 2 shapes x P = 1..16
+}
+
+TEST(ServiceTest, KilledWorkerMidRunStillGivesTheOptimum) {
+  Cluster c = StartCluster(3);
+  ASSERT_TRUE(c.coordinator);
+  // About 1.7e9 splits in all: several seconds on this machine class.
+  const Query q = testing::MakeQuery(GraphShape::kRandom, 20, 5);
+  std::thread killer([&] {
+    std::this_thread::sleep_for(800ms);
+    c.workers[0]->Signal(SIGKILL);
+  });
+  auto remote = Remote(c.coordinator->address(), q, {}, 8);
+  killer.join();
+  ASSERT_TRUE(remote.ok()) << remote.status();
+  EXPECT_NEAR(remote->result.plan.root().cost, Optimum(q), 1e-12 * Optimum(q));
+  EXPECT_GE(remote->retries, 1u);
+  for (const std::string& w : remote->slice_workers) EXPECT_NE(w, c.workers[0]->address());
+}
+
+TEST(ServiceTest, HangingWorkerIsHedgedWithinTheDeadline) {
+  std::vector<std::unique_ptr<ServerProcess>> workers;
+  workers.push_back(StartWorker({"--test_only_hang_seconds=600"}));
+  workers.push_back(StartWorker());
+  workers.push_back(StartWorker());
+  auto coordinator = StartCoordinator(workers, {"--hedge_after_seconds=0.3"});
+  ASSERT_TRUE(coordinator);
+  const Query q = testing::MakeQuery(GraphShape::kRandom, 14, 2);
+  const auto start = Clock::now();
+  auto remote = Remote(coordinator->address(), q, {}, 4, /*deadline=*/20);
+  ASSERT_TRUE(remote.ok()) << remote.status();
+  EXPECT_LT(Clock::now() - start, 10s);
+  EXPECT_TRUE(remote->proven_optimal);
+  EXPECT_GE(remote->hedges, 1u);
+  EXPECT_NEAR(remote->result.plan.root().cost, Optimum(q), 1e-12 * Optimum(q));
+}
+
+TEST(ServiceTest, AllWorkersDownIsUnavailableNotAHang) {
+  auto w = StartWorker();
+  ASSERT_TRUE(w);
+  const std::string dead = w->address();
+  w->Signal(SIGKILL);
+  std::vector<std::unique_ptr<ServerProcess>> none;
+  auto coordinator = StartCoordinator(none, {}, dead);
+  ASSERT_TRUE(coordinator);
+  std::this_thread::sleep_for(500ms);  // a health round marks it down
+  const auto start = Clock::now();
+  auto remote = Remote(coordinator->address(), testing::MakeQuery(GraphShape::kChain, 8, 1), {}, 2);
+  EXPECT_LT(Clock::now() - start, 5s);
+  ASSERT_FALSE(remote.ok());
+  EXPECT_EQ(remote.status().code(), absl::StatusCode::kUnavailable) << remote.status();
+  EXPECT_NE(remote.status().message().find("no worker available"), std::string::npos)
+      << remote.status();
+}
+
+TEST(ServiceTest, DeadlineExceededOrPartialAsRequested) {
+  // Too large for its deadline: 3^24/2 splits would take minutes.
+  Cluster c = StartCluster(2);
+  ASSERT_TRUE(c.coordinator);
+  const Query big = testing::MakeQuery(GraphShape::kRandom, 24, 3);
+  auto start = Clock::now();
+  auto remote = Remote(c.coordinator->address(), big, {}, 4, /*deadline=*/1.5);
+  EXPECT_LT(Clock::now() - start, 3s);
+  ASSERT_FALSE(remote.ok());
+  EXPECT_EQ(remote.status().code(), absl::StatusCode::kDeadlineExceeded) << remote.status();
+
+  // A hung worker holds one slice: the partial answer covers the rest.
+  std::vector<std::unique_ptr<ServerProcess>> workers;
+  workers.push_back(StartWorker({"--test_only_hang_seconds=600"}));
+  workers.push_back(StartWorker());
+  auto coordinator = StartCoordinator(workers, {"--hedge_after_seconds=0"});
+  ASSERT_TRUE(coordinator);
+  const Query q = testing::MakeQuery(GraphShape::kRandom, 12, 3);
+  start = Clock::now();
+  remote = Remote(coordinator->address(), q, {}, 4, /*deadline=*/1.5, /*partial=*/true);
+  EXPECT_LT(Clock::now() - start, 3s);
+  ASSERT_TRUE(remote.ok()) << remote.status();
+  EXPECT_FALSE(remote->proven_optimal);
+  EXPECT_DOUBLE_EQ(remote->coverage, 0.75);
+}
+
+template <class Stub, class Request, class Response, class Method>
+grpc::Status Call(Stub& stub, Method method, const Request& request, Response* response) {
+  grpc::ClientContext context;
+  context.set_deadline(std::chrono::system_clock::now() + 5s);
+  return (stub.*method)(&context, request, response);
+}
+
+TEST(ServiceTest, BadRpcInputIsInvalidArgumentNamingTheField) {
+  Cluster c = StartCluster(1);
+  ASSERT_TRUE(c.coordinator);
+  auto coordinator = v1::Coordinator::NewStub(
+      grpc::CreateChannel(c.coordinator->address(), grpc::InsecureChannelCredentials()));
+  auto worker = v1::SliceWorker::NewStub(
+      grpc::CreateChannel(c.workers[0]->address(), grpc::InsecureChannelCredentials()));
+  const v1::Query query = QueryToProto(testing::MakeQuery(GraphShape::kChain, 6, 1));
+  v1::OptimizeResponse out;
+  v1::SolveSliceResponse slice_out;
+
+  v1::OptimizeRequest missing;
+  grpc::Status s = Call(*coordinator, &v1::Coordinator::Stub::Optimize, missing, &out);
+  EXPECT_EQ(s.error_code(), grpc::StatusCode::INVALID_ARGUMENT);
+  EXPECT_EQ(s.error_message(), "query: missing");
+
+  v1::OptimizeRequest three;
+  *three.mutable_query() = query;
+  three.set_slice_count(3);
+  s = Call(*coordinator, &v1::Coordinator::Stub::Optimize, three, &out);
+  EXPECT_EQ(s.error_code(), grpc::StatusCode::INVALID_ARGUMENT);
+  EXPECT_NE(s.error_message().find("slice_count: 3 is not a power of two"), std::string::npos);
+
+  v1::OptimizeRequest unknown;
+  *unknown.mutable_query() = query;
+  unknown.mutable_query()->mutable_predicates(0)->set_relations(1, "tugboats");
+  s = Call(*coordinator, &v1::Coordinator::Stub::Optimize, unknown, &out);
+  EXPECT_EQ(s.error_code(), grpc::StatusCode::INVALID_ARGUMENT);
+  EXPECT_NE(s.error_message().find("query.predicates[0].relations[1]: unknown relation"),
+            std::string::npos)
+      << s.error_message();
+
+  v1::SolveSliceRequest no_query;
+  no_query.set_slice_count(1);
+  s = Call(*worker, &v1::SliceWorker::Stub::SolveSlice, no_query, &slice_out);
+  EXPECT_EQ(s.error_code(), grpc::StatusCode::INVALID_ARGUMENT);
+  EXPECT_EQ(s.error_message(), "query: missing");
+
+  v1::SolveSliceRequest bad_count;
+  *bad_count.mutable_query() = query;
+  bad_count.set_slice_count(6);
+  s = Call(*worker, &v1::SliceWorker::Stub::SolveSlice, bad_count, &slice_out);
+  EXPECT_EQ(s.error_code(), grpc::StatusCode::INVALID_ARGUMENT);
+  EXPECT_NE(s.error_message().find("slice_count: 6"), std::string::npos);
+
+  v1::SolveSliceRequest bad_index;
+  *bad_index.mutable_query() = query;
+  bad_index.set_slice_count(2);
+  bad_index.set_slice_index(2);
+  s = Call(*worker, &v1::SliceWorker::Stub::SolveSlice, bad_index, &slice_out);
+  EXPECT_EQ(s.error_code(), grpc::StatusCode::INVALID_ARGUMENT);
+  EXPECT_NE(s.error_message().find("slice_index: 2"), std::string::npos);
+
+  v1::SolveSliceRequest too_big;  // memo over the worker's limit
+  *too_big.mutable_query() = QueryToProto(testing::MakeQuery(GraphShape::kChain, 34, 1));
+  too_big.set_slice_count(1);
+  s = Call(*worker, &v1::SliceWorker::Stub::SolveSlice, too_big, &slice_out);
+  EXPECT_EQ(s.error_code(), grpc::StatusCode::RESOURCE_EXHAUSTED);
+}
+
+}  // namespace
+}  // namespace sliceplan

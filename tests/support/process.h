@@ -1,0 +1,41 @@
+// A child server process for the process-level tests: started with its
+// stdout on a pipe, its "listening on HOST:PORT" line read back (servers
+// bind port 0, so tests never race for ports), always reaped: the
+// destructor kills it (SIGKILL) and waits.
+#ifndef SLICEPLAN_TESTS_SUPPORT_PROCESS_H_
+#define SLICEPLAN_TESTS_SUPPORT_PROCESS_H_
+
+#include <sys/types.h>
+
+#include <chrono>
+#include <memory>
+#include <string>
+#include <vector>
+
+#include "absl/status/statusor.h"
+
+namespace sliceplan::testing {
+
+class ServerProcess {
+ public:
+  // Runs argv and waits up to `timeout` for its listening line.
+  static absl::StatusOr<std::unique_ptr<ServerProcess>> Start(
+      const std::vector<std::string>& argv,
+      std::chrono::milliseconds timeout = std::chrono::seconds(10));
+  ~ServerProcess();
+
+  const std::string& address() const { return address_; }
+  // Sends `sig` (e.g. SIGKILL) and, for SIGKILL, waits for the exit.
+  void Signal(int sig);
+
+ private:
+  ServerProcess(pid_t pid, int out) : pid_(pid), out_(out) {}
+  pid_t pid_;
+  int out_;
+  bool reaped_ = false;
+  std::string address_;
+};
+
+}  // namespace sliceplan::testing
+
+#endif  // SLICEPLAN_TESTS_SUPPORT_PROCESS_H_
