@@ -43,7 +43,7 @@ void Report(const char* name, const Query& q, PlanShape shape) {
   for (int k = 1; k <= 4; ++k) {
     const uint32_t p = 1u << k;
     double ours_max = 0, ours_sum = 0, naive_max = 0, naive_sum = 0;
-    const auto chosen = ChooseConstraintRelations(q, shape, k);
+    const auto chosen = ChooseConstraintRelations(q, shape, k, false);
     const auto naive = Naive(shape, k);
     for (uint32_t i = 0; i < p; ++i) {
       const double a = static_cast<double>(

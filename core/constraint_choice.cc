@@ -169,9 +169,18 @@ std::vector<int> RefinedColours(const Query& query) {
 }
 
 std::vector<ConstraintRelations> ChooseConstraintRelations(const Query& query,
-                                                           PlanShape shape,
-                                                           int k) {
+                                                           PlanShape shape, int k,
+                                                           bool cross_products) {
   if (k == 0) return {};
+  if (cross_products) {  // slicing.md: any disjoint choice gives equal slices
+    const int w = RelationsPerConstraint(shape);
+    std::vector<ConstraintRelations> out(k);
+    for (int j = 0; j < k; ++j) {
+      out[j].size = w;
+      for (int d = 0; d < w; ++d) out[j].ids[d] = Id(w * j + d);
+    }
+    return out;
+  }
   const std::vector<int> colour = RefinedColours(query);
   const Membership members(ConnectedSets(query, kSampleSets), query.size());
   if (shape == PlanShape::kLeftDeep) return ChoosePairs(members, colour, k);

@@ -31,10 +31,11 @@ OrientedConstraint Orient(ConstraintRelations rel, bool bit) {
 
 absl::StatusOr<SliceConstraints> SliceConstraints::ForSlice(const Query& query,
                                                             PlanShape shape,
-                                                            SliceSpec spec) {
+                                                            SliceSpec spec,
+                                                            bool cross_products) {
   RETURN_IF_ERROR(ValidateSlice(spec, query.size(), shape));
-  return FromRelations(shape, spec,
-                       ChooseConstraintRelations(query, shape, spec.bits()));
+  return FromRelations(
+      shape, spec, ChooseConstraintRelations(query, shape, spec.bits(), cross_products));
 }
 
 SliceConstraints SliceConstraints::FromRelations(

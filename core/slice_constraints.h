@@ -43,11 +43,13 @@ struct OrientedConstraint {
 class SliceConstraints {
  public:
   // The constraints of slice `spec` for `shape`: the relations come from
-  // ChooseConstraintRelations (a deterministic function of the query), the
-  // orientation from the slice bits. Errors as ValidateSlice.
+  // ChooseConstraintRelations (a deterministic function of the query and
+  // the search space), the orientation from the slice bits. Errors as
+  // ValidateSlice.
   static absl::StatusOr<SliceConstraints> ForSlice(const Query& query,
                                                    PlanShape shape,
-                                                   SliceSpec spec);
+                                                   SliceSpec spec,
+                                                   bool cross_products = true);
   // Builds from given relations (tests use it to pin a choice).
   // REQUIRES: relations disjoint, sizes match `shape`, one per slice bit.
   static SliceConstraints FromRelations(

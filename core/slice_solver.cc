@@ -46,7 +46,8 @@ template <SearchPolicy Policy>
 absl::Status Prepare(const Query& query, const SearchOptions& options,
                      SliceSpec slice, std::optional<SliceConstraints>& out) {
   ASSIGN_OR_RETURN(SliceConstraints constraints,
-                   SliceConstraints::ForSlice(query, options.shape, slice));
+                   SliceConstraints::ForSlice(query, options.shape, slice,
+                                              options.cross_products));
   if (options.cross_products) {
     RETURN_IF_ERROR(CheckDenseMemo(query.size(), options.shape, slice.bits(),
                                    Policy::kBytesPerSlot,

@@ -17,8 +17,8 @@ TEST(ConstraintChoiceTest, DisjointDeterministicAndSized) {
     const Query q = testing::MakeQuery(g, 13, 2);
     for (PlanShape shape : {PlanShape::kBushy, PlanShape::kLeftDeep}) {
       for (int k = 1; k <= MaxSliceBits(13, shape); ++k) {
-        const auto a = ChooseConstraintRelations(q, shape, k);
-        const auto b = ChooseConstraintRelations(q, shape, k);
+        const auto a = ChooseConstraintRelations(q, shape, k, /*cross_products=*/false);
+        const auto b = ChooseConstraintRelations(q, shape, k, /*cross_products=*/false);
         ASSERT_EQ(a.size(), static_cast<size_t>(k));
         RelSet used = 0;
         for (size_t j = 0; j < a.size(); ++j) {

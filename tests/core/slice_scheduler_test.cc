@@ -119,7 +119,9 @@ TEST(SliceSchedulerTest, DeadlineGivesPartialAnswerWhenAsked) {
   ASSERT_TRUE(out.ok()) << out.status();
   EXPECT_FALSE(out->proven_optimal);
   EXPECT_DOUBLE_EQ(out->coverage, 0.75);  // the hung worker held one slice
-  EXPECT_GE(out->result.plan.root().cost, Optimum(q));
+  // Never better than the optimum (up to the last place: equal-cost trees
+  // of other slices may round differently).
+  EXPECT_GE(out->result.plan.root().cost, Optimum(q) * (1 - 1e-12));
 }
 
 TEST(SliceSchedulerTest, DeadlineExceededWhenNoPartialAnswerIsWanted) {
