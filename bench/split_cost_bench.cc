@@ -80,13 +80,14 @@ void SliceRatios(int n, PlanShape shape) {
 }  // namespace sliceplan
 
 int main(int argc, char** argv) {
-  if (argc == 4 && std::string(argv[1]) == "slice") {  // one slice, for perf
+  if (argc >= 4 && std::string(argv[1]) == "slice") {  // one slice: slice N P [I]
     const int n = std::atoi(argv[2]);
     const auto p = static_cast<uint32_t>(std::atoi(argv[3]));
+    const auto index = static_cast<uint32_t>(argc > 4 ? std::atoi(argv[4]) : 0);
     const auto q = sliceplan::testing::MakeQuery(
         sliceplan::testing::GraphShape::kRandom, n, 1);
-    const auto r = sliceplan::Best(q, sliceplan::PlanShape::kBushy, {0, p}, 3);
-    std::printf("n=%d P=%u slice 0: %.4f s, %llu splits, %.3f ns/split\n", n, p,
+    const auto r = sliceplan::Best(q, sliceplan::PlanShape::kBushy, {index, p}, 3);
+    std::printf("n=%d P=%u slice %u: %.4f s, %llu splits, %.3f ns/split\n", n, p, index,
                 r.seconds, static_cast<unsigned long long>(r.splits),
                 1e9 * r.seconds / static_cast<double>(r.splits));
     return 0;

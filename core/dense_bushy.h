@@ -82,6 +82,23 @@ template <SearchPolicy Policy>
 
 #undef SLICEPLAN_OFFER_
 
+// Offers the splits of a set with low bits `low` into every block pair of
+// `inner` (both high parts non-empty, so any l from the empty set to all of
+// `low` goes), the pair loop innermost. When the low part is small and the
+// pairs many (high k), this beats a short subset loop per pair.
+template <SearchPolicy Policy>
+[[gnu::always_inline]] inline typename Policy::Acc OfferInnerPairsByLow(
+    const Policy& policy, typename Policy::Acc a,
+    const std::vector<std::pair<Slot, Slot>>& inner, RelSet low) {
+  RelSet l = 0;
+  do {
+    const Slot left = static_cast<Slot>(l), right = static_cast<Slot>(low ^ l);
+    for (const auto& [lb, rb] : inner) a = policy.Offer(a, lb + left, rb + right);
+    l = (l - low) & low;
+  } while (l != 0);
+  return a;
+}
+
 }  // namespace dense_bushy_internal
 
 // Runs the bushy DP over `layout` into `policy` (already Resize()d to
@@ -90,11 +107,23 @@ template <SearchPolicy Policy>
 template <SearchPolicy Policy>
 absl::Status RunDenseBushy(const DenseLayout& layout, Policy& policy,
                            SearchControl& control, SearchStats& stats) {
+  using dense_bushy_internal::OfferBlockPair;
   const int f = layout.free_bits();
   const uint64_t low_sets = uint64_t{1} << f;
   std::vector<BlockSplit> splits;
+  std::vector<BlockSplit> edge;                  // a high part is empty
+  std::vector<std::pair<Slot, Slot>> inner;      // slot bases, both non-empty
   for (uint64_t b = 0; b < layout.block_count(); ++b) {
     layout.BlockSplits(b, Policy::kSymmetric, splits);
+    edge.clear();
+    inner.clear();
+    for (const BlockSplit& bs : splits) {
+      if (bs.left == 0 || bs.right == 0) {
+        edge.push_back(bs);
+      } else {
+        inner.emplace_back(static_cast<Slot>(bs.left << f), static_cast<Slot>(bs.right << f));
+      }
+    }
     const RelSet high = layout.BlockPattern(b) << f;
     const Slot base = static_cast<Slot>(b << f);
     for (RelSet low = 0; low < low_sets; ++low) {
@@ -106,11 +135,19 @@ absl::Status RunDenseBushy(const DenseLayout& layout, Policy& policy,
       }
       auto acc = policy.Begin();
       uint64_t work = 0;
-      for (const BlockSplit& bs : splits) {
-        acc = dense_bushy_internal::OfferBlockPair(
-            policy, acc, static_cast<Slot>(bs.left << f),
-            static_cast<Slot>(bs.right << f), bs.left == 0, bs.right == 0, low,
-            work);
+      for (const BlockSplit& bs : edge) {
+        acc = OfferBlockPair(policy, acc, static_cast<Slot>(bs.left << f),
+                             static_cast<Slot>(bs.right << f), bs.left == 0,
+                             bs.right == 0, low, work);
+      }
+      const uint64_t subsets = uint64_t{1} << Size(low);
+      if (inner.size() > subsets) {
+        acc = dense_bushy_internal::OfferInnerPairsByLow(policy, acc, inner, low);
+        work += inner.size() * subsets;
+      } else {
+        for (const auto& [lb, rb] : inner) {
+          acc = OfferBlockPair(policy, acc, lb, rb, false, false, low, work);
+        }
       }
       policy.Finish(s, set, acc);
       stats.splits += work;

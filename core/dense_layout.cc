@@ -42,8 +42,23 @@ DenseLayout::DenseLayout(int n, const SliceConstraints& constraints)
     const RelSet p = pairs ? kPairPatterns[v] : kTriplePatterns[v];
     digit_value_[p] = static_cast<int8_t>(v);
   }
+  digit_splits_.resize(radix_);
+  for (int v = 0; v < radix_; ++v) {
+    const RelSet p = pairs ? kPairPatterns[v] : kTriplePatterns[v];
+    RelSet l = 0;
+    do {  // every sub-pattern l of p with l and p \ l both allowed
+      const int8_t vl = digit_value_[l], vr = digit_value_[p ^ l];
+      if (vl >= 0 && vr >= 0) {
+        digit_splits_[v].emplace_back(static_cast<uint8_t>(vl), static_cast<uint8_t>(vr));
+      }
+      l = (l - p) & p;
+    } while (l != 0);
+  }
   block_count_ = 1;
-  for (int j = 0; j < digits_; ++j) block_count_ *= static_cast<uint64_t>(radix_);
+  for (int j = 0; j < digits_; ++j) {
+    place_.push_back(block_count_);
+    block_count_ *= static_cast<uint64_t>(radix_);
+  }
   patterns_.resize(block_count_);
   for (uint64_t b = 0; b < block_count_; ++b) {
     RelSet high = 0;
@@ -80,18 +95,29 @@ bool DenseLayout::Admissible(RelSet s) const { return PatternAdmissible(s >> f_)
 void DenseLayout::BlockSplits(uint64_t b, bool symmetric,
                               std::vector<BlockSplit>& out) const {
   out.clear();
-  const RelSet whole = patterns_[b];
-  // All sub-patterns of `whole`, including the empty one and itself.
-  RelSet left = 0;
-  do {
-    const RelSet right = whole ^ left;
-    if (PatternAdmissible(left) && PatternAdmissible(right) &&
-        (!symmetric || left <= right)) {
-      out.push_back({static_cast<uint32_t>(BlockOf(left)),
-                     static_cast<uint32_t>(BlockOf(right))});
+  // The splits of a block are the product of its digits' splits: walk
+  // them like an odometer, summing the digits' places into block numbers.
+  std::vector<uint64_t> digit(digits_);
+  std::vector<size_t> choice(digits_, 0);
+  uint64_t rest = b;
+  for (int j = 0; j < digits_; ++j) {
+    digit[j] = rest % static_cast<uint64_t>(radix_);
+    rest /= static_cast<uint64_t>(radix_);
+  }
+  for (;;) {
+    uint64_t left = 0, right = 0;
+    for (int j = 0; j < digits_; ++j) {
+      const auto [vl, vr] = digit_splits_[digit[j]][choice[j]];
+      left += vl * place_[j];
+      right += vr * place_[j];
     }
-    left = (left - whole) & whole;
-  } while (left != 0);
+    if (!symmetric || patterns_[left] <= patterns_[right]) {
+      out.push_back({static_cast<uint32_t>(left), static_cast<uint32_t>(right)});
+    }
+    int j = 0;
+    while (j < digits_ && ++choice[j] == digit_splits_[digit[j]].size()) choice[j++] = 0;
+    if (j == digits_) return;
+  }
 }
 
 void DenseLayout::BlockRemovals(uint64_t b, std::vector<BlockRemoval>& out) const {

@@ -90,6 +90,9 @@ class DenseLayout {
   std::vector<RelationId> inverse_;
   std::vector<RelSet> patterns_;     // block -> high pattern
   std::vector<int8_t> digit_value_;  // local pattern -> digit value or -1
+  // digit value -> its splits into two allowed digit values (left, right)
+  std::vector<std::vector<std::pair<uint8_t, uint8_t>>> digit_splits_;
+  std::vector<uint64_t> place_;      // radix^j
 };
 
 }  // namespace sliceplan
