@@ -26,7 +26,7 @@ class CountPolicy {
   void Resize(size_t slots) { count_.resize(slots, 0); }
   void InitLeaf(Slot s, RelationId) { count_[s] = 1; }
 
-  Acc Begin() const { return 0; }
+  Acc Begin(Slot, RelSet) const { return 0; }
   Acc Offer(Acc a, Slot left, Slot right) const {
     return a + count_[left] * count_[right];
   }

@@ -41,7 +41,7 @@ class CoutPolicy {
   }
   void InitLeaf(Slot s, RelationId) { cost_[s] = 0; }
 
-  Acc Begin() const { return {kInf, kNoSlot}; }
+  Acc Begin(Slot, RelSet) const { return {kInf, kNoSlot}; }
   // An improvement is rare once a good split is found, so the branch is
   // predicted; a branch-free min would chain every split on the last one.
   Acc Offer(Acc a, Slot left, Slot right) const {

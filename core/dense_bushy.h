@@ -133,7 +133,7 @@ absl::Status RunDenseBushy(const DenseLayout& layout, Policy& policy,
         if (set != 0) policy.InitLeaf(s, Lowest(set));
         continue;
       }
-      auto acc = policy.Begin();
+      auto acc = policy.Begin(s, set);
       uint64_t work = 0;
       for (const BlockSplit& bs : edge) {
         acc = OfferBlockPair(policy, acc, static_cast<Slot>(bs.left << f),

@@ -37,7 +37,7 @@ absl::Status RunDenseLeftDeep(const DenseLayout& layout, Policy& policy,
         if (set != 0) policy.InitLeaf(s, Lowest(set));
         continue;
       }
-      auto acc = policy.Begin();
+      auto acc = policy.Begin(s, set);
       for (RelSet rest = low; rest != 0; rest &= rest - 1) {
         const RelSet bit = LowestBit(rest);
         acc = policy.OfferLeafRight(acc, s - static_cast<Slot>(bit), Lowest(bit));

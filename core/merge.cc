@@ -8,8 +8,23 @@ namespace sliceplan {
 
 namespace {
 
+// The union of the slices' Pareto sets, exactly filtered.
+std::vector<Plan> MergeFrontiers(const std::vector<SliceResult>& slices, Objectives objectives) {
+  std::vector<const Plan*> plans;
+  std::vector<ClusterCosts> costs;
+  for (const SliceResult& r : slices) {
+    for (const Plan& p : r.frontier) {
+      plans.push_back(&p);
+      costs.push_back(p.root().metrics);
+    }
+  }
+  std::vector<Plan> out;
+  for (size_t i : FrontierIndices(costs, objectives)) out.push_back(*plans[i]);
+  return out;
+}
+
 absl::StatusOr<OptimizeResult> Merge(std::vector<SliceResult> slices,
-                                     uint32_t slice_count, bool all) {
+                                     uint32_t slice_count, bool all, Objectives objectives) {
   std::sort(slices.begin(), slices.end(),
             [](const SliceResult& a, const SliceResult& b) {
               return a.slice.index < b.slice.index;
@@ -40,7 +55,12 @@ absl::StatusOr<OptimizeResult> Merge(std::vector<SliceResult> slices,
         "products or add the missing join predicates");
   }
   out.plan = *best;
-  for (SliceResult& r : slices) r.plan.reset();
+  out.frontier = MergeFrontiers(slices, objectives);
+  if (!out.frontier.empty()) out.plan = out.frontier.front();
+  for (SliceResult& r : slices) {
+    r.plan.reset();
+    r.frontier.clear();
+  }
   out.slices = std::move(slices);
   return out;
 }
@@ -48,13 +68,13 @@ absl::StatusOr<OptimizeResult> Merge(std::vector<SliceResult> slices,
 }  // namespace
 
 absl::StatusOr<OptimizeResult> MergeSlices(std::vector<SliceResult> slices,
-                                           uint32_t slice_count) {
-  return Merge(std::move(slices), slice_count, true);
+                                           uint32_t slice_count, Objectives objectives) {
+  return Merge(std::move(slices), slice_count, true, objectives);
 }
 
 absl::StatusOr<OptimizeResult> MergeSolvedSlices(std::vector<SliceResult> slices,
-                                                 uint32_t slice_count) {
-  return Merge(std::move(slices), slice_count, false);
+                                                 uint32_t slice_count, Objectives objectives) {
+  return Merge(std::move(slices), slice_count, false, objectives);
 }
 
 }  // namespace sliceplan

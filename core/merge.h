@@ -10,12 +10,14 @@
 #include <vector>
 
 #include "absl/status/statusor.h"
+#include "core/pareto.h"
 #include "core/slice_solver.h"
 
 namespace sliceplan {
 
 struct OptimizeResult {
-  Plan plan;
+  Plan plan;                   // the single best plan, or the frontier's first
+  std::vector<Plan> frontier;  // cluster model: the merged Pareto set
   uint32_t slice_count = 1;
   uint32_t best_slice = 0;               // the slice the plan came from
   std::vector<SliceResult> slices;       // by slice index; plans dropped
@@ -26,14 +28,19 @@ struct OptimizeResult {
 // INVALID_ARGUMENT when a slice is missing or repeated; NOT_FOUND when no
 // slice holds a plan (only possible without cross products: the join graph
 // cannot be joined without one).
+//
+// Slices with a Pareto set (the cluster model) merge into one: the union,
+// less every plan another plan beats or equals on each of `objectives`
+// (exact dominance, cost-models.md), by increasing latency_s.
 absl::StatusOr<OptimizeResult> MergeSlices(std::vector<SliceResult> slices,
-                                           uint32_t slice_count);
+                                           uint32_t slice_count, Objectives objectives = {});
 
 // As MergeSlices over the slices that were solved (a deadline passed before
 // the rest): any subset of distinct slices, at least one of them with a
 // plan. The result is the best plan found so far, not proven optimal.
 absl::StatusOr<OptimizeResult> MergeSolvedSlices(std::vector<SliceResult> slices,
-                                                 uint32_t slice_count);
+                                                 uint32_t slice_count,
+                                                 Objectives objectives = {});
 
 }  // namespace sliceplan
 

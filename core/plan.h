@@ -10,6 +10,7 @@
 
 #include "absl/functional/function_ref.h"
 #include "core/cardinality.h"
+#include "core/cluster_model.h"
 #include "core/query.h"
 
 namespace sliceplan {
@@ -19,7 +20,12 @@ struct PlanNode {
   int left = -1;   // child node index; -1 for a leaf
   int right = -1;
   double cardinality = 0;
-  double cost = 0;  // the cost model's metric of the subtree
+  double cost = 0;  // the cost model's primary metric of the subtree
+  // The cluster model's physical choices and metrics (cost = latency_s).
+  JoinStrategy strategy = JoinStrategy::kShuffle;  // joins
+  int nodes = 0;                                   // joins: rented nodes
+  double sample_rate = 1;                          // leaves
+  ClusterCosts metrics;
   bool is_leaf() const { return left < 0; }
 };
 

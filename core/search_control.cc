@@ -3,8 +3,9 @@
 namespace sliceplan {
 
 bool SearchControl::Check() {
-  if ((cancel_ != nullptr && cancel_->load(std::memory_order_relaxed)) ||
-      (cancelled_ && cancelled_())) {
+  bool cancelled = cancel_ != nullptr && cancel_->load(std::memory_order_relaxed);
+  for (const auto& check : checks_) cancelled = cancelled || check();
+  if (cancelled) {
     status_ = absl::CancelledError("search cancelled");
     return true;
   }

@@ -13,6 +13,7 @@
 #include <cstdint>
 #include <functional>
 #include <optional>
+#include <vector>
 
 #include "absl/status/status.h"
 
@@ -30,9 +31,9 @@ class SearchControl {
                 std::optional<Clock::time_point> deadline)
       : cancel_(cancel), deadline_(deadline) {}
   // Also stops once `cancelled()` returns true (polled with the clock, so
-  // it may take a lock or ask an RPC context).
+  // it may take a lock or ask an RPC context). Checks accumulate.
   void set_cancel_check(std::function<bool()> cancelled) {
-    cancelled_ = std::move(cancelled);
+    checks_.push_back(std::move(cancelled));
   }
 
   // Returns true when the search must stop; status() then says why.
@@ -49,7 +50,7 @@ class SearchControl {
   bool Check();
 
   const std::atomic<bool>* cancel_ = nullptr;
-  std::function<bool()> cancelled_;
+  std::vector<std::function<bool()>> checks_;
   std::optional<Clock::time_point> deadline_;
   int64_t budget_ = kTickWork;
   absl::Status status_;

@@ -13,7 +13,7 @@
 //   void Resize(size_t slots);          // memo holds slots [0, slots)
 //   void InitLeaf(Slot s, RelationId r);
 // Dense enumeration, all splits of one set in a row:
-//   Acc Begin() const;
+//   Acc Begin(Slot s, RelSet set);                        // a set's splits start
 //   Acc Offer(Acc, Slot left, Slot right) const;          // bushy
 //   Acc OfferLeafRight(Acc, Slot left, RelationId right) const;  // left-deep
 // (Offer takes and returns the accumulator by value so that it stays in
@@ -45,7 +45,7 @@ concept SearchPolicy = requires(P p, const P cp, typename P::Acc acc, Slot s,
   { P::kBytesPerSlot } -> std::convertible_to<size_t>;
   p.Resize(size_t{1});
   p.InitLeaf(s, r);
-  { cp.Begin() } -> std::same_as<typename P::Acc>;
+  { p.Begin(s, set) } -> std::same_as<typename P::Acc>;
   { cp.Offer(acc, s, s) } -> std::same_as<typename P::Acc>;
   { cp.OfferLeafRight(acc, s, r) } -> std::same_as<typename P::Acc>;
   p.Finish(s, set, acc);

@@ -132,7 +132,7 @@ absl::StatusOr<SliceResult> SliceResultFromProto(const v1::SolveSliceResponse& m
                                                  const Query& query,
                                                  CostModelKind model,
                                                  SliceSpec slice) {
-  SliceResult r{slice, std::nullopt, SliceStatsFromProto(m.stats())};
+  SliceResult r{slice, std::nullopt, SliceStatsFromProto(m.stats()), {}, 0};
   if (m.has_plan()) {
     ASSIGN_OR_RETURN(Plan plan, PlanFromProto(m.plan(), query, model));
     r.plan = std::move(plan);
@@ -170,7 +170,7 @@ absl::StatusOr<ScheduleOutcome> OutcomeFromProto(const v1::OptimizeResponse& m,
   out.result.wall_seconds = m.wall_seconds();
   for (const v1::SliceStats& s : m.slices()) {
     out.result.slices.push_back(
-        SliceResult{{s.index(), m.slice_count()}, std::nullopt, SliceStatsFromProto(s)});
+        SliceResult{{s.index(), m.slice_count()}, std::nullopt, SliceStatsFromProto(s), {}, 0});
     out.slice_workers.push_back(s.worker());
   }
   out.proven_optimal = m.proven_optimal();

@@ -260,8 +260,9 @@ class Run {
       }
     }
     absl::StatusOr<OptimizeResult> merged =
-        done_ == count_ ? MergeSlices(std::move(solved), count_)
-                        : MergeSolvedSlices(std::move(solved), count_);
+        done_ == count_ ? MergeSlices(std::move(solved), count_, options_.cluster.objectives)
+                        : MergeSolvedSlices(std::move(solved), count_,
+                                            options_.cluster.objectives);
     if (!merged.ok()) return merged.status();
     ScheduleOutcome out;
     out.result = *std::move(merged);

@@ -8,11 +8,15 @@
 #include <chrono>
 #include <cmath>
 #include <optional>
+#include <span>
 
 #include "absl/status/status.h"
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_format.h"
 #include "core/cardinality.h"
+#include "core/cluster_policy.h"
+#include "core/count_policy.h"
+#include "core/cout_policy.h"
 #include "core/connected_bushy.h"
 #include "core/connected_left_deep.h"
 #include "core/connected_memo.h"
@@ -32,6 +36,23 @@ namespace sliceplan {
 absl::Status CheckDenseMemo(int n, PlanShape shape, int k,
                             size_t bytes_per_slot, uint64_t limit);
 
+// How each policy is built from the search's own query and cardinality.
+template <class Policy>
+Policy MakePolicy(const Query& working, const Cardinality& card, const SearchOptions& options);
+template <>
+inline CoutPolicy MakePolicy(const Query&, const Cardinality& card, const SearchOptions&) {
+  return CoutPolicy(card);
+}
+template <>
+inline CountPolicy MakePolicy(const Query&, const Cardinality& card, const SearchOptions&) {
+  return CountPolicy(card);
+}
+template <>
+inline ClusterPolicy MakePolicy(const Query& working, const Cardinality& card,
+                                const SearchOptions& options) {
+  return ClusterPolicy(working, card, options.cluster, options.memo_limit_bytes);
+}
+
 template <SearchPolicy Policy>
 class SliceSearch {
  public:
@@ -43,14 +64,26 @@ class SliceSearch {
         layout_(MakeLayout(query)),
         working_(layout_ ? query.Permuted(layout_->perm()) : query),
         card_(working_),
-        policy_(card_),
+        policy_(MakePolicy<Policy>(working_, card_, options_)),
         memo_(options.memo_limit_bytes / kConnectedBytesPerSlot) {}
 
-  absl::Status Run(SearchControl& control) {
+  absl::Status Run(const SearchControl& outer) {
     const auto start = std::chrono::steady_clock::now();
+    SearchControl control = outer;
+    constexpr bool kCanExhaust = requires(const Policy& p) { p.exhausted(); };
+    if constexpr (kCanExhaust) {
+      control.set_cancel_check([this] { return policy_.exhausted(); });
+    }
     absl::Status status = layout_ ? RunDense(control) : RunConnected(control);
     stats_.seconds = std::chrono::duration<double>(
                          std::chrono::steady_clock::now() - start).count();
+    if constexpr (kCanExhaust) {
+      if (policy_.exhausted()) {
+        return absl::ResourceExhaustedError(absl::StrCat(
+            "the Pareto sets passed the memo limit of ", options_.memo_limit_bytes,
+            " bytes; raise the limit, use a larger alpha or fewer sample rates and node counts"));
+      }
+    }
     return status;
   }
 
@@ -76,6 +109,21 @@ class SliceSearch {
 
   const Policy& policy() const { return policy_; }
   const SearchStats& stats() const { return stats_; }
+  // The query in the search's own numbering, and the way back to the
+  // caller's ids (empty when the numbering is the caller's).
+  const Query& working() const { return working_; }
+  const Cardinality& cardinality() const { return card_; }
+  std::span<const RelationId> to_original() const {
+    if (!layout_) return {};
+    return layout_->inverse_perm();
+  }
+
+  Slot SlotOf(RelSet set) const {
+    return layout_ ? layout_->SlotOf(set) : *memo_.Find(set);
+  }
+  RelSet SetOf(Slot slot) const {
+    return layout_ ? layout_->SetOf(slot) : memo_.SetOf(slot);
+  }
 
  private:
   static constexpr size_t kConnectedBytesPerSlot =
@@ -85,13 +133,6 @@ class SliceSearch {
   std::optional<DenseLayout> MakeLayout(const Query& query) const {
     if (!options_.cross_products) return std::nullopt;
     return DenseLayout(query.size(), constraints_);
-  }
-
-  Slot SlotOf(RelSet set) const {
-    return layout_ ? layout_->SlotOf(set) : *memo_.Find(set);
-  }
-  RelSet SetOf(Slot slot) const {
-    return layout_ ? layout_->SetOf(slot) : memo_.SetOf(slot);
   }
 
   absl::Status RunDense(SearchControl& control) {

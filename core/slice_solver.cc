@@ -1,6 +1,9 @@
 #include "core/slice_solver.h"
 
+#include <cmath>
+
 #include "core/count_policy.h"
+#include "core/pareto.h"
 #include "core/cout_policy.h"
 #include "core/slice_search.h"
 #include "core/status_macros.h"
@@ -11,8 +14,24 @@ std::string MetricName(CostModelKind model) {
   switch (model) {
     case CostModelKind::kCout:
       return "cout";
+    case CostModelKind::kCluster:
+      return "latency_s";
   }
   return "unknown";
+}
+
+absl::Status ValidateSearchOptions(const SearchOptions& options) {
+  if (options.cost != CostModelKind::kCluster) return absl::OkStatus();
+  RETURN_IF_ERROR(ValidateClusterParams(options.cluster.params));
+  const double alpha = options.cluster.alpha;
+  if (!(std::isfinite(alpha) && alpha >= 1)) {
+    return absl::InvalidArgumentError(
+        absl::StrCat("alpha: must be a finite number >= 1 (1 is exact), got ", alpha));
+  }
+  if (options.cluster.objectives.mask == 0) {
+    return absl::InvalidArgumentError("objectives: empty");
+  }
+  return absl::OkStatus();
 }
 
 absl::Status CheckDenseMemo(int n, PlanShape shape, int k,
@@ -45,6 +64,7 @@ namespace {
 template <SearchPolicy Policy>
 absl::Status Prepare(const Query& query, const SearchOptions& options,
                      SliceSpec slice, std::optional<SliceConstraints>& out) {
+  RETURN_IF_ERROR(ValidateSearchOptions(options));
   ASSIGN_OR_RETURN(SliceConstraints constraints,
                    SliceConstraints::ForSlice(query, options.shape, slice,
                                               options.cross_products));
@@ -57,17 +77,85 @@ absl::Status Prepare(const Query& query, const SearchOptions& options,
   return absl::OkStatus();
 }
 
+// Rebuilds one physical plan of the cluster search from its back-pointers,
+// in the search's numbering.
+class ClusterPlanBuilder {
+ public:
+  explicit ClusterPlanBuilder(const SliceSearch<ClusterPolicy>& search) : search_(search) {}
+
+  Plan Build(RelSet root, const ClusterEntry& e) {
+    Plan plan;
+    Add(plan, root, e);
+    return plan;
+  }
+
+ private:
+  int Add(Plan& plan, RelSet set, const ClusterEntry& e) {
+    const ClusterPolicy& policy = search_.policy();
+    const ClusterParams& params = policy.config().params;
+    PlanNode node;
+    node.relations = set;
+    node.cardinality = search_.cardinality().Of(set);
+    node.metrics = e.costs;
+    node.cost = e.costs.latency_s;
+    if (Size(set) == 1) {
+      node.sample_rate = params.sample_rates[e.left_index];
+    } else {
+      const RelSet left = search_.SetOf(e.left_slot);
+      const RelSet right = set & ~left;
+      const ClusterEntry& le = policy.Plans(e.left_slot)[e.left_index];
+      const ClusterEntry& re = e.right_slot == kNoSlot
+                                   ? policy.LeafEntry(Lowest(right), e.right_index)
+                                   : policy.Plans(e.right_slot)[e.right_index];
+      node.left = Add(plan, left, le);
+      node.right = Add(plan, right, re);
+      node.strategy = e.strategy;
+      node.nodes = params.node_counts[e.nodes_index];
+    }
+    plan.nodes.push_back(node);
+    return static_cast<int>(plan.nodes.size()) - 1;
+  }
+
+  const SliceSearch<ClusterPolicy>& search_;
+};
+
+absl::StatusOr<SliceResult> SolveClusterSlice(const Query& query, const SearchOptions& options,
+                                              SliceSpec slice, SearchControl& control) {
+  std::optional<SliceConstraints> constraints;
+  RETURN_IF_ERROR(Prepare<ClusterPolicy>(query, options, slice, constraints));
+  SliceSearch<ClusterPolicy> search(query, options, *std::move(constraints));
+  RETURN_IF_ERROR(search.Run(control));
+  SliceResult result{slice, std::nullopt, search.stats(), {}, 0};
+  result.largest_set = search.policy().largest_set();
+  const auto root = search.RootSlot();
+  if (!root) return result;
+  const std::vector<ClusterEntry>& entries = search.policy().Plans(*root);
+  std::vector<ClusterCosts> costs;
+  for (const ClusterEntry& e : entries) costs.push_back(e.costs);
+  ClusterPlanBuilder builder(search);
+  for (size_t i : FrontierIndices(costs, options.cluster.objectives)) {
+    Plan plan = builder.Build(search.working().all(), entries[i]);
+    if (!search.to_original().empty()) RenumberPlan(plan, search.to_original());
+    result.frontier.push_back(std::move(plan));
+  }
+  result.plan = result.frontier.front();
+  return result;
+}
+
 }  // namespace
 
 absl::StatusOr<SliceResult> SolveSlice(const Query& query,
                                        const SearchOptions& options,
                                        SliceSpec slice,
                                        SearchControl& control) {
+  if (options.cost == CostModelKind::kCluster) {
+    return SolveClusterSlice(query, options, slice, control);
+  }
   std::optional<SliceConstraints> constraints;
   RETURN_IF_ERROR(Prepare<CoutPolicy>(query, options, slice, constraints));
   SliceSearch<CoutPolicy> search(query, options, *std::move(constraints));
   RETURN_IF_ERROR(search.Run(control));
-  SliceResult result{slice, std::nullopt, search.stats()};
+  SliceResult result{slice, std::nullopt, search.stats(), {}, 0};
   if (search.RootSlot()) {
     result.plan = search.ExtractPlan();
     CostWithCout(*result.plan);

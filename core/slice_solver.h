@@ -10,6 +10,7 @@
 #include <string>
 
 #include "absl/status/statusor.h"
+#include "core/cluster_policy.h"
 #include "core/plan.h"
 #include "core/query.h"
 #include "core/search_control.h"
@@ -18,9 +19,10 @@
 
 namespace sliceplan {
 
-enum class CostModelKind { kCout };
+enum class CostModelKind { kCout, kCluster };
 
-// The metric name of a single-objective model, as the JSON result spells it.
+// The primary metric's name, as the JSON result spells it ("cout";
+// "latency_s" for the cluster model).
 std::string MetricName(CostModelKind model);
 
 inline constexpr uint64_t kDefaultMemoLimitBytes = uint64_t{8} << 30;
@@ -30,12 +32,20 @@ struct SearchOptions {
   bool cross_products = true;
   CostModelKind cost = CostModelKind::kCout;
   uint64_t memo_limit_bytes = kDefaultMemoLimitBytes;  // per slice
+  ClusterSearchConfig cluster;  // for CostModelKind::kCluster
 };
+
+// INVALID_ARGUMENT naming the field for bad cluster parameters or alpha < 1.
+absl::Status ValidateSearchOptions(const SearchOptions& options);
 
 struct SliceResult {
   SliceSpec slice;
   std::optional<Plan> plan;  // none when no plan of the space lies here
   SearchStats stats;
+  // Cluster model: the slice's Pareto set by increasing latency_s (`plan`
+  // is its first plan), and the largest Pareto set of any memo entry.
+  std::vector<Plan> frontier;
+  size_t largest_set = 0;
 };
 
 // The best plan of one slice. Errors: INVALID_ARGUMENT for a bad slice

@@ -1,0 +1,167 @@
+#include "core/cluster_policy.h"
+
+#include <algorithm>
+
+namespace sliceplan {
+namespace {
+
+// Completeness level codes: a level is the multiset of the leaves' rates,
+// keyed by the sum of integer codes -log(rate) * 2^40. Equal multisets get
+// equal keys exactly; distinct rates whose products merely coincide may
+// get distinct keys, which only prunes less (always safe).
+int64_t RateCode(double rate) { return std::llround(-std::log(rate) * 1099511627776.0); }
+
+}  // namespace
+
+ClusterPolicy::ClusterPolicy(const Query& query, const Cardinality& card,
+                             const ClusterSearchConfig& config, uint64_t memo_limit_bytes)
+    : query_(query),
+      card_(card),
+      config_(config),
+      level_alpha_(std::pow(config.alpha, 1.0 / std::max(1, query.size()))),
+      max_entries_(memo_limit_bytes / sizeof(ClusterEntry)) {
+  for (double rate : config_.params.sample_rates) rate_codes_.push_back(RateCode(rate));
+  leaves_.resize(query.size());
+  for (int i = 0; i < query.size(); ++i) {
+    const Relation& rel = query.relations()[i];
+    for (size_t k = 0; k < config_.params.sample_rates.size(); ++k) {
+      const double rate = config_.params.sample_rates[k];
+      ClusterEntry e;
+      e.costs = {0, 0, rate};
+      e.rows = rel.rows * rate;
+      e.level = rate_codes_[k];
+      e.left_index = static_cast<uint32_t>(k);
+      leaves_[i].push_back(e);
+    }
+  }
+}
+
+void ClusterPolicy::Resize(size_t slots) {
+  plans_.resize(slots);
+  card_of_.resize(slots, 0);
+  width_of_.resize(slots, 0);
+  leaf_.resize(slots, 0);
+}
+
+void ClusterPolicy::InitLeaf(Slot s, RelationId r) {
+  plans_[s] = leaves_[r.value];
+  card_of_[s] = query_.relation(r).rows;
+  width_of_[s] = query_.relation(r).row_bytes;
+  leaf_[s] = 1;
+  largest_ = std::max(largest_, plans_[s].size());
+  entries_ += plans_[s].size();
+}
+
+ClusterPolicy::Acc ClusterPolicy::Begin(Slot s, RelSet set) {
+  InitSet(s, set);
+  scratch_.clear();
+  return {&scratch_, card_of_[s], width_of_[s]};
+}
+
+void ClusterPolicy::InitSet(Slot s, RelSet set) {
+  card_of_[s] = card_.Of(set);
+  double width = 0;
+  ForEachMember(set, [&](RelationId r) { width += query_.relation(r).row_bytes; });
+  width_of_[s] = width;
+  leaf_[s] = 0;
+}
+
+void ClusterPolicy::Insert(std::vector<ClusterEntry>& out, const ClusterEntry& e) const {
+  const Objectives o = config_.objectives;
+  for (const ClusterEntry& kept : out) {
+    if (kept.level == e.level && CoversInLevel(kept.costs, e.costs, o, level_alpha_)) return;
+  }
+  for (size_t i = 0; i < out.size();) {  // drop what e beats exactly
+    if (out[i].level == e.level && CoversInLevel(e.costs, out[i].costs, o, 1.0)) {
+      out[i] = out.back();
+      out.pop_back();
+    } else {
+      ++i;
+    }
+  }
+  out.push_back(e);
+}
+
+void ClusterPolicy::Combine(std::vector<ClusterEntry>& out, double card, double width,
+                            const std::vector<ClusterEntry>& left, Slot left_slot,
+                            bool left_leaf, double left_width,
+                            const std::vector<ClusterEntry>& right, Slot right_slot,
+                            bool right_leaf, double right_width) const {
+  (void)width;
+  const ClusterParams& p = config_.params;
+  for (uint32_t i = 0; i < left.size(); ++i) {
+    const ClusterEntry& l = left[i];
+    const StageInput in_l{l.rows, left_width, left_leaf};
+    for (uint32_t j = 0; j < right.size(); ++j) {
+      const ClusterEntry& r = right[j];
+      const StageInput in_r{r.rows, right_width, right_leaf};
+      ClusterEntry e;
+      e.rows = card * (l.costs.completeness * r.costs.completeness);
+      e.level = l.level + r.level;
+      e.left_slot = left_slot;
+      e.left_index = i;
+      e.right_slot = right_slot;
+      e.right_index = j;
+      for (JoinStrategy strategy : kAllStrategies) {
+        for (size_t m = 0; m < p.node_counts.size(); ++m) {
+          const int nodes = p.node_counts[m];
+          const double t = StageSeconds(p, strategy, nodes, in_l, in_r, e.rows);
+          e.costs = JoinCosts(l.costs, r.costs, nodes, t);
+          e.strategy = strategy;
+          e.nodes_index = static_cast<uint16_t>(m);
+          Insert(out, e);
+        }
+      }
+    }
+  }
+}
+
+ClusterPolicy::Acc ClusterPolicy::Offer(Acc a, Slot left, Slot right) const {
+  Combine(*a.out, a.card, a.width, plans_[left], left, leaf_[left], width_of_[left],
+          plans_[right], right, leaf_[right], width_of_[right]);
+  return a;
+}
+
+ClusterPolicy::Acc ClusterPolicy::OfferLeafRight(Acc a, Slot left, RelationId right) const {
+  Combine(*a.out, a.card, a.width, plans_[left], left, leaf_[left], width_of_[left],
+          leaves_[right.value], kNoSlot, true, query_.relation(right).row_bytes);
+  return a;
+}
+
+void ClusterPolicy::Store(Slot s, std::vector<ClusterEntry> plans) {
+  entries_ += plans.size();
+  entries_ -= plans_[s].size();
+  largest_ = std::max(largest_, plans.size());
+  if (entries_ > max_entries_) exhausted_ = true;
+  plans_[s] = std::move(plans);
+  if (exhausted_) plans_[s].clear();  // stop growing; the search is refused
+}
+
+void ClusterPolicy::Finish(Slot s, RelSet, const Acc& a) {
+  Store(s, std::vector<ClusterEntry>(a.out->begin(), a.out->end()));
+}
+
+void ClusterPolicy::Grown(Slot s, size_t before) {
+  entries_ = entries_ + plans_[s].size() - before;
+  largest_ = std::max(largest_, plans_[s].size());
+  if (entries_ > max_entries_) {
+    exhausted_ = true;
+    plans_[s].clear();
+  }
+}
+
+void ClusterPolicy::Relax(Slot s, Slot left, Slot right) {
+  const size_t before = plans_[s].size();
+  Combine(plans_[s], card_of_[s], width_of_[s], plans_[left], left, leaf_[left],
+          width_of_[left], plans_[right], right, leaf_[right], width_of_[right]);
+  Grown(s, before);
+}
+
+void ClusterPolicy::RelaxLeafRight(Slot s, Slot left, RelationId right) {
+  const size_t before = plans_[s].size();
+  Combine(plans_[s], card_of_[s], width_of_[s], plans_[left], left, leaf_[left],
+          width_of_[left], leaves_[right.value], kNoSlot, true, query_.relation(right).row_bytes);
+  Grown(s, before);
+}
+
+}  // namespace sliceplan

@@ -1,0 +1,117 @@
+// The cluster model as a search policy: per memo set a Pareto set of
+// physical plans (a tree choice, a strategy and node count per join, a
+// sample rate per leaf), pruned per completeness level with precision
+// alpha^(1/n) (cost-models.md, "Approximate Pareto sets"). Symmetric: an
+// unordered split is offered once and every strategy, broadcasting either
+// side, is tried, which covers both orders.
+//
+// Memory: one vector of plan entries per memo set, grown per set (never
+// per split; the set being built goes to a reused scratch buffer). A
+// RESOURCE_EXHAUSTED stop when the entries pass the memo limit is
+// reported through exhausted(). Single-threaded.
+#ifndef SLICEPLAN_CORE_CLUSTER_POLICY_H_
+#define SLICEPLAN_CORE_CLUSTER_POLICY_H_
+
+#include <cmath>
+#include <cstdint>
+#include <vector>
+
+#include "core/cardinality.h"
+#include "core/cluster_model.h"
+#include "core/dense_layout.h"
+#include "core/pareto.h"
+#include "core/query.h"
+#include "core/search_policy.h"
+
+namespace sliceplan {
+
+struct ClusterSearchConfig {
+  ClusterParams params;
+  Objectives objectives;
+  double alpha = 1.0;  // >= 1; 1 is exact
+};
+
+// One physical sub-plan in the memo.
+struct ClusterEntry {
+  ClusterCosts costs;
+  double rows = 0;        // card x completeness
+  int64_t level = 0;      // completeness level key (sum of the leaves' rate codes)
+  Slot left_slot = kNoSlot;   // kNoSlot: a leaf
+  uint32_t left_index = 0;    // entry in the left slot, or the leaf's rate index
+  Slot right_slot = kNoSlot;  // kNoSlot with a join: a base-relation right input
+  uint32_t right_index = 0;   // entry in the right slot, or the right leaf's rate index
+  JoinStrategy strategy = JoinStrategy::kShuffle;
+  uint16_t nodes_index = 0;
+};
+
+class ClusterPolicy {
+ public:
+  static constexpr bool kSymmetric = true;
+  static constexpr size_t kBytesPerSlot = 3 * sizeof(double) + sizeof(std::vector<ClusterEntry>);
+
+  struct Acc {
+    std::vector<ClusterEntry>* out;
+    double card;
+    double width;
+  };
+
+  // `query` and `card` must outlive the policy and use the enumerator's
+  // numbering. REQUIRES: ValidateClusterParams(config.params) passed.
+  ClusterPolicy(const Query& query, const Cardinality& card, const ClusterSearchConfig& config,
+                uint64_t memo_limit_bytes);
+
+  void Resize(size_t slots);
+  void InitLeaf(Slot s, RelationId r);
+  Acc Begin(Slot s, RelSet set);
+  Acc Offer(Acc a, Slot left, Slot right) const;
+  Acc OfferLeafRight(Acc a, Slot left, RelationId right) const;
+  void Finish(Slot s, RelSet set, const Acc& a);
+  void InitSet(Slot s, RelSet set);
+  void Relax(Slot s, Slot left, Slot right);
+  void RelaxLeafRight(Slot s, Slot left, RelationId right);
+  bool HasPlan(Slot s) const { return !plans_[s].empty(); }
+
+  const std::vector<ClusterEntry>& Plans(Slot s) const { return plans_[s]; }
+  const ClusterEntry& LeafEntry(RelationId r, uint32_t rate_index) const {
+    return leaves_[r.value][rate_index];
+  }
+  const ClusterSearchConfig& config() const { return config_; }
+  // Largest Pareto set of any memo entry so far.
+  size_t largest_set() const { return largest_; }
+  uint64_t entries() const { return entries_; }
+  bool exhausted() const { return exhausted_; }
+
+ private:
+  // Joins every pair of entries with every strategy and node count into *out.
+  void Combine(std::vector<ClusterEntry>& out, double card, double width,
+               const std::vector<ClusterEntry>& left, Slot left_slot, bool left_leaf,
+               double left_width, const std::vector<ClusterEntry>& right, Slot right_slot,
+               bool right_leaf, double right_width) const;
+  // Adds `e` to `out` unless an entry of its level alpha-covers it.
+  void Insert(std::vector<ClusterEntry>& out, const ClusterEntry& e) const;
+  void Store(Slot s, std::vector<ClusterEntry> plans);
+  // Accounts for slot s having grown in place from `before` entries.
+  void Grown(Slot s, size_t before);
+
+  const Query& query_;
+  const Cardinality& card_;
+  const ClusterSearchConfig config_;
+  const double level_alpha_;
+  const uint64_t max_entries_;
+  std::vector<std::vector<ClusterEntry>> leaves_;  // relation -> one per rate
+  std::vector<int64_t> rate_codes_;
+  std::vector<std::vector<ClusterEntry>> plans_;
+  std::vector<double> card_of_;
+  std::vector<double> width_of_;
+  std::vector<uint8_t> leaf_;
+  mutable std::vector<ClusterEntry> scratch_;
+  size_t largest_ = 0;
+  uint64_t entries_ = 0;
+  bool exhausted_ = false;
+};
+
+static_assert(SearchPolicy<ClusterPolicy>);
+
+}  // namespace sliceplan
+
+#endif  // SLICEPLAN_CORE_CLUSTER_POLICY_H_

@@ -1,0 +1,177 @@
+#include "tests/support/cluster_reference.h"
+
+#include <algorithm>
+#include <map>
+
+#include "tests/support/reference_search.h"
+
+namespace sliceplan::testing {
+namespace {
+
+struct RefPlan {
+  RefCosts c;
+  double rows;
+  bool leaf;
+};
+
+// cost-models.md, "A join stage", transcribed separately from core/.
+double Stage(const ClusterParams& p, int strategy, int m, const RefPlan& l, double wl,
+             const RefPlan& r, double wr, double out_rows) {
+  const double bl = l.rows * wl, br = r.rows * wr;
+  const double scan = ((l.leaf ? bl : 0) + (r.leaf ? br : 0)) / (m * p.scan_bytes_per_s);
+  const double start = p.stage_startup_s + scan;
+  if (strategy == 0) {
+    return start + (bl + br) / (m * p.net_bytes_per_s) +
+           (l.rows + r.rows + out_rows) / (m * p.cpu_rows_per_s);
+  }
+  if (strategy == 1) {  // broadcast right
+    return start + br / p.net_bytes_per_s + (l.rows / m + r.rows + out_rows / m) / p.cpu_rows_per_s;
+  }
+  return start + bl / p.net_bytes_per_s + (r.rows / m + l.rows + out_rows / m) / p.cpu_rows_per_s;
+}
+
+double Width(const Query& q, RelSet s) {
+  double w = 0;
+  for (int i = 0; i < q.size(); ++i) {
+    if ((s >> i) & 1) w += q.relations()[i].row_bytes;
+  }
+  return w;
+}
+
+// Completeness values are products of rates in tree order: equal levels
+// differ in the last places, so they compare with a 1e-12 tolerance.
+bool Dominates(const RefCosts& a, const RefCosts& b) {
+  return a.latency <= b.latency && a.node_seconds <= b.node_seconds &&
+         a.completeness >= b.completeness * (1 - 1e-12);
+}
+
+class AllPlans {
+ public:
+  AllPlans(const Query& q, const ClusterParams& p, bool left_deep, bool prune_across)
+      : q_(q), p_(p), left_deep_(left_deep), prune_(prune_across) {}
+
+  const std::vector<RefPlan>& Of(RelSet s) {
+    auto it = memo_.find(s);
+    if (it != memo_.end()) return it->second;
+    std::vector<RefPlan> out;
+    if ((s & (s - 1)) == 0) {
+      const int i = __builtin_ctzll(s);
+      for (double f : p_.sample_rates) {
+        out.push_back({{0, 0, f}, q_.relations()[i].rows * f, true});
+      }
+    } else {
+      const double card = RefCard(q_, s);
+      const RelSet first = s & (~s + 1);
+      for (RelSet l = (s - 1) & s; l != 0; l = (l - 1) & s) {
+        if ((l & first) == 0) continue;
+        const RelSet r = s & ~l;
+        const bool l_leaf = (l & (l - 1)) == 0, r_leaf = (r & (r - 1)) == 0;
+        if (left_deep_ && !l_leaf && !r_leaf) continue;
+        const std::vector<RefPlan>& lp = Of(l);
+        const std::vector<RefPlan>& rp = Of(r);
+        const double wl = Width(q_, l), wr = Width(q_, r);
+        for (const RefPlan& a : lp) {
+          for (const RefPlan& b : rp) {
+            const double comp = a.c.completeness * b.c.completeness;
+            const double rows = card * comp;
+            for (int strategy = 0; strategy < 3; ++strategy) {
+              for (int m : p_.node_counts) {
+                const double t = Stage(p_, strategy, m, a, wl, b, wr, rows);
+                out.push_back({{std::max(a.c.latency, b.c.latency) + t,
+                                a.c.node_seconds + b.c.node_seconds + m * t, comp},
+                               rows, false});
+              }
+            }
+          }
+        }
+      }
+    }
+    // The shortcut prunes every set, leaves included: a full read (lat 0,
+    // node-seconds 0, completeness 1) then beats every sampled read.
+    if (prune_) out = Prune(out);
+    return memo_.emplace(s, std::move(out)).first->second;
+  }
+
+ private:
+  static std::vector<RefPlan> Prune(std::vector<RefPlan> in) {
+    std::sort(in.begin(), in.end(), [](const RefPlan& a, const RefPlan& b) {
+      if (a.c.latency != b.c.latency) return a.c.latency < b.c.latency;
+      if (a.c.node_seconds != b.c.node_seconds) return a.c.node_seconds < b.c.node_seconds;
+      return a.c.completeness > b.c.completeness;
+    });
+    std::vector<RefPlan> out;
+    for (const RefPlan& p : in) {
+      bool beaten = false;
+      for (const RefPlan& k : out) beaten = beaten || Dominates(k.c, p.c);
+      if (!beaten) out.push_back(p);
+    }
+    return out;
+  }
+
+  const Query& q_;
+  const ClusterParams& p_;
+  bool left_deep_;
+  bool prune_;
+  std::map<RelSet, std::vector<RefPlan>> memo_;
+};
+
+}  // namespace
+
+std::vector<RefCosts> RefAllClusterPlans(const Query& query, const ClusterParams& params,
+                                         bool left_deep) {
+  AllPlans all(query, params, left_deep, false);
+  std::vector<RefCosts> out;
+  for (const RefPlan& p : all.Of(query.all())) out.push_back(p.c);
+  return out;
+}
+
+std::vector<RefCosts> RefFrontier(const std::vector<RefCosts>& plans) {
+  // Sorted so that whatever dominates a plan comes before it; each plan is
+  // then checked against the frontier kept so far.
+  std::vector<RefCosts> sorted = plans;
+  std::sort(sorted.begin(), sorted.end(), [](const RefCosts& a, const RefCosts& b) {
+    if (a.latency != b.latency) return a.latency < b.latency;
+    if (a.node_seconds != b.node_seconds) return a.node_seconds < b.node_seconds;
+    return a.completeness > b.completeness;
+  });
+  std::vector<RefCosts> out;
+  for (const RefCosts& p : sorted) {
+    bool beaten = false;
+    for (const RefCosts& k : out) beaten = beaten || Dominates(k, p);
+    if (!beaten) out.push_back(p);
+  }
+  return out;
+}
+
+std::vector<RefCosts> RefFrontierPruningAcrossLevels(const Query& query,
+                                                     const ClusterParams& params) {
+  AllPlans all(query, params, false, true);
+  std::vector<RefCosts> out;
+  for (const RefPlan& p : all.Of(query.all())) out.push_back(p.c);
+  return RefFrontier(out);
+}
+
+RefCosts RefCostsOf(const Query& query, const ClusterParams& params, const Plan& plan) {
+  std::vector<RefPlan> at(plan.nodes.size());
+  for (size_t i = 0; i < plan.nodes.size(); ++i) {
+    const PlanNode& n = plan.nodes[i];
+    if (n.is_leaf()) {
+      const int r = __builtin_ctzll(n.relations);
+      at[i] = {{0, 0, n.sample_rate}, query.relations()[r].rows * n.sample_rate, true};
+      continue;
+    }
+    const RefPlan& a = at[n.left];
+    const RefPlan& b = at[n.right];
+    const RelSet l = plan.nodes[n.left].relations, r = plan.nodes[n.right].relations;
+    const double comp = a.c.completeness * b.c.completeness;
+    const double rows = RefCard(query, n.relations) * comp;
+    const int strategy = static_cast<int>(n.strategy);
+    const double t = Stage(params, strategy, n.nodes, a, Width(query, l), b, Width(query, r), rows);
+    at[i] = {{std::max(a.c.latency, b.c.latency) + t,
+              a.c.node_seconds + b.c.node_seconds + n.nodes * t, comp},
+             rows, false};
+  }
+  return at.back().c;
+}
+
+}  // namespace sliceplan::testing

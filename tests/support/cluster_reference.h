@@ -1,0 +1,38 @@
+// An independent reference for the cluster model: every tree x every
+// (strategy, node count) per join x every sample rate per leaf, costed
+// with its own transcription of cost-models.md. Meant for n <= 5.
+#ifndef SLICEPLAN_TESTS_SUPPORT_CLUSTER_REFERENCE_H_
+#define SLICEPLAN_TESTS_SUPPORT_CLUSTER_REFERENCE_H_
+
+#include <vector>
+
+#include "core/cluster_model.h"
+#include "core/plan.h"
+#include "core/query.h"
+
+namespace sliceplan::testing {
+
+struct RefCosts {
+  double latency = 0, node_seconds = 0, completeness = 1;
+};
+
+// Cost vectors of every physical plan over all relations; `left_deep`
+// keeps the trees whose every join has a base relation as an input.
+std::vector<RefCosts> RefAllClusterPlans(const Query& query, const ClusterParams& params,
+                                         bool left_deep);
+
+// The exact frontier of `plans` (latency, node_seconds min; completeness
+// max), one plan per distinct cost vector.
+std::vector<RefCosts> RefFrontier(const std::vector<RefCosts>& plans);
+
+// The same frontier from a DP that prunes sub-plans across completeness
+// levels on all three metrics: the shortcut cost-models.md warns against.
+std::vector<RefCosts> RefFrontierPruningAcrossLevels(const Query& query,
+                                                     const ClusterParams& params);
+
+// An engine plan's costs recomputed from its tree and physical choices.
+RefCosts RefCostsOf(const Query& query, const ClusterParams& params, const Plan& plan);
+
+}  // namespace sliceplan::testing
+
+#endif  // SLICEPLAN_TESTS_SUPPORT_CLUSTER_REFERENCE_H_
