@@ -1,9 +1,13 @@
 #include "cli/cli_config.h"
 
 #include <charconv>
+#include <cmath>
 #include <cstdlib>
 
 #include "absl/strings/str_cat.h"
+#include "absl/strings/str_split.h"
+#include "core/pareto.h"
+#include "core/plan_choice.h"
 #include "core/status_macros.h"
 
 namespace sliceplan::cli {
@@ -26,6 +30,13 @@ absl::StatusOr<uint64_t> ParseUnsigned(const std::string& flag,
   return out;
 }
 
+absl::StatusOr<double> ParseDouble(const std::string& flag, const std::string& value) {
+  char* end = nullptr;
+  const double d = std::strtod(value.c_str(), &end);
+  if (value.empty() || *end != '\0' || !std::isfinite(d)) return BadFlag(flag, value, "a number");
+  return d;
+}
+
 absl::Status SetFlag(OptimizeConfig& config, const std::string& flag,
                      const std::string& value) {
   if (flag == "shape") {
@@ -38,10 +49,44 @@ absl::Status SetFlag(OptimizeConfig& config, const std::string& flag,
     else return BadFlag(flag, value, "true or false");
   } else if (flag == "cost") {
     if (value == "cout") config.search.cost = CostModelKind::kCout;
-    else if (value == "cluster") {
-      return absl::UnimplementedError(
-          "--cost=cluster: the cluster cost model is not in this build yet");
-    } else return BadFlag(flag, value, "cout or cluster");
+    else if (value == "cluster") config.search.cost = CostModelKind::kCluster;
+    else return BadFlag(flag, value, "cout or cluster");
+  } else if (flag == "objectives") {
+    auto o = ParseObjectives(value);
+    if (!o.ok()) return o.status();
+    config.search.cluster.objectives = *o;
+  } else if (flag == "alpha") {
+    ASSIGN_OR_RETURN(config.search.cluster.alpha, ParseDouble(flag, value));
+  } else if (flag == "node-counts") {
+    std::vector<int> counts;
+    for (absl::string_view part : absl::StrSplit(value, ',')) {
+      ASSIGN_OR_RETURN(const uint64_t m, ParseUnsigned(flag, std::string(part)));
+      counts.push_back(static_cast<int>(std::min<uint64_t>(m, 1u << 30)));
+    }
+    config.search.cluster.params.node_counts = counts;
+  } else if (flag == "sample-rates") {
+    std::vector<double> rates;
+    for (absl::string_view part : absl::StrSplit(value, ',')) {
+      ASSIGN_OR_RETURN(const double f, ParseDouble(flag, std::string(part)));
+      rates.push_back(f);
+    }
+    config.search.cluster.params.sample_rates = rates;
+  } else if (flag == "net-bytes-per-s") {
+    ASSIGN_OR_RETURN(config.search.cluster.params.net_bytes_per_s, ParseDouble(flag, value));
+  } else if (flag == "cpu-rows-per-s") {
+    ASSIGN_OR_RETURN(config.search.cluster.params.cpu_rows_per_s, ParseDouble(flag, value));
+  } else if (flag == "scan-bytes-per-s") {
+    ASSIGN_OR_RETURN(config.search.cluster.params.scan_bytes_per_s, ParseDouble(flag, value));
+  } else if (flag == "stage-startup-s") {
+    ASSIGN_OR_RETURN(config.search.cluster.params.stage_startup_s, ParseDouble(flag, value));
+  } else if (flag == "bound") {
+    ASSIGN_OR_RETURN(const Bound b, ParseBound(value));
+    config.search.cluster.choice.bounds.push_back(b);
+  } else if (flag == "prefer") {
+    ASSIGN_OR_RETURN(config.search.cluster.choice.prefer, ParsePreference(value));
+  } else if (flag == "plot") {
+    if (value.empty()) return BadFlag(flag, value, "a file name");
+    config.plot_path = value;
   } else if (flag == "slices") {
     ASSIGN_OR_RETURN(const uint64_t p, ParseUnsigned(flag, value));
     if (p == 0 || (p & (p - 1)) != 0 || p > (uint64_t{1} << 31)) {
@@ -160,6 +205,17 @@ space on workers and merging their optima.
   --coordinator=HOST:PORT        solve on a running coordinator
   --format=text|json|dot         output (default text)
   --memo-limit=BYTES             per-slice memo limit (default 8GiB)
+
+The cluster model (--cost=cluster) returns the Pareto set of plans:
+  --objectives=LIST              of latency_s,node_seconds,completeness (all)
+  --alpha=A                      precision, >= 1 (1: exact frontier)
+  --node-counts=4,16,64          node counts a join stage may rent
+  --sample-rates=1               leaf sample rates (e.g. 1,0.1,0.01)
+  --net-bytes-per-s=1.25e9 --cpu-rows-per-s=5e7 --scan-bytes-per-s=5e8
+  --stage-startup-s=0.5          per-node throughputs and stage start-up
+  --bound=METRIC<=V|>=V          repeatable, e.g. --bound=completeness>=0.99
+  --prefer=METRIC|weights:M=W,.. which frontier plan to name (latency_s)
+  --plot=FILE.svg                latency against node-seconds, one point a plan
   --deadline-seconds=S           give up after S seconds
   --partial-on-deadline=true     at the deadline, print the best plan so far
                                  (marked not proven optimal) instead of failing

@@ -25,6 +25,7 @@ struct OptimizeConfig {
   double deadline_seconds = 0;       // 0: none
   bool partial_on_deadline = false;  // best plan so far instead of an error
   bool quiet = false;                // no progress bar
+  std::string plot_path;             // --plot=FILE.svg (cluster model)
 };
 
 // `sliceplan workers --coordinator=HOST:PORT`.

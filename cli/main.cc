@@ -1,12 +1,15 @@
 // sliceplan: the command-line front end. Parses flags into a config, runs
 // the embedded coordinator or calls a remote one, and prints the result.
+#include <fstream>
 #include <iostream>
 #include <string>
 #include <thread>
 #include <vector>
 
 #include "absl/strings/str_format.h"
+#include "absl/strings/str_cat.h"
 #include "cli/cli_config.h"
+#include "cli/frontier_plot.h"
 #include "cli/progress_bar.h"
 #include "cli/render.h"
 #include "cli/rpc_client.h"
@@ -67,6 +70,10 @@ int Optimize(const std::vector<std::string>& args) {
   const int cores = static_cast<int>(std::max(1u, std::thread::hardware_concurrency()));
   auto config = ParseOptimizeArgs(args, cores);
   if (!config.ok()) return Fail(config.status());
+  if (auto s = ValidateSearchOptions(config->search); !s.ok()) return Fail(s);
+  if (!config->plot_path.empty() && config->search.cost != CostModelKind::kCluster) {
+    return Fail(absl::InvalidArgumentError("--plot: needs --cost=cluster (a frontier to plot)"));
+  }
   auto query = ReadQueryFile(config->query_path);
   if (!query.ok()) return Fail(query.status());
   absl::StatusOr<ScheduleOutcome> outcome;
@@ -75,6 +82,13 @@ int Optimize(const std::vector<std::string>& args) {
     outcome = Solve(*config, *query, bar);
   }
   if (!outcome.ok()) return Fail(outcome.status());
+  if (!config->plot_path.empty()) {
+    std::ofstream plot(config->plot_path);
+    plot << FrontierSvg(outcome->result.frontier, *query, outcome->result.chosen);
+    if (!plot) {
+      return Fail(absl::UnavailableError(absl::StrCat("--plot: cannot write ", config->plot_path)));
+    }
+  }
   RunInfo info{&*query, config->search, config->workers, !config->slices};
   if (config->coordinator) info.workers = static_cast<int>(outcome->workers_used);
   switch (config->format) {

@@ -5,6 +5,7 @@
 
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_format.h"
+#include "core/pareto.h"
 
 namespace sliceplan::cli {
 namespace {
@@ -16,6 +17,16 @@ const char* ShapeName(PlanShape shape) {
 std::string NodeLabel(const PlanNode& node, const Query& query) {
   if (node.is_leaf()) return query.relation(Lowest(node.relations)).name;
   return "join";
+}
+
+// The cluster model's physical choice at a node.
+std::string PhysicalLabel(const PlanNode& node, const Query& query) {
+  if (node.is_leaf()) {
+    return node.sample_rate < 1
+               ? absl::StrFormat("%s (sample %g)", NodeLabel(node, query), node.sample_rate)
+               : NodeLabel(node, query);
+  }
+  return absl::StrFormat("%s join, %d nodes", StrategyName(node.strategy), node.nodes);
 }
 
 struct TextLine {
@@ -33,15 +44,32 @@ void CollectLines(const Plan& plan, int i, int depth, const Query& query,
 }
 
 // One line per node, children indented under their join, figures aligned.
-void AppendTextTree(const Plan& plan, const Query& query, std::string& out) {
+void AppendTextTree(const Plan& plan, const Query& query, std::string& out,
+                    bool cluster = false) {
   std::vector<TextLine> lines;
   CollectLines(plan, static_cast<int>(plan.nodes.size()) - 1, 0, query, lines);
+  if (cluster) {
+    for (TextLine& l : lines) {
+      l.head = l.head.substr(0, l.head.find_first_not_of(' ')) + PhysicalLabel(*l.node, query);
+    }
+  }
   size_t width = 0;
   for (const TextLine& l : lines) width = std::max(width, l.head.size());
-  absl::StrAppendFormat(&out, "%-*s  %12s  %12s\n", width, "node", "card", "cost");
+  if (!cluster) {
+    absl::StrAppendFormat(&out, "%-*s  %12s  %12s\n", width, "node", "card", "cost");
+    for (const TextLine& l : lines) {
+      absl::StrAppendFormat(&out, "%-*s  %12.4g  %12.4g\n", width, l.head,
+                            l.node->cardinality, l.node->cost);
+    }
+    return;
+  }
+  absl::StrAppendFormat(&out, "%-*s  %12s  %10s  %12s  %12s\n", width, "node", "rows",
+                        "latency_s", "node_seconds", "completeness");
   for (const TextLine& l : lines) {
-    absl::StrAppendFormat(&out, "%-*s  %12.4g  %12.4g\n", width, l.head,
-                          l.node->cardinality, l.node->cost);
+    const ClusterCosts& m = l.node->metrics;
+    absl::StrAppendFormat(&out, "%-*s  %12.4g  %10.4g  %12.4g  %12.4g\n", width, l.head,
+                          l.node->cardinality * m.completeness, m.latency_s, m.node_seconds,
+                          m.completeness);
   }
 }
 
@@ -94,7 +122,30 @@ SliceBalance Balance(const OptimizeResult& result) {
 std::string RenderText(const ScheduleOutcome& outcome, const RunInfo& info) {
   const OptimizeResult& result = outcome.result;
   const Query& query = *info.query;
-  std::string out = absl::StrFormat(
+  std::string out;
+  if (info.search.cost == CostModelKind::kCluster) {
+    absl::StrAppendFormat(&out, "Pareto frontier of %s plans of %d relations (cross products %s), "
+                          "objectives %s, alpha %g: %d plans\n\n",
+                          ShapeName(info.search.shape), query.size(),
+                          info.search.cross_products ? "allowed" : "excluded",
+                          ObjectivesString(info.search.cluster.objectives),
+                          info.search.cluster.alpha, static_cast<int>(result.frontier.size()));
+    absl::StrAppendFormat(&out, "  %4s  %12s  %14s  %12s  %s\n", "plan", "latency_s",
+                          "node_seconds", "completeness", "tree");
+    for (size_t i = 0; i < result.frontier.size(); ++i) {
+      const ClusterCosts& m = result.frontier[i].root().metrics;
+      absl::StrAppendFormat(&out, "%s %4d  %12.4g  %14.4g  %12.4g  %s\n",
+                            result.chosen == i ? "*" : " ", static_cast<int>(i), m.latency_s,
+                            m.node_seconds, m.completeness, TreeString(result.frontier[i], query));
+    }
+    if (result.chosen) {
+      absl::StrAppendFormat(&out, "\nchosen: plan %d (* above)\n\n", static_cast<int>(*result.chosen));
+      AppendTextTree(result.plan, query, out, true);
+    } else {
+      out += "\nno plan of the frontier meets the bounds\n";
+    }
+  } else {
+  absl::StrAppendFormat(&out,
       "best %s plan of %d relations (cross products %s): %s %.6g\n\n",
       ShapeName(info.search.shape), query.size(),
       info.search.cross_products ? "allowed" : "excluded",
@@ -107,6 +158,7 @@ std::string RenderText(const ScheduleOutcome& outcome, const RunInfo& info) {
   }
   out += TreeString(result.plan, query) + "\n\n";
   AppendTextTree(result.plan, query, out);
+  }
   const SliceBalance b = Balance(result);
   absl::StrAppendFormat(
       &out, "\nslices: %u (%s), workers: %d, wall time %.3f s\n",
@@ -134,13 +186,26 @@ std::string RenderText(const ScheduleOutcome& outcome, const RunInfo& info) {
 std::string RenderJson(const ScheduleOutcome& outcome, const RunInfo& info) {
   const OptimizeResult& result = outcome.result;
   const Query& query = *info.query;
-  std::string out = "{\n  \"plans\": [\n    {";
-  absl::StrAppend(&out, "\"tree\": ", JsonString(TreeString(result.plan, query)),
-                  ", \"costs\": {", JsonString(MetricName(info.search.cost)),
-                  ": ", JsonNumber(result.plan.root().cost),
-                  "}, \"cardinality\": ",
-                  JsonNumber(result.plan.root().cardinality), ", \"slice\": ",
-                  result.best_slice, "}\n  ],\n");
+  std::string out = "{\n  \"plans\": [\n";
+  if (info.search.cost == CostModelKind::kCluster) {
+    for (size_t i = 0; i < result.frontier.size(); ++i) {
+      const ClusterCosts& m = result.frontier[i].root().metrics;
+      absl::StrAppend(&out, "    {\"tree\": ", JsonString(TreeString(result.frontier[i], query)),
+                      ", \"costs\": {\"latency_s\": ", JsonNumber(m.latency_s),
+                      ", \"node_seconds\": ", JsonNumber(m.node_seconds),
+                      ", \"completeness\": ", JsonNumber(m.completeness), "}}",
+                      i + 1 < result.frontier.size() ? ",\n" : "\n");
+    }
+    absl::StrAppend(&out, "  ],\n  \"chosen\": ",
+                    result.chosen ? absl::StrCat(*result.chosen) : std::string("null"), ",\n");
+  } else {
+    absl::StrAppend(&out, "    {\"tree\": ", JsonString(TreeString(result.plan, query)),
+                    ", \"costs\": {", JsonString(MetricName(info.search.cost)),
+                    ": ", JsonNumber(result.plan.root().cost),
+                    "}, \"cardinality\": ",
+                    JsonNumber(result.plan.root().cardinality), ", \"slice\": ",
+                    result.best_slice, "}\n  ],\n");
+  }
   absl::StrAppend(&out, "  \"shape\": \"", ShapeName(info.search.shape),
                   "\",\n  \"cross_products\": ",
                   info.search.cross_products ? "true" : "false",

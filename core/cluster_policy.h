@@ -20,6 +20,7 @@
 #include "core/cluster_model.h"
 #include "core/dense_layout.h"
 #include "core/pareto.h"
+#include "core/plan_choice.h"
 #include "core/query.h"
 #include "core/search_policy.h"
 
@@ -29,6 +30,7 @@ struct ClusterSearchConfig {
   ClusterParams params;
   Objectives objectives;
   double alpha = 1.0;  // >= 1; 1 is exact
+  ChoiceRule choice;   // which frontier plan the answer names
 };
 
 // One physical sub-plan in the memo.

@@ -67,6 +67,14 @@ absl::StatusOr<OptimizeResult> Merge(std::vector<SliceResult> slices,
 
 }  // namespace
 
+void ApplyChoice(OptimizeResult& result, const ChoiceRule& rule) {
+  if (result.frontier.empty()) return;
+  std::vector<ClusterCosts> costs;
+  for (const Plan& p : result.frontier) costs.push_back(p.root().metrics);
+  result.chosen = ChoosePlan(costs, rule);
+  result.plan = result.frontier[result.chosen.value_or(0)];
+}
+
 absl::StatusOr<OptimizeResult> MergeSlices(std::vector<SliceResult> slices,
                                            uint32_t slice_count, Objectives objectives) {
   return Merge(std::move(slices), slice_count, true, objectives);

@@ -11,6 +11,7 @@
 
 #include "absl/status/statusor.h"
 #include "core/pareto.h"
+#include "core/plan_choice.h"
 #include "core/slice_solver.h"
 
 namespace sliceplan {
@@ -18,6 +19,9 @@ namespace sliceplan {
 struct OptimizeResult {
   Plan plan;                   // the single best plan, or the frontier's first
   std::vector<Plan> frontier;  // cluster model: the merged Pareto set
+  // Cluster model: the frontier plan the choice rule names (`plan` is that
+  // plan); none when no plan meets the bounds (`plan` is the first).
+  std::optional<size_t> chosen;
   uint32_t slice_count = 1;
   uint32_t best_slice = 0;               // the slice the plan came from
   std::vector<SliceResult> slices;       // by slice index; plans dropped
@@ -38,6 +42,9 @@ absl::StatusOr<OptimizeResult> MergeSlices(std::vector<SliceResult> slices,
 // As MergeSlices over the slices that were solved (a deadline passed before
 // the rest): any subset of distinct slices, at least one of them with a
 // plan. The result is the best plan found so far, not proven optimal.
+// Names the frontier plan `rule` picks (OptimizeResult::chosen).
+void ApplyChoice(OptimizeResult& result, const ChoiceRule& rule);
+
 absl::StatusOr<OptimizeResult> MergeSolvedSlices(std::vector<SliceResult> slices,
                                                  uint32_t slice_count,
                                                  Objectives objectives = {});

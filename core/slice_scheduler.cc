@@ -264,6 +264,7 @@ class Run {
                         : MergeSolvedSlices(std::move(solved), count_,
                                             options_.cluster.objectives);
     if (!merged.ok()) return merged.status();
+    ApplyChoice(*merged, options_.cluster.choice);
     ScheduleOutcome out;
     out.result = *std::move(merged);
     out.result.wall_seconds = Elapsed();

@@ -54,6 +54,37 @@ check unknown_flag 2 "--speed: unknown flag" optimize "$examples/port_calls_smal
 check unknown_command 2 "unknown command" reorder "$examples/port_calls_small.json"
 check memo_limit 2 "over the limit" optimize "$examples/port_logistics.json" --slices=1 --memo-limit=1MiB
 
+# The cluster model's parameters.
+small=$examples/port_calls_small.json
+check alpha_low 2 "alpha: must be a finite number >= 1" optimize "$small" --cost=cluster --alpha=0.9
+check objectives_empty 2 "objectives: unknown objective \"\"" optimize "$small" --cost=cluster --objectives=
+check objectives_unknown 2 "objectives: unknown objective \"speed\"" optimize "$small" --cost=cluster --objectives=latency_s,speed
+check rate_high 2 "sample_rates[1]: must lie in (0, 1], got 1.5" optimize "$small" --cost=cluster --sample-rates=1,1.5
+check rate_zero 2 "sample_rates[0]: must lie in (0, 1], got 0" optimize "$small" --cost=cluster --sample-rates=0
+check nodes_zero 2 "node_counts[1]: must be a whole number in 1..1000000, got 0" optimize "$small" --cost=cluster --node-counts=4,0
+check bad_bound 2 "bound: \"latency<=3\" names no metric" optimize "$small" --cost=cluster --bound=latency\<=3
+check plot_needs_cluster 2 "--plot: needs --cost=cluster" optimize "$small" --plot="$tmp/x.svg"
+
+# A cluster run: the frontier in JSON by increasing latency, the chosen plan
+# meets its bound, the plot is an SVG with one tooltip per plan.
+check cluster_ok 0 "" optimize "$small" --cost=cluster --sample-rates=1,0.1 --format=json \
+  --bound=completeness\>=0.5 --prefer=node_seconds --plot="$tmp/frontier.svg" --slices=2
+if python3 - "$tmp/out" "$tmp/frontier.svg" <<'PY'
+import json, sys
+doc = json.load(open(sys.argv[1]))
+plans = doc["plans"]
+assert len(plans) >= 2, plans
+lat = [p["costs"]["latency_s"] for p in plans]
+assert lat == sorted(lat), lat
+chosen = plans[doc["chosen"]]["costs"]
+assert chosen["completeness"] >= 0.5, chosen
+ok = [p["costs"] for p in plans if p["costs"]["completeness"] >= 0.5]
+assert chosen["node_seconds"] == min(c["node_seconds"] for c in ok), (chosen, ok)
+svg = open(sys.argv[2]).read()
+assert svg.startswith("<svg") and svg.count("<title>") == len(plans), svg[:200]
+PY
+then passed=$((passed + 1)); else failed=$((failed + 1)); echo "FAIL cluster_json"; fi
+
 # A good run: JSON with the fields of interfaces.md, one plan, P slices.
 check json_ok 0 "" optimize "$examples/port_calls_small.json" --format=json --slices=4 --workers=2
 if python3 - "$tmp/out" <<'PY'

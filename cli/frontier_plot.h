@@ -1,0 +1,23 @@
+// The frontier as an SVG scatter plot, with no external plotting program:
+// latency_s against node_seconds, one point per plan, coloured by
+// completeness, log axes when a range spans more than a factor of 20
+// (common practice), the chosen plan ringed, and every point's tooltip
+// (<title>) giving its plan tree and three figures.
+#ifndef SLICEPLAN_CLI_FRONTIER_PLOT_H_
+#define SLICEPLAN_CLI_FRONTIER_PLOT_H_
+
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "core/plan.h"
+#include "core/query.h"
+
+namespace sliceplan::cli {
+
+std::string FrontierSvg(const std::vector<Plan>& frontier, const Query& query,
+                        std::optional<size_t> chosen);
+
+}  // namespace sliceplan::cli
+
+#endif  // SLICEPLAN_CLI_FRONTIER_PLOT_H_

@@ -1,0 +1,108 @@
+#include "core/plan_choice.h"
+
+#include <cmath>
+#include <cstdlib>
+
+#include "absl/strings/str_cat.h"
+#include "absl/strings/str_split.h"
+
+namespace sliceplan {
+namespace {
+
+std::optional<Metric> MetricNamed(absl::string_view name) {
+  if (name == "latency_s") return Metric::kLatency;
+  if (name == "node_seconds") return Metric::kNodeSeconds;
+  if (name == "completeness") return Metric::kCompleteness;
+  return std::nullopt;
+}
+
+std::optional<double> Number(absl::string_view text) {
+  const std::string s(text);
+  char* end = nullptr;
+  const double v = std::strtod(s.c_str(), &end);
+  if (s.empty() || *end != '\0' || !std::isfinite(v)) return std::nullopt;
+  return v;
+}
+
+}  // namespace
+
+std::string MetricLabel(Metric m) {
+  switch (m) {
+    case Metric::kLatency: return "latency_s";
+    case Metric::kNodeSeconds: return "node_seconds";
+    case Metric::kCompleteness: return "completeness";
+  }
+  return "?";
+}
+
+double MetricValue(const ClusterCosts& c, Metric m) {
+  switch (m) {
+    case Metric::kLatency: return c.latency_s;
+    case Metric::kNodeSeconds: return c.node_seconds;
+    case Metric::kCompleteness: return c.completeness;
+  }
+  return 0;
+}
+
+absl::StatusOr<Bound> ParseBound(const std::string& text) {
+  for (const char* op : {"<=", ">="}) {
+    const size_t at = text.find(op);
+    if (at == std::string::npos) continue;
+    const auto metric = MetricNamed(absl::string_view(text).substr(0, at));
+    const auto value = Number(absl::string_view(text).substr(at + 2));
+    if (!metric) {
+      return absl::InvalidArgumentError(absl::StrCat(
+          "bound: \"", text, "\" names no metric (latency_s, node_seconds, completeness)"));
+    }
+    if (!value) return absl::InvalidArgumentError(absl::StrCat("bound: \"", text, "\" has no number"));
+    return Bound{*metric, op[0] == '<', *value};
+  }
+  return absl::InvalidArgumentError(
+      absl::StrCat("bound: \"", text, "\" is not METRIC<=VALUE or METRIC>=VALUE"));
+}
+
+absl::StatusOr<Preference> ParsePreference(const std::string& text) {
+  if (const auto m = MetricNamed(text)) {
+    Preference p{0, 0, 0};
+    if (*m == Metric::kLatency) p.latency = 1;
+    if (*m == Metric::kNodeSeconds) p.node_seconds = 1;
+    if (*m == Metric::kCompleteness) p.incompleteness = 1;
+    return p;
+  }
+  const std::string prefix = "weights:";
+  if (text.rfind(prefix, 0) != 0) {
+    return absl::InvalidArgumentError(absl::StrCat(
+        "prefer: \"", text, "\" is neither a metric nor weights:METRIC=W,..."));
+  }
+  Preference p{0, 0, 0};
+  for (absl::string_view part : absl::StrSplit(text.substr(prefix.size()), ',')) {
+    const std::vector<absl::string_view> kv = absl::StrSplit(part, '=');
+    const auto metric = kv.size() == 2 ? MetricNamed(kv[0]) : std::nullopt;
+    const auto weight = kv.size() == 2 ? Number(kv[1]) : std::nullopt;
+    if (!metric || !weight || *weight < 0) {
+      return absl::InvalidArgumentError(
+          absl::StrCat("prefer: \"", part, "\" is not METRIC=WEIGHT with a weight >= 0"));
+    }
+    if (*metric == Metric::kLatency) p.latency = *weight;
+    if (*metric == Metric::kNodeSeconds) p.node_seconds = *weight;
+    if (*metric == Metric::kCompleteness) p.incompleteness = *weight;
+  }
+  return p;
+}
+
+std::optional<size_t> ChoosePlan(const std::vector<ClusterCosts>& frontier, const ChoiceRule& rule) {
+  std::optional<size_t> best;
+  for (size_t i = 0; i < frontier.size(); ++i) {
+    bool ok = true;
+    for (const Bound& b : rule.bounds) {
+      const double v = MetricValue(frontier[i], b.metric);
+      ok = ok && (b.at_most ? v <= b.value : v >= b.value);
+    }
+    if (ok && (!best || rule.prefer.Score(frontier[i]) < rule.prefer.Score(frontier[*best]))) {
+      best = i;
+    }
+  }
+  return best;
+}
+
+}  // namespace sliceplan
