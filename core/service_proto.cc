@@ -1,6 +1,10 @@
 #include "core/service_proto.h"
 
 #include "absl/strings/str_cat.h"
+#include "absl/strings/str_join.h"
+#include "absl/strings/str_split.h"
+#include "core/pareto.h"
+#include "core/plan_choice.h"
 #include "core/status_macros.h"
 
 namespace sliceplan {
@@ -18,17 +22,60 @@ absl::StatusOr<SearchOptions> SearchOptionsFromProto(const v1::SearchOptions& m)
   switch (m.cost()) {
     case v1::COST_MODEL_UNSPECIFIED:
     case v1::COST_MODEL_COUT: out.cost = CostModelKind::kCout; break;
-    case v1::COST_MODEL_CLUSTER:
-      return absl::UnimplementedError(
-          "options.cost: the cluster cost model is not in this build yet");
+    case v1::COST_MODEL_CLUSTER: out.cost = CostModelKind::kCluster; break;
     default:
       return absl::InvalidArgumentError(
           absl::StrCat("options.cost: unknown cost model ", m.cost()));
   }
   out.cross_products = !m.has_cross_products() || m.cross_products().value();
   if (m.memo_limit_bytes() != 0) out.memo_limit_bytes = m.memo_limit_bytes();
+  ClusterParams& p = out.cluster.params;
+  if (m.cluster().node_counts_size() > 0) {
+    p.node_counts.assign(m.cluster().node_counts().begin(), m.cluster().node_counts().end());
+  }
+  if (m.cluster().sample_rates_size() > 0) {
+    p.sample_rates.assign(m.cluster().sample_rates().begin(), m.cluster().sample_rates().end());
+  }
+  if (m.cluster().has_net_bytes_per_s()) p.net_bytes_per_s = m.cluster().net_bytes_per_s().value();
+  if (m.cluster().has_cpu_rows_per_s()) p.cpu_rows_per_s = m.cluster().cpu_rows_per_s().value();
+  if (m.cluster().has_scan_bytes_per_s()) {
+    p.scan_bytes_per_s = m.cluster().scan_bytes_per_s().value();
+  }
+  if (m.cluster().has_stage_startup_s()) p.stage_startup_s = m.cluster().stage_startup_s().value();
+  if (m.objectives_size() > 0) {
+    auto o = ParseObjectives(absl::StrJoin(m.objectives(), ","));
+    if (!o.ok()) return absl::InvalidArgumentError(absl::StrCat("options.", o.status().message()));
+    out.cluster.objectives = *o;
+  }
+  if (m.alpha() != 0) out.cluster.alpha = m.alpha();
+  for (const std::string& b : m.bounds()) {
+    auto bound = ParseBound(b);
+    if (!bound.ok()) return absl::InvalidArgumentError(absl::StrCat("options.", bound.status().message()));
+    out.cluster.choice.bounds.push_back(*bound);
+  }
+  if (!m.prefer().empty()) {
+    auto prefer = ParsePreference(m.prefer());
+    if (!prefer.ok()) return absl::InvalidArgumentError(absl::StrCat("options.", prefer.status().message()));
+    out.cluster.choice.prefer = *prefer;
+  }
+  if (auto s = ValidateSearchOptions(out); !s.ok()) {
+    return absl::InvalidArgumentError(absl::StrCat("options.cluster.", s.message()));
+  }
   return out;
 }
+
+namespace {
+
+std::string BoundText(const Bound& b) {
+  return absl::StrCat(MetricLabel(b.metric), b.at_most ? "<=" : ">=", b.value);
+}
+
+std::string PreferText(const Preference& p) {
+  return absl::StrCat("weights:latency_s=", p.latency, ",node_seconds=", p.node_seconds,
+                      ",completeness=", p.incompleteness);
+}
+
+}  // namespace
 
 v1::SearchOptions SearchOptionsToProto(const SearchOptions& options) {
   v1::SearchOptions m;
@@ -37,6 +84,23 @@ v1::SearchOptions SearchOptionsToProto(const SearchOptions& options) {
   m.set_cost(v1::COST_MODEL_COUT);
   m.mutable_cross_products()->set_value(options.cross_products);
   m.set_memo_limit_bytes(options.memo_limit_bytes);
+  if (options.cost == CostModelKind::kCluster) {
+    m.set_cost(v1::COST_MODEL_CLUSTER);
+    const ClusterParams& p = options.cluster.params;
+    v1::ClusterParams* c = m.mutable_cluster();
+    for (int n : p.node_counts) c->add_node_counts(static_cast<uint32_t>(n));
+    for (double f : p.sample_rates) c->add_sample_rates(f);
+    c->mutable_net_bytes_per_s()->set_value(p.net_bytes_per_s);
+    c->mutable_cpu_rows_per_s()->set_value(p.cpu_rows_per_s);
+    c->mutable_scan_bytes_per_s()->set_value(p.scan_bytes_per_s);
+    c->mutable_stage_startup_s()->set_value(p.stage_startup_s);
+    for (absl::string_view o : absl::StrSplit(ObjectivesString(options.cluster.objectives), ',')) {
+      m.add_objectives(std::string(o));
+    }
+    m.set_alpha(options.cluster.alpha);
+    for (const Bound& b : options.cluster.choice.bounds) m.add_bounds(BoundText(b));
+    m.set_prefer(PreferText(options.cluster.choice.prefer));
+  }
   return m;
 }
 
@@ -44,16 +108,23 @@ v1::Plan PlanToProto(const Plan& plan, CostModelKind model) {
   v1::Plan m;
   for (const PlanNode& node : plan.nodes) {
     v1::PlanNode* out = m.add_nodes();
+    const bool cluster = model == CostModelKind::kCluster;
     if (node.is_leaf()) {
       out->set_relation(Lowest(node.relations).value);
       out->set_operator_("scan");
+      if (cluster) out->set_sample_rate(node.sample_rate);
     } else {
       out->mutable_join()->set_left(static_cast<uint32_t>(node.left));
       out->mutable_join()->set_right(static_cast<uint32_t>(node.right));
-      out->set_operator_("join");
+      out->set_operator_(cluster ? StrategyName(node.strategy) : "join");
+      if (cluster) out->set_nodes(static_cast<uint32_t>(node.nodes));
     }
     out->set_cardinality(node.cardinality);
     (*out->mutable_costs())[MetricName(model)] = node.cost;
+    if (cluster) {
+      (*out->mutable_costs())["node_seconds"] = node.metrics.node_seconds;
+      (*out->mutable_costs())["completeness"] = node.metrics.completeness;
+    }
   }
   return m;
 }
@@ -91,12 +162,33 @@ absl::StatusOr<Plan> PlanFromProto(const v1::Plan& m, const Query& query,
       return absl::InvalidArgumentError(absl::StrCat(at, ": neither relation nor join"));
     }
     node.cardinality = in.cardinality();
+    if (model == CostModelKind::kCluster) {
+      const auto ns = in.costs().find("node_seconds");
+      const auto comp = in.costs().find("completeness");
+      if (ns == in.costs().end() || comp == in.costs().end()) {
+        return absl::InvalidArgumentError(
+            absl::StrCat(at, ".costs: needs node_seconds and completeness"));
+      }
+      node.metrics.node_seconds = ns->second;
+      node.metrics.completeness = comp->second;
+      node.sample_rate = in.kind_case() == v1::PlanNode::kRelation ? in.sample_rate() : 1;
+      node.nodes = static_cast<int>(in.nodes());
+      bool known = in.kind_case() == v1::PlanNode::kRelation;
+      for (JoinStrategy st : kAllStrategies) {
+        if (in.operator_() == StrategyName(st)) node.strategy = st, known = true;
+      }
+      if (!known) {
+        return absl::InvalidArgumentError(
+            absl::StrCat(at, ".operator: unknown strategy \"", in.operator_(), "\""));
+      }
+    }
     const auto cost = in.costs().find(MetricName(model));
     if (cost == in.costs().end()) {
       return absl::InvalidArgumentError(
           absl::StrCat(at, ".costs: no \"", MetricName(model), "\" entry"));
     }
     node.cost = cost->second;
+    if (model == CostModelKind::kCluster) node.metrics.latency_s = cost->second;
     plan.nodes.push_back(node);
   }
   if (plan.nodes.empty() || plan.root().relations != query.all() ||
@@ -125,6 +217,8 @@ v1::SolveSliceResponse SliceResultToProto(const SliceResult& r, CostModelKind mo
   v1::SolveSliceResponse m;
   if (r.plan) *m.mutable_plan() = PlanToProto(*r.plan, model);
   *m.mutable_stats() = SliceStatsToProto(r);
+  for (const Plan& p : r.frontier) *m.add_frontier() = PlanToProto(p, model);
+  m.set_largest_set(r.largest_set);
   return m;
 }
 
@@ -137,6 +231,11 @@ absl::StatusOr<SliceResult> SliceResultFromProto(const v1::SolveSliceResponse& m
     ASSIGN_OR_RETURN(Plan plan, PlanFromProto(m.plan(), query, model));
     r.plan = std::move(plan);
   }
+  for (const v1::Plan& p : m.frontier()) {
+    ASSIGN_OR_RETURN(Plan plan, PlanFromProto(p, query, model));
+    r.frontier.push_back(std::move(plan));
+  }
+  r.largest_set = m.largest_set();
   return r;
 }
 
@@ -157,6 +256,8 @@ v1::OptimizeResponse OutcomeToProto(const ScheduleOutcome& outcome, CostModelKin
   m.set_retries(outcome.retries);
   m.set_hedges(outcome.hedges);
   m.set_workers_used(outcome.workers_used);
+  for (const Plan& p : res.frontier) *m.add_frontier() = PlanToProto(p, model);
+  m.set_chosen(res.chosen ? static_cast<int32_t>(*res.chosen) : -1);
   return m;
 }
 
@@ -178,6 +279,13 @@ absl::StatusOr<ScheduleOutcome> OutcomeFromProto(const v1::OptimizeResponse& m,
   out.retries = m.retries();
   out.hedges = m.hedges();
   out.workers_used = m.workers_used();
+  for (const v1::Plan& p : m.frontier()) {
+    ASSIGN_OR_RETURN(Plan plan, PlanFromProto(p, query, model));
+    out.result.frontier.push_back(std::move(plan));
+  }
+  if (m.chosen() >= 0 && static_cast<size_t>(m.chosen()) < out.result.frontier.size()) {
+    out.result.chosen = static_cast<size_t>(m.chosen());
+  }
   return out;
 }
 

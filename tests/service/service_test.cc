@@ -96,6 +96,37 @@ TEST(ServiceTest, RpcAnswerEqualsEmbeddedAnswer) {
   EXPECT_EQ(checked, 40);  // 4 graphs x 2 shapes x P = 1..16
 }
 
+TEST(ServiceTest, ClusterFrontierOverRpcEqualsEmbedded) {
+  Cluster c = StartCluster(2);
+  ASSERT_TRUE(c.coordinator);
+  const Query q = testing::MakeQuery(GraphShape::kRandom, 7, 3);
+  SearchOptions options;
+  options.cost = CostModelKind::kCluster;
+  options.cluster.params.sample_rates = {1.0, 0.1};
+  options.cluster.params.node_counts = {4, 16};
+  options.cluster.choice.bounds.push_back({Metric::kCompleteness, false, 0.5});
+  options.cluster.choice.prefer = {0, 1, 0};
+  for (uint32_t p : {1u, 4u}) {
+    auto remote = Remote(c.coordinator->address(), q, options, p);
+    ASSERT_TRUE(remote.ok()) << remote.status();
+    auto local = OptimizeEmbedded(q, options, p, 2);
+    ASSERT_TRUE(local.ok());
+    ASSERT_EQ(remote->result.frontier.size(), local->frontier.size());
+    ASSERT_FALSE(local->frontier.empty());
+    for (size_t i = 0; i < local->frontier.size(); ++i) {
+      const ClusterCosts& a = remote->result.frontier[i].root().metrics;
+      const ClusterCosts& b = local->frontier[i].root().metrics;
+      EXPECT_EQ(a.latency_s, b.latency_s);
+      EXPECT_EQ(a.node_seconds, b.node_seconds);
+      EXPECT_EQ(a.completeness, b.completeness);
+      EXPECT_EQ(TreeString(remote->result.frontier[i], q), TreeString(local->frontier[i], q));
+    }
+    EXPECT_EQ(remote->result.chosen, local->chosen);
+    ASSERT_TRUE(local->chosen.has_value());
+    EXPECT_GE(local->plan.root().metrics.completeness, 0.5);
+  }
+}
+
 TEST(ServiceTest, KilledWorkerMidRunStillGivesTheOptimum) {
   Cluster c = StartCluster(3);
   ASSERT_TRUE(c.coordinator);
