@@ -33,11 +33,14 @@ struct Axis {
   }
   std::vector<double> Ticks() const {
     std::vector<double> t;
-    if (log) {
-      for (double d = std::pow(10, std::floor(std::log10(lo))); d <= hi * 1.0001; d *= 10) {
-        if (d >= lo * 0.9999) t.push_back(d);
+    if (log) {  // decades, or 1-2-5 steps when fewer than three decades show
+      for (const double step : {1.0, 2.0, 5.0}) {
+        for (double d = std::pow(10, std::floor(std::log10(lo))); d <= hi * 1.0001; d *= 10) {
+          if (d * step >= lo * 0.9999 && d * step <= hi * 1.0001) t.push_back(d * step);
+        }
+        if (step == 1.0 && t.size() >= 3) return t;
       }
-      if (t.size() < 2) t = {lo, hi};
+      std::sort(t.begin(), t.end());
       return t;
     }
     const double raw = (hi - lo) / 5;
@@ -135,9 +138,11 @@ std::string FrontierSvg(const std::vector<Plan>& frontier, const Query& query,
     absl::StrAppendFormat(&s,
                           "<circle cx=\"%.1f\" cy=\"%.1f\" r=\"11\" fill=\"none\" stroke=\"#d62728\" "
                           "stroke-width=\"2.5\"/><text x=\"%.1f\" y=\"%.1f\" fill=\"#d62728\" "
-                          "font-weight=\"bold\">chosen (plan %d)</text>\n",
-                          px(m.latency_s), py(m.node_seconds), px(m.latency_s) + 14,
-                          py(m.node_seconds) - 10, static_cast<int>(*chosen));
+                          "font-weight=\"bold\" text-anchor=\"%s\">chosen (plan %d)</text>\n",
+                          px(m.latency_s), py(m.node_seconds),
+                          px(m.latency_s) + (x.Norm(m.latency_s) > 0.7 ? -14 : 14),
+                          py(m.node_seconds) - 12, x.Norm(m.latency_s) > 0.7 ? "end" : "start",
+                          static_cast<int>(*chosen));
   }
   // Completeness legend.
   const double lx = kLeft + pw + 40, ly = kTop + 20;

@@ -66,20 +66,37 @@ void ClusterPolicy::InitSet(Slot s, RelSet set) {
   leaf_[s] = 0;
 }
 
+// A set's entries are kept sorted by (level, latency); within a level they
+// form a staircase (latency rising, node-seconds falling), because no entry
+// dominates another exactly. So the entry that could alpha-cover a
+// candidate is the last one of its level with latency <= alpha * its
+// latency, and the entries a candidate dominates are one run right after
+// its own position: O(log F) per candidate instead of a scan.
 void ClusterPolicy::Insert(std::vector<ClusterEntry>& out, const ClusterEntry& e) const {
   const Objectives o = config_.objectives;
-  for (const ClusterEntry& kept : out) {
-    if (kept.level == e.level && CoversInLevel(kept.costs, e.costs, o, level_alpha_)) return;
-  }
-  for (size_t i = 0; i < out.size();) {  // drop what e beats exactly
-    if (out[i].level == e.level && CoversInLevel(e.costs, out[i].costs, o, 1.0)) {
-      out[i] = out.back();
-      out.pop_back();
-    } else {
-      ++i;
-    }
-  }
-  out.push_back(e);
+  const auto lat = [&](const ClusterEntry& x) {
+    return o.has(Objectives::kLatency) ? x.costs.latency_s : 0.0;
+  };
+  const auto ns = [&](const ClusterEntry& x) {
+    return o.has(Objectives::kNodeSeconds) ? x.costs.node_seconds : 0.0;
+  };
+  const auto level_begin = std::lower_bound(out.begin(), out.end(), e.level,
+      [](const ClusterEntry& x, int64_t level) { return x.level < level; });
+  const auto level_end = std::upper_bound(level_begin, out.end(), e.level,
+      [](int64_t level, const ClusterEntry& x) { return level < x.level; });
+  const double lat_e = lat(e), ns_e = ns(e);
+  // Last entry of the level with latency <= alpha * lat_e: the least
+  // node-seconds among those that could cover e.
+  auto cover = std::upper_bound(level_begin, level_end, level_alpha_ * lat_e,
+      [&](double v, const ClusterEntry& x) { return v < lat(x); });
+  if (cover != level_begin && ns(*(cover - 1)) <= level_alpha_ * ns_e) return;
+  // Entries e dominates exactly: latency >= lat_e and node-seconds >= ns_e.
+  const auto first = std::lower_bound(level_begin, level_end, lat_e,
+      [&](const ClusterEntry& x, double v) { return lat(x) < v; });
+  auto last = first;
+  while (last != level_end && ns(*last) >= ns_e) ++last;
+  const auto at = out.erase(first, last);
+  out.insert(at, e);
 }
 
 void ClusterPolicy::Combine(std::vector<ClusterEntry>& out, double card, double width,

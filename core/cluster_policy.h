@@ -89,7 +89,8 @@ class ClusterPolicy {
                const std::vector<ClusterEntry>& left, Slot left_slot, bool left_leaf,
                double left_width, const std::vector<ClusterEntry>& right, Slot right_slot,
                bool right_leaf, double right_width) const;
-  // Adds `e` to `out` unless an entry of its level alpha-covers it.
+  // Adds `e` to `out` (sorted by level, then latency) unless an entry of
+  // its level alpha-covers it, dropping the entries it dominates exactly.
   void Insert(std::vector<ClusterEntry>& out, const ClusterEntry& e) const;
   void Store(Slot s, std::vector<ClusterEntry> plans);
   // Accounts for slot s having grown in place from `before` entries.

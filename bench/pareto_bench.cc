@@ -1,0 +1,83 @@
+// Many-objective search (cluster model, three objectives, sample rates
+// {1, 0.1, 0.01}, node counts {4, 16, 64}, bushy with cross products): time,
+// frontier size and the largest Pareto set of any memo entry for alpha =
+// 1, 1.05, 1.2; and the slowest slice over the unsliced time for P = 4, 16.
+// Not a test; see docs/benchmarks.md.
+//
+//   build/bench/pareto_bench [n ...]     (default 8 10 12 14)
+#include <algorithm>
+#include <chrono>
+#include <cstdio>
+#include <cstdlib>
+#include <vector>
+
+#include "core/slice_solver.h"
+#include "tests/support/test_queries.h"
+
+namespace sliceplan {
+namespace {
+
+SearchOptions Options(double alpha) {
+  SearchOptions o;
+  o.cost = CostModelKind::kCluster;
+  o.cluster.params.sample_rates = {1.0, 0.1, 0.01};
+  o.cluster.alpha = alpha;
+  return o;
+}
+
+struct Run {
+  double seconds = 0;
+  size_t frontier = 0;
+  size_t largest = 0;
+  bool ok = false;
+};
+
+// Each run gets at most a minute; slower ones are reported as such.
+constexpr int kBudgetSeconds = 60;
+
+Run Solve(const Query& q, const SearchOptions& o, SliceSpec slice) {
+  SearchControl control(nullptr, std::chrono::steady_clock::now() +
+                                     std::chrono::seconds(kBudgetSeconds));
+  auto r = SolveSlice(q, o, slice, control);
+  if (!r.ok()) {
+    std::printf("%3d %6.2f  over %d s (%s)\n", q.size(), o.cluster.alpha, kBudgetSeconds,
+                std::string(r.status().message()).c_str());
+    return {};
+  }
+  return {r->stats.seconds, r->frontier.size(), r->largest_set, true};
+}
+
+}  // namespace
+}  // namespace sliceplan
+
+int main(int argc, char** argv) {
+  using namespace sliceplan;
+  std::vector<int> sizes;
+  for (int i = 1; i < argc; ++i) sizes.push_back(std::atoi(argv[i]));
+  if (sizes.empty()) sizes = {8, 10, 12, 14};
+  std::printf("%3s %6s %10s %9s %12s %16s %16s\n", "n", "alpha", "seconds", "frontier",
+              "largest_set", "P=4 slowest/all", "P=16 slowest/all");
+  for (int n : sizes) {
+    const Query q = testing::MakeQuery(testing::GraphShape::kRandom, n, 1);
+    for (double alpha : {1.0, 1.05, 1.2}) {
+      const SearchOptions o = Options(alpha);
+      const Run whole = Solve(q, o, {0, 1});
+      if (!whole.ok) continue;
+      double ratio[2] = {0, 0};
+      int k = 0;
+      for (uint32_t p : {4u, 16u}) {
+        if (std::countr_zero(p) > MaxSliceBits(n, PlanShape::kBushy)) {
+          ratio[k++] = -1;
+          continue;
+        }
+        double slowest = 0;
+        for (uint32_t i = 0; i < p; ++i) slowest = std::max(slowest, Solve(q, o, {i, p}).seconds);
+        ratio[k++] = slowest / whole.seconds;
+      }
+      std::printf("%3d %6.2f %10.3f %9zu %12zu %16.3f %16.3f\n", n, alpha, whole.seconds,
+                  whole.frontier, whole.largest, ratio[0], ratio[1]);
+      std::fflush(stdout);
+    }
+  }
+  return 0;
+}
