@@ -37,28 +37,41 @@ ClusterPolicy::ClusterPolicy(const Query& query, const Cardinality& card,
 }
 
 void ClusterPolicy::Resize(size_t slots) {
-  plans_.resize(slots);
+  first_.resize(slots, 0);
+  size_.resize(slots, 0);
   card_of_.resize(slots, 0);
   width_of_.resize(slots, 0);
   leaf_.resize(slots, 0);
+  if (scattered_) per_set_.resize(slots);
 }
 
 void ClusterPolicy::InitLeaf(Slot s, RelationId r) {
-  plans_[s] = leaves_[r.value];
   card_of_[s] = query_.relation(r).rows;
   width_of_[s] = query_.relation(r).row_bytes;
   leaf_[s] = 1;
-  largest_ = std::max(largest_, plans_[s].size());
-  entries_ += plans_[s].size();
+  if (scattered_) {
+    per_set_[s] = leaves_[r.value];
+    Grown(s, 0);
+  } else {
+    Store(s, leaves_[r.value]);
+  }
 }
 
 ClusterPolicy::Acc ClusterPolicy::Begin(Slot s, RelSet set) {
-  InitSet(s, set);
+  SetInfo(s, set);
   scratch_.clear();
-  return {&scratch_, card_of_[s], width_of_[s]};
+  return {&scratch_, card_of_[s]};
 }
 
 void ClusterPolicy::InitSet(Slot s, RelSet set) {
+  if (!scattered_) {
+    scattered_ = true;
+    per_set_.resize(card_of_.size());
+  }
+  SetInfo(s, set);
+}
+
+void ClusterPolicy::SetInfo(Slot s, RelSet set) {
   card_of_[s] = card_.Of(set);
   double width = 0;
   ForEachMember(set, [&](RelationId r) { width += query_.relation(r).row_bytes; });
@@ -99,12 +112,10 @@ void ClusterPolicy::Insert(std::vector<ClusterEntry>& out, const ClusterEntry& e
   out.insert(at, e);
 }
 
-void ClusterPolicy::Combine(std::vector<ClusterEntry>& out, double card, double width,
-                            const std::vector<ClusterEntry>& left, Slot left_slot,
-                            bool left_leaf, double left_width,
-                            const std::vector<ClusterEntry>& right, Slot right_slot,
-                            bool right_leaf, double right_width) const {
-  (void)width;
+void ClusterPolicy::Combine(std::vector<ClusterEntry>& out, double card,
+                            std::span<const ClusterEntry> left, Slot left_slot, bool left_leaf,
+                            double left_width, std::span<const ClusterEntry> right,
+                            Slot right_slot, bool right_leaf, double right_width) const {
   const ClusterParams& p = config_.params;
   for (uint32_t i = 0; i < left.size(); ++i) {
     const ClusterEntry& l = left[i];
@@ -134,50 +145,48 @@ void ClusterPolicy::Combine(std::vector<ClusterEntry>& out, double card, double 
 }
 
 ClusterPolicy::Acc ClusterPolicy::Offer(Acc a, Slot left, Slot right) const {
-  Combine(*a.out, a.card, a.width, plans_[left], left, leaf_[left], width_of_[left],
-          plans_[right], right, leaf_[right], width_of_[right]);
+  Combine(*a.out, a.card, Plans(left), left, leaf_[left], width_of_[left], Plans(right), right,
+          leaf_[right], width_of_[right]);
   return a;
 }
 
 ClusterPolicy::Acc ClusterPolicy::OfferLeafRight(Acc a, Slot left, RelationId right) const {
-  Combine(*a.out, a.card, a.width, plans_[left], left, leaf_[left], width_of_[left],
-          leaves_[right.value], kNoSlot, true, query_.relation(right).row_bytes);
+  Combine(*a.out, a.card, Plans(left), left, leaf_[left], width_of_[left], leaves_[right.value],
+          kNoSlot, true, query_.relation(right).row_bytes);
   return a;
 }
 
-void ClusterPolicy::Store(Slot s, std::vector<ClusterEntry> plans) {
-  entries_ += plans.size();
-  entries_ -= plans_[s].size();
+void ClusterPolicy::Store(Slot s, std::span<const ClusterEntry> plans) {
   largest_ = std::max(largest_, plans.size());
+  entries_ += plans.size();
   if (entries_ > max_entries_) exhausted_ = true;
-  plans_[s] = std::move(plans);
-  if (exhausted_) plans_[s].clear();  // stop growing; the search is refused
+  first_[s] = arena_.size();
+  size_[s] = exhausted_ ? 0 : static_cast<uint32_t>(plans.size());
+  if (!exhausted_) arena_.insert(arena_.end(), plans.begin(), plans.end());
 }
 
-void ClusterPolicy::Finish(Slot s, RelSet, const Acc& a) {
-  Store(s, std::vector<ClusterEntry>(a.out->begin(), a.out->end()));
-}
+void ClusterPolicy::Finish(Slot s, RelSet, const Acc& a) { Store(s, *a.out); }
 
 void ClusterPolicy::Grown(Slot s, size_t before) {
-  entries_ = entries_ + plans_[s].size() - before;
-  largest_ = std::max(largest_, plans_[s].size());
+  entries_ = entries_ + per_set_[s].size() - before;
+  largest_ = std::max(largest_, per_set_[s].size());
   if (entries_ > max_entries_) {
     exhausted_ = true;
-    plans_[s].clear();
+    per_set_[s].clear();
   }
 }
 
 void ClusterPolicy::Relax(Slot s, Slot left, Slot right) {
-  const size_t before = plans_[s].size();
-  Combine(plans_[s], card_of_[s], width_of_[s], plans_[left], left, leaf_[left],
-          width_of_[left], plans_[right], right, leaf_[right], width_of_[right]);
+  const size_t before = per_set_[s].size();
+  Combine(per_set_[s], card_of_[s], Plans(left), left, leaf_[left], width_of_[left], Plans(right),
+          right, leaf_[right], width_of_[right]);
   Grown(s, before);
 }
 
 void ClusterPolicy::RelaxLeafRight(Slot s, Slot left, RelationId right) {
-  const size_t before = plans_[s].size();
-  Combine(plans_[s], card_of_[s], width_of_[s], plans_[left], left, leaf_[left],
-          width_of_[left], leaves_[right.value], kNoSlot, true, query_.relation(right).row_bytes);
+  const size_t before = per_set_[s].size();
+  Combine(per_set_[s], card_of_[s], Plans(left), left, leaf_[left], width_of_[left],
+          leaves_[right.value], kNoSlot, true, query_.relation(right).row_bytes);
   Grown(s, before);
 }
 

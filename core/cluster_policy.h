@@ -5,15 +5,18 @@
 // unordered split is offered once and every strategy, broadcasting either
 // side, is tried, which covers both orders.
 //
-// Memory: one vector of plan entries per memo set, grown per set (never
-// per split; the set being built goes to a reused scratch buffer). A
-// RESOURCE_EXHAUSTED stop when the entries pass the memo limit is
-// reported through exhausted(). Single-threaded.
+// Memory: in dense enumeration the sets' plan entries live in one arena,
+// appended once per finished set (the set being built goes to a reused
+// scratch buffer, so nothing is allocated per split); without cross
+// products, where a set's splits arrive interleaved, each set keeps its
+// own vector. Passing the memo limit stops the search, reported through
+// exhausted(). Single-threaded.
 #ifndef SLICEPLAN_CORE_CLUSTER_POLICY_H_
 #define SLICEPLAN_CORE_CLUSTER_POLICY_H_
 
 #include <cmath>
 #include <cstdint>
+#include <span>
 #include <vector>
 
 #include "core/cardinality.h"
@@ -49,12 +52,13 @@ struct ClusterEntry {
 class ClusterPolicy {
  public:
   static constexpr bool kSymmetric = true;
-  static constexpr size_t kBytesPerSlot = 3 * sizeof(double) + sizeof(std::vector<ClusterEntry>);
+  // Per slot: card, width, arena start and count, leaf flag (entries are
+  // counted against the limit as they are made).
+  static constexpr size_t kBytesPerSlot = 3 * sizeof(double) + sizeof(uint32_t) + 1;
 
   struct Acc {
     std::vector<ClusterEntry>* out;
     double card;
-    double width;
   };
 
   // `query` and `card` must outlive the policy and use the enumerator's
@@ -71,9 +75,13 @@ class ClusterPolicy {
   void InitSet(Slot s, RelSet set);
   void Relax(Slot s, Slot left, Slot right);
   void RelaxLeafRight(Slot s, Slot left, RelationId right);
-  bool HasPlan(Slot s) const { return !plans_[s].empty(); }
+  bool HasPlan(Slot s) const { return !Plans(s).empty(); }
 
-  const std::vector<ClusterEntry>& Plans(Slot s) const { return plans_[s]; }
+  // The Pareto set of a finished slot. Valid until the next Finish.
+  std::span<const ClusterEntry> Plans(Slot s) const {
+    if (scattered_) return per_set_[s];
+    return {arena_.data() + first_[s], size_[s]};
+  }
   const ClusterEntry& LeafEntry(RelationId r, uint32_t rate_index) const {
     return leaves_[r.value][rate_index];
   }
@@ -84,15 +92,17 @@ class ClusterPolicy {
   bool exhausted() const { return exhausted_; }
 
  private:
-  // Joins every pair of entries with every strategy and node count into *out.
-  void Combine(std::vector<ClusterEntry>& out, double card, double width,
-               const std::vector<ClusterEntry>& left, Slot left_slot, bool left_leaf,
-               double left_width, const std::vector<ClusterEntry>& right, Slot right_slot,
-               bool right_leaf, double right_width) const;
+  // Joins every pair of entries with every strategy and node count into out.
+  void Combine(std::vector<ClusterEntry>& out, double card, std::span<const ClusterEntry> left,
+               Slot left_slot, bool left_leaf, double left_width,
+               std::span<const ClusterEntry> right, Slot right_slot, bool right_leaf,
+               double right_width) const;
+  void SetInfo(Slot s, RelSet set);
   // Adds `e` to `out` (sorted by level, then latency) unless an entry of
   // its level alpha-covers it, dropping the entries it dominates exactly.
   void Insert(std::vector<ClusterEntry>& out, const ClusterEntry& e) const;
-  void Store(Slot s, std::vector<ClusterEntry> plans);
+  // Appends a finished set's entries to the arena.
+  void Store(Slot s, std::span<const ClusterEntry> plans);
   // Accounts for slot s having grown in place from `before` entries.
   void Grown(Slot s, size_t before);
 
@@ -103,7 +113,11 @@ class ClusterPolicy {
   const uint64_t max_entries_;
   std::vector<std::vector<ClusterEntry>> leaves_;  // relation -> one per rate
   std::vector<int64_t> rate_codes_;
-  std::vector<std::vector<ClusterEntry>> plans_;
+  bool scattered_ = false;                         // InitSet/Relax in use
+  std::vector<ClusterEntry> arena_;                // dense: all sets' entries
+  std::vector<uint64_t> first_;                    // dense: slot -> arena start
+  std::vector<uint32_t> size_;                     // dense: slot -> entry count
+  std::vector<std::vector<ClusterEntry>> per_set_; // scattered: slot -> entries
   std::vector<double> card_of_;
   std::vector<double> width_of_;
   std::vector<uint8_t> leaf_;

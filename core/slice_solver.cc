@@ -129,7 +129,7 @@ absl::StatusOr<SliceResult> SolveClusterSlice(const Query& query, const SearchOp
   result.largest_set = search.policy().largest_set();
   const auto root = search.RootSlot();
   if (!root) return result;
-  const std::vector<ClusterEntry>& entries = search.policy().Plans(*root);
+  const std::span<const ClusterEntry> entries = search.policy().Plans(*root);
   std::vector<ClusterCosts> costs;
   for (const ClusterEntry& e : entries) costs.push_back(e.costs);
   ClusterPlanBuilder builder(search);

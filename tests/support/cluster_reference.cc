@@ -47,8 +47,9 @@ bool Dominates(const RefCosts& a, const RefCosts& b) {
 
 class AllPlans {
  public:
-  AllPlans(const Query& q, const ClusterParams& p, bool left_deep, bool prune_across)
-      : q_(q), p_(p), left_deep_(left_deep), prune_(prune_across) {}
+  AllPlans(const Query& q, const ClusterParams& p, bool left_deep, bool prune_across,
+           bool connected = false)
+      : q_(q), p_(p), left_deep_(left_deep), prune_(prune_across), connected_(connected) {}
 
   const std::vector<RefPlan>& Of(RelSet s) {
     auto it = memo_.find(s);
@@ -67,6 +68,7 @@ class AllPlans {
         const RelSet r = s & ~l;
         const bool l_leaf = (l & (l - 1)) == 0, r_leaf = (r & (r - 1)) == 0;
         if (left_deep_ && !l_leaf && !r_leaf) continue;
+        if (connected_ && !RefJoinable(q_, l, r)) continue;
         const std::vector<RefPlan>& lp = Of(l);
         const std::vector<RefPlan>& rp = Of(r);
         const double wl = Width(q_, l), wr = Width(q_, r);
@@ -112,14 +114,15 @@ class AllPlans {
   const ClusterParams& p_;
   bool left_deep_;
   bool prune_;
+  bool connected_;
   std::map<RelSet, std::vector<RefPlan>> memo_;
 };
 
 }  // namespace
 
 std::vector<RefCosts> RefAllClusterPlans(const Query& query, const ClusterParams& params,
-                                         bool left_deep) {
-  AllPlans all(query, params, left_deep, false);
+                                         bool left_deep, bool connected_only) {
+  AllPlans all(query, params, left_deep, false, connected_only);
   std::vector<RefCosts> out;
   for (const RefPlan& p : all.Of(query.all())) out.push_back(p.c);
   return out;

@@ -19,7 +19,7 @@ struct RefCosts {
 // Cost vectors of every physical plan over all relations; `left_deep`
 // keeps the trees whose every join has a base relation as an input.
 std::vector<RefCosts> RefAllClusterPlans(const Query& query, const ClusterParams& params,
-                                         bool left_deep);
+                                         bool left_deep, bool connected_only = false);
 
 // The exact frontier of `plans` (latency, node_seconds min; completeness
 // max), one plan per distinct cost vector.
