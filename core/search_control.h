@@ -23,6 +23,7 @@ class SearchControl {
  public:
   using Clock = std::chrono::steady_clock;
   static constexpr int64_t kTickWork = 1 << 16;
+  static constexpr int kTickCalls = 64;
 
   // Never stops.
   SearchControl() = default;
@@ -36,11 +37,14 @@ class SearchControl {
     checks_.push_back(std::move(cancelled));
   }
 
-  // Returns true when the search must stop; status() then says why.
+  // Returns true when the search must stop; status() then says why. Also
+  // checks every kTickCalls calls, for searches whose splits are costly
+  // (Pareto sets) and so few.
   bool Tick(uint64_t work) {
     budget_ -= static_cast<int64_t>(work);
-    if (budget_ > 0) return false;
+    if (budget_ > 0 && ++calls_ < kTickCalls) return false;
     budget_ = kTickWork;
+    calls_ = 0;
     return Check();
   }
   // CANCELLED or DEADLINE_EXCEEDED after Tick returned true, else OK.
@@ -53,6 +57,7 @@ class SearchControl {
   std::vector<std::function<bool()>> checks_;
   std::optional<Clock::time_point> deadline_;
   int64_t budget_ = kTickWork;
+  int calls_ = 0;
   absl::Status status_;
 };
 
