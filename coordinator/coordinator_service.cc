@@ -67,6 +67,11 @@ absl::StatusOr<v1::OptimizeResponse> CoordinatorService::Run(
     workers.push_back(w.get());
     slots += w->Slots();
   }
+  // The unhealthy ones too, after the healthy: the scheduler skips them
+  // (and uses them if they recover), and names them if nothing is left.
+  for (const auto& w : pool) {
+    if (!w->Healthy()) workers.push_back(w.get());
+  }
   const uint32_t p = request.slice_count() != 0
                          ? request.slice_count()
                          : ChooseSliceCount(*query, options, std::max(1, slots));

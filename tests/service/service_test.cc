@@ -177,6 +177,7 @@ TEST(ServiceTest, AllWorkersDownIsUnavailableNotAHang) {
   EXPECT_EQ(remote.status().code(), absl::StatusCode::kUnavailable) << remote.status();
   EXPECT_NE(remote.status().message().find("no worker available"), std::string::npos)
       << remote.status();
+  EXPECT_NE(remote.status().message().find(dead + ": "), std::string::npos) << remote.status();
 }
 
 TEST(ServiceTest, DeadlineExceededOrPartialAsRequested) {
