@@ -54,19 +54,12 @@ class ConnectedBushy {
 
   // The slot of a new or known set; kNoSlot (and a status) at the limit.
   Slot Add(RelSet s) {
-    bool added = false;
-    const Slot slot = memo_.Insert(s, added);
-    if (slot == kNoSlot) {
-      status_ = absl::ResourceExhaustedError(absl::StrCat(
-          "connected-sets memo reached its limit of ", memo_.size(),
-          " entries; allow more memory or use more slices"));
+    auto slot = AddConnectedSet(memo_, policy_, s);
+    if (!slot.ok()) {
+      status_ = slot.status();
       return kNoSlot;
     }
-    if (added) {
-      policy_.Resize(memo_.size());
-      policy_.InitSet(slot, s);
-    }
-    return slot;
+    return *slot;
   }
 
   void EnumerateCsgRec(RelSet s1, RelSet x) {

@@ -30,23 +30,14 @@ absl::Status RunConnectedLeftDeep(int n, const JoinGraph& graph,
                                   SearchControl& control, SearchStats& stats) {
   std::vector<RelSet> level;
   const auto add = [&](RelSet s, Slot& slot) {
-    bool added = false;
-    slot = memo.Insert(s, added);
-    if (slot == kNoSlot) {
-      return absl::ResourceExhaustedError(absl::StrCat(
-          "connected-sets memo reached its limit of ", memo.size(),
-          " entries; allow more memory or use more slices"));
-    }
-    if (added) {
-      policy.Resize(memo.size());
-      policy.InitSet(slot, s);
-    }
-    return absl::OkStatus();
+    auto found = AddConnectedSet(memo, policy, s);
+    if (found.ok()) slot = *found;
+    return found.status();
   };
   for (int v = 0; v < n; ++v) {
     const RelationId r{static_cast<uint8_t>(v)};
     if (!constraints.Admissible(Singleton(r))) continue;
-    Slot slot;
+    Slot slot = kNoSlot;
     if (auto st = add(Singleton(r), slot); !st.ok()) return st;
     policy.InitLeaf(slot, r);
     level.push_back(Singleton(r));
@@ -64,7 +55,7 @@ absl::Status RunConnectedLeftDeep(int n, const JoinGraph& graph,
           return;
         }
         const size_t before = memo.size();
-        Slot to;
+        Slot to = kNoSlot;
         status = add(grown, to);
         if (!status.ok()) return;
         if (memo.size() > before) next.push_back(grown);

@@ -9,6 +9,8 @@
 #include <vector>
 
 #include "absl/container/flat_hash_map.h"
+#include "absl/status/statusor.h"
+#include "absl/strings/str_cat.h"
 #include "core/dense_layout.h"
 #include "core/relation_set.h"
 
@@ -48,6 +50,24 @@ class ConnectedMemo {
   absl::flat_hash_map<RelSet, Slot> slots_;
   std::vector<RelSet> sets_;
 };
+
+// The slot of `s` in `memo`, adding it (and growing and initialising the
+// policy's entry) if new. RESOURCE_EXHAUSTED at the memo's slot limit.
+template <class Policy>
+absl::StatusOr<Slot> AddConnectedSet(ConnectedMemo& memo, Policy& policy, RelSet s) {
+  bool added = false;
+  const Slot slot = memo.Insert(s, added);
+  if (slot == kNoSlot) {
+    return absl::ResourceExhaustedError(absl::StrCat(
+        "connected-sets memo reached its limit of ", memo.size(),
+        " entries; allow more memory or use more slices"));
+  }
+  if (added) {
+    policy.Resize(memo.size());
+    policy.InitSet(slot, s);
+  }
+  return slot;
+}
 
 }  // namespace sliceplan
 
