@@ -16,18 +16,6 @@ double Cardinality::Of(RelSet x) const {
   return card;
 }
 
-double Cardinality::CompletedSelectivity(RelSet left, RelSet right) const {
-  const RelSet both = left | right;
-  double sel = 1;
-  for (const Predicate& p : predicates_) {
-    if (IsSubset(p.relations, both) && !IsSubset(p.relations, left) &&
-        !IsSubset(p.relations, right)) {
-      sel *= p.selectivity;
-    }
-  }
-  return sel;
-}
-
 bool Cardinality::Connects(RelSet left, RelSet right) const {
   const RelSet both = left | right;
   for (const Predicate& p : predicates_) {

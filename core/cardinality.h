@@ -16,9 +16,6 @@ class Cardinality {
 
   // card(X). Cost: O(|X| + predicates). REQUIRES: X within the query.
   double Of(RelSet x) const;
-  // The product of the selectivities of the predicates that lie inside
-  // L u R but inside neither L nor R: those a join of L and R completes.
-  double CompletedSelectivity(RelSet left, RelSet right) const;
   // True when some predicate spans the join of L and R (not a cross product).
   bool Connects(RelSet left, RelSet right) const;
   double Rows(RelationId r) const { return rows_[r.value]; }

@@ -88,7 +88,6 @@ class ClusterPolicy {
   const ClusterSearchConfig& config() const { return config_; }
   // Largest Pareto set of any memo entry so far.
   size_t largest_set() const { return largest_; }
-  uint64_t entries() const { return entries_; }
   bool exhausted() const { return exhausted_; }
 
  private:

@@ -34,15 +34,4 @@ RelSet JoinGraph::Around(RelSet s) const {
   return out & ~s;
 }
 
-bool JoinGraph::IsConnected(RelSet s) const {
-  if (s == 0) return true;
-  RelSet reached = LowestBit(s);
-  for (RelSet frontier = reached; frontier != 0;) {
-    const RelSet next = Around(reached) & s & ~reached;
-    reached |= next;
-    frontier = next;
-  }
-  return reached == s;
-}
-
 }  // namespace sliceplan

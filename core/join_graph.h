@@ -20,8 +20,6 @@ class JoinGraph {
   RelSet Neighbourhood(RelSet s, RelSet x) const;
   // Relations sharing any predicate with a member of S, S excluded.
   RelSet Around(RelSet s) const;
-  // True when the relations of `s` form one connected component.
-  bool IsConnected(RelSet s) const;
 
  private:
   std::vector<RelSet> simple_;    // relation -> binary-predicate neighbours

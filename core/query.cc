@@ -95,15 +95,6 @@ absl::StatusOr<Query> Query::Create(std::vector<Relation> relations,
   return Query(std::move(relations), std::move(predicates));
 }
 
-std::optional<RelationId> Query::Find(std::string_view name) const {
-  for (size_t i = 0; i < relations_.size(); ++i) {
-    if (relations_[i].name == name) {
-      return RelationId{static_cast<uint8_t>(i)};
-    }
-  }
-  return std::nullopt;
-}
-
 RelSet PermuteSet(RelSet s, std::span<const RelationId> perm) {
   RelSet out = 0;
   ForEachMember(s, [&](RelationId r) { out |= Singleton(perm[r.value]); });

@@ -8,7 +8,6 @@
 #ifndef SLICEPLAN_CORE_QUERY_H_
 #define SLICEPLAN_CORE_QUERY_H_
 
-#include <optional>
 #include <span>
 #include <string>
 #include <string_view>
@@ -47,8 +46,6 @@ class Query {
   const Relation& relation(RelationId r) const { return relations_[r.value]; }
   std::span<const Relation> relations() const { return relations_; }
   std::span<const Predicate> predicates() const { return predicates_; }
-  // The relation called `name`, if any.
-  std::optional<RelationId> Find(std::string_view name) const;
 
   // The same query with relation i renamed to position perm[i] (relations,
   // then predicate masks, are permuted). REQUIRES: perm is a permutation of
