@@ -106,12 +106,9 @@ absl::Status SetFlag(OptimizeConfig& config, const std::string& flag,
     else if (value == "dot") config.format = OutputFormat::kDot;
     else return BadFlag(flag, value, "text, json or dot");
   } else if (flag == "deadline-seconds") {
-    char* end = nullptr;
-    const double d = std::strtod(value.c_str(), &end);
-    if (value.empty() || *end != '\0' || !(d > 0)) {
-      return BadFlag(flag, value, "a number of seconds > 0");
-    }
-    config.deadline_seconds = d;
+    const auto d = ParseDouble(flag, value);
+    if (!d.ok() || !(*d > 0)) return BadFlag(flag, value, "a number of seconds > 0");
+    config.deadline_seconds = *d;
   } else if (flag == "partial-on-deadline") {
     if (value == "true") config.partial_on_deadline = true;
     else if (value == "false") config.partial_on_deadline = false;

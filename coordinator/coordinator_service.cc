@@ -19,11 +19,8 @@ using Clock = std::chrono::steady_clock;
 std::optional<Clock::time_point> RunDeadline(const grpc::ServerContext* context,
                                              const v1::OptimizeRequest& request,
                                              std::chrono::milliseconds margin) {
-  std::optional<Clock::time_point> out;
-  const auto call = context->deadline();
-  if (call != std::chrono::system_clock::time_point::max()) {
-    out = Clock::now() + (call - std::chrono::system_clock::now()) - margin;
-  }
+  std::optional<Clock::time_point> out = CallDeadline(context);
+  if (out) *out -= margin;
   if (request.deadline_seconds() > 0) {
     const auto own = Clock::now() + std::chrono::duration_cast<Clock::duration>(
                                         std::chrono::duration<double>(request.deadline_seconds()));

@@ -16,13 +16,6 @@ namespace {
 
 using Clock = std::chrono::steady_clock;
 
-// The call's deadline on the steady clock, if it has one.
-std::optional<Clock::time_point> Deadline(const grpc::ServerContext* context) {
-  const auto deadline = context->deadline();
-  if (deadline == std::chrono::system_clock::time_point::max()) return std::nullopt;
-  return Clock::now() + (deadline - std::chrono::system_clock::now());
-}
-
 struct Parsed {
   Query query;
   SearchOptions options;
@@ -81,7 +74,7 @@ grpc::Status WorkerService::SolveSlice(grpc::ServerContext* context,
   while (Clock::now() < hang_until && !context->IsCancelled()) {
     std::this_thread::sleep_for(std::chrono::milliseconds(5));
   }
-  SearchControl control(nullptr, Deadline(context));
+  SearchControl control(nullptr, CallDeadline(context));
   control.set_cancel_check([context] { return context->IsCancelled(); });
   auto result = sliceplan::SolveSlice(parsed->query, parsed->options, parsed->slice, control);
   Release();
