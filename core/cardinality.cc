@@ -1,19 +1,52 @@
 #include "core/cardinality.h"
 
+#include <cmath>
+
+#include "core/value_range.h"
+
 namespace sliceplan {
+namespace {
+
+// The plain product is trusted while every partial product stays inside
+// this range: a partial product lies between the product of all factors
+// below 1 and the product of all factors above 1.
+constexpr double kSmallest = 1e-290;
+
+}  // namespace
 
 Cardinality::Cardinality(const Query& query)
     : predicates_(query.predicates().begin(), query.predicates().end()) {
-  for (const Relation& rel : query.relations()) rows_.push_back(rel.rows);
+  double above = 1, below = 1;
+  for (const Relation& rel : query.relations()) {
+    rows_.push_back(rel.rows);
+    log_rows_.push_back(std::log(rel.rows));
+    (rel.rows > 1 ? above : below) *= rel.rows;
+  }
+  for (const Predicate& p : predicates_) {
+    log_selectivities_.push_back(std::log(p.selectivity));
+    below *= p.selectivity;
+  }
+  wide_range_ = !(above < kValueCeiling && below > kSmallest);
 }
 
-double Cardinality::Of(RelSet x) const {
+double Cardinality::OfByProduct(RelSet x) const {
   double card = 1;
   ForEachMember(x, [&](RelationId r) { card *= rows_[r.value]; });
   for (const Predicate& p : predicates_) {
     if (IsSubset(p.relations, x)) card *= p.selectivity;
   }
   return card;
+}
+
+double Cardinality::OfByLogs(RelSet x) const {
+  double log_card = 0;
+  ForEachMember(x, [&](RelationId r) { log_card += log_rows_[r.value]; });
+  for (size_t j = 0; j < predicates_.size(); ++j) {
+    if (IsSubset(predicates_[j].relations, x)) log_card += log_selectivities_[j];
+  }
+  // log(1e300) is about 690.8; exp past 709 overflows, so test first.
+  if (log_card >= std::log(kValueCeiling)) return kValueCeiling;
+  return std::exp(log_card);
 }
 
 bool Cardinality::Connects(RelSet left, RelSet right) const {

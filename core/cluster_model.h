@@ -15,6 +15,9 @@
 
 namespace sliceplan {
 
+// The most nodes one stage may rent.
+inline constexpr int kMaxNodeCount = 1000000;
+
 struct ClusterParams {
   std::vector<int> node_counts = {4, 16, 64};
   std::vector<double> sample_rates = {1.0};  // {1, 0.1, 0.01} turns sampling on
@@ -47,6 +50,8 @@ struct StageInput {
 //   shuffle   : startup + scan_s + (b_L + b_R) / (m net) + (r_L + r_R + r_O) / (m cpu)
 //   broadcast R: startup + scan_s + b_R / net + (r_L / m + r_R + r_O / m) / cpu
 //   broadcast L: the mirror image.
+// Saturates at kValueCeiling (value_range.h), and is saturated whenever a
+// row count it reads is.
 double StageSeconds(const ClusterParams& params, JoinStrategy strategy, int m,
                     const StageInput& left, const StageInput& right, double out_rows);
 
@@ -58,6 +63,7 @@ struct ClusterCosts {
 };
 
 // latency = max(L, R) + t; node_seconds = L + R + m t; completeness = L * R.
+// latency and node_seconds saturate at kValueCeiling.
 ClusterCosts JoinCosts(const ClusterCosts& left, const ClusterCosts& right, int m,
                        double stage_seconds);
 

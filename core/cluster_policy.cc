@@ -2,6 +2,8 @@
 
 #include <algorithm>
 
+#include "core/value_range.h"
+
 namespace sliceplan {
 namespace {
 
@@ -9,6 +11,8 @@ namespace {
 // keyed by the sum of integer codes -log(rate) * 2^40. Equal multisets get
 // equal keys exactly; distinct rates whose products merely coincide may
 // get distinct keys, which only prunes less (always safe).
+constexpr size_t kAllStrategiesCount = std::size(kAllStrategies);
+
 int64_t RateCode(double rate) { return std::llround(-std::log(rate) * 1099511627776.0); }
 
 }  // namespace
@@ -28,7 +32,7 @@ ClusterPolicy::ClusterPolicy(const Query& query, const Cardinality& card,
       const double rate = config_.params.sample_rates[k];
       ClusterEntry e;
       e.costs = {0, 0, rate};
-      e.rows = rel.rows * rate;
+      e.rows = IsSaturated(rel.rows) ? kValueCeiling : rel.rows * rate;
       e.level = rate_codes_[k];
       e.left_index = static_cast<uint32_t>(k);
       leaves_[i].push_back(e);
@@ -124,7 +128,9 @@ void ClusterPolicy::Combine(std::vector<ClusterEntry>& out, double card,
       const ClusterEntry& r = right[j];
       const StageInput in_r{r.rows, right_width, right_leaf};
       ClusterEntry e;
-      e.rows = card * (l.costs.completeness * r.costs.completeness);
+      // Sampling shrinks a saturated count only on paper: it stays saturated.
+      e.rows = IsSaturated(card) ? kValueCeiling
+                                 : card * (l.costs.completeness * r.costs.completeness);
       e.level = l.level + r.level;
       e.left_slot = left_slot;
       e.left_index = i;
@@ -139,6 +145,10 @@ void ClusterPolicy::Combine(std::vector<ClusterEntry>& out, double card,
           e.nodes_index = static_cast<uint16_t>(m);
           Insert(out, e);
         }
+      }
+      // A stopped control stays stopped: the enumerator sees it next.
+      if (control_ != nullptr && control_->Tick(kAllStrategiesCount * p.node_counts.size())) {
+        return;
       }
     }
   }

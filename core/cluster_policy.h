@@ -25,6 +25,7 @@
 #include "core/pareto.h"
 #include "core/plan_choice.h"
 #include "core/query.h"
+#include "core/search_control.h"
 #include "core/search_policy.h"
 
 namespace sliceplan {
@@ -89,6 +90,11 @@ class ClusterPolicy {
   // Largest Pareto set of any memo entry so far.
   size_t largest_set() const { return largest_; }
   bool exhausted() const { return exhausted_; }
+  // The search's control, ticked inside the combination of two Pareto sets
+  // (one memo entry's combinations can take minutes), so a deadline or a
+  // cancel stops the search within one tick. Null (the default): never
+  // ticked. `control` must outlive its use; the slice search sets it.
+  void set_control(SearchControl* control) { control_ = control; }
 
  private:
   // Joins every pair of entries with every strategy and node count into out.
@@ -124,6 +130,7 @@ class ClusterPolicy {
   size_t largest_ = 0;
   uint64_t entries_ = 0;
   bool exhausted_ = false;
+  SearchControl* control_ = nullptr;
 };
 
 static_assert(SearchPolicy<ClusterPolicy>);

@@ -12,13 +12,15 @@
 #include "core/cardinality.h"
 #include "core/dense_layout.h"
 #include "core/search_policy.h"
+#include "core/value_range.h"
 
 namespace sliceplan {
 
 // One join's cout cost from its output cardinality and its inputs' costs.
 // Shared by the policy and by plan costing so both round identically.
+// Saturates at kValueCeiling (value_range.h).
 inline double CoutJoin(double card, double left_cost, double right_cost) {
-  return card + (left_cost + right_cost);
+  return Saturate(card + (left_cost + right_cost));
 }
 
 class CoutPolicy {
@@ -60,7 +62,9 @@ class CoutPolicy {
     // best cost live across one is kept in memory for the whole hot loop.
     cost_[s] = a.best;
     left_[s] = a.left;
-    cost_[s] += card_.Of(set);  // = CoutJoin(card, left, right): + commutes
+    // = CoutJoin(card, left, right): + commutes. Inputs are at most the
+    // ceiling each, so the sum is finite before it saturates.
+    cost_[s] = Saturate(cost_[s] + card_.Of(set));
   }
 
   void InitSet(Slot s, RelSet set) {

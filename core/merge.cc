@@ -3,17 +3,25 @@
 #include <algorithm>
 
 #include "absl/strings/str_cat.h"
+#include "absl/strings/str_format.h"
+#include "core/value_range.h"
 
 namespace sliceplan {
 
 namespace {
 
-// The union of the slices' Pareto sets, exactly filtered.
+bool Saturated(const ClusterCosts& c) {
+  return IsSaturated(c.latency_s) || IsSaturated(c.node_seconds);
+}
+
+// The union of the slices' Pareto sets, exactly filtered. Plans with a
+// saturated metric are not numbers the answer can report: left out.
 std::vector<Plan> MergeFrontiers(const std::vector<SliceResult>& slices, Objectives objectives) {
   std::vector<const Plan*> plans;
   std::vector<ClusterCosts> costs;
   for (const SliceResult& r : slices) {
     for (const Plan& p : r.frontier) {
+      if (Saturated(p.root().metrics)) continue;
       plans.push_back(&p);
       costs.push_back(p.root().metrics);
     }
@@ -21,6 +29,14 @@ std::vector<Plan> MergeFrontiers(const std::vector<SliceResult>& slices, Objecti
   std::vector<Plan> out;
   for (size_t i : FrontierIndices(costs, objectives)) out.push_back(*plans[i]);
   return out;
+}
+
+absl::Status OutOfRange(const Plan& best) {
+  return absl::OutOfRangeError(absl::StrFormat(
+      "every plan's cost reaches %g, the largest value the engine represents "
+      "(the best plan's result has %.4g rows): the row estimates multiply past "
+      "double range; scale them down",
+      kValueCeiling, best.root().cardinality));
 }
 
 absl::StatusOr<OptimizeResult> Merge(std::vector<SliceResult> slices,
@@ -56,6 +72,11 @@ absl::StatusOr<OptimizeResult> Merge(std::vector<SliceResult> slices,
   }
   out.plan = *best;
   out.frontier = MergeFrontiers(slices, objectives);
+  const bool has_frontier = std::any_of(slices.begin(), slices.end(),
+                                        [](const SliceResult& r) { return !r.frontier.empty(); });
+  if (IsSaturated(best->root().cost) || (has_frontier && out.frontier.empty())) {
+    return OutOfRange(*best);
+  }
   if (!out.frontier.empty()) out.plan = out.frontier.front();
   for (SliceResult& r : slices) {
     r.plan.reset();

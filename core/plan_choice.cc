@@ -5,6 +5,7 @@
 
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_split.h"
+#include "core/user_text.h"
 
 namespace sliceplan {
 namespace {
@@ -52,13 +53,13 @@ absl::StatusOr<Bound> ParseBound(const std::string& text) {
     const auto value = Number(absl::string_view(text).substr(at + 2));
     if (!metric) {
       return absl::InvalidArgumentError(absl::StrCat(
-          "bound: \"", text, "\" names no metric (latency_s, node_seconds, completeness)"));
+          "bound: \"", ShortName(text), "\" names no metric (latency_s, node_seconds, completeness)"));
     }
-    if (!value) return absl::InvalidArgumentError(absl::StrCat("bound: \"", text, "\" has no number"));
+    if (!value) return absl::InvalidArgumentError(absl::StrCat("bound: \"", ShortName(text), "\" has no number"));
     return Bound{*metric, op[0] == '<', *value};
   }
   return absl::InvalidArgumentError(
-      absl::StrCat("bound: \"", text, "\" is not METRIC<=VALUE or METRIC>=VALUE"));
+      absl::StrCat("bound: \"", ShortName(text), "\" is not METRIC<=VALUE or METRIC>=VALUE"));
 }
 
 absl::StatusOr<Preference> ParsePreference(const std::string& text) {
@@ -72,17 +73,24 @@ absl::StatusOr<Preference> ParsePreference(const std::string& text) {
   const std::string prefix = "weights:";
   if (text.rfind(prefix, 0) != 0) {
     return absl::InvalidArgumentError(absl::StrCat(
-        "prefer: \"", text, "\" is neither a metric nor weights:METRIC=W,..."));
+        "prefer: \"", ShortName(text), "\" is neither a metric nor weights:METRIC=W,..."));
   }
   Preference p{0, 0, 0};
+  uint8_t seen = 0;
   for (absl::string_view part : absl::StrSplit(text.substr(prefix.size()), ',')) {
     const std::vector<absl::string_view> kv = absl::StrSplit(part, '=');
     const auto metric = kv.size() == 2 ? MetricNamed(kv[0]) : std::nullopt;
     const auto weight = kv.size() == 2 ? Number(kv[1]) : std::nullopt;
     if (!metric || !weight || *weight < 0) {
       return absl::InvalidArgumentError(
-          absl::StrCat("prefer: \"", part, "\" is not METRIC=WEIGHT with a weight >= 0"));
+          absl::StrCat("prefer: \"", ShortName(std::string_view(part.data(), part.size())), "\" is not METRIC=WEIGHT with a weight >= 0"));
     }
+    const uint8_t bit = static_cast<uint8_t>(1u << static_cast<int>(*metric));
+    if ((seen & bit) != 0) {
+      return absl::InvalidArgumentError(
+          absl::StrCat("prefer: ", MetricLabel(*metric), " is weighted twice"));
+    }
+    seen |= bit;
     if (*metric == Metric::kLatency) p.latency = *weight;
     if (*metric == Metric::kNodeSeconds) p.node_seconds = *weight;
     if (*metric == Metric::kCompleteness) p.incompleteness = *weight;

@@ -1,10 +1,15 @@
 #include "core/query.h"
 
+#include <algorithm>
 #include <cmath>
+#include <limits>
 
 #include "absl/container/flat_hash_set.h"
 #include "absl/strings/str_cat.h"
+#include "absl/container/flat_hash_map.h"
+#include "core/input_limits.h"
 #include "core/status_macros.h"
+#include "core/user_text.h"
 
 namespace sliceplan {
 namespace {
@@ -20,22 +25,22 @@ absl::Status CheckRelation(const Relation& rel, size_t i,
   const std::string at = absl::StrCat("relations[", i, "]");
   if (!IsValidRelationName(rel.name)) {
     return Invalid(absl::StrCat(at, ".name"),
-                   absl::StrCat("\"", rel.name,
+                   absl::StrCat("\"", ShortName(rel.name),
                                 "\" is not a name of the form "
                                 "[A-Za-z_][A-Za-z0-9_]*"));
   }
   if (!seen.insert(rel.name).second) {
     return Invalid(absl::StrCat(at, ".name"),
-                   absl::StrCat("duplicate relation name \"", rel.name, "\""));
+                   absl::StrCat("duplicate relation name \"", ShortName(rel.name), "\""));
   }
-  const std::string named = absl::StrCat(at, " (", rel.name, ")");
+  const std::string named = absl::StrCat(at, " (", ShortName(rel.name), ")");
   if (!PositiveFinite(rel.rows)) {
     return Invalid(absl::StrCat(named, ".rows"),
                    absl::StrCat("must be a finite number > 0, got ", rel.rows));
   }
-  if (!PositiveFinite(rel.row_bytes)) {
+  if (!PositiveFinite(rel.row_bytes) || rel.row_bytes > kMaxRowBytes) {
     return Invalid(absl::StrCat(named, ".row_bytes"),
-                   absl::StrCat("must be a finite number > 0, got ",
+                   absl::StrCat("must be a number in (0, ", kMaxRowBytes, "], got ",
                                 rel.row_bytes));
   }
   return absl::OkStatus();
@@ -56,6 +61,24 @@ absl::Status CheckPredicate(const Predicate& p, size_t j, int n) {
                    absl::StrCat("must lie in (0, 1], got ", p.selectivity));
   }
   return absl::OkStatus();
+}
+
+// Predicates over one relation set become one whose selectivity is the
+// product (each applies once the set is joined, so card is unchanged).
+// The product is kept above zero: selectivities are in (0, 1].
+std::vector<Predicate> MergeEqualPredicates(std::vector<Predicate> predicates) {
+  absl::flat_hash_map<RelSet, size_t> index;
+  std::vector<Predicate> out;
+  for (const Predicate& p : predicates) {
+    const auto [it, inserted] = index.emplace(p.relations, out.size());
+    if (inserted) {
+      out.push_back(p);
+      continue;
+    }
+    double& sel = out[it->second].selectivity;
+    sel = std::max(sel * p.selectivity, std::numeric_limits<double>::min());
+  }
+  return out;
 }
 
 }  // namespace
@@ -92,7 +115,7 @@ absl::StatusOr<Query> Query::Create(std::vector<Relation> relations,
   for (size_t j = 0; j < predicates.size(); ++j) {
     RETURN_IF_ERROR(CheckPredicate(predicates[j], j, n));
   }
-  return Query(std::move(relations), std::move(predicates));
+  return Query(std::move(relations), MergeEqualPredicates(std::move(predicates)));
 }
 
 RelSet PermuteSet(RelSet s, std::span<const RelationId> perm) {

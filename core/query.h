@@ -36,8 +36,11 @@ class Query {
   // Validates and builds a query. Errors (INVALID_ARGUMENT) name the field
   // and its position, e.g. "relations[3].rows: must be > 0, got -1":
   // no relations or more than kMaxRelations, a bad or duplicate name, rows
-  // or row_bytes not finite and > 0, a predicate over fewer than two
-  // relations or over ids outside the query, selectivity outside (0, 1].
+  // not finite and > 0, row_bytes outside (0, kMaxRowBytes], a predicate
+  // over fewer than two relations or over ids outside the query,
+  // selectivity outside (0, 1]. Predicates over the same relation set are
+  // merged into one, their selectivities multiplied (the product kept at
+  // or above the smallest normal double).
   static absl::StatusOr<Query> Create(std::vector<Relation> relations,
                                       std::vector<Predicate> predicates);
 

@@ -8,6 +8,7 @@
 #include "absl/container/flat_hash_map.h"
 #include "absl/strings/str_cat.h"
 #include "core/status_macros.h"
+#include "core/user_text.h"
 #include "google/protobuf/util/json_util.h"
 
 namespace sliceplan {
@@ -16,7 +17,7 @@ namespace {
 absl::StatusOr<Relation> RelationFromProto(const v1::Relation& m, int i) {
   if (!m.has_rows()) {
     return absl::InvalidArgumentError(absl::StrCat(
-        "relations[", i, "] (", m.name(), ").rows: missing; every relation "
+        "relations[", i, "] (", ShortName(m.name()), ").rows: missing; every relation "
         "needs an estimated row count"));
   }
   Relation rel{m.name(), m.rows().value(), kDefaultRowBytes};
@@ -34,12 +35,12 @@ absl::StatusOr<Predicate> PredicateFromProto(
     if (it == ids.end()) {
       return absl::InvalidArgumentError(
           absl::StrCat("predicates[", j, "].relations[", k,
-                       "]: unknown relation \"", name, "\""));
+                       "]: unknown relation \"", ShortName(name), "\""));
     }
     if (Contains(p.relations, it->second)) {
       return absl::InvalidArgumentError(
           absl::StrCat("predicates[", j, "].relations[", k,
-                       "]: relation \"", name, "\" is named twice"));
+                       "]: relation \"", ShortName(name), "\" is named twice"));
     }
     p.relations |= Singleton(it->second);
   }
@@ -51,14 +52,52 @@ absl::StatusOr<Predicate> PredicateFromProto(
   return p;
 }
 
-}  // namespace
-
-absl::StatusOr<Query> QueryFromProto(const v1::Query& message) {
+absl::Status CheckSizes(const v1::Query& message, const InputLimits& limits) {
+  if (message.relations_size() > limits.max_relations) {
+    return absl::ResourceExhaustedError(absl::StrCat(
+        "relations: ", message.relations_size(), " relations given; the limit is ",
+        limits.max_relations));
+  }
+  if (message.predicates_size() > limits.max_predicates) {
+    return absl::ResourceExhaustedError(absl::StrCat(
+        "predicates: ", message.predicates_size(), " predicates given; the limit is ",
+        limits.max_predicates));
+  }
   if (message.relations_size() > kMaxRelations) {
     return absl::InvalidArgumentError(absl::StrCat(
         "relations: ", message.relations_size(),
         " relations given; the exact search takes at most ", kMaxRelations));
   }
+  return absl::OkStatus();
+}
+
+// Names are checked before any predicate resolves a name, so that two
+// relations of one name are reported as such, not as a predicate naming
+// one relation twice.
+absl::Status CheckNames(const v1::Query& message) {
+  absl::flat_hash_map<std::string_view, int> seen;
+  for (int i = 0; i < message.relations_size(); ++i) {
+    const std::string& name = message.relations(i).name();
+    if (!IsValidRelationName(name)) {
+      return absl::InvalidArgumentError(absl::StrCat(
+          "relations[", i, "].name: \"", ShortName(name),
+          "\" is not a name of the form [A-Za-z_][A-Za-z0-9_]*"));
+    }
+    const auto [it, inserted] = seen.emplace(name, i);
+    if (!inserted) {
+      return absl::InvalidArgumentError(absl::StrCat(
+          "relations[", i, "].name: duplicate relation name \"", ShortName(name),
+          "\" (also relations[", it->second, "])"));
+    }
+  }
+  return absl::OkStatus();
+}
+
+}  // namespace
+
+absl::StatusOr<Query> QueryFromProto(const v1::Query& message, const InputLimits& limits) {
+  RETURN_IF_ERROR(CheckSizes(message, limits));
+  RETURN_IF_ERROR(CheckNames(message));
   std::vector<Relation> relations;
   absl::flat_hash_map<std::string, RelationId> ids;
   for (int i = 0; i < message.relations_size(); ++i) {
@@ -95,7 +134,14 @@ v1::Query QueryToProto(const Query& query) {
   return m;
 }
 
-absl::StatusOr<Query> ParseQueryJson(std::string_view json) {
+absl::StatusOr<Query> ParseQueryJson(std::string_view json, const InputLimits& limits) {
+  if (static_cast<int64_t>(json.size()) > limits.max_query_bytes) {
+    return absl::ResourceExhaustedError(absl::StrCat(
+        "query JSON: ", json.size(), " bytes; the limit is ", limits.max_query_bytes));
+  }
+  if (!IsValidUtf8(json)) {
+    return absl::InvalidArgumentError("query JSON: not valid UTF-8");
+  }
   v1::Query message;
   google::protobuf::util::JsonParseOptions options;
   options.ignore_unknown_fields = false;
@@ -106,20 +152,27 @@ absl::StatusOr<Query> ParseQueryJson(std::string_view json) {
     return absl::InvalidArgumentError(
         absl::StrCat("query JSON: ", status.message().as_string()));
   }
-  return QueryFromProto(message);
+  return QueryFromProto(message, limits);
 }
 
-absl::StatusOr<Query> ReadQueryFile(const std::string& path) {
-  std::ifstream in(path, std::ios::binary);
+absl::StatusOr<Query> ReadQueryFile(const std::string& path, const InputLimits& limits) {
+  std::ifstream in(path, std::ios::binary | std::ios::ate);
   if (!in) {
     const int err = errno;
     const std::string why = absl::StrCat(path, ": ", std::strerror(err));
     return err == EACCES ? absl::PermissionDeniedError(why)
                          : absl::NotFoundError(why);
   }
+  // Sized before it is read: a file past the limit is never loaded.
+  const std::streamoff size = in.tellg();
+  if (size > limits.max_query_bytes) {
+    return absl::ResourceExhaustedError(absl::StrCat(
+        path, ": ", size, " bytes; the query size limit is ", limits.max_query_bytes));
+  }
+  in.seekg(0);
   std::ostringstream text;
   text << in.rdbuf();
-  auto query = ParseQueryJson(text.str());
+  auto query = ParseQueryJson(text.str(), limits);
   if (!query.ok()) {
     return absl::Status(query.status().code(),
                         absl::StrCat(path, ": ", query.status().message()));

@@ -11,27 +11,35 @@
 #include <string_view>
 
 #include "absl/status/statusor.h"
+#include "core/input_limits.h"
 #include "core/query.h"
 #include "query.pb.h"
 
 namespace sliceplan {
 
-// Validates a query message and resolves predicate names to ids. Errors
-// (INVALID_ARGUMENT) name the field and its position: a missing rows or
+// Validates a query message and resolves predicate names to ids. Sizes are
+// checked first, before anything is built: more relations or predicates
+// than `limits` allow is RESOURCE_EXHAUSTED with the numbers. Other errors
+// (INVALID_ARGUMENT) name the field and its position: a bad or duplicate
+// name (reported before any predicate is read), a missing rows or
 // selectivity, a predicate naming an unknown or a repeated relation, and
-// everything Query::Create checks.
-absl::StatusOr<Query> QueryFromProto(const v1::Query& message);
+// everything Query::Create checks. Names quoted in messages are cut short.
+absl::StatusOr<Query> QueryFromProto(const v1::Query& message,
+                                     const InputLimits& limits = {});
 
 v1::Query QueryToProto(const Query& query);
 
 // Parses the JSON form of v1::Query. A syntax error, an unknown field or a
 // value of the wrong type is INVALID_ARGUMENT with protobuf's description of
 // where it is.
-absl::StatusOr<Query> ParseQueryJson(std::string_view json);
+// Text past limits.max_query_bytes is RESOURCE_EXHAUSTED; text that is not
+// UTF-8 is INVALID_ARGUMENT.
+absl::StatusOr<Query> ParseQueryJson(std::string_view json, const InputLimits& limits = {});
 
 // Reads and parses a query file. A file that cannot be read is NOT_FOUND
-// (or PERMISSION_DENIED) with the path in the message.
-absl::StatusOr<Query> ReadQueryFile(const std::string& path);
+// (or PERMISSION_DENIED) with the path in the message; a file larger than
+// limits.max_query_bytes is RESOURCE_EXHAUSTED before it is read.
+absl::StatusOr<Query> ReadQueryFile(const std::string& path, const InputLimits& limits = {});
 
 }  // namespace sliceplan
 

@@ -40,7 +40,11 @@ class SearchControl {
   // Returns true when the search must stop; status() then says why. Also
   // checks every kTickCalls calls, for searches whose splits are costly
   // (Pareto sets) and so few.
+  // Once it has returned true it returns true on every later call, so a
+  // policy that ticks inside one memo entry and the enumerator that ticks
+  // after it agree.
   bool Tick(uint64_t work) {
+    if (!status_.ok()) return true;
     budget_ -= static_cast<int64_t>(work);
     if (budget_ > 0 && ++calls_ < kTickCalls) return false;
     budget_ = kTickWork;

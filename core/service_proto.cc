@@ -30,8 +30,15 @@ absl::StatusOr<SearchOptions> SearchOptionsFromProto(const v1::SearchOptions& m)
   out.cross_products = !m.has_cross_products() || m.cross_products().value();
   if (m.memo_limit_bytes() != 0) out.memo_limit_bytes = m.memo_limit_bytes();
   ClusterParams& p = out.cluster.params;
-  if (m.cluster().node_counts_size() > 0) {
-    p.node_counts.assign(m.cluster().node_counts().begin(), m.cluster().node_counts().end());
+  for (int i = 0; i < m.cluster().node_counts_size(); ++i) {
+    const uint32_t n = m.cluster().node_counts(i);
+    if (n > static_cast<uint32_t>(kMaxNodeCount)) {  // before narrowing to int
+      return absl::InvalidArgumentError(absl::StrCat(
+          "options.cluster.node_counts[", i, "]: must be a whole number in 1..", kMaxNodeCount,
+          ", got ", n));
+    }
+    if (i == 0) p.node_counts.clear();
+    p.node_counts.push_back(static_cast<int>(n));
   }
   if (m.cluster().sample_rates_size() > 0) {
     p.sample_rates.assign(m.cluster().sample_rates().begin(), m.cluster().sample_rates().end());
@@ -47,7 +54,13 @@ absl::StatusOr<SearchOptions> SearchOptionsFromProto(const v1::SearchOptions& m)
     if (!o.ok()) return absl::InvalidArgumentError(absl::StrCat("options.", o.status().message()));
     out.cluster.objectives = *o;
   }
-  if (m.alpha() != 0) out.cluster.alpha = m.alpha();
+  if (m.alpha() != 0) {
+    if (out.cost != CostModelKind::kCluster) {
+      return absl::InvalidArgumentError(
+          "options.alpha: only the cluster model's Pareto search takes a precision");
+    }
+    out.cluster.alpha = m.alpha();
+  }
   for (const std::string& b : m.bounds()) {
     auto bound = ParseBound(b);
     if (!bound.ok()) return absl::InvalidArgumentError(absl::StrCat("options.", bound.status().message()));

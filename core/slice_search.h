@@ -74,7 +74,10 @@ class SliceSearch {
     if constexpr (kCanExhaust) {
       control.set_cancel_check([this] { return policy_.exhausted(); });
     }
+    constexpr bool kTicksInside = requires(Policy& p) { p.set_control(&control); };
+    if constexpr (kTicksInside) policy_.set_control(&control);
     absl::Status status = layout_ ? RunDense(control) : RunConnected(control);
+    if constexpr (kTicksInside) policy_.set_control(nullptr);
     stats_.seconds = std::chrono::duration<double>(
                          std::chrono::steady_clock::now() - start).count();
     if constexpr (kCanExhaust) {

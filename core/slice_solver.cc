@@ -1,5 +1,6 @@
 #include "core/slice_solver.h"
 
+#include <algorithm>
 #include <cmath>
 
 #include "core/count_policy.h"
@@ -7,6 +8,8 @@
 #include "core/cout_policy.h"
 #include "core/slice_search.h"
 #include "core/status_macros.h"
+#include "core/user_text.h"
+#include "core/value_range.h"
 
 namespace sliceplan {
 
@@ -21,7 +24,13 @@ std::string MetricName(CostModelKind model) {
 }
 
 absl::Status ValidateSearchOptions(const SearchOptions& options) {
-  if (options.cost != CostModelKind::kCluster) return absl::OkStatus();
+  if (options.cost != CostModelKind::kCluster) {
+    if (options.cluster.alpha != 1) {
+      return absl::InvalidArgumentError(
+          "alpha: only the cluster model's Pareto search takes a precision");
+    }
+    return absl::OkStatus();
+  }
   RETURN_IF_ERROR(ValidateClusterParams(options.cluster.params));
   const double alpha = options.cluster.alpha;
   if (!(std::isfinite(alpha) && alpha >= 1)) {
@@ -59,6 +68,43 @@ absl::Status CheckDenseMemo(int n, PlanShape shape, int k,
       advice));
 }
 
+absl::Status CheckOptionLimits(const SearchOptions& options, const InputLimits& limits) {
+  if (options.cost != CostModelKind::kCluster) return absl::OkStatus();
+  const ClusterParams& p = options.cluster.params;
+  if (static_cast<int64_t>(p.node_counts.size()) > limits.max_node_counts) {
+    return absl::ResourceExhaustedError(absl::StrCat("node_counts: ", p.node_counts.size(),
+                                                     " given; the limit is ",
+                                                     limits.max_node_counts));
+  }
+  if (static_cast<int64_t>(p.sample_rates.size()) > limits.max_sample_rates) {
+    return absl::ResourceExhaustedError(absl::StrCat("sample_rates: ", p.sample_rates.size(),
+                                                     " given; the limit is ",
+                                                     limits.max_sample_rates));
+  }
+  return absl::OkStatus();
+}
+
+absl::Status CheckCoutInRange(const Query& query) {
+  const double card = Cardinality(query).Of(query.all());
+  if (!IsSaturated(card)) return absl::OkStatus();
+  std::vector<RelationId> by_rows;
+  for (int i = 0; i < query.size(); ++i) by_rows.push_back(RelationId{static_cast<uint8_t>(i)});
+  std::sort(by_rows.begin(), by_rows.end(), [&](RelationId a, RelationId b) {
+    return query.relation(a).rows > query.relation(b).rows;
+  });
+  std::string largest;
+  for (size_t i = 0; i < std::min<size_t>(3, by_rows.size()); ++i) {
+    const Relation& rel = query.relation(by_rows[i]);
+    absl::StrAppend(&largest, i == 0 ? "" : ", ", ShortName(rel.name), " ",
+                    absl::StrFormat("%g", rel.rows));
+  }
+  return absl::OutOfRangeError(absl::StrFormat(
+      "the join of all %d relations has at least %g rows (the largest value the engine "
+      "represents), so every plan's cout passes it; the largest relations: %s rows; "
+      "scale the row estimates down",
+      query.size(), kValueCeiling, largest));
+}
+
 namespace {
 
 template <SearchPolicy Policy>
@@ -68,6 +114,7 @@ absl::Status Prepare(const Query& query, const SearchOptions& options,
   ASSIGN_OR_RETURN(SliceConstraints constraints,
                    SliceConstraints::ForSlice(query, options.shape, slice,
                                               options.cross_products));
+  if (options.cost == CostModelKind::kCout) RETURN_IF_ERROR(CheckCoutInRange(query));
   if (options.cross_products) {
     RETURN_IF_ERROR(CheckDenseMemo(query.size(), options.shape, slice.bits(),
                                    Policy::kBytesPerSlot,

@@ -11,6 +11,7 @@
 
 #include "absl/status/statusor.h"
 #include "core/cluster_policy.h"
+#include "core/input_limits.h"
 #include "core/plan.h"
 #include "core/query.h"
 #include "core/search_control.h"
@@ -35,8 +36,18 @@ struct SearchOptions {
   ClusterSearchConfig cluster;  // for CostModelKind::kCluster
 };
 
-// INVALID_ARGUMENT naming the field for bad cluster parameters or alpha < 1.
+// OUT_OF_RANGE, naming the largest relations, when the join of all
+// relations saturates (value_range.h): every cout plan's cost would.
+absl::Status CheckCoutInRange(const Query& query);
+
+// INVALID_ARGUMENT naming the field for bad cluster parameters, alpha < 1,
+// or an alpha other than 1 with a model that has no Pareto search.
 absl::Status ValidateSearchOptions(const SearchOptions& options);
+
+// RESOURCE_EXHAUSTED naming the limit: more node counts or sample rates
+// than `limits` allow (each multiplies the cluster search's work). The
+// edges check it with their configured limits; the solver does not.
+absl::Status CheckOptionLimits(const SearchOptions& options, const InputLimits& limits);
 
 struct SliceResult {
   SliceSpec slice;
