@@ -14,6 +14,7 @@
 #include "cli/render.h"
 #include "cli/rpc_client.h"
 #include "core/embedded_pool.h"
+#include "core/input_limits.h"
 #include "core/query_proto.h"
 #include "core/slice_planner.h"
 
@@ -58,11 +59,7 @@ absl::StatusOr<ScheduleOutcome> Solve(const OptimizeConfig& config, const Query&
   ScheduleOptions schedule;
   schedule.on_progress = progress;
   schedule.partial_on_deadline = config.partial_on_deadline;
-  if (config.deadline_seconds > 0) {
-    schedule.deadline = std::chrono::steady_clock::now() +
-                        std::chrono::duration_cast<std::chrono::steady_clock::duration>(
-                            std::chrono::duration<double>(config.deadline_seconds));
-  }
+  if (config.deadline_seconds > 0) schedule.deadline = SteadyAfter(config.deadline_seconds);
   return RunEmbedded(query, config.search, slices, config.workers, schedule);
 }
 

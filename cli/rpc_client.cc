@@ -32,7 +32,9 @@ absl::StatusOr<ScheduleOutcome> OptimizeRemote(
   m.set_deadline_seconds(request.deadline_seconds);
   m.set_partial_on_deadline(request.partial_on_deadline);
   grpc::ClientContext context;
-  if (request.deadline_seconds > 0) {  // room for the answer to travel back
+  // Room for the answer to travel back; past a year the server's own
+  // maximum is the bound, and the call gets none.
+  if (request.deadline_seconds > 0 && request.deadline_seconds < 3.2e7) {
     context.set_deadline(std::chrono::system_clock::now() +
                          std::chrono::milliseconds(
                              static_cast<int64_t>(request.deadline_seconds * 1000) + 2000));

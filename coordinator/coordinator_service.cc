@@ -15,25 +15,22 @@ namespace {
 
 using Clock = std::chrono::steady_clock;
 
-// The earlier of the call's deadline (less the margin) and the request's.
-std::optional<Clock::time_point> RunDeadline(const grpc::ServerContext* context,
-                                             const v1::OptimizeRequest& request,
-                                             std::chrono::milliseconds margin) {
-  std::optional<Clock::time_point> out = CallDeadline(context);
-  if (out) *out -= margin;
-  if (request.deadline_seconds() > 0) {
-    const auto own = Clock::now() + std::chrono::duration_cast<Clock::duration>(
-                                        std::chrono::duration<double>(request.deadline_seconds()));
-    if (!out || own < *out) out = own;
+// The earliest of the call's deadline (less the margin), the request's
+// and the server's maximum: every run ends.
+absl::StatusOr<Clock::time_point> RunDeadline(const grpc::ServerContext* context,
+                                              const v1::OptimizeRequest& request,
+                                              const CoordinatorConfig& config) {
+  ASSIGN_OR_RETURN(const double seconds, AllowedSeconds(request.deadline_seconds(),
+                                                        config.limits.max_deadline_seconds));
+  Clock::time_point out = SteadyAfter(seconds);
+  if (const auto call = CallDeadline(context); call && *call - config.deadline_margin < out) {
+    out = *call - config.deadline_margin;
   }
   return out;
 }
 
 absl::Status ValidateRequest(const v1::OptimizeRequest& request) {
   if (!request.has_query()) return absl::InvalidArgumentError("query: missing");
-  if (request.deadline_seconds() < 0) {
-    return absl::InvalidArgumentError("deadline_seconds: must be >= 0");
-  }
   const uint32_t p = request.slice_count();
   if (p != 0 && (p & (p - 1)) != 0) {
     return absl::InvalidArgumentError(absl::StrCat(
@@ -49,11 +46,15 @@ absl::StatusOr<v1::OptimizeResponse> CoordinatorService::Run(
     grpc::ServerContext* context, const v1::OptimizeRequest& request,
     const std::function<void(const ScheduleProgress&)>& on_progress) {
   RETURN_IF_ERROR(ValidateRequest(request));
-  auto query = QueryFromProto(request.query());
+  ASSIGN_OR_RETURN(const Clock::time_point deadline, RunDeadline(context, request, config_));
+  auto query = QueryFromProto(request.query(), config_.limits);
   if (!query.ok()) {
-    return absl::InvalidArgumentError(absl::StrCat("query.", query.status().message()));
+    return absl::Status(query.status().code(), absl::StrCat("query.", query.status().message()));
   }
   ASSIGN_OR_RETURN(const SearchOptions options, SearchOptionsFromProto(request.options()));
+  if (auto s = CheckOptionLimits(options, config_.limits); !s.ok()) {
+    return absl::Status(s.code(), absl::StrCat("options.cluster.", s.message()));
+  }
 
   std::vector<std::shared_ptr<RpcWorker>> pool = pool_.Workers();
   std::vector<SliceWorker*> workers;
@@ -77,9 +78,11 @@ absl::StatusOr<v1::OptimizeResponse> CoordinatorService::Run(
   }
   ScheduleOptions schedule;
   if (config_.hedge_after) schedule.hedge_after = *config_.hedge_after;
-  schedule.deadline = RunDeadline(context, request, config_.deadline_margin);
+  schedule.deadline = deadline;
   schedule.partial_on_deadline = request.partial_on_deadline();
   schedule.on_progress = on_progress;
+  // A caller that cancels or goes away cancels every slice it started.
+  schedule.cancelled = [context] { return context->IsCancelled(); };
   const auto start = Clock::now();
   auto outcome = RunSlices(*query, options, p, workers, schedule);
   const double wall = std::chrono::duration<double>(Clock::now() - start).count();

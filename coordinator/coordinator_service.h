@@ -10,6 +10,7 @@
 
 #include "absl/status/statusor.h"
 #include "coordinator/worker_pool.h"
+#include "core/input_limits.h"
 #include "core/slice_scheduler.h"
 #include "sliceplan.grpc.pb.h"
 
@@ -20,6 +21,7 @@ struct CoordinatorConfig {
   std::optional<std::chrono::milliseconds> hedge_after = std::chrono::milliseconds(2000);
   // Answer this long before the call's deadline, to get the answer back in time.
   std::chrono::milliseconds deadline_margin{50};
+  InputLimits limits;
 };
 
 class CoordinatorService final : public v1::Coordinator::Service {

@@ -6,6 +6,8 @@
 #include "absl/flags/flag.h"
 #include "absl/flags/parse.h"
 #include "absl/flags/usage.h"
+#include "absl/flags/usage_config.h"
+#include "absl/strings/match.h"
 #include "coordinator/coordinator_service.h"
 #include "coordinator/serve.h"
 #include "coordinator/worker_pool.h"
@@ -18,33 +20,84 @@ ABSL_FLAG(std::string, workers, "",
 ABSL_FLAG(double, hedge_after_seconds, 2.0,
           "start a second copy of a slice running this long (0: never hedge)");
 ABSL_FLAG(int, health_interval_ms, 1000, "how often to check the workers' health");
+ABSL_FLAG(int64_t, max_request_bytes, int64_t{16} << 20, "largest request accepted, in bytes");
+ABSL_FLAG(int64_t, max_relations, 10000, "most relations per query");
+ABSL_FLAG(int64_t, max_predicates, 100000, "most predicates per query");
+ABSL_FLAG(int64_t, max_node_counts, 16, "most node counts a cluster-model request may list");
+ABSL_FLAG(int64_t, max_sample_rates, 16, "most sample rates a cluster-model request may list");
+ABSL_FLAG(double, max_deadline_seconds, 3600,
+          "longest a request may run; a longer or absent deadline is cut to it");
+ABSL_FLAG(double, shutdown_grace_seconds, 5,
+          "on SIGTERM, how long running requests may go on before they are cancelled");
 
-int main(int argc, char** argv) {
-  sliceplan::BlockStopSignals();
-  absl::SetProgramUsageMessage("sliceplan-coordinator --listen=HOST:PORT --workers=HOST:PORT,...");
-  absl::ParseCommandLine(argc, argv);
-  // Logs go to stderr: stdout carries only the listening line.
-  spdlog::set_default_logger(spdlog::stderr_color_mt("sliceplan"));
-  auto entries = sliceplan::ParseWorkerList(absl::GetFlag(FLAGS_workers));
-  if (!entries.ok()) {
-    std::cerr << "sliceplan-coordinator: " << entries.status().message() << "\n";
-    return 2;
-  }
+namespace {
+
+int Refuse(const absl::Status& status) {
+  std::cerr << "sliceplan-coordinator: " << status.message() << "\n";
+  return 2;
+}
+
+absl::StatusOr<sliceplan::CoordinatorConfig> ConfigFromFlags() {
   sliceplan::CoordinatorConfig config;
   const double hedge = absl::GetFlag(FLAGS_hedge_after_seconds);
+  if (!(hedge >= 0 && hedge < 1e6)) {
+    return absl::InvalidArgumentError("--hedge_after_seconds: must be in [0, 1e6)");
+  }
   if (hedge > 0) {
     config.hedge_after = std::chrono::milliseconds(static_cast<int64_t>(hedge * 1000));
   } else {
     config.hedge_after.reset();
   }
+  sliceplan::InputLimits& limits = config.limits;
+  limits.max_relations = absl::GetFlag(FLAGS_max_relations);
+  limits.max_predicates = absl::GetFlag(FLAGS_max_predicates);
+  limits.max_query_bytes = absl::GetFlag(FLAGS_max_request_bytes);
+  limits.max_node_counts = absl::GetFlag(FLAGS_max_node_counts);
+  limits.max_sample_rates = absl::GetFlag(FLAGS_max_sample_rates);
+  limits.max_deadline_seconds = absl::GetFlag(FLAGS_max_deadline_seconds);
+  if (!(limits.max_deadline_seconds > 0 && limits.max_deadline_seconds <= 1e7)) {
+    return absl::InvalidArgumentError("--max_deadline_seconds: must be in (0, 1e7]");
+  }
+  return config;
+}
+
+}  // namespace
+
+int main(int argc, char** argv) {
+  sliceplan::BlockStopSignals();
+  absl::SetProgramUsageMessage("sliceplan-coordinator --listen=HOST:PORT --workers=HOST:PORT,...");
+  absl::FlagsUsageConfig usage;
+  usage.contains_help_flags = [](absl::string_view file) {
+    return absl::StrContains(file, "coordinator/main.cc");
+  };
+  usage.contains_helpshort_flags = usage.contains_help_flags;
+  absl::SetFlagsUsageConfig(usage);
+  absl::ParseCommandLine(argc, argv);
+  // Logs go to stderr: stdout carries only the listening line.
+  spdlog::set_default_logger(spdlog::stderr_color_mt("sliceplan"));
+  const std::string listen = absl::GetFlag(FLAGS_listen);
+  if (auto s = sliceplan::ValidateListenAddress(listen); !s.ok()) return Refuse(s);
+  auto entries = sliceplan::ParseWorkerList(absl::GetFlag(FLAGS_workers));
+  if (!entries.ok()) return Refuse(entries.status());
+  auto config = ConfigFromFlags();
+  if (!config.ok()) return Refuse(config.status());
+  const double grace = absl::GetFlag(FLAGS_shutdown_grace_seconds);
+  if (!(grace >= 0 && grace <= 3600)) {
+    return Refuse(absl::InvalidArgumentError("--shutdown_grace_seconds: must be in [0, 3600]"));
+  }
   sliceplan::WorkerPool pool(*entries,
                              std::chrono::milliseconds(absl::GetFlag(FLAGS_health_interval_ms)));
-  sliceplan::CoordinatorService service(pool, config);
-  spdlog::info("coordinator: {} worker entries, hedge after {:.1f} s", entries->size(), hedge);
-  const auto status = sliceplan::Serve(absl::GetFlag(FLAGS_listen), {&service});
+  sliceplan::CoordinatorService service(pool, *config);
+  spdlog::info("coordinator: {} worker entries, hedge after {:.1f} s", entries->size(),
+               absl::GetFlag(FLAGS_hedge_after_seconds));
+  sliceplan::ServeOptions serve;
+  serve.max_request_bytes = config->limits.max_query_bytes;
+  serve.shutdown_grace = std::chrono::milliseconds(static_cast<int64_t>(grace * 1000));
+  const auto status = sliceplan::Serve(listen, {&service}, serve);
   if (!status.ok()) {
     std::cerr << "sliceplan-coordinator: " << status.message() << "\n";
     return 1;
   }
+  spdlog::info("coordinator: stopped");
   return 0;
 }

@@ -6,6 +6,7 @@
 #include "coordinator/rpc_status.h"
 #include "core/query_proto.h"
 #include "core/service_proto.h"
+#include "core/slice_scheduler.h"
 
 namespace sliceplan {
 namespace {
@@ -87,9 +88,11 @@ void RpcWorker::Count(const absl::Status& status) {
   std::lock_guard<std::mutex> lock(mu_);
   if (status.ok()) {
     ++counters_.solved;
-  } else if (status.code() != absl::StatusCode::kCancelled) {
+  } else if (IsWorkerFault(status)) {  // not the request's own errors
     ++counters_.failures;
     counters_.last_error = std::string(status.message());
+    // A lost worker is out of the pool until a health check finds it back.
+    if (status.code() == absl::StatusCode::kUnavailable) healthy_ = false;
   }
 }
 

@@ -6,7 +6,9 @@
 #include <iostream>
 #include <thread>
 
+#include "absl/strings/ascii.h"
 #include "absl/strings/str_cat.h"
+#include "core/user_text.h"
 #include "grpcpp/ext/proto_server_reflection_plugin.h"
 #include "grpcpp/health_check_service_interface.h"
 
@@ -20,14 +22,36 @@ void BlockStopSignals() {
   pthread_sigmask(SIG_BLOCK, &set, nullptr);
 }
 
+absl::Status ValidateListenAddress(const std::string& address, const char* flag) {
+  const size_t colon = address.rfind(':');
+  const auto bad = [&](const char* why) {
+    return absl::InvalidArgumentError(
+        absl::StrCat(flag, ": \"", ShortName(address), "\" ", why));
+  };
+  if (colon == std::string::npos || colon == 0) return bad("is not HOST:PORT");
+  const std::string port = address.substr(colon + 1);
+  if (port.empty() || port.size() > 5) return bad("has no port in 0..65535");
+  for (char c : port) {
+    if (!absl::ascii_isdigit(static_cast<unsigned char>(c))) return bad("has no port in 0..65535");
+  }
+  if (std::stoi(port) > 65535) return bad("has a port past 65535");
+  return absl::OkStatus();
+}
+
 absl::Status Serve(const std::string& listen, const std::vector<grpc::Service*>& services,
-                   const std::function<void()>& on_stop) {
+                   const ServeOptions& options) {
+  if (auto s = ValidateListenAddress(listen); !s.ok()) return s;
   grpc::EnableDefaultHealthCheckService(true);
   grpc::reflection::InitProtoReflectionServerBuilderPlugin();
   grpc::ServerBuilder builder;
   int port = 0;
   builder.AddListeningPort(listen, grpc::InsecureServerCredentials(), &port);
-  builder.SetMaxReceiveMessageSize(64 << 20);
+  // Without this, gRPC opens one socket per poller with SO_REUSEPORT: with
+  // port 0 each gets a different free port, and only the first is
+  // announced; with a fixed port another process could share it.
+  builder.AddChannelArgument(GRPC_ARG_ALLOW_REUSEPORT, 0);
+  const int max_bytes = static_cast<int>(std::min<int64_t>(options.max_request_bytes, INT32_MAX));
+  builder.SetMaxReceiveMessageSize(max_bytes);
   builder.SetMaxSendMessageSize(64 << 20);
   for (grpc::Service* s : services) builder.RegisterService(s);
   std::unique_ptr<grpc::Server> server = builder.BuildAndStart();
@@ -44,8 +68,11 @@ absl::Status Serve(const std::string& listen, const std::vector<grpc::Service*>&
     sigaddset(&set, SIGTERM);
     int sig = 0;
     sigwait(&set, &sig);
-    if (on_stop) on_stop();
-    server->Shutdown(std::chrono::system_clock::now() + std::chrono::seconds(2));
+    if (options.on_stop) options.on_stop();
+    // Refuses new calls at once; running ones finish (and answer) until
+    // the grace period ends, when gRPC cancels them and every search sees
+    // the cancel within its polling interval.
+    server->Shutdown(std::chrono::system_clock::now() + options.shutdown_grace);
   });
   server->Wait();
   stopper.join();

@@ -1,11 +1,13 @@
 // Running a gRPC server the way both sliceplan servers do: health checking
-// (grpc.health.v1) and reflection on, the bound address printed as
-// "listening on HOST:PORT" on stdout (port 0 picks a free one, which tests
-// and the local-cluster script read back), and a clean shutdown on SIGINT
-// or SIGTERM.
+// (grpc.health.v1) and reflection on, exactly one listening socket, the
+// bound address printed as "listening on HOST:PORT" on stdout (port 0
+// picks a free one, which tests and the local-cluster script read back),
+// and a bounded, clean shutdown on SIGINT or SIGTERM.
 #ifndef SLICEPLAN_COORDINATOR_SERVE_H_
 #define SLICEPLAN_COORDINATOR_SERVE_H_
 
+#include <chrono>
+#include <cstdint>
 #include <functional>
 #include <string>
 #include <vector>
@@ -19,11 +21,27 @@ namespace sliceplan {
 // starts later). Call first in main, before any thread exists.
 void BlockStopSignals();
 
-// Serves `services` on `listen` until a stop signal; `on_stop` runs first
-// (e.g. to end background threads). Errors: UNAVAILABLE when the address
-// cannot be bound.
+// INVALID_ARGUMENT naming `flag` unless `address` is HOST:PORT (or
+// [V6]:PORT) with a port of decimal digits in 0..65535.
+absl::Status ValidateListenAddress(const std::string& address, const char* flag = "--listen");
+
+struct ServeOptions {
+  // Largest request accepted (gRPC's receive limit); larger ones fail with
+  // RESOURCE_EXHAUSTED before they are parsed.
+  int64_t max_request_bytes = int64_t{16} << 20;
+  // On a stop signal: stop accepting calls, let running ones finish for
+  // this long (their answers are delivered), then cancel the rest.
+  std::chrono::milliseconds shutdown_grace{5000};
+  // Runs after the stop signal, before the shutdown (e.g. to end
+  // background threads).
+  std::function<void()> on_stop;
+};
+
+// Serves `services` on `listen` until a stop signal. Errors:
+// INVALID_ARGUMENT for a malformed address or port, UNAVAILABLE when the
+// address cannot be bound.
 absl::Status Serve(const std::string& listen, const std::vector<grpc::Service*>& services,
-                   const std::function<void()>& on_stop = {});
+                   const ServeOptions& options = {});
 
 }  // namespace sliceplan
 

@@ -5,7 +5,10 @@
 #ifndef SLICEPLAN_CORE_INPUT_LIMITS_H_
 #define SLICEPLAN_CORE_INPUT_LIMITS_H_
 
+#include <chrono>
 #include <cstdint>
+
+#include "absl/status/statusor.h"
 
 namespace sliceplan {
 
@@ -20,6 +23,17 @@ struct InputLimits {
 
 // Bounds on single values, so no input is near double's range by itself.
 inline constexpr double kMaxRowBytes = 1e12;
+
+// The time a search may take, from a request's deadline_seconds (0: none
+// given) and the server's maximum: min(requested, max_seconds); infinity or
+// a huge value mean "as long as the server allows". NaN or a negative value
+// is INVALID_ARGUMENT naming `field`.
+absl::StatusOr<double> AllowedSeconds(double requested, double max_seconds,
+                                      const char* field = "deadline_seconds");
+
+// now + seconds on the steady clock, without overflowing its integer
+// ticks. REQUIRES: seconds >= 0 and not NaN.
+std::chrono::steady_clock::time_point SteadyAfter(double seconds);
 
 }  // namespace sliceplan
 

@@ -27,6 +27,19 @@ bool IsRetryable(const absl::Status& status) {
   }
 }
 
+bool IsWorkerFault(const absl::Status& status) {
+  switch (status.code()) {
+    case absl::StatusCode::kUnavailable:
+    case absl::StatusCode::kInternal:
+    case absl::StatusCode::kUnknown:
+    case absl::StatusCode::kAborted:
+    case absl::StatusCode::kDataLoss:
+      return true;
+    default:
+      return false;
+  }
+}
+
 namespace {
 
 using Clock = std::chrono::steady_clock;
@@ -48,7 +61,7 @@ class Run {
         workers_(workers.begin(), workers.end()), schedule_(schedule),
         busy_(workers_.size(), 0), failed_(workers_.size()),
         solved_by_(workers_.size(), 0), attempts_of_(slice_count, 0),
-        running_of_(slice_count, 0), answers_(slice_count),
+        running_of_(slice_count, 0), faults_of_(slice_count), answers_(slice_count),
         answer_worker_(slice_count, 0) {
     for (uint32_t i = 0; i < slice_count; ++i) pending_.push_back(i);
   }
@@ -65,11 +78,19 @@ class Run {
         error_ = NoWorkerLeft();
       }
       if (!error_.ok() || done_ == count_) break;
-      const auto wake = NextWakeUp();
+      auto wake = NextWakeUp();
+      if (schedule_.cancelled) {
+        const auto poll = Clock::now() + kCancelPoll;
+        if (!wake || poll < *wake) wake = poll;
+      }
       if (wake) {
         changed_.wait_until(lock, *wake);
       } else {
         changed_.wait(lock);
+      }
+      if (schedule_.cancelled && error_.ok() && schedule_.cancelled()) {
+        error_ = absl::CancelledError(absl::StrCat("the request was cancelled with ", done_,
+                                                   " of ", count_, " slices solved"));
       }
     }
     CancelAll();
@@ -192,6 +213,14 @@ class Run {
       return std::nullopt;
     }
     failed_[a->worker] = r.status();
+    if (IsWorkerFault(r.status())) {
+      faults_of_[a->slice].push_back(
+          absl::StrCat(workers_[a->worker]->Name(), ": ", r.status().message()));
+      if (faults_of_[a->slice].size() >= kPoisonWorkers) {
+        if (error_.ok()) error_ = PoisonSlice(a->slice);
+        return std::nullopt;
+      }
+    }
     if (running_of_[a->slice] > 0) return std::nullopt;  // its twin still runs
     if (attempts_of_[a->slice] >= schedule_.max_attempts_per_slice) {
       error_ = absl::Status(r.status().code(),
@@ -225,6 +254,13 @@ class Run {
     for (const auto& a : attempts_) {
       if (!a->finished && a->call) a->call->Cancel();
     }
+  }
+
+  absl::Status PoisonSlice(uint32_t slice) const {
+    return absl::InternalError(absl::StrCat(
+        "slice ", slice, " of ", count_, " failed on ", faults_of_[slice].size(),
+        " workers (", absl::StrJoin(faults_of_[slice], "; "),
+        "); it is not sent to another worker, since it may be what brings them down"));
   }
 
   absl::Status NoWorkerLeft() const {
@@ -293,6 +329,7 @@ class Run {
   std::vector<uint32_t> solved_by_;
   std::vector<int> attempts_of_;
   std::vector<int> running_of_;
+  std::vector<std::vector<std::string>> faults_of_;  // per slice: "worker: error"
   std::vector<std::optional<absl::StatusOr<SliceResult>>> answers_;
   std::vector<size_t> answer_worker_;
   std::optional<double> best_cost_;

@@ -10,7 +10,13 @@
 //   3. an error that re-running cannot change (bad input, memo limit) ends
 //      the run at once with that error;
 //   4. every call started is finished (its `done` ran) and destroyed
-//      before Run returns.
+//      before Run returns;
+//   5. a slice whose attempts failed with a worker fault on
+//      kPoisonWorkers workers is not sent anywhere else: the run ends with
+//      INTERNAL naming the slice (a slice that crashes its worker would
+//      otherwise take the whole pool down, one worker after the other);
+//   6. a caller's cancel (ScheduleOptions::cancelled) is seen within
+//      kCancelPoll and cancels every running call.
 // Thread-safe: one Run per call, any number at once.
 #ifndef SLICEPLAN_CORE_SLICE_SCHEDULER_H_
 #define SLICEPLAN_CORE_SLICE_SCHEDULER_H_
@@ -45,7 +51,13 @@ struct ScheduleOptions {
   int max_attempts_per_slice = 3;
   // Called (without locks held) after every slice that completes.
   std::function<void(const ScheduleProgress&)> on_progress;
+  // Polled every kCancelPoll; true ends the run with CANCELLED (the
+  // caller went away or cancelled). Empty: never cancelled.
+  std::function<bool()> cancelled;
 };
+
+inline constexpr int kPoisonWorkers = 2;
+inline constexpr std::chrono::milliseconds kCancelPoll{20};
 
 struct ScheduleOutcome {
   OptimizeResult result;
@@ -71,6 +83,12 @@ absl::StatusOr<ScheduleOutcome> RunSlices(const Query& query,
 // True for errors a re-run on another worker can fix (lost or failing
 // workers); false for those every run reproduces.
 bool IsRetryable(const absl::Status& status);
+
+// True for errors that are the worker's own fault (it died, broke or sent
+// garbage), which count against the worker and toward a poison slice;
+// false for the request's own errors (bad input, memo limit, deadline,
+// cancel), which say nothing about the worker.
+bool IsWorkerFault(const absl::Status& status);
 
 }  // namespace sliceplan
 

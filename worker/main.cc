@@ -7,6 +7,8 @@
 #include "absl/flags/flag.h"
 #include "absl/flags/parse.h"
 #include "absl/flags/usage.h"
+#include "absl/flags/usage_config.h"
+#include "absl/strings/match.h"
 #include "coordinator/serve.h"
 #include "spdlog/sinks/stdout_color_sinks.h"
 #include "spdlog/spdlog.h"
@@ -15,34 +17,74 @@
 ABSL_FLAG(std::string, listen, "127.0.0.1:0", "address to serve on (port 0: any free port)");
 ABSL_FLAG(int, threads, 0, "slices solved at once (0: the machine's cores)");
 ABSL_FLAG(double, memo_limit_gib, 8.0, "per-slice memo limit in GiB");
+ABSL_FLAG(int64_t, max_request_bytes, int64_t{16} << 20, "largest request accepted, in bytes");
+ABSL_FLAG(int64_t, max_relations, 10000, "most relations per query");
+ABSL_FLAG(int64_t, max_predicates, 100000, "most predicates per query");
+ABSL_FLAG(int64_t, max_node_counts, 16, "most node counts a cluster-model request may list");
+ABSL_FLAG(int64_t, max_sample_rates, 16, "most sample rates a cluster-model request may list");
+ABSL_FLAG(double, max_deadline_seconds, 3600,
+          "longest a slice may run; a longer or absent deadline is cut to it");
+ABSL_FLAG(double, shutdown_grace_seconds, 5,
+          "on SIGTERM, how long running slices may go on before they are cancelled");
 ABSL_FLAG(double, test_only_hang_seconds, 0,
           "test-only fault: sleep this long at the start of every call");
+
+namespace {
+
+int Refuse(const std::string& message) {
+  std::cerr << "sliceplan-worker: " << message << "\n";
+  return 2;
+}
+
+}  // namespace
 
 int main(int argc, char** argv) {
   sliceplan::BlockStopSignals();
   absl::SetProgramUsageMessage("sliceplan-worker --listen=HOST:PORT [--threads=N]");
+  absl::FlagsUsageConfig usage;
+  usage.contains_help_flags = [](absl::string_view file) {
+    return absl::StrContains(file, "worker/main.cc");
+  };
+  usage.contains_helpshort_flags = usage.contains_help_flags;
+  absl::SetFlagsUsageConfig(usage);
   absl::ParseCommandLine(argc, argv);
   // Logs go to stderr: stdout carries only the listening line.
   spdlog::set_default_logger(spdlog::stderr_color_mt("sliceplan"));
+  const std::string listen = absl::GetFlag(FLAGS_listen);
+  if (auto s = sliceplan::ValidateListenAddress(listen); !s.ok()) {
+    return Refuse(std::string(s.message()));
+  }
   sliceplan::WorkerConfig config;
   config.threads = absl::GetFlag(FLAGS_threads);
   if (config.threads <= 0) {
     config.threads = static_cast<int>(std::max(1u, std::thread::hardware_concurrency()));
   }
   const double gib = absl::GetFlag(FLAGS_memo_limit_gib);
-  if (!(gib > 0)) {
-    std::cerr << "sliceplan-worker: --memo_limit_gib must be > 0\n";
-    return 2;
-  }
+  if (!(gib > 0 && gib < 1e6)) return Refuse("--memo_limit_gib must be in (0, 1e6)");
   config.memo_limit_bytes = static_cast<uint64_t>(gib * (uint64_t{1} << 30));
+  config.limits.max_relations = absl::GetFlag(FLAGS_max_relations);
+  config.limits.max_predicates = absl::GetFlag(FLAGS_max_predicates);
+  config.limits.max_query_bytes = absl::GetFlag(FLAGS_max_request_bytes);
+  config.limits.max_node_counts = absl::GetFlag(FLAGS_max_node_counts);
+  config.limits.max_sample_rates = absl::GetFlag(FLAGS_max_sample_rates);
+  config.limits.max_deadline_seconds = absl::GetFlag(FLAGS_max_deadline_seconds);
+  if (!(config.limits.max_deadline_seconds > 0 && config.limits.max_deadline_seconds <= 1e7)) {
+    return Refuse("--max_deadline_seconds: must be in (0, 1e7]");
+  }
+  const double grace = absl::GetFlag(FLAGS_shutdown_grace_seconds);
+  if (!(grace >= 0 && grace <= 3600)) return Refuse("--shutdown_grace_seconds: must be in [0, 3600]");
   config.test_hang_seconds = absl::GetFlag(FLAGS_test_only_hang_seconds);
   sliceplan::WorkerService service(config);
   spdlog::info("worker: {} threads, memo limit {:.1f} GiB{}", config.threads, gib,
                config.test_hang_seconds > 0 ? " (test fault: hanging)" : "");
-  const auto status = sliceplan::Serve(absl::GetFlag(FLAGS_listen), {&service});
+  sliceplan::ServeOptions serve;
+  serve.max_request_bytes = config.limits.max_query_bytes;
+  serve.shutdown_grace = std::chrono::milliseconds(static_cast<int64_t>(grace * 1000));
+  const auto status = sliceplan::Serve(listen, {&service}, serve);
   if (!status.ok()) {
     std::cerr << "sliceplan-worker: " << status.message() << "\n";
     return 1;
   }
+  spdlog::info("worker: stopped");
   return 0;
 }

@@ -22,15 +22,17 @@ struct Parsed {
   SliceSpec slice;
 };
 
-absl::StatusOr<Parsed> Parse(const v1::SolveSliceRequest& request,
-                             uint64_t memo_limit) {
+absl::StatusOr<Parsed> Parse(const v1::SolveSliceRequest& request, const WorkerConfig& config) {
   if (!request.has_query()) return absl::InvalidArgumentError("query: missing");
-  auto query = QueryFromProto(request.query());
+  auto query = QueryFromProto(request.query(), config.limits);
   if (!query.ok()) {
-    return absl::InvalidArgumentError(absl::StrCat("query.", query.status().message()));
+    return absl::Status(query.status().code(), absl::StrCat("query.", query.status().message()));
   }
   ASSIGN_OR_RETURN(SearchOptions options, SearchOptionsFromProto(request.options()));
-  options.memo_limit_bytes = std::min(options.memo_limit_bytes, memo_limit);
+  if (auto s = CheckOptionLimits(options, config.limits); !s.ok()) {
+    return absl::Status(s.code(), absl::StrCat("options.cluster.", s.message()));
+  }
+  options.memo_limit_bytes = std::min(options.memo_limit_bytes, config.memo_limit_bytes);
   const uint32_t count = request.slice_count();
   if (count == 0 || (count & (count - 1)) != 0) {
     return absl::InvalidArgumentError(absl::StrCat(
@@ -66,7 +68,7 @@ void WorkerService::Release() {
 grpc::Status WorkerService::SolveSlice(grpc::ServerContext* context,
                                        const v1::SolveSliceRequest* request,
                                        v1::SolveSliceResponse* response) {
-  auto parsed = Parse(*request, config_.memo_limit_bytes);
+  auto parsed = Parse(*request, config_);
   if (!parsed.ok()) return ToGrpc(parsed.status());
   if (!Acquire(context)) return grpc::Status(grpc::StatusCode::CANCELLED, "call ended");
   const auto hang_until = Clock::now() + std::chrono::duration_cast<Clock::duration>(
@@ -74,7 +76,11 @@ grpc::Status WorkerService::SolveSlice(grpc::ServerContext* context,
   while (Clock::now() < hang_until && !context->IsCancelled()) {
     std::this_thread::sleep_for(std::chrono::milliseconds(5));
   }
-  SearchControl control(nullptr, CallDeadline(context));
+  // The call's deadline, or the server's maximum if that is sooner (or the
+  // call has none): no slice runs unbounded.
+  auto deadline = SteadyAfter(config_.limits.max_deadline_seconds);
+  if (const auto call = CallDeadline(context); call && *call < deadline) deadline = *call;
+  SearchControl control(nullptr, deadline);
   control.set_cancel_check([context] { return context->IsCancelled(); });
   auto result = sliceplan::SolveSlice(parsed->query, parsed->options, parsed->slice, control);
   Release();

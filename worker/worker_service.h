@@ -11,6 +11,7 @@
 #include <mutex>
 
 #include "absl/base/thread_annotations.h"
+#include "core/input_limits.h"
 #include "sliceplan.grpc.pb.h"
 
 namespace sliceplan {
@@ -18,6 +19,7 @@ namespace sliceplan {
 struct WorkerConfig {
   int threads = 1;
   uint64_t memo_limit_bytes = uint64_t{8} << 30;
+  InputLimits limits;
   // Test-only fault: every call first sleeps this long (cancellable), so
   // tests can make a worker hang.
   double test_hang_seconds = 0;
