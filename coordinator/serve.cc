@@ -11,6 +11,7 @@
 #include "core/user_text.h"
 #include "grpcpp/ext/proto_server_reflection_plugin.h"
 #include "grpcpp/health_check_service_interface.h"
+#include "grpcpp/support/server_interceptor.h"
 
 namespace sliceplan {
 
@@ -38,6 +39,41 @@ absl::Status ValidateListenAddress(const std::string& address, const char* flag)
   return absl::OkStatus();
 }
 
+namespace {
+
+// gRPC answers a request it cannot parse (a string field holding invalid
+// UTF-8, bytes that are not the message) with INTERNAL and an empty
+// message before any handler runs, which blames the server for the
+// client's input. Our handlers never send INTERNAL without a message, so
+// that exact status is rewritten into what it means.
+class UnparsedRequestInterceptor : public grpc::experimental::Interceptor {
+ public:
+  void Intercept(grpc::experimental::InterceptorBatchMethods* methods) override {
+    if (methods->QueryInterceptionHookPoint(
+            grpc::experimental::InterceptionHookPoints::PRE_SEND_STATUS)) {
+      const grpc::Status s = methods->GetSendStatus();
+      if (s.error_code() == grpc::StatusCode::INTERNAL && s.error_message().empty()) {
+        methods->ModifySendStatus(grpc::Status(
+            grpc::StatusCode::INVALID_ARGUMENT,
+            "the request could not be parsed: a string field holds invalid UTF-8, or the "
+            "bytes are not the method's message"));
+      }
+    }
+    methods->Proceed();
+  }
+};
+
+class UnparsedRequestInterceptorFactory
+    : public grpc::experimental::ServerInterceptorFactoryInterface {
+ public:
+  grpc::experimental::Interceptor* CreateServerInterceptor(
+      grpc::experimental::ServerRpcInfo*) override {
+    return new UnparsedRequestInterceptor;
+  }
+};
+
+}  // namespace
+
 absl::Status Serve(const std::string& listen, const std::vector<grpc::Service*>& services,
                    const ServeOptions& options) {
   if (auto s = ValidateListenAddress(listen); !s.ok()) return s;
@@ -54,6 +90,9 @@ absl::Status Serve(const std::string& listen, const std::vector<grpc::Service*>&
   builder.SetMaxReceiveMessageSize(max_bytes);
   builder.SetMaxSendMessageSize(64 << 20);
   for (grpc::Service* s : services) builder.RegisterService(s);
+  std::vector<std::unique_ptr<grpc::experimental::ServerInterceptorFactoryInterface>> interceptors;
+  interceptors.push_back(std::make_unique<UnparsedRequestInterceptorFactory>());
+  builder.experimental().SetInterceptorCreators(std::move(interceptors));
   std::unique_ptr<grpc::Server> server = builder.BuildAndStart();
   if (!server || port == 0) {
     return absl::UnavailableError(absl::StrCat("cannot listen on ", listen));

@@ -6,6 +6,7 @@
 #define SLICEPLAN_CORE_INPUT_LIMITS_H_
 
 #include <chrono>
+#include <cstddef>
 #include <cstdint>
 
 #include "absl/status/statusor.h"
@@ -23,6 +24,7 @@ struct InputLimits {
 
 // Bounds on single values, so no input is near double's range by itself.
 inline constexpr double kMaxRowBytes = 1e12;
+inline constexpr size_t kMaxNameBytes = 256;  // a relation name
 
 // The time a search may take, from a request's deadline_seconds (0: none
 // given) and the server's maximum: min(requested, max_seconds); infinity or

@@ -23,6 +23,11 @@ bool PositiveFinite(double x) { return std::isfinite(x) && x > 0; }
 absl::Status CheckRelation(const Relation& rel, size_t i,
                            absl::flat_hash_set<std::string_view>& seen) {
   const std::string at = absl::StrCat("relations[", i, "]");
+  if (rel.name.size() > kMaxNameBytes) {
+    return Invalid(absl::StrCat(at, ".name"), absl::StrCat(rel.name.size(),
+                                                           " bytes; a name has at most ",
+                                                           kMaxNameBytes));
+  }
   if (!IsValidRelationName(rel.name)) {
     return Invalid(absl::StrCat(at, ".name"),
                    absl::StrCat("\"", ShortName(rel.name),

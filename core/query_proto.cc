@@ -7,6 +7,7 @@
 
 #include "absl/container/flat_hash_map.h"
 #include "absl/strings/str_cat.h"
+#include "core/json_shape.h"
 #include "core/status_macros.h"
 #include "core/user_text.h"
 #include "google/protobuf/util/json_util.h"
@@ -78,6 +79,10 @@ absl::Status CheckNames(const v1::Query& message) {
   absl::flat_hash_map<std::string_view, int> seen;
   for (int i = 0; i < message.relations_size(); ++i) {
     const std::string& name = message.relations(i).name();
+    if (name.size() > kMaxNameBytes) {
+      return absl::InvalidArgumentError(absl::StrCat("relations[", i, "].name: ", name.size(),
+                                                     " bytes; a name has at most ", kMaxNameBytes));
+    }
     if (!IsValidRelationName(name)) {
       return absl::InvalidArgumentError(absl::StrCat(
           "relations[", i, "].name: \"", ShortName(name),
@@ -142,6 +147,7 @@ absl::StatusOr<Query> ParseQueryJson(std::string_view json, const InputLimits& l
   if (!IsValidUtf8(json)) {
     return absl::InvalidArgumentError("query JSON: not valid UTF-8");
   }
+  RETURN_IF_ERROR(CheckJsonShape(json));
   v1::Query message;
   google::protobuf::util::JsonParseOptions options;
   options.ignore_unknown_fields = false;

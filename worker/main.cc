@@ -28,6 +28,8 @@ ABSL_FLAG(double, shutdown_grace_seconds, 5,
           "on SIGTERM, how long running slices may go on before they are cancelled");
 ABSL_FLAG(double, test_only_hang_seconds, 0,
           "test-only fault: sleep this long at the start of every call");
+ABSL_FLAG(int64_t, test_only_crash_on_slice, -1,
+          "test-only fault: abort the process when asked for this slice index (-1: never)");
 
 namespace {
 
@@ -74,6 +76,7 @@ int main(int argc, char** argv) {
   const double grace = absl::GetFlag(FLAGS_shutdown_grace_seconds);
   if (!(grace >= 0 && grace <= 3600)) return Refuse("--shutdown_grace_seconds: must be in [0, 3600]");
   config.test_hang_seconds = absl::GetFlag(FLAGS_test_only_hang_seconds);
+  config.test_crash_slice = absl::GetFlag(FLAGS_test_only_crash_on_slice);
   sliceplan::WorkerService service(config);
   spdlog::info("worker: {} threads, memo limit {:.1f} GiB{}", config.threads, gib,
                config.test_hang_seconds > 0 ? " (test fault: hanging)" : "");

@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <chrono>
+#include <cstdlib>
 #include <thread>
 
 #include "absl/strings/str_cat.h"
@@ -70,6 +71,7 @@ grpc::Status WorkerService::SolveSlice(grpc::ServerContext* context,
                                        v1::SolveSliceResponse* response) {
   auto parsed = Parse(*request, config_);
   if (!parsed.ok()) return ToGrpc(parsed.status());
+  if (parsed->slice.index == config_.test_crash_slice) std::abort();
   if (!Acquire(context)) return grpc::Status(grpc::StatusCode::CANCELLED, "call ended");
   const auto hang_until = Clock::now() + std::chrono::duration_cast<Clock::duration>(
                                              std::chrono::duration<double>(config_.test_hang_seconds));

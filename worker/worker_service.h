@@ -23,6 +23,9 @@ struct WorkerConfig {
   // Test-only fault: every call first sleeps this long (cancellable), so
   // tests can make a worker hang.
   double test_hang_seconds = 0;
+  // Test-only fault: the process aborts when asked for this slice index
+  // (a slice that crashes its worker); negative: never.
+  int64_t test_crash_slice = -1;
 };
 
 class WorkerService final : public v1::SliceWorker::Service {

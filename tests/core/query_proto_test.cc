@@ -103,6 +103,25 @@ const BadCase kBadCases[] = {
      R"({"relations": [{"name": "a", "rows": 1}],
          "predicates": [{"relations": ["a"], "selectivity": 0.1}]})",
      "predicates[0].relations: must name two or more"},
+    {"duplicate name used by a predicate",
+     R"({"relations": [{"name": "a", "rows": 1}, {"name": "a", "rows": 2}],
+         "predicates": [{"relations": ["a", "a"], "selectivity": 0.1}]})",
+     "relations[1].name: duplicate relation name \"a\" (also relations[0])"},
+    {"array inside the predicate list",
+     R"({"relations": [{"name": "a", "rows": 1}, {"name": "b", "rows": 1}],
+         "predicates": [{"relations": ["a", "b"], "selectivity": 0.1}, [[]]]})",
+     "predicates[1]: an array inside an array"},
+    {"null relation", R"({"relations": [{"name": "a", "rows": 1}, null]})",
+     "relations[1]: null inside an array"},
+    {"key given twice", R"({"relations": [{"name": "a", "rows": 1, "rows": 2}]})",
+     "relations[0].rows: given twice in one object"},
+    {"too deep", R"({"relations": [{"name": {"a": {"b": {"c": {"d": {"e": {"f": {"g": {"h":
+         {"i": {"j": {"k": {"l": {"m": {"n": {"o": {}}}}}}}}}}}}}}}}}]})",
+     "nested deeper than 16 levels"},
+    {"invalid UTF-8", "{\"relations\": [{\"name\": \"\xc3\x28\", \"rows\": 1}]}",
+     "query JSON: not valid UTF-8"},
+    {"row width past the bound", R"({"relations": [{"name": "a", "rows": 1, "row_bytes": 1e300}]})",
+     "relations[0] (a).row_bytes: must be a number in (0, 1e+12], got 1e+300"},
 };
 
 INSTANTIATE_TEST_SUITE_P(Files, QueryProtoBadInputTest, ::testing::ValuesIn(kBadCases));
@@ -120,6 +139,63 @@ TEST(QueryProtoTest, RefusesMoreThanSixtyFourRelations) {
                                       "takes at most 64"),
             std::string::npos)
       << q.status();
+}
+
+TEST(QueryProtoTest, LongNamesAreRefusedAndNeverEchoedWhole) {
+  const std::string name(100000, 'x');
+  auto q = ParseQueryJson(R"({"relations": [{"name": ")" + name + R"(", "rows": 1}]})");
+  ASSERT_FALSE(q.ok());
+  EXPECT_EQ(q.status().message(), "relations[0].name: 100000 bytes; a name has at most 256");
+  auto unknown = ParseQueryJson(
+      R"({"relations": [{"name": "a", "rows": 1}, {"name": "b", "rows": 1}],
+          "predicates": [{"relations": ["a", ")" + name + R"("], "selectivity": 0.1}]})");
+  ASSERT_FALSE(unknown.ok());
+  EXPECT_LT(unknown.status().message().size(), 200u) << unknown.status();
+  EXPECT_NE(unknown.status().message().find("... (100000 bytes)"), std::string::npos);
+}
+
+// Sizes are checked before anything is built from the message.
+TEST(QueryProtoTest, SizeLimitsAreResourceExhaustedWithTheNumbers) {
+  InputLimits limits;
+  limits.max_predicates = 3;
+  limits.max_query_bytes = 400;
+  std::string json = R"({"relations": [{"name": "a", "rows": 1}, {"name": "b", "rows": 1}],
+                         "predicates": [)";
+  for (int i = 0; i < 4; ++i) {
+    json += std::string(i ? "," : "") + R"({"relations": ["a", "b"], "selectivity": 0.5})";
+  }
+  json += "]}";
+  auto q = ParseQueryJson(json, limits);
+  ASSERT_FALSE(q.ok());
+  EXPECT_EQ(q.status().code(), absl::StatusCode::kResourceExhausted);
+  EXPECT_EQ(q.status().message(), "predicates: 4 predicates given; the limit is 3");
+  limits.max_query_bytes = 100;
+  q = ParseQueryJson(json, limits);
+  ASSERT_FALSE(q.ok());
+  EXPECT_EQ(q.status().code(), absl::StatusCode::kResourceExhausted);
+  EXPECT_NE(q.status().message().find("bytes; the limit is 100"), std::string::npos);
+  limits.max_relations = 1;
+  v1::Query two;
+  two.add_relations()->set_name("a");
+  two.add_relations()->set_name("b");
+  auto r = QueryFromProto(two, limits);
+  ASSERT_FALSE(r.ok());
+  EXPECT_EQ(r.status().message(), "relations: 2 relations given; the limit is 1");
+}
+
+// Four predicates over {a, b} of selectivity 0.5 apply together: one of
+// 0.0625, so card(a b) = 10 * 10 * 0.0625 = 6.25 either way.
+TEST(QueryProtoTest, PredicatesOverOneSetAreMergedIntoOne) {
+  std::string json = R"({"relations": [{"name": "a", "rows": 10}, {"name": "b", "rows": 10}],
+                         "predicates": [)";
+  for (int i = 0; i < 4; ++i) {
+    json += std::string(i ? "," : "") + R"({"relations": ["b", "a"], "selectivity": 0.5})";
+  }
+  json += "]}";
+  auto q = ParseQueryJson(json);
+  ASSERT_TRUE(q.ok()) << q.status();
+  ASSERT_EQ(q->predicates().size(), 1u);
+  EXPECT_EQ(q->predicates()[0].selectivity, 0.0625);
 }
 
 TEST(QueryProtoTest, MissingFileIsNotFoundWithThePath) {

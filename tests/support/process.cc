@@ -6,6 +6,13 @@
 #include <sys/wait.h>
 #include <unistd.h>
 
+#include <filesystem>
+#include <fstream>
+#include <iterator>
+#include <set>
+#include <sstream>
+#include <thread>
+
 #include "absl/strings/str_cat.h"
 
 namespace sliceplan::testing {
@@ -55,6 +62,62 @@ void ServerProcess::Signal(int sig) {
     waitpid(pid_, nullptr, 0);
     reaped_ = true;
   }
+}
+
+absl::StatusOr<int> ServerProcess::WaitExit(std::chrono::milliseconds timeout) {
+  const auto end = std::chrono::steady_clock::now() + timeout;
+  while (!reaped_) {
+    int status = 0;
+    if (waitpid(pid_, &status, WNOHANG) == pid_) {
+      reaped_ = true;
+      return WIFEXITED(status) ? WEXITSTATUS(status) : 128 + WTERMSIG(status);
+    }
+    if (std::chrono::steady_clock::now() >= end) {
+      return absl::DeadlineExceededError("still running");
+    }
+    std::this_thread::sleep_for(std::chrono::milliseconds(10));
+  }
+  return absl::FailedPreconditionError("already reaped");
+}
+
+double ServerProcess::CpuSeconds() const {
+  std::ifstream in(absl::StrCat("/proc/", pid_, "/stat"));
+  std::string text((std::istreambuf_iterator<char>(in)), std::istreambuf_iterator<char>());
+  // Fields after the parenthesised command name; utime and stime are the
+  // 14th and 15th fields of the whole line (proc(5)).
+  std::istringstream rest(text.substr(text.rfind(')') + 2));
+  std::string field;
+  double ticks = 0;
+  for (int i = 3; i <= 15 && rest >> field; ++i) {
+    if (i >= 14) ticks += std::stod(field);
+  }
+  return ticks / static_cast<double>(sysconf(_SC_CLK_TCK));
+}
+
+std::vector<int> ServerProcess::ListeningPorts() const {
+  std::set<std::string> inodes;
+  const std::string fd_dir = absl::StrCat("/proc/", pid_, "/fd");
+  for (const auto& entry : std::filesystem::directory_iterator(fd_dir)) {
+    std::error_code ec;
+    const std::string target = std::filesystem::read_symlink(entry.path(), ec).string();
+    if (!ec && target.rfind("socket:[", 0) == 0) {
+      inodes.insert(target.substr(8, target.size() - 9));
+    }
+  }
+  std::vector<int> ports;
+  for (const char* table : {"/proc/net/tcp", "/proc/net/tcp6"}) {
+    std::ifstream in(table);
+    std::string line;
+    std::getline(in, line);  // header
+    while (std::getline(in, line)) {
+      std::istringstream f(line);
+      std::string slot, local, remote, state, queues, timer, retr, uid, timeout, inode;
+      f >> slot >> local >> remote >> state >> queues >> timer >> retr >> uid >> timeout >> inode;
+      if (state != "0A" || inodes.count(inode) == 0) continue;  // 0A: LISTEN
+      ports.push_back(std::stoi(local.substr(local.rfind(':') + 1), nullptr, 16));
+    }
+  }
+  return ports;
 }
 
 ServerProcess::~ServerProcess() {

@@ -27,6 +27,15 @@ class ServerProcess {
   const std::string& address() const { return address_; }
   // Sends `sig` (e.g. SIGKILL) and, for SIGKILL, waits for the exit.
   void Signal(int sig);
+  // Waits up to `timeout` for the process to exit; its exit status (or
+  // 128 + signal), or DEADLINE_EXCEEDED while it still runs.
+  absl::StatusOr<int> WaitExit(std::chrono::milliseconds timeout);
+  // User plus system CPU time so far, from /proc/PID/stat.
+  double CpuSeconds() const;
+  // The TCP ports it listens on, from /proc (its socket inodes matched
+  // against the kernel's listening sockets, IPv4 and IPv6).
+  std::vector<int> ListeningPorts() const;
+  pid_t pid() const { return pid_; }
 
  private:
   ServerProcess(pid_t pid, int out) : pid_(pid), out_(out) {}

@@ -1,0 +1,338 @@
+// The service probed as a careless or hostile client would: each test is
+// one reproducer of a defect found that way, and asserts what the service
+// must do instead (a precise refusal, work that stops, one socket, a pool
+// that survives). Real worker and coordinator processes on loopback.
+#include <signal.h>
+
+#include <chrono>
+#include <cmath>
+#include <cstdio>
+#include <limits>
+#include <thread>
+
+#include "cli/rpc_client.h"
+#include "core/query_proto.h"
+#include "gtest/gtest.h"
+#include "grpcpp/grpcpp.h"
+#include "sliceplan.grpc.pb.h"
+#include "tests/support/process.h"
+#include "tests/support/test_queries.h"
+
+namespace sliceplan {
+namespace {
+
+using namespace std::chrono_literals;
+using testing::GraphShape;
+using testing::ServerProcess;
+using Clock = std::chrono::steady_clock;
+
+std::unique_ptr<ServerProcess> StartWorker(std::vector<std::string> extra = {}) {
+  std::vector<std::string> argv = {SLICEPLAN_WORKER_BIN, "--listen=127.0.0.1:0", "--threads=1"};
+  argv.insert(argv.end(), extra.begin(), extra.end());
+  auto p = ServerProcess::Start(argv);
+  EXPECT_TRUE(p.ok()) << p.status();
+  return p.ok() ? *std::move(p) : nullptr;
+}
+
+struct Cluster {
+  std::vector<std::unique_ptr<ServerProcess>> workers;
+  std::unique_ptr<ServerProcess> coordinator;
+  std::unique_ptr<v1::Coordinator::Stub> stub;
+};
+
+Cluster StartCluster(int n, std::vector<std::string> worker_flags = {},
+                     std::vector<std::string> coordinator_flags = {}) {
+  Cluster c;
+  std::string list;
+  for (int i = 0; i < n; ++i) {
+    c.workers.push_back(StartWorker(worker_flags));
+    if (!c.workers.back()) return c;
+    list += (list.empty() ? "" : ",") + c.workers.back()->address();
+  }
+  std::vector<std::string> argv = {SLICEPLAN_COORDINATOR_BIN, "--listen=127.0.0.1:0",
+                                   "--workers=" + list, "--health_interval_ms=200"};
+  argv.insert(argv.end(), coordinator_flags.begin(), coordinator_flags.end());
+  auto p = ServerProcess::Start(argv);
+  EXPECT_TRUE(p.ok()) << p.status();
+  if (!p.ok()) return c;
+  c.coordinator = *std::move(p);
+  c.stub = v1::Coordinator::NewStub(
+      grpc::CreateChannel(c.coordinator->address(), grpc::InsecureChannelCredentials()));
+  return c;
+}
+
+double PoolCpu(const Cluster& c) {
+  double total = 0;
+  for (const auto& w : c.workers) total += w->CpuSeconds();
+  return total;
+}
+
+// CPU the workers burn over `window` once `settle` has passed: about zero
+// when every slice stopped.
+double CpuAfter(const Cluster& c, std::chrono::milliseconds settle,
+                std::chrono::milliseconds window = 1000ms) {
+  std::this_thread::sleep_for(settle);
+  const double before = PoolCpu(c);
+  std::this_thread::sleep_for(window);
+  return PoolCpu(c) - before;
+}
+
+v1::OptimizeRequest Request(const Query& q, uint32_t p = 0) {
+  v1::OptimizeRequest r;
+  *r.mutable_query() = QueryToProto(q);
+  r.set_slice_count(p);
+  return r;
+}
+
+grpc::Status Optimize(const Cluster& c, const v1::OptimizeRequest& request,
+                      std::chrono::milliseconds timeout = 20s, v1::OptimizeResponse* out = nullptr) {
+  grpc::ClientContext context;
+  context.set_deadline(std::chrono::system_clock::now() + timeout);
+  v1::OptimizeResponse ignored;
+  return c.stub->Optimize(&context, request, out ? out : &ignored);
+}
+
+// 3^22 / 2 splits: minutes of work, so only a cancel or deadline ends it.
+Query Endless() { return testing::MakeQuery(GraphShape::kRandom, 22, 3); }
+
+TEST(HostileClientTest, EachServerListensOnExactlyTheAnnouncedPort) {
+  Cluster c = StartCluster(1);
+  ASSERT_TRUE(c.coordinator);
+  for (const ServerProcess* s : {c.workers[0].get(), c.coordinator.get()}) {
+    const int announced = std::stoi(s->address().substr(s->address().rfind(':') + 1));
+    EXPECT_EQ(s->ListeningPorts(), std::vector<int>{announced}) << s->address();
+  }
+}
+
+TEST(HostileClientTest, PortOutsideTheRangeIsRefusedAtStart) {
+  for (const std::string& bin : {std::string(SLICEPLAN_WORKER_BIN),
+                                std::string(SLICEPLAN_COORDINATOR_BIN) + " --workers=127.0.0.1:1"}) {
+    const std::string cmd = bin + " --listen=127.0.0.1:99999 2>&1";
+    FILE* out = popen(cmd.c_str(), "r");
+    ASSERT_NE(out, nullptr);
+    char buf[512] = {};
+    const size_t n = fread(buf, 1, sizeof buf - 1, out);
+    const int status = pclose(out);
+    EXPECT_EQ(WEXITSTATUS(status), 2) << bin;
+    EXPECT_NE(std::string(buf, n).find("port past 65535"), std::string::npos) << buf;
+  }
+}
+
+TEST(HostileClientTest, CancelledStreamStopsEveryWorker) {
+  Cluster c = StartCluster(2);
+  ASSERT_TRUE(c.coordinator);
+  grpc::ClientContext context;
+  auto reader = c.stub->OptimizeStream(&context, Request(Endless(), 4));
+  std::thread cancel([&] {
+    std::this_thread::sleep_for(1500ms);
+    context.TryCancel();
+  });
+  v1::OptimizeEvent event;
+  while (reader->Read(&event)) {
+  }
+  EXPECT_EQ(reader->Finish().error_code(), grpc::StatusCode::CANCELLED);
+  cancel.join();
+  // Cancelled within a second: the pool is idle from then on.
+  EXPECT_LT(CpuAfter(c, 1000ms), 0.1);
+}
+
+TEST(HostileClientTest, CancelledUnaryCallStopsEveryWorker) {
+  Cluster c = StartCluster(2);
+  ASSERT_TRUE(c.coordinator);
+  grpc::ClientContext context;
+  v1::OptimizeResponse out;
+  std::thread cancel([&] {
+    std::this_thread::sleep_for(1000ms);
+    context.TryCancel();
+  });
+  EXPECT_EQ(c.stub->Optimize(&context, Request(Endless(), 2), &out).error_code(),
+            grpc::StatusCode::CANCELLED);
+  cancel.join();
+  EXPECT_LT(CpuAfter(c, 1000ms), 0.1);
+}
+
+TEST(HostileClientTest, ManyObjectiveSearchStopsAtItsDeadline) {
+  Cluster c = StartCluster(2);
+  ASSERT_TRUE(c.coordinator);
+  auto query = ReadQueryFile(std::string(SLICEPLAN_SOURCE_DIR) + "/examples/port_calls_small.json");
+  ASSERT_TRUE(query.ok()) << query.status();
+  v1::OptimizeRequest r = Request(*query, 1);
+  r.mutable_options()->set_cost(v1::COST_MODEL_CLUSTER);
+  for (uint32_t m = 1; m <= 16; ++m) r.mutable_options()->mutable_cluster()->add_node_counts(m);
+  for (double f : {1.0, 0.5, 0.25, 0.1, 0.05}) {
+    r.mutable_options()->mutable_cluster()->add_sample_rates(f);
+  }
+  r.set_deadline_seconds(2);
+  const auto start = Clock::now();
+  const grpc::Status s = Optimize(c, r);
+  EXPECT_EQ(s.error_code(), grpc::StatusCode::DEADLINE_EXCEEDED) << s.error_message();
+  EXPECT_LT(Clock::now() - start, 3s);
+  EXPECT_LT(CpuAfter(c, 500ms), 0.1);
+  // The pool is free again: a small query is answered at once.
+  EXPECT_TRUE(Optimize(c, Request(testing::MakeQuery(GraphShape::kChain, 4, 1)), 5s).ok());
+
+  // A thousand node counts would multiply the work by a thousand: refused.
+  for (uint32_t m = 17; m <= 1000; ++m) r.mutable_options()->mutable_cluster()->add_node_counts(m);
+  const grpc::Status refused = Optimize(c, r);
+  EXPECT_EQ(refused.error_code(), grpc::StatusCode::RESOURCE_EXHAUSTED);
+  EXPECT_NE(refused.error_message().find("node_counts: 1000 given; the limit is 16"),
+            std::string::npos)
+      << refused.error_message();
+}
+
+TEST(HostileClientTest, DeadlineValuesAreCheckedOrCut) {
+  Cluster c = StartCluster(1);
+  ASSERT_TRUE(c.coordinator);
+  const Query q = testing::MakeQuery(GraphShape::kChain, 6, 1);
+  for (double bad : {std::nan(""), -1.0}) {
+    v1::OptimizeRequest r = Request(q);
+    r.set_deadline_seconds(bad);
+    const grpc::Status s = Optimize(c, r);
+    EXPECT_EQ(s.error_code(), grpc::StatusCode::INVALID_ARGUMENT) << bad;
+    EXPECT_NE(s.error_message().find("deadline_seconds: must be a number >= 0"),
+              std::string::npos)
+        << s.error_message();
+  }
+  for (double huge : {std::numeric_limits<double>::infinity(), 1e308}) {
+    v1::OptimizeRequest r = Request(q, 2);
+    r.set_deadline_seconds(huge);
+    const grpc::Status s = Optimize(c, r);
+    EXPECT_TRUE(s.ok()) << huge << ": " << s.error_message();
+  }
+}
+
+TEST(HostileClientTest, SliceThatKillsWorkersIsRefusedNamingIt) {
+  Cluster c = StartCluster(3, {"--test_only_crash_on_slice=1"});
+  ASSERT_TRUE(c.coordinator);
+  const grpc::Status s = Optimize(c, Request(testing::MakeQuery(GraphShape::kChain, 10, 1), 2));
+  EXPECT_EQ(s.error_code(), grpc::StatusCode::INTERNAL) << s.error_message();
+  EXPECT_NE(s.error_message().find("slice 1 of 2 failed on 2 workers"), std::string::npos)
+      << s.error_message();
+  int alive = 0;
+  for (const auto& w : c.workers) alive += !w->WaitExit(100ms).ok();
+  EXPECT_EQ(alive, 1);  // the slice went to two workers, never the third
+  // The survivor still serves what does not crash it.
+  EXPECT_TRUE(Optimize(c, Request(testing::MakeQuery(GraphShape::kChain, 10, 1), 1)).ok());
+}
+
+TEST(HostileClientTest, SigtermDeliversTheRunningAnswerAndExits) {
+  Cluster c = StartCluster(2, {}, {"--shutdown_grace_seconds=8"});
+  ASSERT_TRUE(c.coordinator);
+  // About 5.8e8 splits at P = 2: a second or two, inside the grace period.
+  const Query q = testing::MakeQuery(GraphShape::kRandom, 19, 5);
+  std::thread stop([&] {
+    std::this_thread::sleep_for(500ms);
+    c.coordinator->Signal(SIGTERM);
+  });
+  v1::OptimizeResponse out;
+  const grpc::Status s = Optimize(c, Request(q, 2), 30s, &out);
+  stop.join();
+  EXPECT_TRUE(s.ok()) << s.error_message();
+  EXPECT_GT(out.plan().nodes_size(), 0);
+  EXPECT_TRUE(out.proven_optimal());
+  auto exit = c.coordinator->WaitExit(3s);
+  ASSERT_TRUE(exit.ok()) << exit.status();
+  EXPECT_EQ(*exit, 0);
+}
+
+TEST(HostileClientTest, SigtermStopsAWorkerMidSliceWithinTheGrace) {
+  auto w = StartWorker({"--shutdown_grace_seconds=1"});
+  ASSERT_TRUE(w);
+  auto stub = v1::SliceWorker::NewStub(
+      grpc::CreateChannel(w->address(), grpc::InsecureChannelCredentials()));
+  v1::SolveSliceRequest r;
+  *r.mutable_query() = QueryToProto(Endless());
+  r.set_slice_count(1);
+  std::thread call([&] {
+    grpc::ClientContext context;
+    v1::SolveSliceResponse out;
+    stub->SolveSlice(&context, r, &out);
+  });
+  std::this_thread::sleep_for(500ms);
+  const auto start = Clock::now();
+  w->Signal(SIGTERM);
+  auto exit = w->WaitExit(4s);
+  call.join();
+  ASSERT_TRUE(exit.ok()) << exit.status();
+  EXPECT_EQ(*exit, 0);
+  EXPECT_LT(Clock::now() - start, 2500ms);
+}
+
+TEST(HostileClientTest, BadValuesGetMessagesThatSayWhatIsWrong) {
+  Cluster c = StartCluster(1);
+  ASSERT_TRUE(c.coordinator);
+  const v1::Query base = QueryToProto(testing::MakeQuery(GraphShape::kChain, 4, 1));
+  const auto expect = [&](const v1::OptimizeRequest& r, grpc::StatusCode code,
+                          const std::string& text) {
+    const grpc::Status s = Optimize(c, r);
+    EXPECT_EQ(s.error_code(), code) << s.error_message();
+    EXPECT_NE(s.error_message().find(text), std::string::npos) << s.error_message();
+    EXPECT_LT(s.error_message().size(), 400u);
+  };
+  v1::OptimizeRequest r;
+  *r.mutable_query() = base;
+  r.mutable_query()->mutable_relations(0)->set_name(std::string(100000, 'x'));
+  expect(r, grpc::StatusCode::INVALID_ARGUMENT,
+         "relations[0].name: 100000 bytes; a name has at most 256");
+  r.mutable_query()->mutable_relations(0)->set_name(std::string(100000, '-'));
+  expect(r, grpc::StatusCode::INVALID_ARGUMENT, "relations[0].name: 100000 bytes");
+
+  *r.mutable_query() = base;
+  r.mutable_query()->mutable_relations(0)->set_name("\xff\xfe");
+  // Sent as raw bytes: the client library does not check UTF-8.
+  expect(r, grpc::StatusCode::INVALID_ARGUMENT, "invalid UTF-8");
+
+  *r.mutable_query() = base;
+  r.mutable_options()->set_cost(v1::COST_MODEL_CLUSTER);
+  r.mutable_options()->mutable_cluster()->add_node_counts(4294967295u);
+  expect(r, grpc::StatusCode::INVALID_ARGUMENT, "got 4294967295");
+
+  r = v1::OptimizeRequest();
+  *r.mutable_query() = base;
+  r.mutable_query()->mutable_relations(1)->set_name(base.relations(0).name());
+  expect(r, grpc::StatusCode::INVALID_ARGUMENT, "relations[1].name: duplicate relation name");
+
+  r = v1::OptimizeRequest();
+  *r.mutable_query() = base;
+  r.mutable_options()->set_alpha(0.5);
+  expect(r, grpc::StatusCode::INVALID_ARGUMENT, "options.alpha: only the cluster model");
+
+  r = v1::OptimizeRequest();
+  *r.mutable_query() = base;
+  r.mutable_options()->set_cost(v1::COST_MODEL_CLUSTER);
+  r.mutable_options()->set_prefer("weights:latency_s=1,latency_s=2");
+  expect(r, grpc::StatusCode::INVALID_ARGUMENT, "latency_s is weighted twice");
+}
+
+TEST(HostileClientTest, OversizedQueriesAreRefusedBeforeTheyGrow) {
+  Cluster c = StartCluster(1);
+  ASSERT_TRUE(c.coordinator);
+  v1::OptimizeRequest r = Request(testing::MakeQuery(GraphShape::kChain, 12, 1));
+  const v1::Predicate p = r.query().predicates(0);
+  for (int i = 0; i < 100001; ++i) *r.mutable_query()->add_predicates() = p;
+  grpc::Status s = Optimize(c, r);
+  EXPECT_EQ(s.error_code(), grpc::StatusCode::RESOURCE_EXHAUSTED) << s.error_message();
+  EXPECT_NE(s.error_message().find("predicates given; the limit is 100000"), std::string::npos)
+      << s.error_message();
+  // Past the request byte limit gRPC refuses it before it is parsed.
+  for (int i = 0; i < 600000; ++i) *r.mutable_query()->add_predicates() = p;
+  s = Optimize(c, r);
+  EXPECT_EQ(s.error_code(), grpc::StatusCode::RESOURCE_EXHAUSTED) << s.error_message();
+}
+
+TEST(HostileClientTest, RefusedRequestsAreNotCountedAgainstWorkers) {
+  Cluster c = StartCluster(1, {"--memo_limit_gib=0.001"});
+  ASSERT_TRUE(c.coordinator);
+  const grpc::Status s = Optimize(c, Request(testing::MakeQuery(GraphShape::kChain, 20, 1), 1));
+  EXPECT_EQ(s.error_code(), grpc::StatusCode::RESOURCE_EXHAUSTED) << s.error_message();
+  grpc::ClientContext context;
+  v1::ListWorkersResponse pool;
+  ASSERT_TRUE(c.stub->ListWorkers(&context, v1::ListWorkersRequest(), &pool).ok());
+  ASSERT_EQ(pool.workers_size(), 1);
+  EXPECT_EQ(pool.workers(0).failures(), 0u);
+  EXPECT_EQ(pool.workers(0).last_error(), "");
+  EXPECT_TRUE(pool.workers(0).healthy());
+}
+
+}  // namespace
+}  // namespace sliceplan
