@@ -1,6 +1,7 @@
 #include "core/dense_layout.h"
 
 #include <array>
+#include <bit>
 
 namespace sliceplan {
 namespace {
@@ -54,6 +55,19 @@ DenseLayout::DenseLayout(int n, const SliceConstraints& constraints)
       l = (l - p) & p;
     } while (l != 0);
   }
+  // The symmetric order keeps a split when the left pattern is at most the
+  // right one as an integer; disjoint parts differ first at the pattern's
+  // top bit, so that is when the right part holds the top bit of the top
+  // non-zero digit. Those splits of each digit value, in the same order:
+  digit_splits_top_.resize(radix_);
+  for (int v = 0; v < radix_; ++v) {
+    const RelSet p = pairs ? kPairPatterns[v] : kTriplePatterns[v];
+    const RelSet top = p == 0 ? 0 : RelSet{1} << (63 - std::countl_zero(p));
+    for (const auto& [vl, vr] : digit_splits_[v]) {
+      const RelSet right = pairs ? kPairPatterns[vr] : kTriplePatterns[vr];
+      if ((right & top) == top) digit_splits_top_[v].emplace_back(vl, vr);
+    }
+  }
   block_count_ = 1;
   for (int j = 0; j < digits_; ++j) {
     place_.push_back(block_count_);
@@ -95,29 +109,10 @@ bool DenseLayout::Admissible(RelSet s) const { return PatternAdmissible(s >> f_)
 void DenseLayout::BlockSplits(uint64_t b, bool symmetric,
                               std::vector<BlockSplit>& out) const {
   out.clear();
-  // The splits of a block are the product of its digits' splits: walk
-  // them like an odometer, summing the digits' places into block numbers.
-  std::vector<uint64_t> digit(digits_);
-  std::vector<size_t> choice(digits_, 0);
-  uint64_t rest = b;
-  for (int j = 0; j < digits_; ++j) {
-    digit[j] = rest % static_cast<uint64_t>(radix_);
-    rest /= static_cast<uint64_t>(radix_);
-  }
-  for (;;) {
-    uint64_t left = 0, right = 0;
-    for (int j = 0; j < digits_; ++j) {
-      const auto [vl, vr] = digit_splits_[digit[j]][choice[j]];
-      left += vl * place_[j];
-      right += vr * place_[j];
-    }
-    if (!symmetric || patterns_[left] <= patterns_[right]) {
-      out.push_back({static_cast<uint32_t>(left), static_cast<uint32_t>(right)});
-    }
-    int j = 0;
-    while (j < digits_ && ++choice[j] == digit_splits_[digit[j]].size()) choice[j++] = 0;
-    if (j == digits_) return;
-  }
+  FoldBlockSplits(b, symmetric, 0, [&out](int, uint32_t left, uint32_t right) {
+    out.push_back({left, right});
+    return 0;
+  });
 }
 
 void DenseLayout::BlockRemovals(uint64_t b, std::vector<BlockRemoval>& out) const {

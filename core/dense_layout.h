@@ -72,6 +72,11 @@ class DenseLayout {
   // orders, or (symmetric) one order per unordered pair with left <= right
   // pattern. Written into `out`, which is cleared first.
   void BlockSplits(uint64_t b, bool symmetric, std::vector<BlockSplit>& out) const;
+  // The same splits in the same order, folded: acc = fn(acc, left, right)
+  // per split, with nothing stored. For slices with no free relations,
+  // where each block holds one set and its splits are used once.
+  template <class Acc, class Fn>
+  Acc FoldBlockSplits(uint64_t b, bool symmetric, Acc acc, Fn&& fn) const;
   // The constrained relations removable from block b's pattern.
   void BlockRemovals(uint64_t b, std::vector<BlockRemoval>& out) const;
 
@@ -92,8 +97,71 @@ class DenseLayout {
   std::vector<int8_t> digit_value_;  // local pattern -> digit value or -1
   // digit value -> its splits into two allowed digit values (left, right)
   std::vector<std::vector<std::pair<uint8_t, uint8_t>>> digit_splits_;
+  // the same, only those whose right part holds the value's top bit
+  std::vector<std::vector<std::pair<uint8_t, uint8_t>>> digit_splits_top_;
   std::vector<uint64_t> place_;      // radix^j
 };
+
+template <class Acc, class Fn>
+Acc DenseLayout::FoldBlockSplits(uint64_t b, bool symmetric, Acc acc, Fn&& fn) const {
+  // The splits of a block are the product of its digits' splits, digit 0
+  // varying fastest. The lowest digits' product is flattened into a short
+  // table of (left, right) offsets, walked in a tight inner loop; the other
+  // digits advance like an odometer, each step changing the two block
+  // numbers by the digit's change times its place.
+  using Choices = std::vector<std::pair<uint8_t, uint8_t>>;
+  constexpr size_t kInner = 64;
+  const Choices* lists[kMaxRelations];
+  uint32_t choice[kMaxRelations];
+  uint64_t rest = b;
+  int top = -1;  // the most significant non-zero digit
+  for (int j = 0; j < digits_; ++j) {
+    const uint64_t v = rest % static_cast<uint64_t>(radix_);
+    rest /= static_cast<uint64_t>(radix_);
+    lists[j] = &digit_splits_[v];
+    choice[j] = 0;
+    if (v != 0) top = j;
+  }
+  if (symmetric && top >= 0) {
+    lists[top] = &digit_splits_top_[(b / place_[top]) % static_cast<uint64_t>(radix_)];
+  }
+  uint32_t inner_l[kInner], inner_r[kInner];
+  size_t inner = 1;
+  inner_l[0] = inner_r[0] = 0;
+  int d = 0;  // digits below d are flattened
+  for (; d < digits_ && inner * lists[d]->size() <= kInner; ++d) {
+    const Choices& list = *lists[d];
+    const auto place = static_cast<uint32_t>(place_[d]);
+    for (size_t c = list.size(); c-- > 0;) {  // choice c's block of entries
+      for (size_t e = 0; e < inner; ++e) {
+        inner_l[c * inner + e] = inner_l[e] + list[c].first * place;
+        inner_r[c * inner + e] = inner_r[e] + list[c].second * place;
+      }
+    }
+    inner *= list.size();
+  }
+  int64_t left = 0, right = 0;
+  for (int j = d; j < digits_; ++j) {
+    left += static_cast<int64_t>((*lists[j])[0].first * place_[j]);
+    right += static_cast<int64_t>((*lists[j])[0].second * place_[j]);
+  }
+  for (;;) {
+    const auto base_l = static_cast<uint32_t>(left), base_r = static_cast<uint32_t>(right);
+    for (size_t e = 0; e < inner; ++e) acc = fn(acc, base_l + inner_l[e], base_r + inner_r[e]);
+    int j = d;
+    for (; j < digits_; ++j) {
+      const Choices& list = *lists[j];
+      const auto [old_l, old_r] = list[choice[j]];
+      choice[j] = choice[j] + 1 == list.size() ? 0 : choice[j] + 1;
+      const auto [new_l, new_r] = list[choice[j]];
+      const auto place = static_cast<int64_t>(place_[j]);
+      left += (int64_t{new_l} - old_l) * place;
+      right += (int64_t{new_r} - old_r) * place;
+      if (choice[j] != 0) break;  // no carry into the next digit
+    }
+    if (j == digits_) return acc;
+  }
+}
 
 }  // namespace sliceplan
 

@@ -3,6 +3,10 @@
 // limit.
 #include "core/slice_planner.h"
 
+#include <bit>
+#include <cmath>
+
+#include "core/search_estimate.h"
 #include "gtest/gtest.h"
 #include "tests/support/test_queries.h"
 
@@ -37,6 +41,28 @@ TEST(SlicePlannerTest, MemoLimitForcesMoreSlices) {
   // = 147 MiB.
   options.memo_limit_bytes = uint64_t{150} << 20;
   EXPECT_EQ(ChooseSliceCount(q, options, 1), 4u);
+}
+
+// The planner's model of wall time: ceil(P / W) rounds of one slice's
+// splits. The P it picks is never predicted slower than a smaller P on the
+// same pool (an over-sliced run did 16 times the work of P = 16 once).
+TEST(SlicePlannerTest, NeverPicksAPSlowerThanASmallerOne) {
+  const auto predicted = [](int n, PlanShape shape, int k, int w) {
+    return std::ceil(std::ldexp(1.0, k) / w) * DenseSplits(n, shape, k, true);
+  };
+  for (PlanShape shape : {PlanShape::kBushy, PlanShape::kLeftDeep}) {
+    for (int n : {14, 18, 21, 24}) {
+      const Query q = testing::MakeQuery(GraphShape::kChain, n, 1);
+      for (int w : {1, 2, 3, 8, 64, 1024}) {
+        const uint32_t p = ChooseSliceCount(q, {shape, true, CostModelKind::kCout}, w);
+        const int k = std::countr_zero(p);
+        for (int smaller = 0; smaller < k; ++smaller) {
+          EXPECT_LT(predicted(n, shape, k, w), predicted(n, shape, smaller, w))
+              << "n=" << n << " W=" << w << " P=" << p << " vs " << (1 << smaller);
+        }
+      }
+    }
+  }
 }
 
 TEST(SlicePlannerTest, LargeConnectedSearchGetsASlicePerWorker) {
