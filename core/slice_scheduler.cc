@@ -1,13 +1,17 @@
 #include "core/slice_scheduler.h"
 
 #include <algorithm>
+#include <bit>
+#include <cmath>
 #include <condition_variable>
 #include <deque>
 #include <memory>
 #include <mutex>
 
 #include "absl/strings/str_cat.h"
+#include "absl/strings/str_format.h"
 #include "absl/strings/str_join.h"
+#include "core/search_estimate.h"
 #include "core/status_macros.h"
 
 namespace sliceplan {
@@ -344,12 +348,40 @@ class Run {
 
 }  // namespace
 
+absl::Status CheckCanFinish(const Query& query, const SearchOptions& options,
+                            uint32_t slice_count, std::span<SliceWorker* const> workers,
+                            const ScheduleOptions& schedule) {
+  if (!schedule.deadline || schedule.partial_on_deadline || !options.cross_products) {
+    return absl::OkStatus();
+  }
+  int slots = 0;
+  for (SliceWorker* w : workers) slots += w->Healthy() ? w->Slots() : 0;
+  if (slots == 0) return absl::OkStatus();  // the run reports the pool
+  const int k = std::countr_zero(slice_count);
+  double per_split = kFastestSplitSeconds;
+  if (options.cost == CostModelKind::kCluster) {
+    per_split *= 3.0 * static_cast<double>(options.cluster.params.node_counts.size());
+  }
+  const double rounds = std::ceil(static_cast<double>(slice_count) / slots);
+  const double splits = DenseSplits(query.size(), options.shape, k, true);
+  const double at_least = rounds * splits * per_split;
+  const double allowed =
+      std::chrono::duration<double>(*schedule.deadline - Clock::now()).count();
+  if (at_least <= allowed) return absl::OkStatus();
+  return absl::DeadlineExceededError(absl::StrFormat(
+      "refused up front: %u slices of %.3g splits each on %d worker slots need at least "
+      "%.3g s, and the deadline allows %.3g s; use more workers, a later deadline, or "
+      "partial_on_deadline",
+      slice_count, splits, slots, at_least, std::max(0.0, allowed)));
+}
+
 absl::StatusOr<ScheduleOutcome> RunSlices(const Query& query,
                                           const SearchOptions& options,
                                           uint32_t slice_count,
                                           std::span<SliceWorker* const> workers,
                                           const ScheduleOptions& schedule) {
   RETURN_IF_ERROR(ValidateSlice({0, slice_count}, query.size(), options.shape));
+  RETURN_IF_ERROR(CheckCanFinish(query, options, slice_count, workers, schedule));
   return Run(query, options, slice_count, workers, schedule).Execute();
 }
 

@@ -148,6 +148,66 @@ TEST(SliceSchedulerTest, ErrorThatRerunsReproduceEndsTheRun) {
   EXPECT_EQ(out.status().code(), absl::StatusCode::kResourceExhausted);
 }
 
+// A slice whose attempts bring workers down is sent to two, never a third.
+TEST(SliceSchedulerTest, PoisonSliceEndsTheRunAfterTwoWorkers) {
+  const Query q = TestQuery();
+  FaultyWorker a("a", absl::UnavailableError("socket closed"), 5ms);
+  FaultyWorker b("b", absl::UnavailableError("socket closed"), 5ms);
+  FaultyWorker c("c", absl::UnavailableError("socket closed"), 5ms);
+  SliceWorker* workers[] = {&a, &b, &c};
+  auto out = RunSlices(q, {}, 1, workers, {});
+  ASSERT_FALSE(out.ok());
+  EXPECT_EQ(out.status().code(), absl::StatusCode::kInternal);
+  EXPECT_NE(out.status().message().find("slice 0 of 1 failed on 2 workers (a: socket closed; "
+                                        "b: socket closed)"),
+            std::string::npos)
+      << out.status();
+  EXPECT_EQ(a.calls + b.calls + c.calls, 2);
+}
+
+TEST(SliceSchedulerTest, CallerCancelStopsEveryCall) {
+  const Query q = TestQuery();
+  FaultyWorker a("a", absl::InternalError("never"), 60000ms);
+  FaultyWorker b("b", absl::InternalError("never"), 60000ms);
+  SliceWorker* workers[] = {&a, &b};
+  ScheduleOptions schedule;
+  const auto start = std::chrono::steady_clock::now();
+  schedule.cancelled = [&] { return std::chrono::steady_clock::now() - start > 100ms; };
+  auto out = RunSlices(q, {}, 4, workers, schedule);
+  EXPECT_LT(std::chrono::steady_clock::now() - start, 1s);
+  ASSERT_FALSE(out.ok());
+  EXPECT_EQ(out.status().code(), absl::StatusCode::kCancelled);
+  EXPECT_NE(out.status().message().find("0 of 4 slices solved"), std::string::npos);
+}
+
+// 22 relations at P = 2: (3^19 21 - 2 2^19 7 + 1) / 2 = 1.22e10 splits a
+// slice, 3 s even at 0.25 ns each: a 50 ms deadline is hopeless.
+TEST(SliceSchedulerTest, HopelessDeadlineIsRefusedUpFront) {
+  const Query q = testing::MakeQuery(testing::GraphShape::kChain, 22, 1);
+  LocalWorker a("a");
+  SliceWorker* workers[] = {&a};
+  ScheduleOptions schedule;
+  schedule.deadline = std::chrono::steady_clock::now() + 50ms;
+  auto out = RunSlices(q, {}, 2, workers, schedule);
+  ASSERT_FALSE(out.ok());
+  EXPECT_EQ(out.status().code(), absl::StatusCode::kDeadlineExceeded);
+  EXPECT_NE(out.status().message().find("refused up front: 2 slices of 1.22e+10 splits"),
+            std::string::npos)
+      << out.status();
+}
+
+TEST(SliceSchedulerTest, OnlyAWorkersOwnFaultsCountAgainstIt) {
+  for (auto code : {absl::StatusCode::kUnavailable, absl::StatusCode::kInternal,
+                    absl::StatusCode::kUnknown, absl::StatusCode::kDataLoss}) {
+    EXPECT_TRUE(IsWorkerFault(absl::Status(code, "x"))) << code;
+  }
+  for (auto code : {absl::StatusCode::kInvalidArgument, absl::StatusCode::kResourceExhausted,
+                    absl::StatusCode::kOutOfRange, absl::StatusCode::kDeadlineExceeded,
+                    absl::StatusCode::kCancelled, absl::StatusCode::kNotFound}) {
+    EXPECT_FALSE(IsWorkerFault(absl::Status(code, "x"))) << code;
+  }
+}
+
 TEST(SliceSchedulerTest, ProgressIsReportedOncePerSlice) {
   const Query q = TestQuery();
   LocalWorker a("a"), b("b");

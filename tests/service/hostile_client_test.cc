@@ -2,7 +2,11 @@
 // one reproducer of a defect found that way, and asserts what the service
 // must do instead (a precise refusal, work that stops, one socket, a pool
 // that survives). Real worker and coordinator processes on loopback.
+#include <arpa/inet.h>
+#include <netinet/in.h>
 #include <signal.h>
+#include <sys/socket.h>
+#include <unistd.h>
 
 #include <chrono>
 #include <cmath>
@@ -213,6 +217,46 @@ TEST(HostileClientTest, SliceThatKillsWorkersIsRefusedNamingIt) {
   EXPECT_EQ(alive, 1);  // the slice went to two workers, never the third
   // The survivor still serves what does not crash it.
   EXPECT_TRUE(Optimize(c, Request(testing::MakeQuery(GraphShape::kChain, 10, 1), 1)).ok());
+}
+
+int FreePort() {
+  const int fd = socket(AF_INET, SOCK_STREAM, 0);
+  sockaddr_in addr{};
+  addr.sin_family = AF_INET;
+  addr.sin_addr.s_addr = htonl(INADDR_LOOPBACK);
+  bind(fd, reinterpret_cast<sockaddr*>(&addr), sizeof addr);
+  socklen_t len = sizeof addr;
+  getsockname(fd, reinterpret_cast<sockaddr*>(&addr), &len);
+  close(fd);
+  return ntohs(addr.sin_port);
+}
+
+// A worker that died is out of the pool; started again at its address, the
+// health check brings it back with no restart of the coordinator.
+TEST(HostileClientTest, DeadWorkerComesBackWhenItIsBack) {
+  const std::string at = "--listen=127.0.0.1:" + std::to_string(FreePort());
+  Cluster c;
+  c.workers.push_back(StartWorker({at}));
+  ASSERT_TRUE(c.workers[0]);
+  auto p = ServerProcess::Start({SLICEPLAN_COORDINATOR_BIN, "--listen=127.0.0.1:0",
+                                 "--workers=" + c.workers[0]->address(),
+                                 "--health_interval_ms=200"});
+  ASSERT_TRUE(p.ok()) << p.status();
+  c.coordinator = *std::move(p);
+  c.stub = v1::Coordinator::NewStub(
+      grpc::CreateChannel(c.coordinator->address(), grpc::InsecureChannelCredentials()));
+  const v1::OptimizeRequest r = Request(testing::MakeQuery(GraphShape::kChain, 8, 1), 2);
+  ASSERT_TRUE(Optimize(c, r).ok());
+  c.workers[0]->Signal(SIGKILL);
+  std::this_thread::sleep_for(500ms);
+  EXPECT_EQ(Optimize(c, r, 5s).error_code(), grpc::StatusCode::UNAVAILABLE);
+  c.workers[0] = StartWorker({at});
+  ASSERT_TRUE(c.workers[0]);
+  grpc::Status s;
+  for (int i = 0; i < 50 && !(s = Optimize(c, r, 5s)).ok(); ++i) {
+    std::this_thread::sleep_for(100ms);
+  }
+  EXPECT_TRUE(s.ok()) << s.error_message();
 }
 
 TEST(HostileClientTest, SigtermDeliversTheRunningAnswerAndExits) {
