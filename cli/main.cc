@@ -68,6 +68,7 @@ int Optimize(const std::vector<std::string>& args) {
   auto config = ParseOptimizeArgs(args, cores);
   if (!config.ok()) return Fail(config.status());
   if (auto s = ValidateSearchOptions(config->search); !s.ok()) return Fail(s);
+  if (auto s = CheckOptionLimits(config->search, InputLimits{}); !s.ok()) return Fail(s);
   if (!config->plot_path.empty() && config->search.cost != CostModelKind::kCluster) {
     return Fail(absl::InvalidArgumentError("--plot: needs --cost=cluster (a frontier to plot)"));
   }

@@ -52,6 +52,14 @@ check slices_too_many_left 2 "slices: 16 slices need 4 disjoint pairs" optimize 
 check bad_shape 2 "--shape=round: expected bushy or left-deep" optimize "$examples/port_calls_small.json" --shape=round
 check unknown_flag 2 "--speed: unknown flag" optimize "$examples/port_calls_small.json" --speed=3
 check unknown_command 2 "unknown command" reorder "$examples/port_calls_small.json"
+check rows_past_range 2 "the largest relations: manifests 1e+160" optimize "$bad/rows_past_range.json"
+check rows_past_range_left 2 "has at least 1e+300 rows" optimize "$bad/rows_past_range.json" --shape=left-deep
+check nested_predicate_array 2 "predicates[1]: an array inside an array" optimize "$bad/nested_predicate_array.json"
+check null_relation 2 "relations[1]: null inside an array" optimize "$bad/null_relation.json"
+check key_twice 2 "relations[0].rows: given twice in one object" optimize "$bad/key_twice.json"
+check alpha_with_cout 2 "alpha: only the cluster model" optimize "$examples/port_calls_small.json" --alpha=1.5
+check hopeless_deadline 1 "refused up front" optimize "$examples/port_logistics.json" --slices=1 --workers=1 --deadline-seconds=0.001
+check node_counts_past_limit 2 "node_counts: 17 given; the limit is 16" optimize "$examples/port_calls_small.json" --cost=cluster --node-counts=1,2,3,4,5,6,7,8,9,10,11,12,13,14,15,16,17
 check memo_limit 2 "over the limit" optimize "$examples/port_logistics.json" --slices=1 --memo-limit=1MiB
 
 # The cluster model's parameters.
