@@ -21,7 +21,7 @@
 namespace sliceplan::cli {
 namespace {
 
-// Exit statuses of interfaces.md.
+// Exit statuses of docs/interfaces.md.
 constexpr int kExitOk = 0;
 constexpr int kExitFailure = 1;
 constexpr int kExitBadInput = 2;

@@ -1,5 +1,5 @@
 // Renders an optimize result as text (plan tree and slice summary), as the
-// JSON result of interfaces.md, or as a Graphviz DOT graph of the plan.
+// JSON result of docs/interfaces.md, or as a Graphviz DOT graph of the plan.
 #ifndef SLICEPLAN_CLI_RENDER_H_
 #define SLICEPLAN_CLI_RENDER_H_
 

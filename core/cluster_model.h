@@ -1,4 +1,4 @@
-// The `cluster` cost model of cost-models.md: one stage per join on a
+// The `cluster` cost model of docs/cost-models.md: one stage per join on a
 // rented cluster, a node count and a strategy (shuffle hash join or a
 // broadcast hash join of either input) per join, a sample rate per leaf,
 // and three metrics: latency_s and node_seconds (minimised), completeness
@@ -44,7 +44,7 @@ struct StageInput {
   bool leaf;     // a base relation: its scan is paid by this stage
 };
 
-// The stage time t of cost-models.md for output rows `out_rows`, on `m`
+// The stage time t of docs/cost-models.md for output rows `out_rows`, on `m`
 // nodes:
 //   scan_s    = (bytes of the leaf inputs) / (m * scan_bytes_per_s)
 //   shuffle   : startup + scan_s + (b_L + b_R) / (m net) + (r_L + r_R + r_O) / (m cpu)

@@ -1,7 +1,7 @@
 // The cluster model as a search policy: per memo set a Pareto set of
 // physical plans (a tree choice, a strategy and node count per join, a
 // sample rate per leaf), pruned per completeness level with precision
-// alpha^(1/n) (cost-models.md, "Approximate Pareto sets"). Symmetric: an
+// alpha^(1/n) (docs/cost-models.md, "Approximate Pareto sets"). Symmetric: an
 // unordered split is offered once and every strategy, broadcasting either
 // side, is tried, which covers both orders.
 //

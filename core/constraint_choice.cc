@@ -172,7 +172,7 @@ std::vector<ConstraintRelations> ChooseConstraintRelations(const Query& query,
                                                            PlanShape shape, int k,
                                                            bool cross_products) {
   if (k == 0) return {};
-  if (cross_products) {  // slicing.md: any disjoint choice gives equal slices
+  if (cross_products) {  // docs/slicing.md: any disjoint choice gives equal slices
     const int w = RelationsPerConstraint(shape);
     std::vector<ConstraintRelations> out(k);
     for (int j = 0; j < k; ++j) {

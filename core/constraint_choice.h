@@ -1,6 +1,6 @@
 // Which relations the slice constraints use: a deterministic function of the
 // query, so the coordinator and every worker derive the same choice from the
-// query alone (slicing.md, invariant 1).
+// query alone (docs/slicing.md, invariant 1).
 //
 // In the cross-product space every disjoint choice gives the same work per
 // slice. Without cross products the slices' sizes depend on the choice: a

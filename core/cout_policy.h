@@ -1,4 +1,4 @@
-// The `cout` cost model as a search policy (cost-models.md):
+// The `cout` cost model as a search policy (docs/cost-models.md):
 //   C_out(leaf) = 0;  C_out(L join R) = card(L u R) + C_out(L) + C_out(R).
 // One metric, symmetric in L and R, so enumerators offer each unordered
 // split once. Memo: 8 bytes of cost and 4 of best left operand per slot

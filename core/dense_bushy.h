@@ -5,7 +5,7 @@
 // into a pair of admissible block patterns (DenseLayout::BlockSplits) times
 // any split of its low bits, so nothing is generated and then filtered. For
 // a symmetric policy each unordered split is offered once. Per slice that is
-//   3^f * 21^k - 2 * 2^f * 7^k + 1   ordered splits (slicing.md),
+//   3^f * 21^k - 2 * 2^f * 7^k + 1   ordered splits (docs/slicing.md),
 // half of it for a symmetric policy.
 #ifndef SLICEPLAN_CORE_DENSE_BUSHY_H_
 #define SLICEPLAN_CORE_DENSE_BUSHY_H_

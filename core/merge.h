@@ -1,6 +1,6 @@
 // Merging the answers of a query's slices (single metric: the minimum).
 //
-// The slices cover the plan space (slicing.md, invariant 2), so the best
+// The slices cover the plan space (docs/slicing.md, invariant 2), so the best
 // of their optima is the global optimum. Ties go to the lowest slice index
 // so that every merge of the same answers picks the same plan.
 #ifndef SLICEPLAN_CORE_MERGE_H_
@@ -35,7 +35,7 @@ struct OptimizeResult {
 //
 // Slices with a Pareto set (the cluster model) merge into one: the union,
 // less every plan another plan beats or equals on each of `objectives`
-// (exact dominance, cost-models.md), by increasing latency_s.
+// (exact dominance, docs/cost-models.md), by increasing latency_s.
 absl::StatusOr<OptimizeResult> MergeSlices(std::vector<SliceResult> slices,
                                            uint32_t slice_count, Objectives objectives = {});
 

@@ -1,4 +1,4 @@
-// Dominance between plans of the cluster model (cost-models.md).
+// Dominance between plans of the cluster model (docs/cost-models.md).
 //
 // Inside the search, plans of one relation set are compared only at equal
 // completeness (equal rows), on latency_s and node_seconds: p alpha-covers

@@ -47,7 +47,7 @@ double CostWithCout(Plan& plan);
 void RenumberPlan(Plan& plan, std::span<const RelationId> perm);
 
 // "((shipments vessels) ports)": relation names, one space between
-// siblings, as interfaces.md fixes it.
+// siblings, as docs/interfaces.md fixes it.
 std::string TreeString(const Plan& plan, const Query& query);
 
 // True when the tree is left-deep: every right operand is a base relation.

@@ -1,5 +1,5 @@
 // Closed forms for the size of one slice's search in the cross-product
-// space (slicing.md), used to refuse a search before allocating and to pick
+// space (docs/slicing.md), used to refuse a search before allocating and to pick
 // slice counts. n relations, k constraints, f = n - 2k (pairs) or n - 3k
 // (triples) free relations. Pure functions.
 #ifndef SLICEPLAN_CORE_SEARCH_ESTIMATE_H_

@@ -1,4 +1,4 @@
-// What one slice's search did, in the units of interfaces.md.
+// What one slice's search did, in the units of docs/interfaces.md.
 #ifndef SLICEPLAN_CORE_SEARCH_STATS_H_
 #define SLICEPLAN_CORE_SEARCH_STATS_H_
 

@@ -1,7 +1,7 @@
 // What a worker is asked to solve: a plan shape and one slice of its space.
 //
 // A slice count P = 2^k splits the plans by k binary constraints (see
-// ../shared/design/slicing.md); slice index i in [0, P) picks, bit by bit,
+// docs/slicing.md); slice index i in [0, P) picks, bit by bit,
 // which side of each constraint the slice keeps. Plain values, copyable.
 #ifndef SLICEPLAN_CORE_SLICE_SPEC_H_
 #define SLICEPLAN_CORE_SLICE_SPEC_H_

@@ -1,5 +1,5 @@
 #!/usr/bin/env bash
-# End-to-end checks of `sliceplan optimize` (interfaces.md): bad input exits
+# End-to-end checks of `sliceplan optimize` (docs/interfaces.md): bad input exits
 # with status 2, a message naming the field on stderr and nothing on stdout;
 # good input prints the JSON result with the fields outside checks read.
 # Usage: cli_test.sh SLICEPLAN_BINARY SOURCE_DIR
@@ -93,7 +93,7 @@ assert svg.startswith("<svg") and svg.count("<title>") == len(plans), svg[:200]
 PY
 then passed=$((passed + 1)); else failed=$((failed + 1)); echo "FAIL cluster_json"; fi
 
-# A good run: JSON with the fields of interfaces.md, one plan, P slices.
+# A good run: JSON with the fields of docs/interfaces.md, one plan, P slices.
 check json_ok 0 "" optimize "$examples/port_calls_small.json" --format=json --slices=4 --workers=2
 if python3 - "$tmp/out" <<'PY'
 import json, sys

@@ -188,7 +188,7 @@ TEST(ClusterSearchTest, ExactFrontierWithoutCrossProducts) {
 }
 
 TEST(ClusterSearchTest, PruningAcrossCompletenessLevelsWouldLoseFrontierPlans) {
-  // cost-models.md: a more complete sub-plan makes every stage above it
+  // docs/cost-models.md: a more complete sub-plan makes every stage above it
   // slower, so dominance across levels is unsafe. Random five-relation
   // queries with sampling show it within a few seeds; the engine, pruning
   // per level, stays exact on them.

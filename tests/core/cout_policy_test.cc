@@ -1,4 +1,4 @@
-// The cout model on a hand-computed example (cost-models.md: C_out(leaf) =
+// The cout model on a hand-computed example (docs/cost-models.md: C_out(leaf) =
 // 0, C_out(L join R) = card(L u R) + C_out(L) + C_out(R)).
 #include "core/cout_policy.h"
 

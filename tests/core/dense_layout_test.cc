@@ -1,5 +1,5 @@
 // The dense memo layout: slot counts, bijection with the admissible sets,
-// and the subset order dynamic programming needs (slicing.md, "Indexing
+// and the subset order dynamic programming needs (docs/slicing.md, "Indexing
 // the memo densely").
 #include "core/dense_layout.h"
 
@@ -33,7 +33,7 @@ TEST(DenseLayoutTest, SlotCountIsTheClosedFormAndMatchesAdmissibleSets) {
         const uint32_t index = (uint32_t{1} << k) - 1;  // every bit set
         const SliceConstraints c = Constraints(q, shape, index, k);
         const DenseLayout layout(n, c);
-        // slicing.md: 3^k 2^(n-2k) sets per pair slice, 7^k 2^(n-3k) per
+        // docs/slicing.md: 3^k 2^(n-2k) sets per pair slice, 7^k 2^(n-3k) per
         // triple slice (the empty set included).
         const uint64_t want = shape == PlanShape::kBushy
                                   ? Pow(7, k) << (n - 3 * k)

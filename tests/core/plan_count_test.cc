@@ -45,7 +45,7 @@ TEST(PlanCountTest, UnslicedCountsWithCrossProducts) {
 }
 
 TEST(PlanCountTest, LeftDeepSlicesPartitionTheJoinOrders) {
-  // slicing.md, invariant 2: the sum over slices is n! exactly.
+  // docs/slicing.md, invariant 2: the sum over slices is n! exactly.
   for (int n = 2; n <= 10; ++n) {
     const Query q = testing::MakeUniformQuery(GraphShape::kRandom, n);
     for (int k = 0; k <= MaxSliceBits(n, PlanShape::kLeftDeep); ++k) {

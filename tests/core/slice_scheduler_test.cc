@@ -1,6 +1,6 @@
 // The shared scheduling path with fake workers in one process: failures
 // are re-dispatched, stragglers hedged, deadlines enforced, and the answer
-// is still the optimum (slicing.md, invariant 3).
+// is still the optimum (docs/slicing.md, invariant 3).
 #include "core/slice_scheduler.h"
 
 #include <atomic>

@@ -1,7 +1,7 @@
 // The engine's optimum against the independent reference (explicit
 // enumeration of every join order and tree), for every join-graph shape,
 // both plan shapes, with and without cross products, for P = 1, 2, 4, 8
-// where the query has room for the constraints (slicing.md, invariant 3).
+// where the query has room for the constraints (docs/slicing.md, invariant 3).
 #include "core/slice_solver.h"
 
 #include <cmath>

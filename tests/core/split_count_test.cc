@@ -1,7 +1,7 @@
 // Splits per slice: the closed forms of search_estimate.h against explicit
 // counting, and the engine's own split counters against the closed forms.
 //
-// Derivation (bushy, cross-product space, slicing.md): give every relation
+// Derivation (bushy, cross-product space, docs/slicing.md): give every relation
 // one of three places, left, right or neither. A free relation allows all 3;
 // a triple (r, t, u) allows 21 of its 27 placements: those making L u R,
 // L or R hold r and t without u are out (4 + 1 + 1). That counts 3^f 21^k
@@ -113,7 +113,7 @@ TEST(SplitCountTest, EngineCountsMatchTheClosedFormsUpToSixteenRelations) {
 }
 
 TEST(SplitCountTest, WorkShrinksTowardsTheSlicingRatios) {
-  // slicing.md: per slice, bushy work tends to (21/27)^k, left-deep sets
+  // docs/slicing.md: per slice, bushy work tends to (21/27)^k, left-deep sets
   // to (3/4)^k of the unsliced search.
   const int n = 18;
   for (int k = 1; k <= 4; ++k) {

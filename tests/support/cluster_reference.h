@@ -1,6 +1,6 @@
 // An independent reference for the cluster model: every tree x every
 // (strategy, node count) per join x every sample rate per leaf, costed
-// with its own transcription of cost-models.md. Meant for n <= 5.
+// with its own transcription of docs/cost-models.md. Meant for n <= 5.
 #ifndef SLICEPLAN_TESTS_SUPPORT_CLUSTER_REFERENCE_H_
 #define SLICEPLAN_TESTS_SUPPORT_CLUSTER_REFERENCE_H_
 
@@ -26,7 +26,7 @@ std::vector<RefCosts> RefAllClusterPlans(const Query& query, const ClusterParams
 std::vector<RefCosts> RefFrontier(const std::vector<RefCosts>& plans);
 
 // The same frontier from a DP that prunes sub-plans across completeness
-// levels on all three metrics: the shortcut cost-models.md warns against.
+// levels on all three metrics: the shortcut docs/cost-models.md warns against.
 std::vector<RefCosts> RefFrontierPruningAcrossLevels(const Query& query,
                                                      const ClusterParams& params);
 

@@ -1,6 +1,6 @@
 // An independent reference for the engine: explicit enumeration of every
 // join order and every bushy tree, with its own cardinality and cout code
-// (cost-models.md), sharing nothing with core/ but the Query type. Meant for
+// (docs/cost-models.md), sharing nothing with core/ but the Query type. Meant for
 // n <= 9: the number of trees is (2n-3)!! unordered.
 #ifndef SLICEPLAN_TESTS_SUPPORT_REFERENCE_SEARCH_H_
 #define SLICEPLAN_TESTS_SUPPORT_REFERENCE_SEARCH_H_
