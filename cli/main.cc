@@ -13,9 +13,9 @@
 #include "cli/progress_bar.h"
 #include "cli/render.h"
 #include "cli/rpc_client.h"
-#include "core/embedded_pool.h"
+#include "schedule/embedded_pool.h"
 #include "core/input_limits.h"
-#include "core/query_proto.h"
+#include "wire/query_proto.h"
 #include "core/slice_planner.h"
 
 namespace sliceplan::cli {

@@ -6,7 +6,7 @@
 
 #include <mutex>
 
-#include "core/slice_scheduler.h"
+#include "schedule/slice_scheduler.h"
 
 namespace sliceplan::cli {
 

@@ -7,7 +7,7 @@
 
 #include "cli/cli_config.h"
 #include "core/merge.h"
-#include "core/slice_scheduler.h"
+#include "schedule/slice_scheduler.h"
 #include "core/query.h"
 
 namespace sliceplan::cli {

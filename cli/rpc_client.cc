@@ -3,9 +3,9 @@
 #include <chrono>
 
 #include "absl/strings/str_cat.h"
-#include "coordinator/rpc_status.h"
-#include "core/query_proto.h"
-#include "core/service_proto.h"
+#include "rpc/rpc_status.h"
+#include "wire/query_proto.h"
+#include "wire/service_proto.h"
 #include "grpcpp/grpcpp.h"
 #include "sliceplan.grpc.pb.h"
 

@@ -8,7 +8,7 @@
 
 #include "absl/status/statusor.h"
 #include "core/query.h"
-#include "core/slice_scheduler.h"
+#include "schedule/slice_scheduler.h"
 #include "sliceplan.pb.h"
 
 namespace sliceplan::cli {

@@ -3,9 +3,10 @@
 #include <mutex>
 
 #include "absl/strings/str_cat.h"
-#include "coordinator/rpc_status.h"
-#include "core/query_proto.h"
-#include "core/service_proto.h"
+#include "rpc/call_deadline.h"
+#include "rpc/rpc_status.h"
+#include "wire/query_proto.h"
+#include "wire/service_proto.h"
 #include "core/slice_planner.h"
 #include "core/status_macros.h"
 #include "spdlog/spdlog.h"

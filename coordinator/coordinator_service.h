@@ -11,7 +11,7 @@
 #include "absl/status/statusor.h"
 #include "coordinator/worker_pool.h"
 #include "core/input_limits.h"
-#include "core/slice_scheduler.h"
+#include "schedule/slice_scheduler.h"
 #include "sliceplan.grpc.pb.h"
 
 namespace sliceplan {

@@ -3,10 +3,10 @@
 #include <condition_variable>
 
 #include "absl/strings/str_cat.h"
-#include "coordinator/rpc_status.h"
-#include "core/query_proto.h"
-#include "core/service_proto.h"
-#include "core/slice_scheduler.h"
+#include "rpc/rpc_status.h"
+#include "wire/query_proto.h"
+#include "wire/service_proto.h"
+#include "schedule/slice_scheduler.h"
 
 namespace sliceplan {
 namespace {

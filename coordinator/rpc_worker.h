@@ -13,7 +13,7 @@
 #include <string>
 
 #include "absl/base/thread_annotations.h"
-#include "core/slice_worker.h"
+#include "schedule/slice_worker.h"
 #include "grpc/health/v1/health.grpc.pb.h"
 #include "grpcpp/grpcpp.h"
 #include "sliceplan.grpc.pb.h"

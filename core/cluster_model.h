@@ -12,6 +12,7 @@
 #include <vector>
 
 #include "absl/status/status.h"
+#include "core/cluster_costs.h"
 
 namespace sliceplan {
 
@@ -32,11 +33,6 @@ struct ClusterParams {
 // or start-up time not finite and > 0 (start-up may be 0).
 absl::Status ValidateClusterParams(const ClusterParams& params);
 
-enum class JoinStrategy : uint8_t { kShuffle, kBroadcastRight, kBroadcastLeft };
-inline constexpr JoinStrategy kAllStrategies[] = {
-    JoinStrategy::kShuffle, JoinStrategy::kBroadcastRight, JoinStrategy::kBroadcastLeft};
-std::string StrategyName(JoinStrategy s);  // "shuffle", "broadcast-right", ...
-
 // One join input as the stage sees it.
 struct StageInput {
   double rows;   // card x completeness
@@ -54,13 +50,6 @@ struct StageInput {
 // row count it reads is.
 double StageSeconds(const ClusterParams& params, JoinStrategy strategy, int m,
                     const StageInput& left, const StageInput& right, double out_rows);
-
-// The three metrics of a (sub)plan.
-struct ClusterCosts {
-  double latency_s = 0;
-  double node_seconds = 0;
-  double completeness = 1;
-};
 
 // latency = max(L, R) + t; node_seconds = L + R + m t; completeness = L * R.
 // latency and node_seconds saturate at kValueCeiling.

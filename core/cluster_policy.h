@@ -20,6 +20,7 @@
 #include <vector>
 
 #include "core/cardinality.h"
+#include "core/search_options.h"
 #include "core/cluster_model.h"
 #include "core/dense_layout.h"
 #include "core/pareto.h"
@@ -29,13 +30,6 @@
 #include "core/search_policy.h"
 
 namespace sliceplan {
-
-struct ClusterSearchConfig {
-  ClusterParams params;
-  Objectives objectives;
-  double alpha = 1.0;  // >= 1; 1 is exact
-  ChoiceRule choice;   // which frontier plan the answer names
-};
 
 // One physical sub-plan in the memo.
 struct ClusterEntry {

@@ -22,11 +22,9 @@
 
 #include "core/relation_set.h"
 #include "core/slice_constraints.h"
+#include "core/slot.h"
 
 namespace sliceplan {
-
-using Slot = uint32_t;
-inline constexpr Slot kNoSlot = ~Slot{0};
 
 // A pair of blocks whose patterns split a block's pattern into two
 // admissible, disjoint parts.

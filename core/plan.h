@@ -10,7 +10,7 @@
 
 #include "absl/functional/function_ref.h"
 #include "core/cardinality.h"
-#include "core/cluster_model.h"
+#include "core/cluster_costs.h"
 #include "core/query.h"
 
 namespace sliceplan {

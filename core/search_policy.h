@@ -33,7 +33,7 @@
 #include <concepts>
 #include <cstddef>
 
-#include "core/dense_layout.h"
+#include "core/slot.h"
 #include "core/relation_set.h"
 
 namespace sliceplan {

@@ -10,8 +10,7 @@
 #include <string>
 
 #include "absl/status/statusor.h"
-#include "core/cluster_policy.h"
-#include "core/input_limits.h"
+#include "core/search_options.h"
 #include "core/plan.h"
 #include "core/query.h"
 #include "core/search_control.h"
@@ -20,34 +19,9 @@
 
 namespace sliceplan {
 
-enum class CostModelKind { kCout, kCluster };
-
-// The primary metric's name, as the JSON result spells it ("cout";
-// "latency_s" for the cluster model).
-std::string MetricName(CostModelKind model);
-
-inline constexpr uint64_t kDefaultMemoLimitBytes = uint64_t{8} << 30;
-
-struct SearchOptions {
-  PlanShape shape = PlanShape::kBushy;
-  bool cross_products = true;
-  CostModelKind cost = CostModelKind::kCout;
-  uint64_t memo_limit_bytes = kDefaultMemoLimitBytes;  // per slice
-  ClusterSearchConfig cluster;  // for CostModelKind::kCluster
-};
-
 // OUT_OF_RANGE, naming the largest relations, when the join of all
 // relations saturates (value_range.h): every cout plan's cost would.
 absl::Status CheckCoutInRange(const Query& query);
-
-// INVALID_ARGUMENT naming the field for bad cluster parameters, alpha < 1,
-// or an alpha other than 1 with a model that has no Pareto search.
-absl::Status ValidateSearchOptions(const SearchOptions& options);
-
-// RESOURCE_EXHAUSTED naming the limit: more node counts or sample rates
-// than `limits` allow (each multiplies the cluster search's work). The
-// edges check it with their configured limits; the solver does not.
-absl::Status CheckOptionLimits(const SearchOptions& options, const InputLimits& limits);
 
 struct SliceResult {
   SliceSpec slice;

@@ -9,7 +9,7 @@
 #include "absl/flags/usage.h"
 #include "absl/flags/usage_config.h"
 #include "absl/strings/match.h"
-#include "coordinator/serve.h"
+#include "rpc/serve.h"
 #include "spdlog/sinks/stdout_color_sinks.h"
 #include "spdlog/spdlog.h"
 #include "worker/worker_service.h"

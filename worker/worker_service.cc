@@ -6,9 +6,10 @@
 #include <thread>
 
 #include "absl/strings/str_cat.h"
-#include "coordinator/rpc_status.h"
-#include "core/query_proto.h"
-#include "core/service_proto.h"
+#include "rpc/call_deadline.h"
+#include "rpc/rpc_status.h"
+#include "wire/query_proto.h"
+#include "wire/service_proto.h"
 #include "core/slice_solver.h"
 #include "core/status_macros.h"
 

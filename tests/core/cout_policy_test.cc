@@ -2,7 +2,7 @@
 // 0, C_out(L join R) = card(L u R) + C_out(L) + C_out(R)).
 #include "core/cout_policy.h"
 
-#include "core/embedded_pool.h"
+#include "schedule/embedded_pool.h"
 #include "gtest/gtest.h"
 #include "tests/support/test_queries.h"
 

@@ -8,7 +8,7 @@
 #include <cmath>
 
 #include "core/cardinality.h"
-#include "core/embedded_pool.h"
+#include "schedule/embedded_pool.h"
 #include "core/plan.h"
 #include "gtest/gtest.h"
 #include "tests/support/test_queries.h"

@@ -15,7 +15,7 @@
 #include <thread>
 
 #include "cli/rpc_client.h"
-#include "core/query_proto.h"
+#include "wire/query_proto.h"
 #include "gtest/gtest.h"
 #include "grpcpp/grpcpp.h"
 #include "sliceplan.grpc.pb.h"

@@ -7,9 +7,9 @@
 #include <thread>
 
 #include "cli/rpc_client.h"
-#include "coordinator/rpc_status.h"
-#include "core/embedded_pool.h"
-#include "core/query_proto.h"
+#include "rpc/rpc_status.h"
+#include "schedule/embedded_pool.h"
+#include "wire/query_proto.h"
 #include "gtest/gtest.h"
 #include "grpcpp/grpcpp.h"
 #include "sliceplan.grpc.pb.h"

@@ -1,12 +1,12 @@
 // A worker in this process: each call runs SolveSlice on its own thread.
 // The embedded mode's pool is a set of these behind the same scheduler the
 // RPC coordinator uses. Thread-safe.
-#ifndef SLICEPLAN_CORE_LOCAL_WORKER_H_
-#define SLICEPLAN_CORE_LOCAL_WORKER_H_
+#ifndef SLICEPLAN_SCHEDULE_LOCAL_WORKER_H_
+#define SLICEPLAN_SCHEDULE_LOCAL_WORKER_H_
 
 #include <string>
 
-#include "core/slice_worker.h"
+#include "schedule/slice_worker.h"
 
 namespace sliceplan {
 
@@ -22,4 +22,4 @@ class LocalWorker : public SliceWorker {
 
 }  // namespace sliceplan
 
-#endif  // SLICEPLAN_CORE_LOCAL_WORKER_H_
+#endif  // SLICEPLAN_SCHEDULE_LOCAL_WORKER_H_

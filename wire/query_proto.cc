@@ -1,4 +1,4 @@
-#include "core/query_proto.h"
+#include "wire/query_proto.h"
 
 #include <cerrno>
 #include <cstring>
@@ -7,7 +7,7 @@
 
 #include "absl/container/flat_hash_map.h"
 #include "absl/strings/str_cat.h"
-#include "core/json_shape.h"
+#include "wire/json_shape.h"
 #include "core/status_macros.h"
 #include "core/user_text.h"
 #include "google/protobuf/util/json_util.h"

@@ -3,8 +3,8 @@
 // bound address printed as "listening on HOST:PORT" on stdout (port 0
 // picks a free one, which tests and the local-cluster script read back),
 // and a bounded, clean shutdown on SIGINT or SIGTERM.
-#ifndef SLICEPLAN_COORDINATOR_SERVE_H_
-#define SLICEPLAN_COORDINATOR_SERVE_H_
+#ifndef SLICEPLAN_RPC_SERVE_H_
+#define SLICEPLAN_RPC_SERVE_H_
 
 #include <chrono>
 #include <cstdint>
@@ -45,4 +45,4 @@ absl::Status Serve(const std::string& listen, const std::vector<grpc::Service*>&
 
 }  // namespace sliceplan
 
-#endif  // SLICEPLAN_COORDINATOR_SERVE_H_
+#endif  // SLICEPLAN_RPC_SERVE_H_

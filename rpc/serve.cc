@@ -1,4 +1,4 @@
-#include "coordinator/serve.h"
+#include "rpc/serve.h"
 
 #include <signal.h>
 

@@ -1,4 +1,4 @@
-#include "core/json_shape.h"
+#include "wire/json_shape.h"
 
 #include <string>
 #include <vector>

@@ -8,8 +8,8 @@
 // offending value. Nesting is limited too (kMaxJsonDepth), so the parser
 // never recurses deeply. Syntax errors are left to the parser, which
 // reports them. Pure function; thread-safe.
-#ifndef SLICEPLAN_CORE_JSON_SHAPE_H_
-#define SLICEPLAN_CORE_JSON_SHAPE_H_
+#ifndef SLICEPLAN_WIRE_JSON_SHAPE_H_
+#define SLICEPLAN_WIRE_JSON_SHAPE_H_
 
 #include <string_view>
 
@@ -26,4 +26,4 @@ absl::Status CheckJsonShape(std::string_view json);
 
 }  // namespace sliceplan
 
-#endif  // SLICEPLAN_CORE_JSON_SHAPE_H_
+#endif  // SLICEPLAN_WIRE_JSON_SHAPE_H_

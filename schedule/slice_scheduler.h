@@ -18,8 +18,8 @@
 //   6. a caller's cancel (ScheduleOptions::cancelled) is seen within
 //      kCancelPoll and cancels every running call.
 // Thread-safe: one Run per call, any number at once.
-#ifndef SLICEPLAN_CORE_SLICE_SCHEDULER_H_
-#define SLICEPLAN_CORE_SLICE_SCHEDULER_H_
+#ifndef SLICEPLAN_SCHEDULE_SLICE_SCHEDULER_H_
+#define SLICEPLAN_SCHEDULE_SLICE_SCHEDULER_H_
 
 #include <chrono>
 #include <functional>
@@ -30,7 +30,7 @@
 
 #include "absl/status/statusor.h"
 #include "core/merge.h"
-#include "core/slice_worker.h"
+#include "schedule/slice_worker.h"
 
 namespace sliceplan {
 
@@ -98,4 +98,4 @@ bool IsWorkerFault(const absl::Status& status);
 
 }  // namespace sliceplan
 
-#endif  // SLICEPLAN_CORE_SLICE_SCHEDULER_H_
+#endif  // SLICEPLAN_SCHEDULE_SLICE_SCHEDULER_H_

@@ -1,13 +1,13 @@
 // The embedded mode: the coordinator's scheduler (slice_scheduler.h) over a
 // pool of in-process workers (local_worker.h), with no servers. The same
 // scheduling and merging path as the RPC coordinator. Thread-safe.
-#ifndef SLICEPLAN_CORE_EMBEDDED_POOL_H_
-#define SLICEPLAN_CORE_EMBEDDED_POOL_H_
+#ifndef SLICEPLAN_SCHEDULE_EMBEDDED_POOL_H_
+#define SLICEPLAN_SCHEDULE_EMBEDDED_POOL_H_
 
 #include "absl/status/statusor.h"
 #include "core/merge.h"
 #include "core/query.h"
-#include "core/slice_scheduler.h"
+#include "schedule/slice_scheduler.h"
 #include "core/slice_solver.h"
 
 namespace sliceplan {
@@ -27,4 +27,4 @@ absl::StatusOr<OptimizeResult> OptimizeEmbedded(const Query& query,
 
 }  // namespace sliceplan
 
-#endif  // SLICEPLAN_CORE_EMBEDDED_POOL_H_
+#endif  // SLICEPLAN_SCHEDULE_EMBEDDED_POOL_H_

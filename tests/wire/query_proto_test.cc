@@ -1,6 +1,6 @@
 // Reading the query JSON: a valid file round-trips, and each malformed file
 // is refused with a message naming the field and its position.
-#include "core/query_proto.h"
+#include "wire/query_proto.h"
 
 #include "gtest/gtest.h"
 

@@ -2,8 +2,8 @@
 // slice at a time per slot, in this process (local_worker.h) or over RPC
 // (coordinator/rpc_worker.h). Slices are deterministic and idempotent, so a
 // slice may be run twice (a retry, a hedge) and either answer used.
-#ifndef SLICEPLAN_CORE_SLICE_WORKER_H_
-#define SLICEPLAN_CORE_SLICE_WORKER_H_
+#ifndef SLICEPLAN_SCHEDULE_SLICE_WORKER_H_
+#define SLICEPLAN_SCHEDULE_SLICE_WORKER_H_
 
 #include <chrono>
 #include <functional>
@@ -52,4 +52,4 @@ class SliceWorker {
 
 }  // namespace sliceplan
 
-#endif  // SLICEPLAN_CORE_SLICE_WORKER_H_
+#endif  // SLICEPLAN_SCHEDULE_SLICE_WORKER_H_

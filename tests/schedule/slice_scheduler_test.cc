@@ -1,12 +1,12 @@
 // The shared scheduling path with fake workers in one process: failures
 // are re-dispatched, stragglers hedged, deadlines enforced, and the answer
 // is still the optimum (docs/slicing.md, invariant 3).
-#include "core/slice_scheduler.h"
+#include "schedule/slice_scheduler.h"
 
 #include <atomic>
 #include <thread>
 
-#include "core/local_worker.h"
+#include "schedule/local_worker.h"
 #include "gtest/gtest.h"
 #include "tests/support/test_queries.h"
 

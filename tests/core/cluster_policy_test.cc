@@ -3,8 +3,8 @@
 // completeness-level rule, slicing, and a TPC-H join graph.
 #include <cmath>
 
-#include "core/embedded_pool.h"
-#include "core/query_proto.h"
+#include "schedule/embedded_pool.h"
+#include "wire/query_proto.h"
 #include "core/slice_solver.h"
 #include "gtest/gtest.h"
 #include "tests/support/cluster_reference.h"

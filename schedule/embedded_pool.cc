@@ -1,10 +1,10 @@
-#include "core/embedded_pool.h"
+#include "schedule/embedded_pool.h"
 
 #include <memory>
 #include <string>
 #include <vector>
 
-#include "core/local_worker.h"
+#include "schedule/local_worker.h"
 #include "core/status_macros.h"
 
 namespace sliceplan {

@@ -1,4 +1,4 @@
-#include "core/slice_scheduler.h"
+#include "schedule/slice_scheduler.h"
 
 #include <algorithm>
 #include <bit>

@@ -1,4 +1,4 @@
-#include "core/local_worker.h"
+#include "schedule/local_worker.h"
 
 #include <atomic>
 #include <thread>

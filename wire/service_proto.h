@@ -2,13 +2,13 @@
 // proto/sliceplan.proto (protobuf messages only: no gRPC here). Every
 // field a caller sets is validated, and errors (INVALID_ARGUMENT) name it.
 // Thread-safe.
-#ifndef SLICEPLAN_CORE_SERVICE_PROTO_H_
-#define SLICEPLAN_CORE_SERVICE_PROTO_H_
+#ifndef SLICEPLAN_WIRE_SERVICE_PROTO_H_
+#define SLICEPLAN_WIRE_SERVICE_PROTO_H_
 
 #include "absl/status/statusor.h"
 #include "core/merge.h"
 #include "core/query.h"
-#include "core/slice_scheduler.h"
+#include "schedule/slice_scheduler.h"
 #include "core/slice_solver.h"
 #include "sliceplan.pb.h"
 
@@ -43,4 +43,4 @@ absl::StatusOr<ScheduleOutcome> OutcomeFromProto(const v1::OptimizeResponse& m,
 
 }  // namespace sliceplan
 
-#endif  // SLICEPLAN_CORE_SERVICE_PROTO_H_
+#endif  // SLICEPLAN_WIRE_SERVICE_PROTO_H_

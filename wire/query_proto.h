@@ -4,8 +4,8 @@
 // The JSON goes through protobuf's own JSON mapping, so a query file and an
 // RPC request are one format by construction. Unknown fields are rejected.
 // All functions are thread-safe.
-#ifndef SLICEPLAN_CORE_QUERY_PROTO_H_
-#define SLICEPLAN_CORE_QUERY_PROTO_H_
+#ifndef SLICEPLAN_WIRE_QUERY_PROTO_H_
+#define SLICEPLAN_WIRE_QUERY_PROTO_H_
 
 #include <string>
 #include <string_view>
@@ -43,4 +43,4 @@ absl::StatusOr<Query> ReadQueryFile(const std::string& path, const InputLimits& 
 
 }  // namespace sliceplan
 
-#endif  // SLICEPLAN_CORE_QUERY_PROTO_H_
+#endif  // SLICEPLAN_WIRE_QUERY_PROTO_H_

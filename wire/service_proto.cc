@@ -1,4 +1,4 @@
-#include "core/service_proto.h"
+#include "wire/service_proto.h"
 
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_join.h"
@@ -6,6 +6,7 @@
 #include "core/pareto.h"
 #include "core/plan_choice.h"
 #include "core/status_macros.h"
+#include "core/value_range.h"
 
 namespace sliceplan {
 
@@ -202,6 +203,18 @@ absl::StatusOr<Plan> PlanFromProto(const v1::Plan& m, const Query& query,
     }
     node.cost = cost->second;
     if (model == CostModelKind::kCluster) node.metrics.latency_s = cost->second;
+    // A reply's numbers are checked like a request's: a worker that sends
+    // NaN or a negative cost must not decide the merge.
+    for (const double v : {node.cost, node.cardinality, node.metrics.node_seconds}) {
+      if (!(v >= 0 && v <= kValueCeiling)) {
+        return absl::InvalidArgumentError(absl::StrCat(
+            at, ": a cost or cardinality is not a number in [0, 1e300], got ", v));
+      }
+    }
+    if (!(node.metrics.completeness > 0 && node.metrics.completeness <= 1)) {
+      return absl::InvalidArgumentError(absl::StrCat(
+          at, ".costs: completeness must lie in (0, 1], got ", node.metrics.completeness));
+    }
     plan.nodes.push_back(node);
   }
   if (plan.nodes.empty() || plan.root().relations != query.all() ||

@@ -1,0 +1,79 @@
+// Parsing `sliceplan optimize` flags into the config the library takes:
+// each flag lands in its field, each bad value is refused naming the flag.
+#include "cli/cli_config.h"
+
+#include "gtest/gtest.h"
+
+namespace sliceplan::cli {
+namespace {
+
+absl::StatusOr<OptimizeConfig> Parse(std::vector<std::string> args) {
+  return ParseOptimizeArgs(args, 3);
+}
+
+TEST(CliConfigTest, DefaultsAndTheQueryPath) {
+  auto c = Parse({"q.json"});
+  ASSERT_TRUE(c.ok()) << c.status();
+  EXPECT_EQ(c->query_path, "q.json");
+  EXPECT_EQ(c->workers, 3);
+  EXPECT_FALSE(c->slices.has_value());
+  EXPECT_EQ(c->search.shape, PlanShape::kBushy);
+  EXPECT_TRUE(c->search.cross_products);
+  EXPECT_EQ(c->search.cost, CostModelKind::kCout);
+  EXPECT_EQ(c->format, OutputFormat::kText);
+}
+
+TEST(CliConfigTest, EveryFlagLandsInItsField) {
+  auto c = Parse({"--shape=left-deep", "--cross-products=false", "--cost=cluster", "q.json",
+                  "--slices=8", "--workers=5", "--format=json", "--deadline-seconds=2.5",
+                  "--partial-on-deadline=true", "--memo-limit=512MiB", "--alpha=1.05",
+                  "--node-counts=4,16", "--sample-rates=1,0.1", "--quiet",
+                  "--coordinator=10.0.0.7:7000"});
+  ASSERT_TRUE(c.ok()) << c.status();
+  EXPECT_EQ(c->search.shape, PlanShape::kLeftDeep);
+  EXPECT_FALSE(c->search.cross_products);
+  EXPECT_EQ(c->search.cost, CostModelKind::kCluster);
+  EXPECT_EQ(c->slices, 8u);
+  EXPECT_EQ(c->workers, 5);
+  EXPECT_EQ(c->format, OutputFormat::kJson);
+  EXPECT_EQ(c->deadline_seconds, 2.5);
+  EXPECT_TRUE(c->partial_on_deadline);
+  EXPECT_EQ(c->search.memo_limit_bytes, uint64_t{512} << 20);
+  EXPECT_EQ(c->search.cluster.alpha, 1.05);
+  EXPECT_EQ(c->search.cluster.params.node_counts, (std::vector<int>{4, 16}));
+  EXPECT_EQ(c->search.cluster.params.sample_rates, (std::vector<double>{1, 0.1}));
+  EXPECT_TRUE(c->quiet);
+  EXPECT_EQ(c->coordinator, "10.0.0.7:7000");
+}
+
+TEST(CliConfigTest, BadValuesNameTheFlag) {
+  const std::pair<std::vector<std::string>, std::string> cases[] = {
+      {{"q.json", "--shape=round"}, "--shape=round: expected bushy or left-deep"},
+      {{"q.json", "--slices=3"}, "--slices=3: expected a power of two"},
+      {{"q.json", "--workers=0"}, "--workers=0: expected a number in 1..1024"},
+      {{"q.json", "--deadline-seconds=nan"}, "--deadline-seconds=nan: expected"},
+      {{"q.json", "--deadline-seconds=-1"}, "--deadline-seconds=-1: expected"},
+      {{"q.json", "--memo-limit=lots"}, "--memo-limit=lots: expected bytes"},
+      {{"q.json", "--speed=3"}, "--speed: unknown flag"},
+      {{"q.json", "--shape"}, "--shape: flags take a value"},
+      {{"q.json", "r.json"}, "a second query file \"r.json\""},
+      {{}, "QUERY.json: no query file given"},
+  };
+  for (const auto& [args, part] : cases) {
+    auto c = Parse(args);
+    ASSERT_FALSE(c.ok()) << part;
+    EXPECT_EQ(c.status().code(), absl::StatusCode::kInvalidArgument);
+    EXPECT_NE(c.status().message().find(part), std::string::npos) << c.status();
+  }
+}
+
+TEST(CliConfigTest, ByteCounts) {
+  EXPECT_EQ(*ParseBytes("8GiB"), uint64_t{8} << 30);
+  EXPECT_EQ(*ParseBytes("3KiB"), uint64_t{3} << 10);
+  EXPECT_EQ(*ParseBytes("1000"), 1000u);
+  EXPECT_FALSE(ParseBytes("0").ok());
+  EXPECT_FALSE(ParseBytes("99999999999999GiB").ok());  // past 2^64
+}
+
+}  // namespace
+}  // namespace sliceplan::cli
