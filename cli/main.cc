@@ -74,6 +74,11 @@ int Optimize(const std::vector<std::string>& args) {
   }
   auto query = ReadQueryFile(config->query_path);
   if (!query.ok()) return Fail(query.status());
+  if (config->slices) {
+    const absl::Status s = ValidateSlice({0, *config->slices}, query->size(),
+                                         config->search.shape, {"--slices", "slice index"});
+    if (!s.ok()) return Fail(s);
+  }
   absl::StatusOr<ScheduleOutcome> outcome;
   {
     ProgressBar bar(!config->quiet);

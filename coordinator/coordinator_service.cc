@@ -32,12 +32,6 @@ absl::StatusOr<Clock::time_point> RunDeadline(const grpc::ServerContext* context
 
 absl::Status ValidateRequest(const v1::OptimizeRequest& request) {
   if (!request.has_query()) return absl::InvalidArgumentError("query: missing");
-  const uint32_t p = request.slice_count();
-  if (p != 0 && (p & (p - 1)) != 0) {
-    return absl::InvalidArgumentError(absl::StrCat(
-        "slice_count: ", p, " is not a power of two (1, 2, 4, ...; 0 to let the "
-        "coordinator choose)"));
-  }
   return absl::OkStatus();
 }
 
@@ -74,9 +68,7 @@ absl::StatusOr<v1::OptimizeResponse> CoordinatorService::Run(
   const uint32_t p = request.slice_count() != 0
                          ? request.slice_count()
                          : ChooseSliceCount(*query, options, std::max(1, slots));
-  if (auto s = ValidateSlice({0, p}, query->size(), options.shape); !s.ok()) {
-    return absl::InvalidArgumentError(absl::StrCat("slice_count: ", s.message()));
-  }
+  RETURN_IF_ERROR(ValidateSlice({0, p}, query->size(), options.shape, kRpcSliceFields));
   ScheduleOptions schedule;
   if (config_.hedge_after) schedule.hedge_after = *config_.hedge_after;
   schedule.deadline = deadline;

@@ -30,11 +30,20 @@ struct SliceSpec {
   bool bit(int j) const { return (index >> j) & 1; }
 };
 
-// OK when `count` is a power of two, index < count, and a query of n
-// relations has room for the k disjoint constraints of `shape` (2k <= n for
-// pairs, 3k <= n for triples). Otherwise INVALID_ARGUMENT naming the field
-// ("slices" or "slice index") and the limit.
-absl::Status ValidateSlice(SliceSpec spec, int n, PlanShape shape);
+// How an entry point names the two numbers in its messages: the CLI's
+// flag, the RPC fields, or the library's own words.
+struct SliceFieldNames {
+  const char* count = "slices";
+  const char* index = "slice index";
+};
+
+// The one slice check every entry point uses (CLI, coordinator, worker,
+// scheduler): OK when `count` is a power of two, index < count, and a
+// query of n relations has room for the k disjoint constraints of `shape`
+// (2k <= n for pairs, 3k <= n for triples). Otherwise INVALID_ARGUMENT,
+// "<count field>: 3 is not a power of two (1, 2, 4, 8, ...)" and the like.
+absl::Status ValidateSlice(SliceSpec spec, int n, PlanShape shape,
+                           SliceFieldNames names = {});
 
 // The largest k a query of n relations allows for `shape`.
 constexpr int MaxSliceBits(int n, PlanShape shape) {

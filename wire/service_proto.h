@@ -14,6 +14,9 @@
 
 namespace sliceplan {
 
+// The slice fields of the RPC messages, as ValidateSlice names them.
+inline constexpr SliceFieldNames kRpcSliceFields = {"slice_count", "slice_index"};
+
 // Errors: an unknown enum value ("options.shape", "options.cost");
 // UNIMPLEMENTED for a cost model this build lacks.
 absl::StatusOr<SearchOptions> SearchOptionsFromProto(const v1::SearchOptions& m);

@@ -35,16 +35,9 @@ absl::StatusOr<Parsed> Parse(const v1::SolveSliceRequest& request, const WorkerC
     return absl::Status(s.code(), absl::StrCat("options.cluster.", s.message()));
   }
   options.memo_limit_bytes = std::min(options.memo_limit_bytes, config.memo_limit_bytes);
-  const uint32_t count = request.slice_count();
-  if (count == 0 || (count & (count - 1)) != 0) {
-    return absl::InvalidArgumentError(absl::StrCat(
-        "slice_count: ", count, " is not a power of two (1, 2, 4, ...)"));
-  }
-  if (request.slice_index() >= count) {
-    return absl::InvalidArgumentError(absl::StrCat(
-        "slice_index: ", request.slice_index(), " is not below slice_count ", count));
-  }
-  return Parsed{*std::move(query), options, {request.slice_index(), count}};
+  const SliceSpec slice{request.slice_index(), request.slice_count()};
+  RETURN_IF_ERROR(ValidateSlice(slice, query->size(), options.shape, kRpcSliceFields));
+  return Parsed{*std::move(query), options, slice};
 }
 
 }  // namespace

@@ -49,7 +49,7 @@ TEST(CliConfigTest, EveryFlagLandsInItsField) {
 TEST(CliConfigTest, BadValuesNameTheFlag) {
   const std::pair<std::vector<std::string>, std::string> cases[] = {
       {{"q.json", "--shape=round"}, "--shape=round: expected bushy or left-deep"},
-      {{"q.json", "--slices=3"}, "--slices=3: expected a power of two"},
+      {{"q.json", "--slices=-2"}, "--slices=-2: expected a whole number"},
       {{"q.json", "--workers=0"}, "--workers=0: expected a number in 1..1024"},
       {{"q.json", "--deadline-seconds=nan"}, "--deadline-seconds=nan: expected"},
       {{"q.json", "--deadline-seconds=-1"}, "--deadline-seconds=-1: expected"},

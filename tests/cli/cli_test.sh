@@ -46,9 +46,9 @@ check truncated 2 "query JSON" optimize "$bad/truncated.json"
 check too_many_relations 2 "65 relations given; the exact search takes at most 64" optimize "$bad/too_many_relations.json"
 check missing_file 2 "no_such_query.json" optimize "$tmp/no_such_query.json"
 check no_file 2 "QUERY.json: no query file given" optimize
-check slices_not_power 2 "--slices=3: expected a power of two" optimize "$examples/port_calls_small.json" --slices=3
-check slices_too_many 2 "slices: 8 slices need 3 disjoint triples" optimize "$examples/port_calls_small.json" --slices=8
-check slices_too_many_left 2 "slices: 16 slices need 4 disjoint pairs" optimize "$examples/port_calls_small.json" --slices=16 --shape=left-deep
+check slices_not_power 2 "--slices: 3 is not a power of two" optimize "$examples/port_calls_small.json" --slices=3
+check slices_too_many 2 "--slices: 8 slices need 3 disjoint triples" optimize "$examples/port_calls_small.json" --slices=8
+check slices_too_many_left 2 "--slices: 16 slices need 4 disjoint pairs" optimize "$examples/port_calls_small.json" --slices=16 --shape=left-deep
 check bad_shape 2 "--shape=round: expected bushy or left-deep" optimize "$examples/port_calls_small.json" --shape=round
 check unknown_flag 2 "--speed: unknown flag" optimize "$examples/port_calls_small.json" --speed=3
 check unknown_command 2 "unknown command" reorder "$examples/port_calls_small.json"
