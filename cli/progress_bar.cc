@@ -10,12 +10,13 @@ namespace sliceplan::cli {
 ProgressBar::ProgressBar(bool enabled) : enabled_(enabled && isatty(STDERR_FILENO) == 1) {}
 
 ProgressBar::~ProgressBar() {
+  absl::MutexLock lock(&mu_);
   if (drawn_) std::fprintf(stderr, "\r\033[K");
 }
 
 void ProgressBar::Update(const ScheduleProgress& p) {
   if (!enabled_ || p.elapsed_seconds < 1.0 || p.slice_count == 0) return;
-  std::lock_guard<std::mutex> lock(mu_);
+  absl::MutexLock lock(&mu_);
   constexpr int kWidth = 30;
   const double done = static_cast<double>(p.slices_done) / p.slice_count;
   const int filled = static_cast<int>(done * kWidth);

@@ -4,8 +4,8 @@
 #ifndef SLICEPLAN_CLI_PROGRESS_BAR_H_
 #define SLICEPLAN_CLI_PROGRESS_BAR_H_
 
-#include <mutex>
-
+#include "absl/base/thread_annotations.h"
+#include "absl/synchronization/mutex.h"
 #include "schedule/slice_scheduler.h"
 
 namespace sliceplan::cli {
@@ -14,12 +14,12 @@ class ProgressBar {
  public:
   explicit ProgressBar(bool enabled);
   ~ProgressBar();  // clears the line if one was drawn
-  void Update(const ScheduleProgress& p);
+  void Update(const ScheduleProgress& p) ABSL_LOCKS_EXCLUDED(mu_);
 
  private:
   const bool enabled_;
-  std::mutex mu_;
-  bool drawn_ = false;
+  absl::Mutex mu_;
+  bool drawn_ ABSL_GUARDED_BY(mu_) = false;
 };
 
 }  // namespace sliceplan::cli

@@ -1,6 +1,6 @@
 #include "coordinator/coordinator_service.h"
 
-#include <mutex>
+#include "absl/synchronization/mutex.h"
 
 #include "absl/strings/str_cat.h"
 #include "rpc/call_deadline.h"
@@ -101,7 +101,7 @@ grpc::Status CoordinatorService::Optimize(grpc::ServerContext* context,
 grpc::Status CoordinatorService::OptimizeStream(grpc::ServerContext* context,
                                                 const v1::OptimizeRequest* request,
                                                 grpc::ServerWriter<v1::OptimizeEvent>* writer) {
-  std::mutex write_mu;  // progress comes from the scheduler's threads
+  absl::Mutex write_mu;  // progress comes from the scheduler's threads
   auto result = Run(context, *request, [&](const ScheduleProgress& p) {
     v1::OptimizeEvent event;
     v1::Progress* out = event.mutable_progress();
@@ -109,13 +109,13 @@ grpc::Status CoordinatorService::OptimizeStream(grpc::ServerContext* context,
     out->set_slice_count(p.slice_count);
     if (p.best_cost) out->mutable_best_cost()->set_value(*p.best_cost);
     out->set_elapsed_seconds(p.elapsed_seconds);
-    std::lock_guard<std::mutex> lock(write_mu);
+    absl::MutexLock lock(&write_mu);
     writer->Write(event);
   });
   if (!result.ok()) return ToGrpc(result.status());
   v1::OptimizeEvent event;
   *event.mutable_result() = *std::move(result);
-  std::lock_guard<std::mutex> lock(write_mu);
+  absl::MutexLock lock(&write_mu);
   writer->Write(event);
   return grpc::Status::OK;
 }

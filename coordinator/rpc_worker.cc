@@ -1,6 +1,5 @@
 #include "coordinator/rpc_worker.h"
 
-#include <condition_variable>
 
 #include "absl/strings/str_cat.h"
 #include "rpc/rpc_status.h"
@@ -32,8 +31,8 @@ class RpcCall : public SliceCall {
   }
 
   ~RpcCall() override {
-    std::unique_lock<std::mutex> lock(mu_);
-    finished_cv_.wait(lock, [&] { return finished_; });
+    absl::MutexLock lock(&mu_);
+    mu_.Await(absl::Condition(&finished_));
   }
 
   void Cancel() override { context_.TryCancel(); }
@@ -49,9 +48,8 @@ class RpcCall : public SliceCall {
     }
     count_(result.status());
     done_(std::move(result));
-    std::lock_guard<std::mutex> lock(mu_);
+    absl::MutexLock lock(&mu_);
     finished_ = true;
-    finished_cv_.notify_all();
   }
 
   const SliceTask task_;
@@ -60,9 +58,8 @@ class RpcCall : public SliceCall {
   grpc::ClientContext context_;
   v1::SolveSliceRequest request_;
   v1::SolveSliceResponse response_;
-  std::mutex mu_;
-  std::condition_variable finished_cv_;
-  bool finished_ = false;
+  absl::Mutex mu_;
+  bool finished_ ABSL_GUARDED_BY(mu_) = false;
 };
 
 }  // namespace
@@ -85,7 +82,7 @@ std::unique_ptr<SliceCall> RpcWorker::Start(const SliceTask& task, SliceDone don
 }
 
 void RpcWorker::Count(const absl::Status& status) {
-  std::lock_guard<std::mutex> lock(mu_);
+  absl::MutexLock lock(&mu_);
   if (status.ok()) {
     ++counters_.solved;
   } else if (IsWorkerFault(status)) {  // not the request's own errors
@@ -106,7 +103,7 @@ void RpcWorker::CheckHealth(std::chrono::milliseconds timeout) {
       s.ok() && response.status() == grpc::health::v1::HealthCheckResponse::SERVING;
   healthy_ = serving;
   if (!serving) {
-    std::lock_guard<std::mutex> lock(mu_);
+    absl::MutexLock lock(&mu_);
     counters_.last_error = s.ok() ? "not serving" : s.error_message();
     return;
   }
@@ -119,7 +116,7 @@ void RpcWorker::CheckHealth(std::chrono::milliseconds timeout) {
 }
 
 WorkerCounters RpcWorker::counters() const {
-  std::lock_guard<std::mutex> lock(mu_);
+  absl::MutexLock lock(&mu_);
   return counters_;
 }
 

@@ -9,10 +9,10 @@
 #include <atomic>
 #include <chrono>
 #include <memory>
-#include <mutex>
 #include <string>
 
 #include "absl/base/thread_annotations.h"
+#include "absl/synchronization/mutex.h"
 #include "schedule/slice_worker.h"
 #include "grpc/health/v1/health.grpc.pb.h"
 #include "grpcpp/grpcpp.h"
@@ -37,11 +37,11 @@ class RpcWorker : public SliceWorker {
 
   // Runs the health check and DescribeWorker with `timeout`; updates
   // Healthy() and Slots().
-  void CheckHealth(std::chrono::milliseconds timeout);
-  WorkerCounters counters() const;
+  void CheckHealth(std::chrono::milliseconds timeout) ABSL_LOCKS_EXCLUDED(mu_);
+  WorkerCounters counters() const ABSL_LOCKS_EXCLUDED(mu_);
 
  private:
-  void Count(const absl::Status& status);
+  void Count(const absl::Status& status) ABSL_LOCKS_EXCLUDED(mu_);
 
   const std::string address_;
   std::shared_ptr<grpc::Channel> channel_;
@@ -49,7 +49,7 @@ class RpcWorker : public SliceWorker {
   std::unique_ptr<grpc::health::v1::Health::Stub> health_;
   std::atomic<bool> healthy_{true};
   std::atomic<int> slots_{1};
-  mutable std::mutex mu_;
+  mutable absl::Mutex mu_;
   WorkerCounters counters_ ABSL_GUARDED_BY(mu_);
 };
 

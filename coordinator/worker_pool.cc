@@ -64,15 +64,14 @@ WorkerPool::WorkerPool(std::vector<std::string> entries, std::chrono::millisecon
 
 WorkerPool::~WorkerPool() {
   {
-    std::lock_guard<std::mutex> lock(mu_);
+    absl::MutexLock lock(&mu_);
     stop_ = true;
   }
-  stop_cv_.notify_all();
   thread_.join();
 }
 
 std::vector<std::shared_ptr<RpcWorker>> WorkerPool::Workers() const {
-  std::lock_guard<std::mutex> lock(mu_);
+  absl::MutexLock lock(&mu_);
   return workers_;
 }
 
@@ -81,7 +80,7 @@ void WorkerPool::Refresh() {
   for (const std::string& e : entries_) {
     for (std::string& a : ResolveEntry(e)) addresses.push_back(std::move(a));
   }
-  std::lock_guard<std::mutex> lock(mu_);
+  absl::MutexLock lock(&mu_);
   for (const std::string& a : addresses) {
     const bool known = std::any_of(workers_.begin(), workers_.end(),
                                    [&](const auto& w) { return w->Name() == a; });
@@ -94,13 +93,11 @@ void WorkerPool::CheckNow() {
 }
 
 void WorkerPool::Loop() {
-  std::unique_lock<std::mutex> lock(mu_);
-  while (!stop_) {
-    lock.unlock();
+  for (;;) {
     Refresh();
     CheckNow();
-    lock.lock();
-    stop_cv_.wait_for(lock, interval_, [&] { return stop_; });
+    absl::MutexLock lock(&mu_);
+    if (mu_.AwaitWithTimeout(absl::Condition(&stop_), absl::FromChrono(interval_))) return;
   }
 }
 

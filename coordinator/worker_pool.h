@@ -9,14 +9,13 @@
 
 #include <atomic>
 #include <chrono>
-#include <condition_variable>
 #include <memory>
-#include <mutex>
 #include <string>
 #include <thread>
 #include <vector>
 
 #include "absl/base/thread_annotations.h"
+#include "absl/synchronization/mutex.h"
 #include "absl/status/statusor.h"
 #include "coordinator/rpc_worker.h"
 
@@ -36,19 +35,18 @@ class WorkerPool {
   ~WorkerPool();  // stops the health thread
 
   // Every worker known now (healthy or not).
-  std::vector<std::shared_ptr<RpcWorker>> Workers() const;
+  std::vector<std::shared_ptr<RpcWorker>> Workers() const ABSL_LOCKS_EXCLUDED(mu_);
   // Checks every worker once, now (startup and tests).
-  void CheckNow();
+  void CheckNow() ABSL_LOCKS_EXCLUDED(mu_);
 
  private:
-  void Refresh();
-  void Loop();
+  void Refresh() ABSL_LOCKS_EXCLUDED(mu_);
+  void Loop() ABSL_LOCKS_EXCLUDED(mu_);
 
   const std::vector<std::string> entries_;
   const std::chrono::milliseconds interval_;
-  mutable std::mutex mu_;
+  mutable absl::Mutex mu_;
   std::vector<std::shared_ptr<RpcWorker>> workers_ ABSL_GUARDED_BY(mu_);
-  std::condition_variable stop_cv_;
   bool stop_ ABSL_GUARDED_BY(mu_) = false;
   std::thread thread_;
 };

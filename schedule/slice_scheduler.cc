@@ -3,12 +3,13 @@
 #include <algorithm>
 #include <bit>
 #include <cmath>
-#include <condition_variable>
 #include <deque>
 #include <memory>
-#include <mutex>
 
+#include "absl/base/thread_annotations.h"
 #include "absl/strings/str_cat.h"
+#include "absl/synchronization/mutex.h"
+#include "absl/time/time.h"
 #include "absl/strings/str_format.h"
 #include "absl/strings/str_join.h"
 #include "core/search_estimate.h"
@@ -48,6 +49,8 @@ namespace {
 
 using Clock = std::chrono::steady_clock;
 
+// One call of one slice on one worker. slice, worker and started never
+// change; call and finished are guarded by the Run's mutex.
 struct Attempt {
   uint32_t slice;
   size_t worker;
@@ -57,6 +60,9 @@ struct Attempt {
 };
 
 // One Run: all state behind one mutex; calls report back via Finish().
+// Calls are started and their handles stored with the mutex released
+// (a worker may finish a call inside Start), so Dispatch only picks the
+// attempts and StartCalls starts them.
 class Run {
  public:
   Run(const Query& query, const SearchOptions& options, uint32_t slice_count,
@@ -70,60 +76,76 @@ class Run {
     for (uint32_t i = 0; i < slice_count; ++i) pending_.push_back(i);
   }
 
-  absl::StatusOr<ScheduleOutcome> Execute() {
-    std::unique_lock<std::mutex> lock(mu_);
+  absl::StatusOr<ScheduleOutcome> Execute() ABSL_LOCKS_EXCLUDED(mu_) {
+    mu_.Lock();
     while (error_.ok() && done_ < count_) {
       if (schedule_.deadline && Clock::now() >= *schedule_.deadline) {
         deadline_passed_ = true;
         break;
       }
-      Dispatch();
+      if (std::vector<Attempt*> picked = Dispatch(); !picked.empty()) {
+        mu_.Unlock();
+        StartCalls(picked);
+        mu_.Lock();
+        continue;  // look again: calls may have finished already
+      }
       if (error_.ok() && running_ == 0 && done_ < count_ && !AnyUsable()) {
         error_ = NoWorkerLeft();
       }
       if (!error_.ok() || done_ == count_) break;
-      auto wake = NextWakeUp();
-      if (schedule_.cancelled) {
-        const auto poll = Clock::now() + kCancelPoll;
-        if (!wake || poll < *wake) wake = poll;
-      }
-      if (wake) {
-        changed_.wait_until(lock, *wake);
-      } else {
-        changed_.wait(lock);
-      }
+      Wait();
       if (schedule_.cancelled && error_.ok() && schedule_.cancelled()) {
         error_ = absl::CancelledError(absl::StrCat("the request was cancelled with ", done_,
                                                    " of ", count_, " slices solved"));
       }
     }
     CancelAll();
-    changed_.wait(lock, [&] { return running_ == 0; });
-    lock.unlock();
-    attempts_.clear();  // joins local threads; no call is running now
-    return Outcome();
+    while (running_ != 0) changed_.Wait(&mu_);
+    absl::StatusOr<ScheduleOutcome> out = Outcome();
+    std::vector<std::unique_ptr<Attempt>> attempts = std::move(attempts_);
+    mu_.Unlock();
+    attempts.clear();  // joins local threads; no call is running now
+    return out;
   }
 
  private:
-  // REQUIRES: mu_ held. Starts work on every free slot.
-  void Dispatch() {
-    for (;;) {
-      if (!pending_.empty()) {
-        const uint32_t slice = pending_.front();
-        const auto w = FreeWorker();
-        if (!w) return;
-        pending_.pop_front();
-        StartAttempt(slice, *w);
-        continue;
-      }
-      if (!TryHedge()) return;
+  // Sleeps until a call reports, or the deadline, a hedge or a cancel poll
+  // is due.
+  void Wait() ABSL_EXCLUSIVE_LOCKS_REQUIRED(mu_) {
+    auto wake = NextWakeUp();
+    if (schedule_.cancelled) {
+      const auto poll = Clock::now() + kCancelPoll;
+      if (!wake || poll < *wake) wake = poll;
+    }
+    if (wake) {
+      changed_.WaitWithTimeout(&mu_, absl::FromChrono(*wake - Clock::now()));
+    } else {
+      changed_.Wait(&mu_);
     }
   }
 
-  // REQUIRES: mu_ held. Starts a second copy of the oldest lone slice that
-  // has run longer than hedge_after, on a free slot of another worker.
-  bool TryHedge() {
-    if (!schedule_.hedge_after) return false;
+  // Picks work for every free slot: the pending slices, then hedges.
+  std::vector<Attempt*> Dispatch() ABSL_EXCLUSIVE_LOCKS_REQUIRED(mu_) {
+    std::vector<Attempt*> picked;
+    for (;;) {
+      if (!pending_.empty()) {
+        const auto w = FreeWorker();
+        if (!w) return picked;
+        const uint32_t slice = pending_.front();
+        pending_.pop_front();
+        picked.push_back(NewAttempt(slice, *w));
+        continue;
+      }
+      Attempt* hedge = TryHedge();
+      if (hedge == nullptr) return picked;
+      picked.push_back(hedge);
+    }
+  }
+
+  // A second copy of the oldest lone slice that has run longer than
+  // hedge_after, on a free slot of another worker; null when none.
+  Attempt* TryHedge() ABSL_EXCLUSIVE_LOCKS_REQUIRED(mu_) {
+    if (!schedule_.hedge_after) return nullptr;
     const auto now = Clock::now();
     for (const auto& a : attempts_) {
       if (a->finished || answers_[a->slice] || running_of_[a->slice] != 1) continue;
@@ -131,15 +153,15 @@ class Run {
       const auto w = FreeWorker(a->worker);
       if (!w) continue;
       ++hedges_;
-      StartAttempt(a->slice, *w);
-      return true;
+      return NewAttempt(a->slice, *w);
     }
-    return false;
+    return nullptr;
   }
 
-  // REQUIRES: mu_ held. A usable worker with a free slot, preferring one
-  // other than `avoid`, and the least busy.
-  std::optional<size_t> FreeWorker(std::optional<size_t> avoid = {}) const {
+  // A usable worker with a free slot, preferring one other than `avoid`,
+  // and the least busy.
+  std::optional<size_t> FreeWorker(std::optional<size_t> avoid = {}) const
+      ABSL_EXCLUSIVE_LOCKS_REQUIRED(mu_) {
     std::optional<size_t> best;
     for (size_t w = 0; w < workers_.size(); ++w) {
       if (!Usable(w) || busy_[w] >= workers_[w]->Slots()) continue;
@@ -149,38 +171,44 @@ class Run {
     return best;
   }
 
-  bool Usable(size_t w) const { return failed_[w].ok() && workers_[w]->Healthy(); }
-  bool AnyUsable() const {
+  bool Usable(size_t w) const ABSL_EXCLUSIVE_LOCKS_REQUIRED(mu_) {
+    return failed_[w].ok() && workers_[w]->Healthy();
+  }
+  bool AnyUsable() const ABSL_EXCLUSIVE_LOCKS_REQUIRED(mu_) {
     for (size_t w = 0; w < workers_.size(); ++w) {
       if (Usable(w)) return true;
     }
     return false;
   }
 
-  // REQUIRES: mu_ held.
-  void StartAttempt(uint32_t slice, size_t w) {
-    auto attempt = std::make_unique<Attempt>(Attempt{slice, w, Clock::now(), nullptr});
-    Attempt* a = attempt.get();
-    attempts_.push_back(std::move(attempt));
+  // Books a slot for `slice` on worker w; the call starts in StartCalls.
+  Attempt* NewAttempt(uint32_t slice, size_t w) ABSL_EXCLUSIVE_LOCKS_REQUIRED(mu_) {
+    attempts_.push_back(std::make_unique<Attempt>(Attempt{slice, w, Clock::now(), nullptr}));
     ++busy_[w];
     ++running_;
     ++running_of_[slice];
     ++attempts_of_[slice];
-    SliceTask task{&query_, options_, {slice, count_}, schedule_.deadline};
-    // Start may call Finish at once on this thread: release the lock.
-    mu_.unlock();
-    auto call = workers_[w]->Start(task, [this, a](absl::StatusOr<SliceResult> r) {
-      Finish(a, std::move(r));
-    });
-    mu_.lock();
-    a->call = std::move(call);
-    if (cancelled_ && !a->finished) a->call->Cancel();
+    return attempts_.back().get();
   }
 
-  void Finish(Attempt* a, absl::StatusOr<SliceResult> r) {
+  // Starts the picked attempts' calls. The attempts stay alive (attempts_
+  // only grows until Execute ends) and their slice and worker never change.
+  void StartCalls(const std::vector<Attempt*>& picked) ABSL_LOCKS_EXCLUDED(mu_) {
+    for (Attempt* a : picked) {
+      SliceTask task{&query_, options_, {a->slice, count_}, schedule_.deadline};
+      auto call = workers_[a->worker]->Start(task, [this, a](absl::StatusOr<SliceResult> r) {
+        Finish(a, std::move(r));
+      });
+      absl::MutexLock lock(&mu_);
+      a->call = std::move(call);
+      if (cancelled_ && !a->finished) a->call->Cancel();
+    }
+  }
+
+  void Finish(Attempt* a, absl::StatusOr<SliceResult> r) ABSL_LOCKS_EXCLUDED(mu_) {
     std::optional<ScheduleProgress> progress;
     {
-      std::lock_guard<std::mutex> lock(mu_);
+      absl::MutexLock lock(&mu_);
       a->finished = true;
       --busy_[a->worker];
       --running_;
@@ -188,29 +216,14 @@ class Run {
       progress = Record(a, std::move(r));
     }
     if (progress && schedule_.on_progress) schedule_.on_progress(*progress);
-    changed_.notify_all();
+    changed_.SignalAll();
   }
 
-  // REQUIRES: mu_ held. Returns progress to report when a slice completed.
-  std::optional<ScheduleProgress> Record(Attempt* a, absl::StatusOr<SliceResult> r) {
+  // Returns progress to report when a slice completed.
+  std::optional<ScheduleProgress> Record(Attempt* a, absl::StatusOr<SliceResult> r)
+      ABSL_EXCLUSIVE_LOCKS_REQUIRED(mu_) {
     if (answers_[a->slice]) return std::nullopt;  // a twin answered first
-    if (r.ok()) {
-      answers_[a->slice] = std::move(r);
-      answer_worker_[a->slice] = a->worker;
-      ++solved_by_[a->worker];
-      ++done_;
-      const auto& plan = answers_[a->slice]->value().plan;
-      if (plan && (!best_cost_ || plan->root().cost < *best_cost_)) {
-        best_cost_ = plan->root().cost;
-      }
-      for (const auto& other : attempts_) {  // cancel the twin, if any
-        if (other.get() != a && other->slice == a->slice && !other->finished &&
-            other->call) {
-          other->call->Cancel();
-        }
-      }
-      return ScheduleProgress{done_, count_, best_cost_, Elapsed()};
-    }
+    if (r.ok()) return Solved(a, *std::move(r));
     if (cancelled_) return std::nullopt;
     if (!IsRetryable(r.status())) {
       if (error_.ok()) error_ = r.status();
@@ -238,9 +251,26 @@ class Run {
     return std::nullopt;
   }
 
-  // REQUIRES: mu_ held. When the loop must look again without an event:
-  // the deadline, or the moment the oldest lone slice becomes hedgeable.
-  std::optional<Clock::time_point> NextWakeUp() const {
+  ScheduleProgress Solved(Attempt* a, SliceResult r) ABSL_EXCLUSIVE_LOCKS_REQUIRED(mu_) {
+    answers_[a->slice] = std::move(r);
+    answer_worker_[a->slice] = a->worker;
+    ++solved_by_[a->worker];
+    ++done_;
+    const auto& plan = answers_[a->slice]->plan;
+    if (plan && (!best_cost_ || plan->root().cost < *best_cost_)) {
+      best_cost_ = plan->root().cost;
+    }
+    for (const auto& other : attempts_) {  // cancel the twin, if any
+      if (other.get() != a && other->slice == a->slice && !other->finished && other->call) {
+        other->call->Cancel();
+      }
+    }
+    return ScheduleProgress{done_, count_, best_cost_, Elapsed()};
+  }
+
+  // When the loop must look again without an event: the deadline, or the
+  // moment the oldest lone slice becomes hedgeable.
+  std::optional<Clock::time_point> NextWakeUp() const ABSL_EXCLUSIVE_LOCKS_REQUIRED(mu_) {
     std::optional<Clock::time_point> wake = schedule_.deadline;
     if (schedule_.hedge_after && pending_.empty()) {
       for (const auto& a : attempts_) {
@@ -252,22 +282,21 @@ class Run {
     return wake;
   }
 
-  // REQUIRES: mu_ held.
-  void CancelAll() {
+  void CancelAll() ABSL_EXCLUSIVE_LOCKS_REQUIRED(mu_) {
     cancelled_ = true;
     for (const auto& a : attempts_) {
       if (!a->finished && a->call) a->call->Cancel();
     }
   }
 
-  absl::Status PoisonSlice(uint32_t slice) const {
+  absl::Status PoisonSlice(uint32_t slice) const ABSL_EXCLUSIVE_LOCKS_REQUIRED(mu_) {
     return absl::InternalError(absl::StrCat(
         "slice ", slice, " of ", count_, " failed on ", faults_of_[slice].size(),
         " workers (", absl::StrJoin(faults_of_[slice], "; "),
         "); it is not sent to another worker, since it may be what brings them down"));
   }
 
-  absl::Status NoWorkerLeft() const {
+  absl::Status NoWorkerLeft() const ABSL_EXCLUSIVE_LOCKS_REQUIRED(mu_) {
     std::vector<std::string> why;
     for (size_t w = 0; w < workers_.size(); ++w) {
       why.push_back(absl::StrCat(workers_[w]->Name(), ": ",
@@ -283,13 +312,13 @@ class Run {
     return std::chrono::duration<double>(Clock::now() - start_).count();
   }
 
-  absl::StatusOr<ScheduleOutcome> Outcome() {
+  absl::StatusOr<ScheduleOutcome> Outcome() ABSL_EXCLUSIVE_LOCKS_REQUIRED(mu_) {
     if (!error_.ok()) return error_;
     std::vector<SliceResult> solved;
     std::vector<std::string> names;
     for (uint32_t i = 0; i < count_; ++i) {
       if (!answers_[i]) continue;
-      solved.push_back(*std::move(*answers_[i]));
+      solved.push_back(*std::move(answers_[i]));
       names.push_back(workers_[answer_worker_[i]]->Name());
     }
     const double coverage = static_cast<double>(done_) / count_;
@@ -324,26 +353,27 @@ class Run {
   const ScheduleOptions& schedule_;
   const Clock::time_point start_ = Clock::now();
 
-  std::mutex mu_;
-  std::condition_variable changed_;
-  std::deque<uint32_t> pending_;
-  std::vector<std::unique_ptr<Attempt>> attempts_;
-  std::vector<int> busy_;
-  std::vector<absl::Status> failed_;
-  std::vector<uint32_t> solved_by_;
-  std::vector<int> attempts_of_;
-  std::vector<int> running_of_;
-  std::vector<std::vector<std::string>> faults_of_;  // per slice: "worker: error"
-  std::vector<std::optional<absl::StatusOr<SliceResult>>> answers_;
-  std::vector<size_t> answer_worker_;
-  std::optional<double> best_cost_;
-  uint32_t done_ = 0;
-  int running_ = 0;
-  uint32_t retries_ = 0;
-  uint32_t hedges_ = 0;
-  bool cancelled_ = false;
-  bool deadline_passed_ = false;
-  absl::Status error_;
+  absl::Mutex mu_;
+  absl::CondVar changed_;
+  std::deque<uint32_t> pending_ ABSL_GUARDED_BY(mu_);
+  std::vector<std::unique_ptr<Attempt>> attempts_ ABSL_GUARDED_BY(mu_);
+  std::vector<int> busy_ ABSL_GUARDED_BY(mu_);
+  std::vector<absl::Status> failed_ ABSL_GUARDED_BY(mu_);
+  std::vector<uint32_t> solved_by_ ABSL_GUARDED_BY(mu_);
+  std::vector<int> attempts_of_ ABSL_GUARDED_BY(mu_);
+  std::vector<int> running_of_ ABSL_GUARDED_BY(mu_);
+  // per slice: "worker: error" of each worker fault
+  std::vector<std::vector<std::string>> faults_of_ ABSL_GUARDED_BY(mu_);
+  std::vector<std::optional<SliceResult>> answers_ ABSL_GUARDED_BY(mu_);
+  std::vector<size_t> answer_worker_ ABSL_GUARDED_BY(mu_);
+  std::optional<double> best_cost_ ABSL_GUARDED_BY(mu_);
+  uint32_t done_ ABSL_GUARDED_BY(mu_) = 0;
+  int running_ ABSL_GUARDED_BY(mu_) = 0;
+  uint32_t retries_ ABSL_GUARDED_BY(mu_) = 0;
+  uint32_t hedges_ ABSL_GUARDED_BY(mu_) = 0;
+  bool cancelled_ ABSL_GUARDED_BY(mu_) = false;
+  bool deadline_passed_ ABSL_GUARDED_BY(mu_) = false;
+  absl::Status error_ ABSL_GUARDED_BY(mu_);
 };
 
 }  // namespace

@@ -43,21 +43,21 @@ absl::StatusOr<Parsed> Parse(const v1::SolveSliceRequest& request, const WorkerC
 }  // namespace
 
 bool WorkerService::Acquire(grpc::ServerContext* context) {
-  std::unique_lock<std::mutex> lock(mu_);
-  while (running_ >= config_.threads) {
+  absl::MutexLock lock(&mu_);
+  const auto free = [this]() ABSL_EXCLUSIVE_LOCKS_REQUIRED(mu_) {
+    return running_ < config_.threads;
+  };
+  // Polls the call's cancel while it waits (gRPC has no wake-up for it).
+  while (!mu_.AwaitWithTimeout(absl::Condition(&free), absl::Milliseconds(10))) {
     if (context->IsCancelled()) return false;
-    freed_.wait_for(lock, std::chrono::milliseconds(10));
   }
   ++running_;
   return true;
 }
 
 void WorkerService::Release() {
-  {
-    std::lock_guard<std::mutex> lock(mu_);
-    --running_;
-  }
-  freed_.notify_one();
+  absl::MutexLock lock(&mu_);
+  --running_;
 }
 
 grpc::Status WorkerService::SolveSlice(grpc::ServerContext* context,

@@ -6,11 +6,10 @@
 #ifndef SLICEPLAN_WORKER_WORKER_SERVICE_H_
 #define SLICEPLAN_WORKER_WORKER_SERVICE_H_
 
-#include <condition_variable>
 #include <cstdint>
-#include <mutex>
 
 #include "absl/base/thread_annotations.h"
+#include "absl/synchronization/mutex.h"
 #include "core/input_limits.h"
 #include "sliceplan.grpc.pb.h"
 
@@ -41,12 +40,11 @@ class WorkerService final : public v1::SliceWorker::Service {
 
  private:
   // Waits for a free slot; false when the call ended first.
-  bool Acquire(grpc::ServerContext* context);
-  void Release();
+  bool Acquire(grpc::ServerContext* context) ABSL_LOCKS_EXCLUDED(mu_);
+  void Release() ABSL_LOCKS_EXCLUDED(mu_);
 
   const WorkerConfig config_;
-  std::mutex mu_;
-  std::condition_variable freed_;
+  absl::Mutex mu_;
   int running_ ABSL_GUARDED_BY(mu_) = 0;
 };
 
