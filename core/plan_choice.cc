@@ -63,13 +63,7 @@ absl::StatusOr<Bound> ParseBound(const std::string& text) {
 }
 
 absl::StatusOr<Preference> ParsePreference(const std::string& text) {
-  if (const auto m = MetricNamed(text)) {
-    Preference p{0, 0, 0};
-    if (*m == Metric::kLatency) p.latency = 1;
-    if (*m == Metric::kNodeSeconds) p.node_seconds = 1;
-    if (*m == Metric::kCompleteness) p.incompleteness = 1;
-    return p;
-  }
+  if (const auto m = MetricNamed(text)) return Preference::Best(*m);
   const std::string prefix = "weights:";
   if (text.rfind(prefix, 0) != 0) {
     return absl::InvalidArgumentError(absl::StrCat(

@@ -29,6 +29,11 @@ struct Preference {
   // Weights of latency_s, node_seconds and (1 - completeness); minimising
   // one metric is a single weight of 1 (completeness: maximised).
   double latency = 1, node_seconds = 0, incompleteness = 0;
+  // The best plan on `m` alone (completeness: the most complete).
+  static Preference Best(Metric m) {
+    return {m == Metric::kLatency ? 1.0 : 0.0, m == Metric::kNodeSeconds ? 1.0 : 0.0,
+            m == Metric::kCompleteness ? 1.0 : 0.0};
+  }
   double Score(const ClusterCosts& c) const {
     return latency * c.latency_s + node_seconds * c.node_seconds +
            incompleteness * (1 - c.completeness);

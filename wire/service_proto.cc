@@ -1,5 +1,7 @@
 #include "wire/service_proto.h"
 
+#include <cmath>
+
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_join.h"
 #include "absl/strings/str_split.h"
@@ -9,6 +11,110 @@
 #include "core/value_range.h"
 
 namespace sliceplan {
+
+namespace {
+
+absl::StatusOr<Metric> MetricFromProto(v1::Metric m, const std::string& at) {
+  switch (m) {
+    case v1::METRIC_LATENCY_S: return Metric::kLatency;
+    case v1::METRIC_NODE_SECONDS: return Metric::kNodeSeconds;
+    case v1::METRIC_COMPLETENESS: return Metric::kCompleteness;
+    default:
+      return absl::InvalidArgumentError(absl::StrCat(at, ": not a metric (", m, ")"));
+  }
+}
+
+v1::Metric MetricToProto(Metric m) {
+  switch (m) {
+    case Metric::kLatency: return v1::METRIC_LATENCY_S;
+    case Metric::kNodeSeconds: return v1::METRIC_NODE_SECONDS;
+    case Metric::kCompleteness: return v1::METRIC_COMPLETENESS;
+  }
+  return v1::METRIC_UNSPECIFIED;
+}
+
+uint8_t ObjectiveBit(Metric m) {
+  switch (m) {
+    case Metric::kLatency: return Objectives::kLatency;
+    case Metric::kNodeSeconds: return Objectives::kNodeSeconds;
+    case Metric::kCompleteness: return Objectives::kCompleteness;
+  }
+  return 0;
+}
+
+absl::StatusOr<Objectives> ObjectivesFromProto(
+    const google::protobuf::RepeatedField<int>& list) {
+  Objectives out{0};
+  for (int i = 0; i < list.size(); ++i) {
+    const std::string at = absl::StrCat("options.objectives[", i, "]");
+    ASSIGN_OR_RETURN(const Metric m, MetricFromProto(static_cast<v1::Metric>(list[i]), at));
+    if (out.has(ObjectiveBit(m))) {
+      return absl::InvalidArgumentError(absl::StrCat(at, ": ", MetricLabel(m), " is listed twice"));
+    }
+    out.mask |= ObjectiveBit(m);
+  }
+  return out;
+}
+
+absl::StatusOr<Bound> BoundFromProto(const v1::Bound& m, int i) {
+  const std::string at = absl::StrCat("options.bounds[", i, "]");
+  ASSIGN_OR_RETURN(const Metric metric, MetricFromProto(m.metric(), at + ".metric"));
+  if (m.comparison() != v1::COMPARISON_AT_MOST && m.comparison() != v1::COMPARISON_AT_LEAST) {
+    return absl::InvalidArgumentError(absl::StrCat(at, ".comparison: must be AT_MOST or AT_LEAST"));
+  }
+  if (!std::isfinite(m.value())) {
+    return absl::InvalidArgumentError(absl::StrCat(at, ".value: must be finite, got ", m.value()));
+  }
+  return Bound{metric, m.comparison() == v1::COMPARISON_AT_MOST, m.value()};
+}
+
+absl::StatusOr<Preference> PreferenceFromProto(const v1::Preference& m) {
+  if (m.kind_case() == v1::Preference::kBest) {
+    ASSIGN_OR_RETURN(const Metric best, MetricFromProto(m.best(), "options.preference.best"));
+    return Preference::Best(best);
+  }
+  if (m.kind_case() != v1::Preference::kWeights) {
+    return absl::InvalidArgumentError("options.preference: neither best nor weights");
+  }
+  const v1::Weights& w = m.weights();
+  for (const double v : {w.latency_s(), w.node_seconds(), w.incompleteness()}) {
+    if (!(std::isfinite(v) && v >= 0)) {
+      return absl::InvalidArgumentError(
+          absl::StrCat("options.preference.weights: each must be finite and >= 0, got ", v));
+    }
+  }
+  return Preference{w.latency_s(), w.node_seconds(), w.incompleteness()};
+}
+
+v1::Operator OperatorOf(const PlanNode& node, CostModelKind model) {
+  if (node.is_leaf()) return v1::OPERATOR_SCAN;
+  if (model != CostModelKind::kCluster) return v1::OPERATOR_JOIN;
+  switch (node.strategy) {
+    case JoinStrategy::kShuffle: return v1::OPERATOR_SHUFFLE;
+    case JoinStrategy::kBroadcastRight: return v1::OPERATOR_BROADCAST_RIGHT;
+    case JoinStrategy::kBroadcastLeft: return v1::OPERATOR_BROADCAST_LEFT;
+  }
+  return v1::OPERATOR_UNSPECIFIED;
+}
+
+// Sets node.strategy from the node's operator; INVALID_ARGUMENT when the
+// operator does not fit the node (a scan for leaves, a join of the model).
+absl::Status ReadOperator(const v1::PlanNode& in, const std::string& at, CostModelKind model,
+                          PlanNode& node) {
+  if (in.kind_case() == v1::PlanNode::kJoin) {
+    for (JoinStrategy st : kAllStrategies) {
+      node.strategy = st;
+      if (in.op() == OperatorOf(node, model)) return absl::OkStatus();
+    }
+  } else if (in.op() == v1::OPERATOR_SCAN) {
+    return absl::OkStatus();
+  }
+  return absl::InvalidArgumentError(
+      absl::StrCat(at, ".op: ", v1::Operator_Name(in.op()), " is not an operator of ",
+                   in.kind_case() == v1::PlanNode::kJoin ? "a join" : "a leaf"));
+}
+
+}  // namespace
 
 absl::StatusOr<SearchOptions> SearchOptionsFromProto(const v1::SearchOptions& m) {
   SearchOptions out;
@@ -51,9 +157,7 @@ absl::StatusOr<SearchOptions> SearchOptionsFromProto(const v1::SearchOptions& m)
   }
   if (m.cluster().has_stage_startup_s()) p.stage_startup_s = m.cluster().stage_startup_s().value();
   if (m.objectives_size() > 0) {
-    auto o = ParseObjectives(absl::StrJoin(m.objectives(), ","));
-    if (!o.ok()) return absl::InvalidArgumentError(absl::StrCat("options.", o.status().message()));
-    out.cluster.objectives = *o;
+    ASSIGN_OR_RETURN(out.cluster.objectives, ObjectivesFromProto(m.objectives()));
   }
   if (m.alpha() != 0) {
     if (out.cost != CostModelKind::kCluster) {
@@ -62,34 +166,18 @@ absl::StatusOr<SearchOptions> SearchOptionsFromProto(const v1::SearchOptions& m)
     }
     out.cluster.alpha = m.alpha();
   }
-  for (const std::string& b : m.bounds()) {
-    auto bound = ParseBound(b);
-    if (!bound.ok()) return absl::InvalidArgumentError(absl::StrCat("options.", bound.status().message()));
-    out.cluster.choice.bounds.push_back(*bound);
+  for (int i = 0; i < m.bounds_size(); ++i) {
+    ASSIGN_OR_RETURN(Bound b, BoundFromProto(m.bounds(i), i));
+    out.cluster.choice.bounds.push_back(b);
   }
-  if (!m.prefer().empty()) {
-    auto prefer = ParsePreference(m.prefer());
-    if (!prefer.ok()) return absl::InvalidArgumentError(absl::StrCat("options.", prefer.status().message()));
-    out.cluster.choice.prefer = *prefer;
+  if (m.has_preference()) {
+    ASSIGN_OR_RETURN(out.cluster.choice.prefer, PreferenceFromProto(m.preference()));
   }
   if (auto s = ValidateSearchOptions(out); !s.ok()) {
     return absl::InvalidArgumentError(absl::StrCat("options.cluster.", s.message()));
   }
   return out;
 }
-
-namespace {
-
-std::string BoundText(const Bound& b) {
-  return absl::StrCat(MetricLabel(b.metric), b.at_most ? "<=" : ">=", b.value);
-}
-
-std::string PreferText(const Preference& p) {
-  return absl::StrCat("weights:latency_s=", p.latency, ",node_seconds=", p.node_seconds,
-                      ",completeness=", p.incompleteness);
-}
-
-}  // namespace
 
 v1::SearchOptions SearchOptionsToProto(const SearchOptions& options) {
   v1::SearchOptions m;
@@ -108,12 +196,21 @@ v1::SearchOptions SearchOptionsToProto(const SearchOptions& options) {
     c->mutable_cpu_rows_per_s()->set_value(p.cpu_rows_per_s);
     c->mutable_scan_bytes_per_s()->set_value(p.scan_bytes_per_s);
     c->mutable_stage_startup_s()->set_value(p.stage_startup_s);
-    for (absl::string_view o : absl::StrSplit(ObjectivesString(options.cluster.objectives), ',')) {
-      m.add_objectives(std::string(o));
+    for (Metric o : {Metric::kLatency, Metric::kNodeSeconds, Metric::kCompleteness}) {
+      if (options.cluster.objectives.has(ObjectiveBit(o))) m.add_objectives(MetricToProto(o));
     }
     m.set_alpha(options.cluster.alpha);
-    for (const Bound& b : options.cluster.choice.bounds) m.add_bounds(BoundText(b));
-    m.set_prefer(PreferText(options.cluster.choice.prefer));
+    for (const Bound& b : options.cluster.choice.bounds) {
+      v1::Bound* out = m.add_bounds();
+      out->set_metric(MetricToProto(b.metric));
+      out->set_comparison(b.at_most ? v1::COMPARISON_AT_MOST : v1::COMPARISON_AT_LEAST);
+      out->set_value(b.value);
+    }
+    const Preference& prefer = options.cluster.choice.prefer;
+    v1::Weights* w = m.mutable_preference()->mutable_weights();
+    w->set_latency_s(prefer.latency);
+    w->set_node_seconds(prefer.node_seconds);
+    w->set_incompleteness(prefer.incompleteness);
   }
   return m;
 }
@@ -125,12 +222,12 @@ v1::Plan PlanToProto(const Plan& plan, CostModelKind model) {
     const bool cluster = model == CostModelKind::kCluster;
     if (node.is_leaf()) {
       out->set_relation(Lowest(node.relations).value);
-      out->set_operator_("scan");
+      out->set_op(v1::OPERATOR_SCAN);
       if (cluster) out->set_sample_rate(node.sample_rate);
     } else {
       out->mutable_join()->set_left(static_cast<uint32_t>(node.left));
       out->mutable_join()->set_right(static_cast<uint32_t>(node.right));
-      out->set_operator_(cluster ? StrategyName(node.strategy) : "join");
+      out->set_op(OperatorOf(node, model));
       if (cluster) out->set_nodes(static_cast<uint32_t>(node.nodes));
     }
     out->set_cardinality(node.cardinality);
@@ -187,15 +284,8 @@ absl::StatusOr<Plan> PlanFromProto(const v1::Plan& m, const Query& query,
       node.metrics.completeness = comp->second;
       node.sample_rate = in.kind_case() == v1::PlanNode::kRelation ? in.sample_rate() : 1;
       node.nodes = static_cast<int>(in.nodes());
-      bool known = in.kind_case() == v1::PlanNode::kRelation;
-      for (JoinStrategy st : kAllStrategies) {
-        if (in.operator_() == StrategyName(st)) node.strategy = st, known = true;
-      }
-      if (!known) {
-        return absl::InvalidArgumentError(
-            absl::StrCat(at, ".operator: unknown strategy \"", in.operator_(), "\""));
-      }
     }
+    RETURN_IF_ERROR(ReadOperator(in, at, model, node));
     const auto cost = in.costs().find(MetricName(model));
     if (cost == in.costs().end()) {
       return absl::InvalidArgumentError(

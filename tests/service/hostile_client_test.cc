@@ -344,8 +344,15 @@ TEST(HostileClientTest, BadValuesGetMessagesThatSayWhatIsWrong) {
   r = v1::OptimizeRequest();
   *r.mutable_query() = base;
   r.mutable_options()->set_cost(v1::COST_MODEL_CLUSTER);
-  r.mutable_options()->set_prefer("weights:latency_s=1,latency_s=2");
-  expect(r, grpc::StatusCode::INVALID_ARGUMENT, "latency_s is weighted twice");
+  r.mutable_options()->add_objectives(v1::METRIC_LATENCY_S);
+  r.mutable_options()->add_objectives(v1::METRIC_LATENCY_S);
+  expect(r, grpc::StatusCode::INVALID_ARGUMENT, "options.objectives[1]: latency_s is listed twice");
+
+  r = v1::OptimizeRequest();
+  *r.mutable_query() = base;
+  r.mutable_options()->set_cost(v1::COST_MODEL_CLUSTER);
+  r.mutable_options()->mutable_preference()->mutable_weights()->set_node_seconds(-1);
+  expect(r, grpc::StatusCode::INVALID_ARGUMENT, "options.preference.weights: each must be");
 }
 
 TEST(HostileClientTest, OversizedQueriesAreRefusedBeforeTheyGrow) {

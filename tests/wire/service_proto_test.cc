@@ -118,6 +118,11 @@ TEST_F(MalformedReplyTest, NegativeCardinality) {
   ExpectRefused("got -4");
 }
 
+TEST_F(MalformedReplyTest, LeafWithAJoinOperator) {
+  Node(FirstLeaf()).set_op(v1::OPERATOR_SHUFFLE);
+  ExpectRefused(".op: OPERATOR_SHUFFLE is not an operator of a leaf");
+}
+
 TEST_F(MalformedReplyTest, EmptyNode) {
   Node(FirstLeaf()).clear_relation();
   ExpectRefused(": neither relation nor join");
@@ -146,6 +151,32 @@ TEST(ServiceProtoTest, OptionsAreValidatedBeforeNarrowing) {
   o = SearchOptionsFromProto(shape);
   ASSERT_FALSE(o.ok());
   EXPECT_EQ(o.status().message(), "options.shape: unknown plan shape 9");
+}
+
+TEST(ServiceProtoTest, TypedChoiceFieldsAreChecked) {
+  v1::SearchOptions m;
+  m.set_cost(v1::COST_MODEL_CLUSTER);
+  v1::Bound* b = m.add_bounds();
+  b->set_metric(v1::METRIC_COMPLETENESS);
+  auto o = SearchOptionsFromProto(m);
+  ASSERT_FALSE(o.ok());
+  EXPECT_EQ(o.status().message(), "options.bounds[0].comparison: must be AT_MOST or AT_LEAST");
+  b->set_comparison(v1::COMPARISON_AT_LEAST);
+  b->set_value(std::nan(""));
+  o = SearchOptionsFromProto(m);
+  ASSERT_FALSE(o.ok());
+  EXPECT_EQ(o.status().message(), "options.bounds[0].value: must be finite, got nan");
+  b->set_value(0.99);
+  m.mutable_preference()->set_best(v1::METRIC_UNSPECIFIED);
+  o = SearchOptionsFromProto(m);
+  ASSERT_FALSE(o.ok());
+  EXPECT_EQ(o.status().message(), "options.preference.best: not a metric (0)");
+  m.mutable_preference()->set_best(v1::METRIC_NODE_SECONDS);
+  o = SearchOptionsFromProto(m);
+  ASSERT_TRUE(o.ok()) << o.status();
+  EXPECT_EQ(o->cluster.choice.prefer.node_seconds, 1);
+  EXPECT_EQ(o->cluster.choice.prefer.latency, 0);
+  EXPECT_TRUE(o->cluster.choice.bounds[0].value == 0.99 && !o->cluster.choice.bounds[0].at_most);
 }
 
 TEST(ServiceProtoTest, SearchOptionsRoundTrip) {
