@@ -37,8 +37,7 @@ std::vector<ConstraintRelations> Naive(PlanShape shape, int k) {
 }
 
 void Report(const char* name, const Query& q, PlanShape shape) {
-  const SliceConstraints whole =
-      SliceConstraints::FromRelations(shape, {0, 1}, {});
+  const SliceConstraints whole = SliceConstraints::FromRelations(shape, {0, 1}, {});
   const double unsliced = static_cast<double>(Splits(q, shape, whole));
   for (int k = 1; k <= 4; ++k) {
     const uint32_t p = 1u << k;
@@ -53,10 +52,11 @@ void Report(const char* name, const Query& q, PlanShape shape) {
       ours_max = std::max(ours_max, a), ours_sum += a;
       naive_max = std::max(naive_max, b), naive_sum += b;
     }
-    std::printf("%-10s %-9s P=%-3u ours: max/whole %.3f balance %.3f | naive: max/whole %.3f balance %.3f\n",
-                name, shape == PlanShape::kBushy ? "bushy" : "left-deep", p,
-                ours_max / unsliced, ours_max / (ours_sum / p),
-                naive_max / unsliced, naive_max / (naive_sum / p));
+    std::printf(
+        "%-10s %-9s P=%-3u ours: max/whole %.3f balance %.3f | naive: max/whole %.3f balance "
+        "%.3f\n",
+        name, shape == PlanShape::kBushy ? "bushy" : "left-deep", p, ours_max / unsliced,
+        ours_max / (ours_sum / p), naive_max / unsliced, naive_max / (naive_sum / p));
   }
 }
 
@@ -69,8 +69,10 @@ int main() {
     const char* name;
     GraphShape shape;
     int n;
-  } graphs[] = {{"chain30", GraphShape::kChain, 30}, {"cycle24", GraphShape::kCycle, 24},
-                {"star16", GraphShape::kStar, 16},   {"clique14", GraphShape::kClique, 14},
+  } graphs[] = {{"chain30", GraphShape::kChain, 30},
+                {"cycle24", GraphShape::kCycle, 24},
+                {"star16", GraphShape::kStar, 16},
+                {"clique14", GraphShape::kClique, 14},
                 {"random22", GraphShape::kRandom, 22}};
   for (const auto& g : graphs) {
     const Query q = testing::MakeQuery(g.shape, g.n, 1);

@@ -33,8 +33,8 @@ int main(int argc, char** argv) {
   auto coordinator = testing::ServerProcess::Start(
       {argv[2], "--listen=127.0.0.1:0", "--workers=" + list, "--hedge_after_seconds=0"});
   if (!coordinator.ok()) return 1;
-  std::printf("%2s %3s %9s %12s %12s %11s %9s %14s\n", "n", "P", "wall_s", "busiest_s",
-              "slowest_s", "overhead_s", "overhead", "W-machine_s");
+  std::printf("%2s %3s %9s %12s %12s %11s %9s %14s\n", "n", "P", "wall_s", "busiest_s", "slowest_s",
+              "overhead_s", "overhead", "W-machine_s");
   for (int n : {16, 18, 20}) {
     const Query q = testing::MakeQuery(testing::GraphShape::kRandom, n, 1);
     for (uint32_t p : {4u, 8u, 16u, 32u}) {
@@ -55,8 +55,8 @@ int main(int argc, char** argv) {
       for (const auto& [name, s] : busy) busiest = std::max(busiest, s);
       const double overhead = out->result.wall_seconds - busiest;
       std::printf("%2d %3u %9.3f %12.3f %12.3f %11.4f %8.2f%% %14.3f\n", n, p,
-                  out->result.wall_seconds, busiest, slowest, overhead,
-                  100 * overhead / slowest, slowest);
+                  out->result.wall_seconds, busiest, slowest, overhead, 100 * overhead / slowest,
+                  slowest);
     }
   }
   return 0;

@@ -36,8 +36,8 @@ struct Run {
 constexpr int kBudgetSeconds = 60;
 
 Run Solve(const Query& q, const SearchOptions& o, SliceSpec slice) {
-  SearchControl control(nullptr, std::chrono::steady_clock::now() +
-                                     std::chrono::seconds(kBudgetSeconds));
+  SearchControl control(nullptr,
+                        std::chrono::steady_clock::now() + std::chrono::seconds(kBudgetSeconds));
   auto r = SolveSlice(q, o, slice, control);
   if (!r.ok()) {
     std::printf("%3d %6.2f  over %d s (%s)\n", q.size(), o.cluster.alpha, kBudgetSeconds,

@@ -45,8 +45,8 @@ Run Best(const Query& q, PlanShape shape, SliceSpec slice, int reps) {
 void NsPerSplit(int n) {
   const Query q = testing::MakeQuery(testing::GraphShape::kRandom, n, 1);
   const Run r = Best(q, PlanShape::kBushy, {0, 1}, 3);
-  std::printf("n=%d bushy unsliced: %llu splits, %.3f s, %.3f ns/split, memo %.1f MiB\n",
-              n, static_cast<unsigned long long>(r.splits), r.seconds,
+  std::printf("n=%d bushy unsliced: %llu splits, %.3f s, %.3f ns/split, memo %.1f MiB\n", n,
+              static_cast<unsigned long long>(r.splits), r.seconds,
               1e9 * r.seconds / static_cast<double>(r.splits),
               static_cast<double>(r.memo_bytes) / (1 << 20));
 }
@@ -55,8 +55,8 @@ void SliceRatios(int n, PlanShape shape) {
   const Query q = testing::MakeQuery(testing::GraphShape::kRandom, n, 1);
   const Run whole = Best(q, shape, {0, 1}, 5);
   const double per_bit = shape == PlanShape::kBushy ? 21.0 / 27.0 : 0.75;
-  std::printf("%s n=%d unsliced %.3f s\n", shape == PlanShape::kBushy ? "bushy" : "left-deep",
-              n, whole.seconds);
+  std::printf("%s n=%d unsliced %.3f s\n", shape == PlanShape::kBushy ? "bushy" : "left-deep", n,
+              whole.seconds);
   std::printf("  %3s %10s %10s %10s %12s %12s\n", "P", "slowest_s", "ratio", "formula",
               "memo_ratio", "mem_formula");
   for (int k = 1; k <= 4; ++k) {
@@ -69,10 +69,9 @@ void SliceRatios(int n, PlanShape shape) {
       memo = std::max(memo, r.memo_bytes);
     }
     const double mem_formula = std::pow(shape == PlanShape::kBushy ? 7.0 / 8.0 : 0.75, k);
-    std::printf("  %3u %10.3f %10.3f %10.3f %12.3f %12.3f\n", p, slowest,
-                slowest / whole.seconds, std::pow(per_bit, k),
-                static_cast<double>(memo) / static_cast<double>(whole.memo_bytes),
-                mem_formula);
+    std::printf("  %3u %10.3f %10.3f %10.3f %12.3f %12.3f\n", p, slowest, slowest / whole.seconds,
+                std::pow(per_bit, k),
+                static_cast<double>(memo) / static_cast<double>(whole.memo_bytes), mem_formula);
   }
 }
 
@@ -84,11 +83,10 @@ int main(int argc, char** argv) {
     const int n = std::atoi(argv[2]);
     const auto p = static_cast<uint32_t>(std::atoi(argv[3]));
     const auto index = static_cast<uint32_t>(argc > 4 ? std::atoi(argv[4]) : 0);
-    const auto q = sliceplan::testing::MakeQuery(
-        sliceplan::testing::GraphShape::kRandom, n, 1);
+    const auto q = sliceplan::testing::MakeQuery(sliceplan::testing::GraphShape::kRandom, n, 1);
     const auto r = sliceplan::Best(q, sliceplan::PlanShape::kBushy, {index, p}, 3);
-    std::printf("n=%d P=%u slice %u: %.4f s, %llu splits, %.3f ns/split\n", n, p, index,
-                r.seconds, static_cast<unsigned long long>(r.splits),
+    std::printf("n=%d P=%u slice %u: %.4f s, %llu splits, %.3f ns/split\n", n, p, index, r.seconds,
+                static_cast<unsigned long long>(r.splits),
                 1e9 * r.seconds / static_cast<double>(r.splits));
     return 0;
   }

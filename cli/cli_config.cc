@@ -15,15 +15,12 @@ namespace {
 
 absl::Status BadFlag(const std::string& flag, const std::string& value,
                      const std::string& expected) {
-  return absl::InvalidArgumentError(
-      absl::StrCat("--", flag, "=", value, ": expected ", expected));
+  return absl::InvalidArgumentError(absl::StrCat("--", flag, "=", value, ": expected ", expected));
 }
 
-absl::StatusOr<uint64_t> ParseUnsigned(const std::string& flag,
-                                       const std::string& value) {
+absl::StatusOr<uint64_t> ParseUnsigned(const std::string& flag, const std::string& value) {
   uint64_t out = 0;
-  const auto [end, err] =
-      std::from_chars(value.data(), value.data() + value.size(), out);
+  const auto [end, err] = std::from_chars(value.data(), value.data() + value.size(), out);
   if (err != std::errc() || end != value.data() + value.size()) {
     return BadFlag(flag, value, "a whole number");
   }
@@ -37,20 +34,28 @@ absl::StatusOr<double> ParseDouble(const std::string& flag, const std::string& v
   return d;
 }
 
-absl::Status SetFlag(OptimizeConfig& config, const std::string& flag,
-                     const std::string& value) {
+absl::Status SetFlag(OptimizeConfig& config, const std::string& flag, const std::string& value) {
   if (flag == "shape") {
-    if (value == "bushy") config.search.shape = PlanShape::kBushy;
-    else if (value == "left-deep") config.search.shape = PlanShape::kLeftDeep;
-    else return BadFlag(flag, value, "bushy or left-deep");
+    if (value == "bushy")
+      config.search.shape = PlanShape::kBushy;
+    else if (value == "left-deep")
+      config.search.shape = PlanShape::kLeftDeep;
+    else
+      return BadFlag(flag, value, "bushy or left-deep");
   } else if (flag == "cross-products") {
-    if (value == "true") config.search.cross_products = true;
-    else if (value == "false") config.search.cross_products = false;
-    else return BadFlag(flag, value, "true or false");
+    if (value == "true")
+      config.search.cross_products = true;
+    else if (value == "false")
+      config.search.cross_products = false;
+    else
+      return BadFlag(flag, value, "true or false");
   } else if (flag == "cost") {
-    if (value == "cout") config.search.cost = CostModelKind::kCout;
-    else if (value == "cluster") config.search.cost = CostModelKind::kCluster;
-    else return BadFlag(flag, value, "cout or cluster");
+    if (value == "cout")
+      config.search.cost = CostModelKind::kCout;
+    else if (value == "cluster")
+      config.search.cost = CostModelKind::kCluster;
+    else
+      return BadFlag(flag, value, "cout or cluster");
   } else if (flag == "objectives") {
     auto o = ParseObjectives(value);
     if (!o.ok()) return o.status();
@@ -100,18 +105,25 @@ absl::Status SetFlag(OptimizeConfig& config, const std::string& flag,
     if (value.empty()) return BadFlag(flag, value, "HOST:PORT");
     config.coordinator = value;
   } else if (flag == "format") {
-    if (value == "text") config.format = OutputFormat::kText;
-    else if (value == "json") config.format = OutputFormat::kJson;
-    else if (value == "dot") config.format = OutputFormat::kDot;
-    else return BadFlag(flag, value, "text, json or dot");
+    if (value == "text")
+      config.format = OutputFormat::kText;
+    else if (value == "json")
+      config.format = OutputFormat::kJson;
+    else if (value == "dot")
+      config.format = OutputFormat::kDot;
+    else
+      return BadFlag(flag, value, "text, json or dot");
   } else if (flag == "deadline-seconds") {
     const auto d = ParseDouble(flag, value);
     if (!d.ok() || !(*d > 0)) return BadFlag(flag, value, "a number of seconds > 0");
     config.deadline_seconds = *d;
   } else if (flag == "partial-on-deadline") {
-    if (value == "true") config.partial_on_deadline = true;
-    else if (value == "false") config.partial_on_deadline = false;
-    else return BadFlag(flag, value, "true or false");
+    if (value == "true")
+      config.partial_on_deadline = true;
+    else if (value == "false")
+      config.partial_on_deadline = false;
+    else
+      return BadFlag(flag, value, "true or false");
   } else if (flag == "memo-limit") {
     auto bytes = ParseBytes(value);
     if (!bytes.ok()) return BadFlag(flag, value, "bytes, e.g. 512MiB or 8GiB");
@@ -126,8 +138,7 @@ absl::Status SetFlag(OptimizeConfig& config, const std::string& flag,
 
 absl::StatusOr<uint64_t> ParseBytes(const std::string& text) {
   static constexpr std::pair<const char*, uint64_t> kSuffixes[] = {
-      {"GiB", uint64_t{1} << 30}, {"MiB", uint64_t{1} << 20},
-      {"KiB", uint64_t{1} << 10}, {"", 1}};
+      {"GiB", uint64_t{1} << 30}, {"MiB", uint64_t{1} << 20}, {"KiB", uint64_t{1} << 10}, {"", 1}};
   for (const auto& [suffix, scale] : kSuffixes) {
     const std::string s(suffix);
     if (text.size() <= s.size() || text.compare(text.size() - s.size(), s.size(), s) != 0) {
@@ -141,8 +152,8 @@ absl::StatusOr<uint64_t> ParseBytes(const std::string& text) {
   return absl::InvalidArgumentError(absl::StrCat("bad byte count: ", text));
 }
 
-absl::StatusOr<OptimizeConfig> ParseOptimizeArgs(
-    const std::vector<std::string>& args, int default_workers) {
+absl::StatusOr<OptimizeConfig> ParseOptimizeArgs(const std::vector<std::string>& args,
+                                                 int default_workers) {
   OptimizeConfig config;
   config.workers = default_workers;
   for (const std::string& arg : args) {
@@ -152,8 +163,8 @@ absl::StatusOr<OptimizeConfig> ParseOptimizeArgs(
     }
     if (arg.rfind("--", 0) != 0) {
       if (!config.query_path.empty()) {
-        return absl::InvalidArgumentError(absl::StrCat(
-            "QUERY.json: a second query file \"", arg, "\" was given"));
+        return absl::InvalidArgumentError(
+            absl::StrCat("QUERY.json: a second query file \"", arg, "\" was given"));
       }
       config.query_path = arg;
       continue;

@@ -36,8 +36,8 @@ absl::StatusOr<WorkersConfig> ParseWorkersArgs(const std::vector<std::string>& a
 
 // Parses the arguments after "optimize". Errors (INVALID_ARGUMENT) name the
 // flag: an unknown flag, a bad value, a missing or second query file.
-absl::StatusOr<OptimizeConfig> ParseOptimizeArgs(
-    const std::vector<std::string>& args, int default_workers);
+absl::StatusOr<OptimizeConfig> ParseOptimizeArgs(const std::vector<std::string>& args,
+                                                 int default_workers);
 
 // Parses a byte count: a number with an optional KiB, MiB or GiB suffix.
 absl::StatusOr<uint64_t> ParseBytes(const std::string& text);

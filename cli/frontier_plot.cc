@@ -15,10 +15,14 @@ constexpr double kLeft = 90, kRight = 170, kTop = 50, kBottom = 70;
 std::string Escape(const std::string& s) {
   std::string out;
   for (char c : s) {
-    if (c == '<') out += "&lt;";
-    else if (c == '>') out += "&gt;";
-    else if (c == '&') out += "&amp;";
-    else out += c;
+    if (c == '<')
+      out += "&lt;";
+    else if (c == '>')
+      out += "&gt;";
+    else if (c == '&')
+      out += "&amp;";
+    else
+      out += c;
   }
   return out;
 }
@@ -67,7 +71,9 @@ std::string Colour(double t) {
   const double x = t * 3;
   const int i = std::min(2, static_cast<int>(x));
   const double f = x - i;
-  const auto mix = [&](int c) { return static_cast<int>(stops[i][c] + f * (stops[i + 1][c] - stops[i][c])); };
+  const auto mix = [&](int c) {
+    return static_cast<int>(stops[i][c] + f * (stops[i + 1][c] - stops[i][c]));
+  };
   return absl::StrFormat("#%02x%02x%02x", mix(0), mix(1), mix(2));
 }
 
@@ -103,8 +109,10 @@ std::string FrontierSvg(const std::vector<Plan>& frontier, const Query& query,
                         "<text x=\"%.0f\" y=\"28\" font-size=\"16\" font-weight=\"bold\">"
                         "Pareto frontier: %d plans</text>\n",
                         kLeft, static_cast<int>(frontier.size()));
-  absl::StrAppendFormat(&s, "<rect x=\"%.0f\" y=\"%.0f\" width=\"%.0f\" height=\"%.0f\" "
-                            "fill=\"none\" stroke=\"#444\"/>\n", kLeft, kTop, pw, ph);
+  absl::StrAppendFormat(&s,
+                        "<rect x=\"%.0f\" y=\"%.0f\" width=\"%.0f\" height=\"%.0f\" "
+                        "fill=\"none\" stroke=\"#444\"/>\n",
+                        kLeft, kTop, pw, ph);
   for (double t : x.Ticks()) {
     absl::StrAppendFormat(&s,
                           "<line x1=\"%.1f\" y1=\"%.0f\" x2=\"%.1f\" y2=\"%.0f\" stroke=\"#ddd\"/>"
@@ -117,7 +125,8 @@ std::string FrontierSvg(const std::vector<Plan>& frontier, const Query& query,
                           "<text x=\"%.0f\" y=\"%.1f\" text-anchor=\"end\">%s</text>\n",
                           kLeft, py(t), kLeft + pw, py(t), kLeft - 6, py(t) + 4, Fmt(t));
   }
-  absl::StrAppendFormat(&s, "<text x=\"%.0f\" y=\"%.0f\" text-anchor=\"middle\">latency (s)%s</text>\n",
+  absl::StrAppendFormat(&s,
+                        "<text x=\"%.0f\" y=\"%.0f\" text-anchor=\"middle\">latency (s)%s</text>\n",
                         kLeft + pw / 2, kHeight - 22, x.log ? ", log scale" : "");
   absl::StrAppendFormat(&s,
                         "<text transform=\"translate(24 %.0f) rotate(-90)\" text-anchor=\"middle\">"
@@ -135,21 +144,22 @@ std::string FrontierSvg(const std::vector<Plan>& frontier, const Query& query,
   }
   if (chosen && *chosen < frontier.size()) {
     const ClusterCosts& m = frontier[*chosen].root().metrics;
-    absl::StrAppendFormat(&s,
-                          "<circle cx=\"%.1f\" cy=\"%.1f\" r=\"11\" fill=\"none\" stroke=\"#d62728\" "
-                          "stroke-width=\"2.5\"/><text x=\"%.1f\" y=\"%.1f\" fill=\"#d62728\" "
-                          "font-weight=\"bold\" text-anchor=\"%s\">chosen (plan %d)</text>\n",
-                          px(m.latency_s), py(m.node_seconds),
-                          px(m.latency_s) + (x.Norm(m.latency_s) > 0.7 ? -14 : 14),
-                          py(m.node_seconds) - 12, x.Norm(m.latency_s) > 0.7 ? "end" : "start",
-                          static_cast<int>(*chosen));
+    absl::StrAppendFormat(
+        &s,
+        "<circle cx=\"%.1f\" cy=\"%.1f\" r=\"11\" fill=\"none\" stroke=\"#d62728\" "
+        "stroke-width=\"2.5\"/><text x=\"%.1f\" y=\"%.1f\" fill=\"#d62728\" "
+        "font-weight=\"bold\" text-anchor=\"%s\">chosen (plan %d)</text>\n",
+        px(m.latency_s), py(m.node_seconds),
+        px(m.latency_s) + (x.Norm(m.latency_s) > 0.7 ? -14 : 14), py(m.node_seconds) - 12,
+        x.Norm(m.latency_s) > 0.7 ? "end" : "start", static_cast<int>(*chosen));
   }
   // Completeness legend.
   const double lx = kLeft + pw + 40, ly = kTop + 20;
   absl::StrAppendFormat(&s, "<text x=\"%.0f\" y=\"%.0f\">completeness</text>\n", lx, ly - 8);
   for (int k = 0; k <= 20; ++k) {
-    absl::StrAppendFormat(&s, "<rect x=\"%.0f\" y=\"%.1f\" width=\"18\" height=\"%.1f\" fill=\"%s\"/>\n",
-                          lx, ly + (20 - k) * 10.0, 10.5, Colour(k / 20.0));
+    absl::StrAppendFormat(
+        &s, "<rect x=\"%.0f\" y=\"%.1f\" width=\"18\" height=\"%.1f\" fill=\"%s\"/>\n", lx,
+        ly + (20 - k) * 10.0, 10.5, Colour(k / 20.0));
   }
   absl::StrAppendFormat(&s, "<text x=\"%.0f\" y=\"%.0f\">1</text>\n", lx + 24, ly + 10);
   absl::StrAppendFormat(&s, "<text x=\"%.0f\" y=\"%.0f\">%s%s</text>\n", lx + 24, ly + 208,

@@ -6,17 +6,17 @@
 #include <thread>
 #include <vector>
 
-#include "absl/strings/str_format.h"
 #include "absl/strings/str_cat.h"
+#include "absl/strings/str_format.h"
 #include "cli/cli_config.h"
 #include "cli/frontier_plot.h"
 #include "cli/progress_bar.h"
 #include "cli/render.h"
 #include "cli/rpc_client.h"
-#include "schedule/embedded_pool.h"
 #include "core/input_limits.h"
-#include "wire/query_proto.h"
 #include "core/slice_planner.h"
+#include "schedule/embedded_pool.h"
+#include "wire/query_proto.h"
 
 namespace sliceplan::cli {
 namespace {
@@ -75,8 +75,8 @@ int Optimize(const std::vector<std::string>& args) {
   auto query = ReadQueryFile(config->query_path);
   if (!query.ok()) return Fail(query.status());
   if (config->slices) {
-    const absl::Status s = ValidateSlice({0, *config->slices}, query->size(),
-                                         config->search.shape, {"--slices", "slice index"});
+    const absl::Status s = ValidateSlice({0, *config->slices}, query->size(), config->search.shape,
+                                         {"--slices", "slice index"});
     if (!s.ok()) return Fail(s);
   }
   absl::StatusOr<ScheduleOutcome> outcome;
@@ -95,9 +95,15 @@ int Optimize(const std::vector<std::string>& args) {
   RunInfo info{&*query, config->search, config->workers, !config->slices};
   if (config->coordinator) info.workers = static_cast<int>(outcome->workers_used);
   switch (config->format) {
-    case OutputFormat::kText: std::cout << RenderText(*outcome, info); break;
-    case OutputFormat::kJson: std::cout << RenderJson(*outcome, info); break;
-    case OutputFormat::kDot: std::cout << RenderDot(*outcome, info); break;
+    case OutputFormat::kText:
+      std::cout << RenderText(*outcome, info);
+      break;
+    case OutputFormat::kJson:
+      std::cout << RenderJson(*outcome, info);
+      break;
+    case OutputFormat::kDot:
+      std::cout << RenderDot(*outcome, info);
+      break;
   }
   std::cout.flush();
   return std::cout ? kExitOk : kExitFailure;
@@ -114,8 +120,8 @@ int Workers(const std::vector<std::string>& args) {
   for (const auto& w : pool->workers()) {
     healthy += w.healthy();
     std::cout << absl::StrFormat("%-28s %-9s %7u %8u %8u  %s\n", w.address(),
-                                 w.healthy() ? "healthy" : "down", w.threads(),
-                                 w.slices_solved(), w.failures(), w.last_error());
+                                 w.healthy() ? "healthy" : "down", w.threads(), w.slices_solved(),
+                                 w.failures(), w.last_error());
   }
   std::cout << healthy << " of " << pool->workers_size() << " workers healthy\n";
   return kExitOk;

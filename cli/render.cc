@@ -44,8 +44,7 @@ void CollectLines(const Plan& plan, int i, int depth, const Query& query,
 }
 
 // One line per node, children indented under their join, figures aligned.
-void AppendTextTree(const Plan& plan, const Query& query, std::string& out,
-                    bool cluster = false) {
+void AppendTextTree(const Plan& plan, const Query& query, std::string& out, bool cluster = false) {
   std::vector<TextLine> lines;
   CollectLines(plan, static_cast<int>(plan.nodes.size()) - 1, 0, query, lines);
   if (cluster) {
@@ -58,13 +57,13 @@ void AppendTextTree(const Plan& plan, const Query& query, std::string& out,
   if (!cluster) {
     absl::StrAppendFormat(&out, "%-*s  %12s  %12s\n", width, "node", "card", "cost");
     for (const TextLine& l : lines) {
-      absl::StrAppendFormat(&out, "%-*s  %12.4g  %12.4g\n", width, l.head,
-                            l.node->cardinality, l.node->cost);
+      absl::StrAppendFormat(&out, "%-*s  %12.4g  %12.4g\n", width, l.head, l.node->cardinality,
+                            l.node->cost);
     }
     return;
   }
-  absl::StrAppendFormat(&out, "%-*s  %12s  %10s  %12s  %12s\n", width, "node", "rows",
-                        "latency_s", "node_seconds", "completeness");
+  absl::StrAppendFormat(&out, "%-*s  %12s  %10s  %12s  %12s\n", width, "node", "rows", "latency_s",
+                        "node_seconds", "completeness");
   for (const TextLine& l : lines) {
     const ClusterCosts& m = l.node->metrics;
     absl::StrAppendFormat(&out, "%-*s  %12.4g  %10.4g  %12.4g  %12.4g\n", width, l.head,
@@ -85,11 +84,21 @@ std::string JsonString(const std::string& s) {
   std::string out = "\"";
   for (const char c : s) {
     switch (c) {
-      case '"': out += "\\\""; break;
-      case '\\': out += "\\\\"; break;
-      case '\n': out += "\\n"; break;
-      case '\t': out += "\\t"; break;
-      case '\r': out += "\\r"; break;
+      case '"':
+        out += "\\\"";
+        break;
+      case '\\':
+        out += "\\\\";
+        break;
+      case '\n':
+        out += "\\n";
+        break;
+      case '\t':
+        out += "\\t";
+        break;
+      case '\r':
+        out += "\\r";
+        break;
       default:
         if (static_cast<unsigned char>(c) < 0x20) {
           absl::StrAppendFormat(&out, "\\u%04x", c);
@@ -113,8 +122,7 @@ SliceBalance Balance(const OptimizeResult& result) {
       b.slowest = s.slice.index;
     }
   }
-  const double mean =
-      total / static_cast<double>(std::max<size_t>(1, result.slices.size()));
+  const double mean = total / static_cast<double>(std::max<size_t>(1, result.slices.size()));
   b.max_over_mean_splits = mean > 0 ? most / mean : 1;
   return b;
 }
@@ -124,7 +132,8 @@ std::string RenderText(const ScheduleOutcome& outcome, const RunInfo& info) {
   const Query& query = *info.query;
   std::string out;
   if (info.search.cost == CostModelKind::kCluster) {
-    absl::StrAppendFormat(&out, "Pareto frontier of %s plans of %d relations (cross products %s), "
+    absl::StrAppendFormat(&out,
+                          "Pareto frontier of %s plans of %d relations (cross products %s), "
                           "objectives %s, alpha %g: %d plans\n\n",
                           ShapeName(info.search.shape), query.size(),
                           info.search.cross_products ? "allowed" : "excluded",
@@ -139,46 +148,42 @@ std::string RenderText(const ScheduleOutcome& outcome, const RunInfo& info) {
                             m.node_seconds, m.completeness, TreeString(result.frontier[i], query));
     }
     if (result.chosen) {
-      absl::StrAppendFormat(&out, "\nchosen: plan %d (* above)\n\n", static_cast<int>(*result.chosen));
+      absl::StrAppendFormat(&out, "\nchosen: plan %d (* above)\n\n",
+                            static_cast<int>(*result.chosen));
       AppendTextTree(result.plan, query, out, true);
     } else {
       out += "\nno plan of the frontier meets the bounds\n";
     }
   } else {
-  absl::StrAppendFormat(&out,
-      "best %s plan of %d relations (cross products %s): %s %.6g\n\n",
-      ShapeName(info.search.shape), query.size(),
-      info.search.cross_products ? "allowed" : "excluded",
-      MetricName(info.search.cost), result.plan.root().cost);
-  if (!outcome.proven_optimal) {
-    absl::StrAppendFormat(&out,
-                          "NOT PROVEN OPTIMAL: the deadline passed with %.0f%% of the slices "
-                          "solved; this is the best plan found so far\n\n",
-                          100 * outcome.coverage);
-  }
-  out += TreeString(result.plan, query) + "\n\n";
-  AppendTextTree(result.plan, query, out);
+    absl::StrAppendFormat(&out, "best %s plan of %d relations (cross products %s): %s %.6g\n\n",
+                          ShapeName(info.search.shape), query.size(),
+                          info.search.cross_products ? "allowed" : "excluded",
+                          MetricName(info.search.cost), result.plan.root().cost);
+    if (!outcome.proven_optimal) {
+      absl::StrAppendFormat(&out,
+                            "NOT PROVEN OPTIMAL: the deadline passed with %.0f%% of the slices "
+                            "solved; this is the best plan found so far\n\n",
+                            100 * outcome.coverage);
+    }
+    out += TreeString(result.plan, query) + "\n\n";
+    AppendTextTree(result.plan, query, out);
   }
   const SliceBalance b = Balance(result);
-  absl::StrAppendFormat(
-      &out, "\nslices: %u (%s), workers: %d, wall time %.3f s\n",
-      result.slice_count, info.slices_chosen ? "chosen by the coordinator"
-                                             : "as requested",
-      info.workers, result.wall_seconds);
-  absl::StrAppendFormat(&out, "  %-6s %14s %16s %10s\n", "slice", "subsets",
-                        "splits", "seconds");
+  absl::StrAppendFormat(&out, "\nslices: %u (%s), workers: %d, wall time %.3f s\n",
+                        result.slice_count,
+                        info.slices_chosen ? "chosen by the coordinator" : "as requested",
+                        info.workers, result.wall_seconds);
+  absl::StrAppendFormat(&out, "  %-6s %14s %16s %10s\n", "slice", "subsets", "splits", "seconds");
   for (const SliceResult& s : result.slices) {
-    absl::StrAppendFormat(&out, "  %-6u %14u %16u %10.4f%s\n", s.slice.index,
-                          s.stats.subsets, s.stats.splits, s.stats.seconds,
-                          s.slice.index == result.best_slice ? "  <- best plan"
-                                                             : "");
+    absl::StrAppendFormat(&out, "  %-6u %14u %16u %10.4f%s\n", s.slice.index, s.stats.subsets,
+                          s.stats.splits, s.stats.seconds,
+                          s.slice.index == result.best_slice ? "  <- best plan" : "");
   }
-  absl::StrAppendFormat(
-      &out, "slowest slice: %u (%.4f s); balance (max/mean splits): %.3f\n",
-      b.slowest, b.slowest_seconds, b.max_over_mean_splits);
+  absl::StrAppendFormat(&out, "slowest slice: %u (%.4f s); balance (max/mean splits): %.3f\n",
+                        b.slowest, b.slowest_seconds, b.max_over_mean_splits);
   if (outcome.retries > 0 || outcome.hedges > 0) {
-    absl::StrAppendFormat(&out, "re-dispatched slices: %u, hedged slices: %u\n",
-                          outcome.retries, outcome.hedges);
+    absl::StrAppendFormat(&out, "re-dispatched slices: %u, hedged slices: %u\n", outcome.retries,
+                          outcome.hedges);
   }
   return out;
 }
@@ -200,29 +205,25 @@ std::string RenderJson(const ScheduleOutcome& outcome, const RunInfo& info) {
                     result.chosen ? absl::StrCat(*result.chosen) : std::string("null"), ",\n");
   } else {
     absl::StrAppend(&out, "    {\"tree\": ", JsonString(TreeString(result.plan, query)),
-                    ", \"costs\": {", JsonString(MetricName(info.search.cost)),
-                    ": ", JsonNumber(result.plan.root().cost),
-                    "}, \"cardinality\": ",
-                    JsonNumber(result.plan.root().cardinality), ", \"slice\": ",
-                    result.best_slice, "}\n  ],\n");
+                    ", \"costs\": {", JsonString(MetricName(info.search.cost)), ": ",
+                    JsonNumber(result.plan.root().cost),
+                    "}, \"cardinality\": ", JsonNumber(result.plan.root().cardinality),
+                    ", \"slice\": ", result.best_slice, "}\n  ],\n");
   }
   absl::StrAppend(&out, "  \"shape\": \"", ShapeName(info.search.shape),
-                  "\",\n  \"cross_products\": ",
-                  info.search.cross_products ? "true" : "false",
+                  "\",\n  \"cross_products\": ", info.search.cross_products ? "true" : "false",
                   ",\n  \"proven_optimal\": ", outcome.proven_optimal ? "true" : "false",
                   ",\n  \"coverage\": ", JsonNumber(outcome.coverage), ",\n");
-  absl::StrAppend(&out, "  \"stats\": {\n    \"slice_count\": ",
-                  result.slice_count, ",\n    \"workers\": ", info.workers,
+  absl::StrAppend(&out, "  \"stats\": {\n    \"slice_count\": ", result.slice_count,
+                  ",\n    \"workers\": ", info.workers,
                   ",\n    \"wall_seconds\": ", JsonNumber(result.wall_seconds),
                   ",\n    \"slices\": [\n");
   for (size_t i = 0; i < result.slices.size(); ++i) {
     const SliceResult& s = result.slices[i];
-    absl::StrAppend(&out, "      {\"index\": ", s.slice.index,
-                    ", \"subsets\": ", s.stats.subsets, ", \"splits\": ",
-                    s.stats.splits, ", \"seconds\": ",
-                    JsonNumber(s.stats.seconds), ", \"memo_bytes\": ",
-                    s.stats.memo_bytes, "}",
-                    i + 1 < result.slices.size() ? ",\n" : "\n");
+    absl::StrAppend(
+        &out, "      {\"index\": ", s.slice.index, ", \"subsets\": ", s.stats.subsets,
+        ", \"splits\": ", s.stats.splits, ", \"seconds\": ", JsonNumber(s.stats.seconds),
+        ", \"memo_bytes\": ", s.stats.memo_bytes, "}", i + 1 < result.slices.size() ? ",\n" : "\n");
   }
   out += "    ]\n  }\n}\n";
   return out;
@@ -235,12 +236,12 @@ std::string RenderDot(const ScheduleOutcome& outcome, const RunInfo& info) {
   const Plan& plan = result.plan;
   for (size_t i = 0; i < plan.nodes.size(); ++i) {
     const PlanNode& node = plan.nodes[i];
-    absl::StrAppendFormat(&out, "  n%d [label=\"%s\\ncard %.4g\\ncost %.4g\"%s];\n",
-                          i, NodeLabel(node, query), node.cardinality, node.cost,
+    absl::StrAppendFormat(&out, "  n%d [label=\"%s\\ncard %.4g\\ncost %.4g\"%s];\n", i,
+                          NodeLabel(node, query), node.cardinality, node.cost,
                           node.is_leaf() ? ", shape=ellipse" : "");
     if (!node.is_leaf()) {
-      absl::StrAppendFormat(&out, "  n%d -> n%d [label=\"L\"];\n  n%d -> n%d [label=\"R\"];\n",
-                            i, node.left, i, node.right);
+      absl::StrAppendFormat(&out, "  n%d -> n%d [label=\"L\"];\n  n%d -> n%d [label=\"R\"];\n", i,
+                            node.left, i, node.right);
     }
   }
   return out + "}\n";

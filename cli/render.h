@@ -7,8 +7,8 @@
 
 #include "cli/cli_config.h"
 #include "core/merge.h"
-#include "schedule/slice_scheduler.h"
 #include "core/query.h"
+#include "schedule/slice_scheduler.h"
 
 namespace sliceplan::cli {
 

@@ -3,11 +3,11 @@
 #include <chrono>
 
 #include "absl/strings/str_cat.h"
+#include "grpcpp/grpcpp.h"
 #include "rpc/rpc_status.h"
+#include "sliceplan.grpc.pb.h"
 #include "wire/query_proto.h"
 #include "wire/service_proto.h"
-#include "grpcpp/grpcpp.h"
-#include "sliceplan.grpc.pb.h"
 
 namespace sliceplan::cli {
 namespace {
@@ -35,9 +35,9 @@ absl::StatusOr<ScheduleOutcome> OptimizeRemote(
   // Room for the answer to travel back; past a year the server's own
   // maximum is the bound, and the call gets none.
   if (request.deadline_seconds > 0 && request.deadline_seconds < 3.2e7) {
-    context.set_deadline(std::chrono::system_clock::now() +
-                         std::chrono::milliseconds(
-                             static_cast<int64_t>(request.deadline_seconds * 1000) + 2000));
+    context.set_deadline(
+        std::chrono::system_clock::now() +
+        std::chrono::milliseconds(static_cast<int64_t>(request.deadline_seconds * 1000) + 2000));
   }
   auto reader = stub->OptimizeStream(&context, m);
   v1::OptimizeEvent event;

@@ -1,15 +1,14 @@
 #include "coordinator/coordinator_service.h"
 
-#include "absl/synchronization/mutex.h"
-
 #include "absl/strings/str_cat.h"
-#include "rpc/call_deadline.h"
-#include "rpc/rpc_status.h"
-#include "wire/query_proto.h"
-#include "wire/service_proto.h"
+#include "absl/synchronization/mutex.h"
 #include "core/slice_planner.h"
 #include "core/status_macros.h"
+#include "rpc/call_deadline.h"
+#include "rpc/rpc_status.h"
 #include "spdlog/spdlog.h"
+#include "wire/query_proto.h"
+#include "wire/service_proto.h"
 
 namespace sliceplan {
 namespace {
@@ -21,8 +20,8 @@ using Clock = std::chrono::steady_clock;
 absl::StatusOr<Clock::time_point> RunDeadline(const grpc::ServerContext* context,
                                               const v1::OptimizeRequest& request,
                                               const CoordinatorConfig& config) {
-  ASSIGN_OR_RETURN(const double seconds, AllowedSeconds(request.deadline_seconds(),
-                                                        config.limits.max_deadline_seconds));
+  ASSIGN_OR_RETURN(const double seconds,
+                   AllowedSeconds(request.deadline_seconds(), config.limits.max_deadline_seconds));
   Clock::time_point out = SteadyAfter(seconds);
   if (const auto call = CallDeadline(context); call && *call - config.deadline_margin < out) {
     out = *call - config.deadline_margin;
@@ -79,12 +78,13 @@ absl::StatusOr<v1::OptimizeResponse> CoordinatorService::Run(
   const auto start = Clock::now();
   auto outcome = RunSlices(*query, options, p, workers, schedule);
   const double wall = std::chrono::duration<double>(Clock::now() - start).count();
-  spdlog::info("optimize: {} relations, P={}, {} workers ({} slots), retries={}, hedges={}, "
-               "wall {:.3f} s, {}",
-               query->size(), p, workers.size(), slots, outcome.ok() ? outcome->retries : 0,
-               outcome.ok() ? outcome->hedges : 0, wall,
-               outcome.ok() ? (outcome->proven_optimal ? "optimal" : "partial")
-                            : std::string(outcome.status().message()));
+  spdlog::info(
+      "optimize: {} relations, P={}, {} workers ({} slots), retries={}, hedges={}, "
+      "wall {:.3f} s, {}",
+      query->size(), p, workers.size(), slots, outcome.ok() ? outcome->retries : 0,
+      outcome.ok() ? outcome->hedges : 0, wall,
+      outcome.ok() ? (outcome->proven_optimal ? "optimal" : "partial")
+                   : std::string(outcome.status().message()));
   if (!outcome.ok()) return outcome.status();
   return OutcomeToProto(*outcome, options.cost);
 }

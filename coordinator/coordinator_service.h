@@ -31,8 +31,7 @@ class CoordinatorService final : public v1::Coordinator::Service {
 
   grpc::Status Optimize(grpc::ServerContext* context, const v1::OptimizeRequest* request,
                         v1::OptimizeResponse* response) override;
-  grpc::Status OptimizeStream(grpc::ServerContext* context,
-                              const v1::OptimizeRequest* request,
+  grpc::Status OptimizeStream(grpc::ServerContext* context, const v1::OptimizeRequest* request,
                               grpc::ServerWriter<v1::OptimizeEvent>* writer) override;
   grpc::Status ListWorkers(grpc::ServerContext* context, const v1::ListWorkersRequest* request,
                            v1::ListWorkersResponse* response) override;

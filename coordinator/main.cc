@@ -9,8 +9,8 @@
 #include "absl/flags/usage_config.h"
 #include "absl/strings/match.h"
 #include "coordinator/coordinator_service.h"
-#include "rpc/serve.h"
 #include "coordinator/worker_pool.h"
+#include "rpc/serve.h"
 #include "spdlog/sinks/stdout_color_sinks.h"
 #include "spdlog/spdlog.h"
 

@@ -1,11 +1,10 @@
 #include "coordinator/rpc_worker.h"
 
-
 #include "absl/strings/str_cat.h"
 #include "rpc/rpc_status.h"
+#include "schedule/slice_scheduler.h"
 #include "wire/query_proto.h"
 #include "wire/service_proto.h"
-#include "schedule/slice_scheduler.h"
 
 namespace sliceplan {
 namespace {

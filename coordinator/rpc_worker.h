@@ -13,9 +13,9 @@
 
 #include "absl/base/thread_annotations.h"
 #include "absl/synchronization/mutex.h"
-#include "schedule/slice_worker.h"
 #include "grpc/health/v1/health.grpc.pb.h"
 #include "grpcpp/grpcpp.h"
+#include "schedule/slice_worker.h"
 #include "sliceplan.grpc.pb.h"
 
 namespace sliceplan {

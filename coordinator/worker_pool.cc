@@ -89,7 +89,8 @@ void WorkerPool::Refresh() {
 }
 
 void WorkerPool::CheckNow() {
-  for (const auto& w : Workers()) w->CheckHealth(std::min(interval_, std::chrono::milliseconds(500)));
+  for (const auto& w : Workers())
+    w->CheckHealth(std::min(interval_, std::chrono::milliseconds(500)));
 }
 
 void WorkerPool::Loop() {

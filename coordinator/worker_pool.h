@@ -15,8 +15,8 @@
 #include <vector>
 
 #include "absl/base/thread_annotations.h"
-#include "absl/synchronization/mutex.h"
 #include "absl/status/statusor.h"
+#include "absl/synchronization/mutex.h"
 #include "coordinator/rpc_worker.h"
 
 namespace sliceplan {

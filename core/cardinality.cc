@@ -52,8 +52,7 @@ double Cardinality::OfByLogs(RelSet x) const {
 bool Cardinality::Connects(RelSet left, RelSet right) const {
   const RelSet both = left | right;
   for (const Predicate& p : predicates_) {
-    if (IsSubset(p.relations, both) && (p.relations & left) != 0 &&
-        (p.relations & right) != 0) {
+    if (IsSubset(p.relations, both) && (p.relations & left) != 0 && (p.relations & right) != 0) {
       return true;
     }
   }

@@ -16,8 +16,7 @@ absl::Status Positive(const char* field, double v) {
 
 // The formulas as written; inf when an input is past double range.
 double StageSecondsUnsaturated(const ClusterParams& p, JoinStrategy strategy, int m,
-                               const StageInput& left, const StageInput& right,
-                               double out_rows) {
+                               const StageInput& left, const StageInput& right, double out_rows) {
   const double nodes = m;
   const double b_l = left.rows * left.width, b_r = right.rows * right.width;
   const double scanned = (left.leaf ? b_l : 0) + (right.leaf ? b_r : 0);
@@ -76,15 +75,18 @@ absl::Status ValidateClusterParams(const ClusterParams& p) {
 
 std::string StrategyName(JoinStrategy s) {
   switch (s) {
-    case JoinStrategy::kShuffle: return "shuffle";
-    case JoinStrategy::kBroadcastRight: return "broadcast-right";
-    case JoinStrategy::kBroadcastLeft: return "broadcast-left";
+    case JoinStrategy::kShuffle:
+      return "shuffle";
+    case JoinStrategy::kBroadcastRight:
+      return "broadcast-right";
+    case JoinStrategy::kBroadcastLeft:
+      return "broadcast-left";
   }
   return "?";
 }
 
-double StageSeconds(const ClusterParams& p, JoinStrategy strategy, int m,
-                    const StageInput& left, const StageInput& right, double out_rows) {
+double StageSeconds(const ClusterParams& p, JoinStrategy strategy, int m, const StageInput& left,
+                    const StageInput& right, double out_rows) {
   // A saturated row count stands for an unknown larger one: a time
   // derived from it would be a wrong finite number, so it saturates too.
   if (IsSaturated(left.rows) || IsSaturated(right.rows) || IsSaturated(out_rows)) {

@@ -97,19 +97,21 @@ void ClusterPolicy::Insert(std::vector<ClusterEntry>& out, const ClusterEntry& e
   const auto ns = [&](const ClusterEntry& x) {
     return o.has(Objectives::kNodeSeconds) ? x.costs.node_seconds : 0.0;
   };
-  const auto level_begin = std::lower_bound(out.begin(), out.end(), e.level,
-      [](const ClusterEntry& x, int64_t level) { return x.level < level; });
-  const auto level_end = std::upper_bound(level_begin, out.end(), e.level,
-      [](int64_t level, const ClusterEntry& x) { return level < x.level; });
+  const auto level_begin =
+      std::lower_bound(out.begin(), out.end(), e.level,
+                       [](const ClusterEntry& x, int64_t level) { return x.level < level; });
+  const auto level_end =
+      std::upper_bound(level_begin, out.end(), e.level,
+                       [](int64_t level, const ClusterEntry& x) { return level < x.level; });
   const double lat_e = lat(e), ns_e = ns(e);
   // Last entry of the level with latency <= alpha * lat_e: the least
   // node-seconds among those that could cover e.
   auto cover = std::upper_bound(level_begin, level_end, level_alpha_ * lat_e,
-      [&](double v, const ClusterEntry& x) { return v < lat(x); });
+                                [&](double v, const ClusterEntry& x) { return v < lat(x); });
   if (cover != level_begin && ns(*(cover - 1)) <= level_alpha_ * ns_e) return;
   // Entries e dominates exactly: latency >= lat_e and node-seconds >= ns_e.
   const auto first = std::lower_bound(level_begin, level_end, lat_e,
-      [&](const ClusterEntry& x, double v) { return lat(x) < v; });
+                                      [&](const ClusterEntry& x, double v) { return lat(x) < v; });
   auto last = first;
   while (last != level_end && ns(*last) >= ns_e) ++last;
   const auto at = out.erase(first, last);
@@ -118,8 +120,8 @@ void ClusterPolicy::Insert(std::vector<ClusterEntry>& out, const ClusterEntry& e
 
 void ClusterPolicy::Combine(std::vector<ClusterEntry>& out, double card,
                             std::span<const ClusterEntry> left, Slot left_slot, bool left_leaf,
-                            double left_width, std::span<const ClusterEntry> right,
-                            Slot right_slot, bool right_leaf, double right_width) const {
+                            double left_width, std::span<const ClusterEntry> right, Slot right_slot,
+                            bool right_leaf, double right_width) const {
   const ClusterParams& p = config_.params;
   for (uint32_t i = 0; i < left.size(); ++i) {
     const ClusterEntry& l = left[i];
@@ -129,8 +131,8 @@ void ClusterPolicy::Combine(std::vector<ClusterEntry>& out, double card,
       const StageInput in_r{r.rows, right_width, right_leaf};
       ClusterEntry e;
       // Sampling shrinks a saturated count only on paper: it stays saturated.
-      e.rows = IsSaturated(card) ? kValueCeiling
-                                 : card * (l.costs.completeness * r.costs.completeness);
+      e.rows =
+          IsSaturated(card) ? kValueCeiling : card * (l.costs.completeness * r.costs.completeness);
       e.level = l.level + r.level;
       e.left_slot = left_slot;
       e.left_index = i;

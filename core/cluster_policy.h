@@ -20,13 +20,13 @@
 #include <vector>
 
 #include "core/cardinality.h"
-#include "core/search_options.h"
 #include "core/cluster_model.h"
 #include "core/dense_layout.h"
 #include "core/pareto.h"
 #include "core/plan_choice.h"
 #include "core/query.h"
 #include "core/search_control.h"
+#include "core/search_options.h"
 #include "core/search_policy.h"
 
 namespace sliceplan {
@@ -34,8 +34,8 @@ namespace sliceplan {
 // One physical sub-plan in the memo.
 struct ClusterEntry {
   ClusterCosts costs;
-  double rows = 0;        // card x completeness
-  int64_t level = 0;      // completeness level key (sum of the leaves' rate codes)
+  double rows = 0;            // card x completeness
+  int64_t level = 0;          // completeness level key (sum of the leaves' rate codes)
   Slot left_slot = kNoSlot;   // kNoSlot: a leaf
   uint32_t left_index = 0;    // entry in the left slot, or the leaf's rate index
   Slot right_slot = kNoSlot;  // kNoSlot with a join: a base-relation right input
@@ -112,11 +112,11 @@ class ClusterPolicy {
   const uint64_t max_entries_;
   std::vector<std::vector<ClusterEntry>> leaves_;  // relation -> one per rate
   std::vector<int64_t> rate_codes_;
-  bool scattered_ = false;                         // InitSet/Relax in use
-  std::vector<ClusterEntry> arena_;                // dense: all sets' entries
-  std::vector<uint64_t> first_;                    // dense: slot -> arena start
-  std::vector<uint32_t> size_;                     // dense: slot -> entry count
-  std::vector<std::vector<ClusterEntry>> per_set_; // scattered: slot -> entries
+  bool scattered_ = false;                          // InitSet/Relax in use
+  std::vector<ClusterEntry> arena_;                 // dense: all sets' entries
+  std::vector<uint64_t> first_;                     // dense: slot -> arena start
+  std::vector<uint32_t> size_;                      // dense: slot -> entry count
+  std::vector<std::vector<ClusterEntry>> per_set_;  // scattered: slot -> entries
   std::vector<double> card_of_;
   std::vector<double> width_of_;
   std::vector<uint8_t> leaf_;

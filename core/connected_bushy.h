@@ -25,11 +25,16 @@ template <SearchPolicy Policy>
 class ConnectedBushy {
  public:
   ConnectedBushy(int n, const JoinGraph& graph, const Cardinality& card,
-                 const SliceConstraints& constraints, Policy& policy,
-                 ConnectedMemo& memo, SearchControl& control,
-                 SearchStats& stats)
-      : n_(n), graph_(graph), card_(card), constraints_(constraints),
-        policy_(policy), memo_(memo), control_(control), stats_(stats) {}
+                 const SliceConstraints& constraints, Policy& policy, ConnectedMemo& memo,
+                 SearchControl& control, SearchStats& stats)
+      : n_(n),
+        graph_(graph),
+        card_(card),
+        constraints_(constraints),
+        policy_(policy),
+        memo_(memo),
+        control_(control),
+        stats_(stats) {}
 
   // OK, or CANCELLED / DEADLINE_EXCEEDED from the control, or
   // RESOURCE_EXHAUSTED when the memo reached its slot limit.

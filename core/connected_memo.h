@@ -58,9 +58,9 @@ absl::StatusOr<Slot> AddConnectedSet(ConnectedMemo& memo, Policy& policy, RelSet
   bool added = false;
   const Slot slot = memo.Insert(s, added);
   if (slot == kNoSlot) {
-    return absl::ResourceExhaustedError(absl::StrCat(
-        "connected-sets memo reached its limit of ", memo.size(),
-        " entries; allow more memory or use more slices"));
+    return absl::ResourceExhaustedError(
+        absl::StrCat("connected-sets memo reached its limit of ", memo.size(),
+                     " entries; allow more memory or use more slices"));
   }
   if (added) {
     policy.Resize(memo.size());

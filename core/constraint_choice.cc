@@ -1,9 +1,9 @@
 #include "core/constraint_choice.h"
 
 #include <algorithm>
-#include <map>
 #include <array>
 #include <bit>
+#include <map>
 
 #include "core/connected_sets.h"
 
@@ -20,9 +20,7 @@ using Adjacency = std::vector<RelSet>;
 Adjacency BuildAdjacency(const Query& query) {
   Adjacency adj(query.size(), 0);
   for (const Predicate& p : query.predicates()) {
-    ForEachMember(p.relations, [&](RelationId r) {
-      adj[r.value] |= p.relations & ~Singleton(r);
-    });
+    ForEachMember(p.relations, [&](RelationId r) { adj[r.value] |= p.relations & ~Singleton(r); });
   }
   return adj;
 }
@@ -97,8 +95,7 @@ ConstraintRelations ToRelations(const Candidate& c, int size) {
 
 // Precedence pair {a, c}: one slice forbids the sets with c but not a, the
 // other those with a but not c.
-std::vector<ConstraintRelations> ChoosePairs(const Membership& m,
-                                             const std::vector<int>& colour,
+std::vector<ConstraintRelations> ChoosePairs(const Membership& m, const std::vector<int>& colour,
                                              int k) {
   const int n = static_cast<int>(colour.size());
   RelSet used = 0;
@@ -109,8 +106,8 @@ std::vector<ConstraintRelations> ChoosePairs(const Membership& m,
     for (int a = 0; a < n; ++a) {
       for (int c = a + 1; c < n; ++c) {
         if (Contains(used, Id(a)) || Contains(used, Id(c))) continue;
-        Candidate cand{std::min(m.Count(c, c, a), m.Count(a, a, c)),
-                       colour[a] == colour[c], {a, c, 0}};
+        Candidate cand{
+            std::min(m.Count(c, c, a), m.Count(a, a, c)), colour[a] == colour[c], {a, c, 0}};
         if (!found || cand.BetterThan(best)) best = cand, found = true;
       }
     }
@@ -122,8 +119,7 @@ std::vector<ConstraintRelations> ChoosePairs(const Membership& m,
 
 // Path triple {r, t, u}: one slice forbids the sets with r and t but not u,
 // the other those with r and u but not t.
-std::vector<ConstraintRelations> ChooseTriples(const Membership& m,
-                                               const std::vector<int>& colour,
+std::vector<ConstraintRelations> ChooseTriples(const Membership& m, const std::vector<int>& colour,
                                                int k) {
   const int n = static_cast<int>(colour.size());
   RelSet used = 0;
@@ -137,8 +133,8 @@ std::vector<ConstraintRelations> ChooseTriples(const Membership& m,
         if (!free(t) || !free(u)) continue;
         for (int r = 0; r < n; ++r) {
           if (!free(r) || r == t || r == u) continue;
-          Candidate cand{std::min(m.Count(r, t, u), m.Count(r, u, t)),
-                         colour[t] == colour[u], {r, t, u}};
+          Candidate cand{
+              std::min(m.Count(r, t, u), m.Count(r, u, t)), colour[t] == colour[u], {r, t, u}};
           if (!found || cand.BetterThan(best)) best = cand, found = true;
         }
       }
@@ -168,9 +164,8 @@ std::vector<int> RefinedColours(const Query& query) {
   return colour;
 }
 
-std::vector<ConstraintRelations> ChooseConstraintRelations(const Query& query,
-                                                           PlanShape shape, int k,
-                                                           bool cross_products) {
+std::vector<ConstraintRelations> ChooseConstraintRelations(const Query& query, PlanShape shape,
+                                                           int k, bool cross_products) {
   if (k == 0) return {};
   if (cross_products) {  // docs/slicing.md: any disjoint choice gives equal slices
     const int w = RelationsPerConstraint(shape);

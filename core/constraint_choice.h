@@ -26,9 +26,8 @@ namespace sliceplan {
 // as good, and the lowest ids are taken at no cost; without, the scored
 // choice above (a few milliseconds for 20 relations).
 // REQUIRES: k <= MaxSliceBits(n, shape).
-std::vector<ConstraintRelations> ChooseConstraintRelations(const Query& query,
-                                                           PlanShape shape, int k,
-                                                           bool cross_products);
+std::vector<ConstraintRelations> ChooseConstraintRelations(const Query& query, PlanShape shape,
+                                                           int k, bool cross_products);
 
 // The colour refinement used above, exposed for tests: relations with equal
 // colour have equal iterated degree signatures. Colours are dense ranks.

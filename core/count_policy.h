@@ -27,18 +27,12 @@ class CountPolicy {
   void InitLeaf(Slot s, RelationId) { count_[s] = 1; }
 
   Acc Begin(Slot, RelSet) const { return 0; }
-  Acc Offer(Acc a, Slot left, Slot right) const {
-    return a + count_[left] * count_[right];
-  }
-  Acc OfferLeafRight(Acc a, Slot left, RelationId) const {
-    return a + count_[left];
-  }
+  Acc Offer(Acc a, Slot left, Slot right) const { return a + count_[left] * count_[right]; }
+  Acc OfferLeafRight(Acc a, Slot left, RelationId) const { return a + count_[left]; }
   void Finish(Slot s, RelSet, const Acc& a) { count_[s] = a; }
 
   void InitSet(Slot s, RelSet) { count_[s] = 0; }
-  void Relax(Slot s, Slot left, Slot right) {
-    count_[s] += count_[left] * count_[right];
-  }
+  void Relax(Slot s, Slot left, Slot right) { count_[s] += count_[left] * count_[right]; }
   void RelaxLeafRight(Slot s, Slot left, RelationId) { count_[s] += count_[left]; }
 
   bool HasPlan(Slot s) const { return count_[s] > 0; }

@@ -31,9 +31,11 @@ namespace dense_bushy_internal {
 // (through a reference GCC spills it and chains every split on a
 // store-to-load round trip: 3.3 instead of 1 ns per split).
 template <SearchPolicy Policy>
-[[gnu::always_inline]] inline typename Policy::Acc OfferBlockPair(
-    const Policy& policy, typename Policy::Acc a, Slot lb, Slot rb,
-    bool left_empty, bool right_empty, RelSet low, uint64_t& work) {
+[[gnu::always_inline]] inline typename Policy::Acc OfferBlockPair(const Policy& policy,
+                                                                  typename Policy::Acc a, Slot lb,
+                                                                  Slot rb, bool left_empty,
+                                                                  bool right_empty, RelSet low,
+                                                                  uint64_t& work) {
   const uint64_t subsets = uint64_t{1} << Size(low);
   if (left_empty && right_empty) {  // both parts come from the low bits
     if constexpr (Policy::kSymmetric) {
@@ -88,8 +90,8 @@ template <SearchPolicy Policy>
 // pairs many (high k), this beats a short subset loop per pair.
 template <SearchPolicy Policy>
 [[gnu::always_inline]] inline typename Policy::Acc OfferInnerPairsByLow(
-    const Policy& policy, typename Policy::Acc a,
-    const std::vector<std::pair<Slot, Slot>>& inner, RelSet low) {
+    const Policy& policy, typename Policy::Acc a, const std::vector<std::pair<Slot, Slot>>& inner,
+    RelSet low) {
   RelSet l = 0;
   do {
     const Slot left = static_cast<Slot>(l), right = static_cast<Slot>(low ^ l);
@@ -109,15 +111,15 @@ absl::Status RunDenseBushyNoFreeBits(const DenseLayout& layout, Policy& policy,
                                      SearchControl& control, SearchStats& stats);
 
 template <SearchPolicy Policy>
-absl::Status RunDenseBushy(const DenseLayout& layout, Policy& policy,
-                           SearchControl& control, SearchStats& stats) {
+absl::Status RunDenseBushy(const DenseLayout& layout, Policy& policy, SearchControl& control,
+                           SearchStats& stats) {
   using dense_bushy_internal::OfferBlockPair;
   const int f = layout.free_bits();
   if (f == 0) return RunDenseBushyNoFreeBits(layout, policy, control, stats);
   const uint64_t low_sets = uint64_t{1} << f;
   std::vector<BlockSplit> splits;
-  std::vector<BlockSplit> edge;                  // a high part is empty
-  std::vector<std::pair<Slot, Slot>> inner;      // slot bases, both non-empty
+  std::vector<BlockSplit> edge;              // a high part is empty
+  std::vector<std::pair<Slot, Slot>> inner;  // slot bases, both non-empty
   for (uint64_t b = 0; b < layout.block_count(); ++b) {
     layout.BlockSplits(b, Policy::kSymmetric, splits);
     edge.clear();
@@ -142,8 +144,8 @@ absl::Status RunDenseBushy(const DenseLayout& layout, Policy& policy,
       uint64_t work = 0;
       for (const BlockSplit& bs : edge) {
         acc = OfferBlockPair(policy, acc, static_cast<Slot>(bs.left << f),
-                             static_cast<Slot>(bs.right << f), bs.left == 0,
-                             bs.right == 0, low, work);
+                             static_cast<Slot>(bs.right << f), bs.left == 0, bs.right == 0, low,
+                             work);
       }
       const uint64_t subsets = uint64_t{1} << Size(low);
       if (inner.size() > subsets) {
@@ -181,12 +183,12 @@ absl::Status RunDenseBushyNoFreeBits(const DenseLayout& layout, Policy& policy,
       typename Policy::Acc acc;
       uint64_t work;
     };
-    const Fold done = layout.FoldBlockSplits(
-        b, Policy::kSymmetric, Fold{policy.Begin(s, set), 0},
-        [&policy](Fold f, uint32_t left, uint32_t right) {
-          if (left != 0 && right != 0) f = {policy.Offer(f.acc, left, right), f.work + 1};
-          return f;
-        });
+    const Fold done = layout.FoldBlockSplits(b, Policy::kSymmetric, Fold{policy.Begin(s, set), 0},
+                                             [&policy](Fold f, uint32_t left, uint32_t right) {
+                                               if (left != 0 && right != 0)
+                                                 f = {policy.Offer(f.acc, left, right), f.work + 1};
+                                               return f;
+                                             });
     policy.Finish(s, set, done.acc);
     stats.splits += done.work;
     if (control.Tick(done.work + 1)) return control.status();

@@ -12,8 +12,7 @@ namespace {
 constexpr std::array<RelSet, 3> kPairPatterns = {0b00, 0b01, 0b11};
 // Triple {anchor, trigger, required}: anchor and trigger without the
 // required one (0b011) is forbidden.
-constexpr std::array<RelSet, 7> kTriplePatterns = {0b000, 0b001, 0b010, 0b100,
-                                                   0b101, 0b110, 0b111};
+constexpr std::array<RelSet, 7> kTriplePatterns = {0b000, 0b001, 0b010, 0b100, 0b101, 0b110, 0b111};
 
 }  // namespace
 
@@ -106,8 +105,7 @@ uint64_t DenseLayout::BlockOf(RelSet high) const {
 
 bool DenseLayout::Admissible(RelSet s) const { return PatternAdmissible(s >> f_); }
 
-void DenseLayout::BlockSplits(uint64_t b, bool symmetric,
-                              std::vector<BlockSplit>& out) const {
+void DenseLayout::BlockSplits(uint64_t b, bool symmetric, std::vector<BlockSplit>& out) const {
   out.clear();
   FoldBlockSplits(b, symmetric, 0, [&out](int, uint32_t left, uint32_t right) {
     out.push_back({left, right});
@@ -121,8 +119,8 @@ void DenseLayout::BlockRemovals(uint64_t b, std::vector<BlockRemoval>& out) cons
   ForEachMember(whole, [&](RelationId x) {
     const RelSet rest = whole & ~Singleton(x);
     if (PatternAdmissible(rest)) {
-      out.push_back({RelationId{static_cast<uint8_t>(x.value + f_)},
-                     static_cast<uint32_t>(BlockOf(rest))});
+      out.push_back(
+          {RelationId{static_cast<uint8_t>(x.value + f_)}, static_cast<uint32_t>(BlockOf(rest))});
     }
   });
 }

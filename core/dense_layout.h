@@ -62,9 +62,7 @@ class DenseLayout {
   Slot SlotOf(RelSet s) const {
     return static_cast<Slot>((BlockOf(s >> f_) << f_) | (s & low_mask()));
   }
-  RelSet SetOf(Slot slot) const {
-    return (patterns_[slot >> f_] << f_) | (slot & low_mask());
-  }
+  RelSet SetOf(Slot slot) const { return (patterns_[slot >> f_] << f_) | (slot & low_mask()); }
 
   // The splits of block b's pattern into two admissible patterns, both
   // orders, or (symmetric) one order per unordered pair with left <= right
@@ -97,7 +95,7 @@ class DenseLayout {
   std::vector<std::vector<std::pair<uint8_t, uint8_t>>> digit_splits_;
   // the same, only those whose right part holds the value's top bit
   std::vector<std::vector<std::pair<uint8_t, uint8_t>>> digit_splits_top_;
-  std::vector<uint64_t> place_;      // radix^j
+  std::vector<uint64_t> place_;  // radix^j
 };
 
 template <class Acc, class Fn>

@@ -21,8 +21,8 @@ namespace sliceplan {
 
 // As RunDenseBushy, for left-deep plans.
 template <SearchPolicy Policy>
-absl::Status RunDenseLeftDeep(const DenseLayout& layout, Policy& policy,
-                              SearchControl& control, SearchStats& stats) {
+absl::Status RunDenseLeftDeep(const DenseLayout& layout, Policy& policy, SearchControl& control,
+                              SearchStats& stats) {
   const int f = layout.free_bits();
   const uint64_t low_sets = uint64_t{1} << f;
   std::vector<BlockRemoval> removals;
@@ -43,8 +43,8 @@ absl::Status RunDenseLeftDeep(const DenseLayout& layout, Policy& policy,
         acc = policy.OfferLeafRight(acc, s - static_cast<Slot>(bit), Lowest(bit));
       }
       for (const BlockRemoval& rm : removals) {
-        acc = policy.OfferLeafRight(acc, static_cast<Slot>((rm.rest_block << f) | low),
-                              rm.relation);
+        acc =
+            policy.OfferLeafRight(acc, static_cast<Slot>((rm.rest_block << f) | low), rm.relation);
       }
       policy.Finish(s, set, acc);
       const uint64_t work = static_cast<uint64_t>(Size(low)) + removals.size();

@@ -9,9 +9,9 @@ namespace sliceplan {
 
 absl::StatusOr<double> AllowedSeconds(double requested, double max_seconds, const char* field) {
   if (std::isnan(requested) || requested < 0) {
-    return absl::InvalidArgumentError(absl::StrCat(
-        field, ": must be a number >= 0 (0: the server's maximum of ", max_seconds,
-        " s), got ", requested));
+    return absl::InvalidArgumentError(
+        absl::StrCat(field, ": must be a number >= 0 (0: the server's maximum of ", max_seconds,
+                     " s), got ", requested));
   }
   if (requested == 0) return max_seconds;
   return std::min(requested, max_seconds);

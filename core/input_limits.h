@@ -14,12 +14,12 @@
 namespace sliceplan {
 
 struct InputLimits {
-  int64_t max_relations = 10000;    // per query (the exact search takes 64)
-  int64_t max_predicates = 100000;  // per query, before merging equal ones
+  int64_t max_relations = 10000;                // per query (the exact search takes 64)
+  int64_t max_predicates = 100000;              // per query, before merging equal ones
   int64_t max_query_bytes = int64_t{16} << 20;  // a query file or request
-  int64_t max_node_counts = 16;     // cluster model: node counts to try
-  int64_t max_sample_rates = 16;    // cluster model: sample rates to try
-  double max_deadline_seconds = 3600;  // a longer or absent deadline is cut to it
+  int64_t max_node_counts = 16;                 // cluster model: node counts to try
+  int64_t max_sample_rates = 16;                // cluster model: sample rates to try
+  double max_deadline_seconds = 3600;           // a longer or absent deadline is cut to it
 };
 
 // Bounds on single values, so no input is near double's range by itself.

@@ -2,8 +2,7 @@
 
 namespace sliceplan {
 
-JoinGraph::JoinGraph(const Query& query)
-    : simple_(query.size(), 0), touching_(query.size(), 0) {
+JoinGraph::JoinGraph(const Query& query) : simple_(query.size(), 0), touching_(query.size(), 0) {
   for (const Predicate& p : query.predicates()) {
     const bool binary = Size(p.relations) == 2;
     if (!binary) hyper_.push_back(p.relations);

@@ -32,23 +32,21 @@ std::vector<Plan> MergeFrontiers(const std::vector<SliceResult>& slices, Objecti
 }
 
 absl::Status OutOfRange(const Plan& best) {
-  return absl::OutOfRangeError(absl::StrFormat(
-      "every plan's cost reaches %g, the largest value the engine represents "
-      "(the best plan's result has %.4g rows): the row estimates multiply past "
-      "double range; scale them down",
-      kValueCeiling, best.root().cardinality));
+  return absl::OutOfRangeError(
+      absl::StrFormat("every plan's cost reaches %g, the largest value the engine represents "
+                      "(the best plan's result has %.4g rows): the row estimates multiply past "
+                      "double range; scale them down",
+                      kValueCeiling, best.root().cardinality));
 }
 
-absl::StatusOr<OptimizeResult> Merge(std::vector<SliceResult> slices,
-                                     uint32_t slice_count, bool all, Objectives objectives) {
-  std::sort(slices.begin(), slices.end(),
-            [](const SliceResult& a, const SliceResult& b) {
-              return a.slice.index < b.slice.index;
-            });
+absl::StatusOr<OptimizeResult> Merge(std::vector<SliceResult> slices, uint32_t slice_count,
+                                     bool all, Objectives objectives) {
+  std::sort(slices.begin(), slices.end(), [](const SliceResult& a, const SliceResult& b) {
+    return a.slice.index < b.slice.index;
+  });
   if (all && slices.size() != slice_count) {
-    return absl::InvalidArgumentError(absl::StrCat(
-        "merge: ", slices.size(), " slice answers for ", slice_count,
-        " slices"));
+    return absl::InvalidArgumentError(
+        absl::StrCat("merge: ", slices.size(), " slice answers for ", slice_count, " slices"));
   }
   OptimizeResult out;
   out.slice_count = slice_count;
@@ -57,8 +55,8 @@ absl::StatusOr<OptimizeResult> Merge(std::vector<SliceResult> slices,
     const SliceResult& r = slices[i];
     const bool repeated = i > 0 && slices[i - 1].slice.index == r.slice.index;
     if ((all && r.slice.index != i) || repeated || r.slice.index >= slice_count) {
-      return absl::InvalidArgumentError(absl::StrCat(
-          "merge: slice ", all ? i : r.slice.index, " is missing or repeated"));
+      return absl::InvalidArgumentError(
+          absl::StrCat("merge: slice ", all ? i : r.slice.index, " is missing or repeated"));
     }
     if (r.plan && (best == nullptr || r.plan->root().cost < best->root().cost)) {
       best = &*r.plan;
@@ -96,8 +94,8 @@ void ApplyChoice(OptimizeResult& result, const ChoiceRule& rule) {
   result.plan = result.frontier[result.chosen.value_or(0)];
 }
 
-absl::StatusOr<OptimizeResult> MergeSlices(std::vector<SliceResult> slices,
-                                           uint32_t slice_count, Objectives objectives) {
+absl::StatusOr<OptimizeResult> MergeSlices(std::vector<SliceResult> slices, uint32_t slice_count,
+                                           Objectives objectives) {
   return Merge(std::move(slices), slice_count, true, objectives);
 }
 

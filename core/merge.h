@@ -23,8 +23,8 @@ struct OptimizeResult {
   // plan); none when no plan meets the bounds (`plan` is the first).
   std::optional<size_t> chosen;
   uint32_t slice_count = 1;
-  uint32_t best_slice = 0;               // the slice the plan came from
-  std::vector<SliceResult> slices;       // by slice index; plans dropped
+  uint32_t best_slice = 0;          // the slice the plan came from
+  std::vector<SliceResult> slices;  // by slice index; plans dropped
   double wall_seconds = 0;
 };
 
@@ -36,8 +36,8 @@ struct OptimizeResult {
 // Slices with a Pareto set (the cluster model) merge into one: the union,
 // less every plan another plan beats or equals on each of `objectives`
 // (exact dominance, docs/cost-models.md), by increasing latency_s.
-absl::StatusOr<OptimizeResult> MergeSlices(std::vector<SliceResult> slices,
-                                           uint32_t slice_count, Objectives objectives = {});
+absl::StatusOr<OptimizeResult> MergeSlices(std::vector<SliceResult> slices, uint32_t slice_count,
+                                           Objectives objectives = {});
 
 // As MergeSlices over the slices that were solved (a deadline passed before
 // the rest): any subset of distinct slices, at least one of them with a
@@ -46,8 +46,7 @@ absl::StatusOr<OptimizeResult> MergeSlices(std::vector<SliceResult> slices,
 void ApplyChoice(OptimizeResult& result, const ChoiceRule& rule);
 
 absl::StatusOr<OptimizeResult> MergeSolvedSlices(std::vector<SliceResult> slices,
-                                                 uint32_t slice_count,
-                                                 Objectives objectives = {});
+                                                 uint32_t slice_count, Objectives objectives = {});
 
 }  // namespace sliceplan
 

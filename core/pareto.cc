@@ -13,13 +13,16 @@ absl::StatusOr<Objectives> ParseObjectives(const std::string& text) {
   Objectives out{0};
   for (absl::string_view part : absl::StrSplit(text, ',')) {
     uint8_t bit = 0;
-    if (part == "latency_s") bit = Objectives::kLatency;
-    else if (part == "node_seconds") bit = Objectives::kNodeSeconds;
-    else if (part == "completeness") bit = Objectives::kCompleteness;
+    if (part == "latency_s")
+      bit = Objectives::kLatency;
+    else if (part == "node_seconds")
+      bit = Objectives::kNodeSeconds;
+    else if (part == "completeness")
+      bit = Objectives::kCompleteness;
     else {
-      return absl::InvalidArgumentError(absl::StrCat(
-          "objectives: unknown objective \"", part,
-          "\" (use latency_s, node_seconds, completeness)"));
+      return absl::InvalidArgumentError(
+          absl::StrCat("objectives: unknown objective \"", part,
+                       "\" (use latency_s, node_seconds, completeness)"));
     }
     if (out.has(bit)) {
       return absl::InvalidArgumentError(absl::StrCat("objectives: \"", part, "\" listed twice"));

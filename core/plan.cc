@@ -5,8 +5,8 @@
 namespace sliceplan {
 namespace {
 
-int Build(RelSet set, absl::FunctionRef<RelSet(RelSet)> left_of,
-          const Cardinality& card, Plan& plan) {
+int Build(RelSet set, absl::FunctionRef<RelSet(RelSet)> left_of, const Cardinality& card,
+          Plan& plan) {
   PlanNode node;
   node.relations = set;
   node.cardinality = card.Of(set);
@@ -34,8 +34,7 @@ void AppendTree(const Plan& plan, int i, const Query& query, std::string& out) {
 
 }  // namespace
 
-Plan BuildPlan(RelSet root, absl::FunctionRef<RelSet(RelSet)> left_of,
-               const Cardinality& card) {
+Plan BuildPlan(RelSet root, absl::FunctionRef<RelSet(RelSet)> left_of, const Cardinality& card) {
   Plan plan;
   Build(root, left_of, card, plan);
   return plan;
@@ -44,8 +43,7 @@ Plan BuildPlan(RelSet root, absl::FunctionRef<RelSet(RelSet)> left_of,
 double CostWithCout(Plan& plan) {
   for (PlanNode& node : plan.nodes) {  // children come first
     node.cost = node.is_leaf() ? 0.0
-                               : CoutJoin(node.cardinality,
-                                          plan.nodes[node.left].cost,
+                               : CoutJoin(node.cardinality, plan.nodes[node.left].cost,
                                           plan.nodes[node.right].cost);
   }
   return plan.root().cost;

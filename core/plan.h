@@ -17,7 +17,7 @@ namespace sliceplan {
 
 struct PlanNode {
   RelSet relations = 0;
-  int left = -1;   // child node index; -1 for a leaf
+  int left = -1;  // child node index; -1 for a leaf
   int right = -1;
   double cardinality = 0;
   double cost = 0;  // the cost model's primary metric of the subtree
@@ -37,8 +37,7 @@ struct Plan {
 // Builds the tree of `root`: left_of(S) is the left operand of composite set
 // S (the right one is the rest). Fills cardinalities; costs stay 0.
 // REQUIRES: left_of(S) is a non-empty proper subset of S for |S| >= 2.
-Plan BuildPlan(RelSet root, absl::FunctionRef<RelSet(RelSet)> left_of,
-               const Cardinality& card);
+Plan BuildPlan(RelSet root, absl::FunctionRef<RelSet(RelSet)> left_of, const Cardinality& card);
 
 // Fills every node's cost with C_out (cout_policy.h); returns the root's.
 double CostWithCout(Plan& plan);

@@ -29,18 +29,24 @@ std::optional<double> Number(absl::string_view text) {
 
 std::string MetricLabel(Metric m) {
   switch (m) {
-    case Metric::kLatency: return "latency_s";
-    case Metric::kNodeSeconds: return "node_seconds";
-    case Metric::kCompleteness: return "completeness";
+    case Metric::kLatency:
+      return "latency_s";
+    case Metric::kNodeSeconds:
+      return "node_seconds";
+    case Metric::kCompleteness:
+      return "completeness";
   }
   return "?";
 }
 
 double MetricValue(const ClusterCosts& c, Metric m) {
   switch (m) {
-    case Metric::kLatency: return c.latency_s;
-    case Metric::kNodeSeconds: return c.node_seconds;
-    case Metric::kCompleteness: return c.completeness;
+    case Metric::kLatency:
+      return c.latency_s;
+    case Metric::kNodeSeconds:
+      return c.node_seconds;
+    case Metric::kCompleteness:
+      return c.completeness;
   }
   return 0;
 }
@@ -52,10 +58,13 @@ absl::StatusOr<Bound> ParseBound(const std::string& text) {
     const auto metric = MetricNamed(absl::string_view(text).substr(0, at));
     const auto value = Number(absl::string_view(text).substr(at + 2));
     if (!metric) {
-      return absl::InvalidArgumentError(absl::StrCat(
-          "bound: \"", ShortName(text), "\" names no metric (latency_s, node_seconds, completeness)"));
+      return absl::InvalidArgumentError(
+          absl::StrCat("bound: \"", ShortName(text),
+                       "\" names no metric (latency_s, node_seconds, completeness)"));
     }
-    if (!value) return absl::InvalidArgumentError(absl::StrCat("bound: \"", ShortName(text), "\" has no number"));
+    if (!value)
+      return absl::InvalidArgumentError(
+          absl::StrCat("bound: \"", ShortName(text), "\" has no number"));
     return Bound{*metric, op[0] == '<', *value};
   }
   return absl::InvalidArgumentError(
@@ -77,7 +86,8 @@ absl::StatusOr<Preference> ParsePreference(const std::string& text) {
     const auto weight = kv.size() == 2 ? Number(kv[1]) : std::nullopt;
     if (!metric || !weight || *weight < 0) {
       return absl::InvalidArgumentError(
-          absl::StrCat("prefer: \"", ShortName(std::string_view(part.data(), part.size())), "\" is not METRIC=WEIGHT with a weight >= 0"));
+          absl::StrCat("prefer: \"", ShortName(std::string_view(part.data(), part.size())),
+                       "\" is not METRIC=WEIGHT with a weight >= 0"));
     }
     const uint8_t bit = static_cast<uint8_t>(1u << static_cast<int>(*metric));
     if ((seen & bit) != 0) {
@@ -92,7 +102,8 @@ absl::StatusOr<Preference> ParsePreference(const std::string& text) {
   return p;
 }
 
-std::optional<size_t> ChoosePlan(const std::vector<ClusterCosts>& frontier, const ChoiceRule& rule) {
+std::optional<size_t> ChoosePlan(const std::vector<ClusterCosts>& frontier,
+                                 const ChoiceRule& rule) {
   std::optional<size_t> best;
   for (size_t i = 0; i < frontier.size(); ++i) {
     bool ok = true;

@@ -4,9 +4,9 @@
 #include <cmath>
 #include <limits>
 
+#include "absl/container/flat_hash_map.h"
 #include "absl/container/flat_hash_set.h"
 #include "absl/strings/str_cat.h"
-#include "absl/container/flat_hash_map.h"
 #include "core/input_limits.h"
 #include "core/status_macros.h"
 #include "core/user_text.h"
@@ -24,15 +24,13 @@ absl::Status CheckRelation(const Relation& rel, size_t i,
                            absl::flat_hash_set<std::string_view>& seen) {
   const std::string at = absl::StrCat("relations[", i, "]");
   if (rel.name.size() > kMaxNameBytes) {
-    return Invalid(absl::StrCat(at, ".name"), absl::StrCat(rel.name.size(),
-                                                           " bytes; a name has at most ",
-                                                           kMaxNameBytes));
+    return Invalid(absl::StrCat(at, ".name"),
+                   absl::StrCat(rel.name.size(), " bytes; a name has at most ", kMaxNameBytes));
   }
   if (!IsValidRelationName(rel.name)) {
-    return Invalid(absl::StrCat(at, ".name"),
-                   absl::StrCat("\"", ShortName(rel.name),
-                                "\" is not a name of the form "
-                                "[A-Za-z_][A-Za-z0-9_]*"));
+    return Invalid(absl::StrCat(at, ".name"), absl::StrCat("\"", ShortName(rel.name),
+                                                           "\" is not a name of the form "
+                                                           "[A-Za-z_][A-Za-z0-9_]*"));
   }
   if (!seen.insert(rel.name).second) {
     return Invalid(absl::StrCat(at, ".name"),
@@ -44,9 +42,9 @@ absl::Status CheckRelation(const Relation& rel, size_t i,
                    absl::StrCat("must be a finite number > 0, got ", rel.rows));
   }
   if (!PositiveFinite(rel.row_bytes) || rel.row_bytes > kMaxRowBytes) {
-    return Invalid(absl::StrCat(named, ".row_bytes"),
-                   absl::StrCat("must be a number in (0, ", kMaxRowBytes, "], got ",
-                                rel.row_bytes));
+    return Invalid(
+        absl::StrCat(named, ".row_bytes"),
+        absl::StrCat("must be a number in (0, ", kMaxRowBytes, "], got ", rel.row_bytes));
   }
   return absl::OkStatus();
 }
@@ -54,12 +52,10 @@ absl::Status CheckRelation(const Relation& rel, size_t i,
 absl::Status CheckPredicate(const Predicate& p, size_t j, int n) {
   const std::string at = absl::StrCat("predicates[", j, "]");
   if (!IsSubset(p.relations, FullSet(n))) {
-    return Invalid(absl::StrCat(at, ".relations"),
-                   "names a relation id outside the query");
+    return Invalid(absl::StrCat(at, ".relations"), "names a relation id outside the query");
   }
   if (Size(p.relations) < 2) {
-    return Invalid(absl::StrCat(at, ".relations"),
-                   "must name two or more distinct relations");
+    return Invalid(absl::StrCat(at, ".relations"), "must name two or more distinct relations");
   }
   if (!(p.selectivity > 0 && p.selectivity <= 1)) {
     return Invalid(absl::StrCat(at, ".selectivity"),
@@ -106,11 +102,10 @@ absl::StatusOr<Query> Query::Create(std::vector<Relation> relations,
     return Invalid("relations", "the query has no relations");
   }
   if (relations.size() > static_cast<size_t>(kMaxRelations)) {
-    return Invalid("relations",
-                   absl::StrCat(relations.size(),
-                                " relations given; the exact search takes at "
-                                "most ",
-                                kMaxRelations));
+    return Invalid("relations", absl::StrCat(relations.size(),
+                                             " relations given; the exact search takes at "
+                                             "most ",
+                                             kMaxRelations));
   }
   absl::flat_hash_set<std::string_view> seen;
   for (size_t i = 0; i < relations.size(); ++i) {

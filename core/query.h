@@ -21,8 +21,8 @@ namespace sliceplan {
 inline constexpr double kDefaultRowBytes = 100.0;
 
 struct Relation {
-  std::string name;  // unique, [A-Za-z_][A-Za-z0-9_]*
-  double rows = 0;   // > 0
+  std::string name;                     // unique, [A-Za-z_][A-Za-z0-9_]*
+  double rows = 0;                      // > 0
   double row_bytes = kDefaultRowBytes;  // > 0
 };
 

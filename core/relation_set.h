@@ -27,9 +27,7 @@ using RelSet = uint64_t;
 // The set {r}.
 constexpr RelSet Singleton(RelationId r) { return RelSet{1} << r.value; }
 // The set {0, ..., n-1}. REQUIRES: 0 <= n <= 64.
-constexpr RelSet FullSet(int n) {
-  return n >= 64 ? ~RelSet{0} : (RelSet{1} << n) - 1;
-}
+constexpr RelSet FullSet(int n) { return n >= 64 ? ~RelSet{0} : (RelSet{1} << n) - 1; }
 constexpr int Size(RelSet s) { return std::popcount(s); }
 constexpr bool Contains(RelSet s, RelationId r) { return (s >> r.value) & 1; }
 constexpr bool IsSubset(RelSet sub, RelSet of) { return (sub & ~of) == 0; }

@@ -28,8 +28,7 @@ class SearchControl {
   // Never stops.
   SearchControl() = default;
   // Stops once *cancel is true (if given) or the deadline passed (if given).
-  SearchControl(const std::atomic<bool>* cancel,
-                std::optional<Clock::time_point> deadline)
+  SearchControl(const std::atomic<bool>* cancel, std::optional<Clock::time_point> deadline)
       : cancel_(cancel), deadline_(deadline) {}
   // Also stops once `cancelled()` returns true (polled with the clock, so
   // it may take a lock or ask an RPC context). Checks accumulate.

@@ -41,14 +41,12 @@ absl::Status CheckOptionLimits(const SearchOptions& options, const InputLimits& 
   if (options.cost != CostModelKind::kCluster) return absl::OkStatus();
   const ClusterParams& p = options.cluster.params;
   if (static_cast<int64_t>(p.node_counts.size()) > limits.max_node_counts) {
-    return absl::ResourceExhaustedError(absl::StrCat("node_counts: ", p.node_counts.size(),
-                                                     " given; the limit is ",
-                                                     limits.max_node_counts));
+    return absl::ResourceExhaustedError(absl::StrCat(
+        "node_counts: ", p.node_counts.size(), " given; the limit is ", limits.max_node_counts));
   }
   if (static_cast<int64_t>(p.sample_rates.size()) > limits.max_sample_rates) {
-    return absl::ResourceExhaustedError(absl::StrCat("sample_rates: ", p.sample_rates.size(),
-                                                     " given; the limit is ",
-                                                     limits.max_sample_rates));
+    return absl::ResourceExhaustedError(absl::StrCat(
+        "sample_rates: ", p.sample_rates.size(), " given; the limit is ", limits.max_sample_rates));
   }
   return absl::OkStatus();
 }

@@ -37,7 +37,7 @@ struct SearchOptions {
   bool cross_products = true;
   CostModelKind cost = CostModelKind::kCout;
   uint64_t memo_limit_bytes = kDefaultMemoLimitBytes;  // per slice
-  ClusterSearchConfig cluster;  // for CostModelKind::kCluster
+  ClusterSearchConfig cluster;                         // for CostModelKind::kCluster
 };
 
 // INVALID_ARGUMENT naming the field for bad cluster parameters, alpha < 1,

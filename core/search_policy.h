@@ -33,14 +33,14 @@
 #include <concepts>
 #include <cstddef>
 
-#include "core/slot.h"
 #include "core/relation_set.h"
+#include "core/slot.h"
 
 namespace sliceplan {
 
 template <class P>
-concept SearchPolicy = requires(P p, const P cp, typename P::Acc acc, Slot s,
-                                RelSet set, RelationId r) {
+concept SearchPolicy = requires(P p, const P cp, typename P::Acc acc, Slot s, RelSet set,
+                                RelationId r) {
   { P::kSymmetric } -> std::convertible_to<bool>;
   { P::kBytesPerSlot } -> std::convertible_to<size_t>;
   p.Resize(size_t{1});

@@ -29,26 +29,21 @@ OrientedConstraint Orient(ConstraintRelations rel, bool bit) {
 
 }  // namespace
 
-absl::StatusOr<SliceConstraints> SliceConstraints::ForSlice(const Query& query,
-                                                            PlanShape shape,
-                                                            SliceSpec spec,
-                                                            bool cross_products) {
+absl::StatusOr<SliceConstraints> SliceConstraints::ForSlice(const Query& query, PlanShape shape,
+                                                            SliceSpec spec, bool cross_products) {
   RETURN_IF_ERROR(ValidateSlice(spec, query.size(), shape));
-  return FromRelations(
-      shape, spec, ChooseConstraintRelations(query, shape, spec.bits(), cross_products));
+  return FromRelations(shape, spec,
+                       ChooseConstraintRelations(query, shape, spec.bits(), cross_products));
 }
 
 SliceConstraints SliceConstraints::FromRelations(
-    PlanShape shape, SliceSpec spec,
-    const std::vector<ConstraintRelations>& relations) {
+    PlanShape shape, SliceSpec spec, const std::vector<ConstraintRelations>& relations) {
   SliceConstraints out;
   out.shape_ = shape;
   out.spec_ = spec;
   for (size_t j = 0; j < relations.size(); ++j) {
-    out.constraints_.push_back(
-        Orient(relations[j], spec.bit(static_cast<int>(j))));
-    out.constrained_ |= out.constraints_.back().trigger |
-                        out.constraints_.back().need;
+    out.constraints_.push_back(Orient(relations[j], spec.bit(static_cast<int>(j))));
+    out.constrained_ |= out.constraints_.back().trigger | out.constraints_.back().need;
   }
   return out;
 }

@@ -35,9 +35,7 @@ struct OrientedConstraint {
   ConstraintRelations relations;
   RelSet trigger = 0;
   RelSet need = 0;
-  bool Forbids(RelSet s) const {
-    return (s & trigger) == trigger && (s & need) == 0;
-  }
+  bool Forbids(RelSet s) const { return (s & trigger) == trigger && (s & need) == 0; }
 };
 
 class SliceConstraints {
@@ -46,15 +44,12 @@ class SliceConstraints {
   // ChooseConstraintRelations (a deterministic function of the query and
   // the search space), the orientation from the slice bits. Errors as
   // ValidateSlice.
-  static absl::StatusOr<SliceConstraints> ForSlice(const Query& query,
-                                                   PlanShape shape,
-                                                   SliceSpec spec,
-                                                   bool cross_products = true);
+  static absl::StatusOr<SliceConstraints> ForSlice(const Query& query, PlanShape shape,
+                                                   SliceSpec spec, bool cross_products = true);
   // Builds from given relations (tests use it to pin a choice).
   // REQUIRES: relations disjoint, sizes match `shape`, one per slice bit.
-  static SliceConstraints FromRelations(
-      PlanShape shape, SliceSpec spec,
-      const std::vector<ConstraintRelations>& relations);
+  static SliceConstraints FromRelations(PlanShape shape, SliceSpec spec,
+                                        const std::vector<ConstraintRelations>& relations);
 
   bool Admissible(RelSet s) const {
     for (const OrientedConstraint& c : constraints_) {
@@ -62,9 +57,7 @@ class SliceConstraints {
     }
     return true;
   }
-  const std::vector<OrientedConstraint>& constraints() const {
-    return constraints_;
-  }
+  const std::vector<OrientedConstraint>& constraints() const { return constraints_; }
   // The union of all constrained relations.
   RelSet constrained() const { return constrained_; }
   PlanShape shape() const { return shape_; }

@@ -3,15 +3,14 @@
 #include <algorithm>
 #include <cmath>
 
-#include "core/cout_policy.h"
 #include "core/connected_sets.h"
+#include "core/cout_policy.h"
 #include "core/search_estimate.h"
 
 namespace sliceplan {
 namespace {
 
-uint32_t ChooseDense(const Query& query, const SearchOptions& options,
-                     int workers) {
+uint32_t ChooseDense(const Query& query, const SearchOptions& options, int workers) {
   const int n = query.size();
   const PlanShape shape = options.shape;
   if (DenseSplits(n, shape, 0, true) < kMinSplitsToSlice) return 1;
@@ -36,16 +35,14 @@ uint64_t CountConnectedSets(const Query& query, uint64_t cap) {
   return ConnectedSets(query, cap).size();
 }
 
-uint32_t ChooseSliceCount(const Query& query, const SearchOptions& options,
-                          int workers) {
+uint32_t ChooseSliceCount(const Query& query, const SearchOptions& options, int workers) {
   if (options.cross_products) return ChooseDense(query, options, workers);
   // Connected sets only: small searches stay whole; large ones get one
   // slice per worker (the shrink per slice depends on the graph).
   constexpr uint64_t kSmallSearchSets = 100000;
   if (CountConnectedSets(query, kSmallSearchSets) < kSmallSearchSets) return 1;
   int k = 0;
-  const int max_k = std::min(MaxSliceBits(query.size(), options.shape),
-                             kMaxPlannedSliceBits);
+  const int max_k = std::min(MaxSliceBits(query.size(), options.shape), kMaxPlannedSliceBits);
   while (k < max_k && (1 << k) < workers) ++k;
   return uint32_t{1} << k;
 }

@@ -24,8 +24,7 @@ inline constexpr double kMinSplitsToSlice = 4e6;
 inline constexpr int kMaxPlannedSliceBits = 8;
 
 // REQUIRES: workers >= 1.
-uint32_t ChooseSliceCount(const Query& query, const SearchOptions& options,
-                          int workers);
+uint32_t ChooseSliceCount(const Query& query, const SearchOptions& options, int workers);
 
 // Connected relation sets of the join graph (predicates as cliques), counted
 // up to `cap` (the count stops there).

@@ -15,11 +15,11 @@
 #include "absl/strings/str_format.h"
 #include "core/cardinality.h"
 #include "core/cluster_policy.h"
-#include "core/count_policy.h"
-#include "core/cout_policy.h"
 #include "core/connected_bushy.h"
 #include "core/connected_left_deep.h"
 #include "core/connected_memo.h"
+#include "core/count_policy.h"
+#include "core/cout_policy.h"
 #include "core/dense_bushy.h"
 #include "core/dense_layout.h"
 #include "core/dense_left_deep.h"
@@ -33,8 +33,7 @@ namespace sliceplan {
 // RESOURCE_EXHAUSTED, naming the memo size, the limit and the smallest slice
 // count that would fit, when a dense slice memo of `bytes_per_slot` entries
 // passes `limit` bytes or 2^32 slots. Checked before anything is allocated.
-absl::Status CheckDenseMemo(int n, PlanShape shape, int k,
-                            size_t bytes_per_slot, uint64_t limit);
+absl::Status CheckDenseMemo(int n, PlanShape shape, int k, size_t bytes_per_slot, uint64_t limit);
 
 // How each policy is built from the search's own query and cardinality.
 template <class Policy>
@@ -57,8 +56,7 @@ template <SearchPolicy Policy>
 class SliceSearch {
  public:
   // REQUIRES: CheckDenseMemo passed when options.cross_products.
-  SliceSearch(const Query& query, const SearchOptions& options,
-              SliceConstraints constraints)
+  SliceSearch(const Query& query, const SearchOptions& options, SliceConstraints constraints)
       : options_(options),
         constraints_(std::move(constraints)),
         layout_(MakeLayout(query)),
@@ -74,12 +72,12 @@ class SliceSearch {
     if constexpr (kCanExhaust) {
       control.set_cancel_check([this] { return policy_.exhausted(); });
     }
-    constexpr bool kTicksInside = requires(Policy& p) { p.set_control(&control); };
+    constexpr bool kTicksInside = requires(Policy & p) { p.set_control(&control); };
     if constexpr (kTicksInside) policy_.set_control(&control);
     absl::Status status = layout_ ? RunDense(control) : RunConnected(control);
     if constexpr (kTicksInside) policy_.set_control(nullptr);
-    stats_.seconds = std::chrono::duration<double>(
-                         std::chrono::steady_clock::now() - start).count();
+    stats_.seconds =
+        std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
     if constexpr (kCanExhaust) {
       if (policy_.exhausted()) {
         return absl::ResourceExhaustedError(absl::StrCat(
@@ -103,9 +101,7 @@ class SliceSearch {
   // policy with BestLeft (a cost model).
   Plan ExtractPlan() const {
     Plan plan = BuildPlan(
-        working_.all(),
-        [&](RelSet set) { return SetOf(policy_.BestLeft(SlotOf(set))); },
-        card_);
+        working_.all(), [&](RelSet set) { return SetOf(policy_.BestLeft(SlotOf(set))); }, card_);
     if (layout_) RenumberPlan(plan, layout_->inverse_perm());
     return plan;
   }
@@ -121,17 +117,12 @@ class SliceSearch {
     return layout_->inverse_perm();
   }
 
-  Slot SlotOf(RelSet set) const {
-    return layout_ ? layout_->SlotOf(set) : *memo_.Find(set);
-  }
-  RelSet SetOf(Slot slot) const {
-    return layout_ ? layout_->SetOf(slot) : memo_.SetOf(slot);
-  }
+  Slot SlotOf(RelSet set) const { return layout_ ? layout_->SlotOf(set) : *memo_.Find(set); }
+  RelSet SetOf(Slot slot) const { return layout_ ? layout_->SetOf(slot) : memo_.SetOf(slot); }
 
  private:
   static constexpr size_t kConnectedBytesPerSlot =
-      Policy::kBytesPerSlot + ConnectedMemo::kOverheadBytesPerSlot +
-      sizeof(double);
+      Policy::kBytesPerSlot + ConnectedMemo::kOverheadBytesPerSlot + sizeof(double);
 
   std::optional<DenseLayout> MakeLayout(const Query& query) const {
     if (!options_.cross_products) return std::nullopt;
@@ -153,21 +144,19 @@ class SliceSearch {
     const JoinGraph graph(working_);
     absl::Status status;
     if (options_.shape == PlanShape::kBushy) {
-      status = ConnectedBushy<Policy>(working_.size(), graph, card_,
-                                      constraints_, policy_, memo_, control,
-                                      stats_)
+      status = ConnectedBushy<Policy>(working_.size(), graph, card_, constraints_, policy_, memo_,
+                                      control, stats_)
                    .Run();
     } else {
-      status = RunConnectedLeftDeep(working_.size(), graph, card_,
-                                    constraints_, policy_, memo_, control,
-                                    stats_);
+      status = RunConnectedLeftDeep(working_.size(), graph, card_, constraints_, policy_, memo_,
+                                    control, stats_);
     }
     stats_.subsets = memo_.size();
     stats_.memo_bytes = memo_.size() * kConnectedBytesPerSlot;
     if (absl::IsResourceExhausted(status)) {
-      return absl::ResourceExhaustedError(absl::StrCat(
-          status.message(), " (memo limit ", options_.memo_limit_bytes,
-          " bytes at ", kConnectedBytesPerSlot, " bytes per entry)"));
+      return absl::ResourceExhaustedError(
+          absl::StrCat(status.message(), " (memo limit ", options_.memo_limit_bytes, " bytes at ",
+                       kConnectedBytesPerSlot, " bytes per entry)"));
     }
     return status;
   }

@@ -4,8 +4,8 @@
 #include <cmath>
 
 #include "core/count_policy.h"
-#include "core/pareto.h"
 #include "core/cout_policy.h"
+#include "core/pareto.h"
 #include "core/slice_search.h"
 #include "core/status_macros.h"
 #include "core/user_text.h"
@@ -13,8 +13,7 @@
 
 namespace sliceplan {
 
-absl::Status CheckDenseMemo(int n, PlanShape shape, int k,
-                            size_t bytes_per_slot, uint64_t limit) {
+absl::Status CheckDenseMemo(int n, PlanShape shape, int k, size_t bytes_per_slot, uint64_t limit) {
   const double slots = DenseSlots(n, shape, k);
   const double bytes = slots * static_cast<double>(bytes_per_slot);
   if (bytes <= static_cast<double>(limit) && slots < static_cast<double>(kNoSlot)) {
@@ -25,8 +24,7 @@ absl::Status CheckDenseMemo(int n, PlanShape shape, int k,
     const double s = DenseSlots(n, shape, more);
     if (s * static_cast<double>(bytes_per_slot) <= static_cast<double>(limit) &&
         s < static_cast<double>(kNoSlot)) {
-      advice = absl::StrCat("at least ", uint64_t{1} << more,
-                            " slices would fit");
+      advice = absl::StrCat("at least ", uint64_t{1} << more, " slices would fit");
       break;
     }
   }
@@ -34,8 +32,7 @@ absl::Status CheckDenseMemo(int n, PlanShape shape, int k,
       "slice memo needs %.4g bytes (%.4g sets x %d bytes), over the limit of "
       "%d bytes (%s); raise the memo limit or use more slices: %s",
       bytes, slots, static_cast<int>(bytes_per_slot), limit,
-      slots >= static_cast<double>(kNoSlot) ? "and 2^32 slots" : "memo bytes",
-      advice));
+      slots >= static_cast<double>(kNoSlot) ? "and 2^32 slots" : "memo bytes", advice));
 }
 
 absl::Status CheckCoutInRange(const Query& query) {
@@ -62,16 +59,14 @@ absl::Status CheckCoutInRange(const Query& query) {
 namespace {
 
 template <SearchPolicy Policy>
-absl::Status Prepare(const Query& query, const SearchOptions& options,
-                     SliceSpec slice, std::optional<SliceConstraints>& out) {
+absl::Status Prepare(const Query& query, const SearchOptions& options, SliceSpec slice,
+                     std::optional<SliceConstraints>& out) {
   RETURN_IF_ERROR(ValidateSearchOptions(options));
   ASSIGN_OR_RETURN(SliceConstraints constraints,
-                   SliceConstraints::ForSlice(query, options.shape, slice,
-                                              options.cross_products));
+                   SliceConstraints::ForSlice(query, options.shape, slice, options.cross_products));
   if (options.cost == CostModelKind::kCout) RETURN_IF_ERROR(CheckCoutInRange(query));
   if (options.cross_products) {
-    RETURN_IF_ERROR(CheckDenseMemo(query.size(), options.shape, slice.bits(),
-                                   Policy::kBytesPerSlot,
+    RETURN_IF_ERROR(CheckDenseMemo(query.size(), options.shape, slice.bits(), Policy::kBytesPerSlot,
                                    options.memo_limit_bytes));
   }
   out.emplace(std::move(constraints));
@@ -145,10 +140,8 @@ absl::StatusOr<SliceResult> SolveClusterSlice(const Query& query, const SearchOp
 
 }  // namespace
 
-absl::StatusOr<SliceResult> SolveSlice(const Query& query,
-                                       const SearchOptions& options,
-                                       SliceSpec slice,
-                                       SearchControl& control) {
+absl::StatusOr<SliceResult> SolveSlice(const Query& query, const SearchOptions& options,
+                                       SliceSpec slice, SearchControl& control) {
   if (options.cost == CostModelKind::kCluster) {
     return SolveClusterSlice(query, options, slice, control);
   }
@@ -164,8 +157,7 @@ absl::StatusOr<SliceResult> SolveSlice(const Query& query,
   return result;
 }
 
-absl::StatusOr<SliceCount> CountSlicePlans(const Query& query,
-                                           const SearchOptions& options,
+absl::StatusOr<SliceCount> CountSlicePlans(const Query& query, const SearchOptions& options,
                                            SliceSpec slice) {
   std::optional<SliceConstraints> constraints;
   RETURN_IF_ERROR(Prepare<CountPolicy>(query, options, slice, constraints));
@@ -173,8 +165,7 @@ absl::StatusOr<SliceCount> CountSlicePlans(const Query& query,
   SearchControl control;
   RETURN_IF_ERROR(search.Run(control));
   const auto root = search.RootSlot();
-  return SliceCount{slice, root ? search.policy().Count(*root) : 0,
-                    search.stats()};
+  return SliceCount{slice, root ? search.policy().Count(*root) : 0, search.stats()};
 }
 
 }  // namespace sliceplan

@@ -10,10 +10,10 @@
 #include <string>
 
 #include "absl/status/statusor.h"
-#include "core/search_options.h"
 #include "core/plan.h"
 #include "core/query.h"
 #include "core/search_control.h"
+#include "core/search_options.h"
 #include "core/search_stats.h"
 #include "core/slice_spec.h"
 
@@ -38,10 +38,8 @@ struct SliceResult {
 // pass options.memo_limit_bytes (checked before allocating in the
 // cross-product space, while growing without cross products); CANCELLED or
 // DEADLINE_EXCEEDED from `control`. On error nothing is returned.
-absl::StatusOr<SliceResult> SolveSlice(const Query& query,
-                                       const SearchOptions& options,
-                                       SliceSpec slice,
-                                       SearchControl& control);
+absl::StatusOr<SliceResult> SolveSlice(const Query& query, const SearchOptions& options,
+                                       SliceSpec slice, SearchControl& control);
 
 struct SliceCount {
   SliceSpec slice;
@@ -51,8 +49,7 @@ struct SliceCount {
 
 // Counts the slice's plans with the same enumerators (counting semiring).
 // Errors as SolveSlice.
-absl::StatusOr<SliceCount> CountSlicePlans(const Query& query,
-                                           const SearchOptions& options,
+absl::StatusOr<SliceCount> CountSlicePlans(const Query& query, const SearchOptions& options,
                                            SliceSpec slice);
 
 }  // namespace sliceplan

@@ -17,9 +17,7 @@ enum class PlanShape { kBushy, kLeftDeep };
 
 // Relations one constraint takes: a precedence pair (left-deep) or a path
 // triple (bushy).
-constexpr int RelationsPerConstraint(PlanShape shape) {
-  return shape == PlanShape::kBushy ? 3 : 2;
-}
+constexpr int RelationsPerConstraint(PlanShape shape) { return shape == PlanShape::kBushy ? 3 : 2; }
 
 struct SliceSpec {
   uint32_t index = 0;
@@ -42,13 +40,10 @@ struct SliceFieldNames {
 // query of n relations has room for the k disjoint constraints of `shape`
 // (2k <= n for pairs, 3k <= n for triples). Otherwise INVALID_ARGUMENT,
 // "<count field>: 3 is not a power of two (1, 2, 4, 8, ...)" and the like.
-absl::Status ValidateSlice(SliceSpec spec, int n, PlanShape shape,
-                           SliceFieldNames names = {});
+absl::Status ValidateSlice(SliceSpec spec, int n, PlanShape shape, SliceFieldNames names = {});
 
 // The largest k a query of n relations allows for `shape`.
-constexpr int MaxSliceBits(int n, PlanShape shape) {
-  return n / RelationsPerConstraint(shape);
-}
+constexpr int MaxSliceBits(int n, PlanShape shape) { return n / RelationsPerConstraint(shape); }
 
 }  // namespace sliceplan
 

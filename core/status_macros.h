@@ -12,10 +12,10 @@
 #define SLICEPLAN_CONCAT_(a, b) SLICEPLAN_CONCAT_INNER_(a, b)
 
 // RETURN_IF_ERROR(expr): returns the status of `expr` when it is not OK.
-#define RETURN_IF_ERROR(expr)                  \
-  do {                                         \
-    const ::absl::Status status_ = (expr);     \
-    if (!status_.ok()) return status_;         \
+#define RETURN_IF_ERROR(expr)              \
+  do {                                     \
+    const ::absl::Status status_ = (expr); \
+    if (!status_.ok()) return status_;     \
   } while (false)
 
 // ASSIGN_OR_RETURN(lhs, expr): `expr` yields absl::StatusOr<T>; on error its

@@ -26,8 +26,7 @@ void BlockStopSignals() {
 absl::Status ValidateListenAddress(const std::string& address, const char* flag) {
   const size_t colon = address.rfind(':');
   const auto bad = [&](const char* why) {
-    return absl::InvalidArgumentError(
-        absl::StrCat(flag, ": \"", ShortName(address), "\" ", why));
+    return absl::InvalidArgumentError(absl::StrCat(flag, ": \"", ShortName(address), "\" ", why));
   };
   if (colon == std::string::npos || colon == 0) return bad("is not HOST:PORT");
   const std::string port = address.substr(colon + 1);

@@ -4,13 +4,12 @@
 #include <string>
 #include <vector>
 
-#include "schedule/local_worker.h"
 #include "core/status_macros.h"
+#include "schedule/local_worker.h"
 
 namespace sliceplan {
 
-absl::StatusOr<ScheduleOutcome> RunEmbedded(const Query& query,
-                                            const SearchOptions& options,
+absl::StatusOr<ScheduleOutcome> RunEmbedded(const Query& query, const SearchOptions& options,
                                             uint32_t slice_count, int workers,
                                             const ScheduleOptions& schedule) {
   std::vector<std::unique_ptr<LocalWorker>> pool;
@@ -22,12 +21,9 @@ absl::StatusOr<ScheduleOutcome> RunEmbedded(const Query& query,
   return RunSlices(query, options, slice_count, handles, schedule);
 }
 
-absl::StatusOr<OptimizeResult> OptimizeEmbedded(const Query& query,
-                                                const SearchOptions& options,
-                                                uint32_t slice_count,
-                                                int workers) {
-  ASSIGN_OR_RETURN(ScheduleOutcome outcome,
-                   RunEmbedded(query, options, slice_count, workers));
+absl::StatusOr<OptimizeResult> OptimizeEmbedded(const Query& query, const SearchOptions& options,
+                                                uint32_t slice_count, int workers) {
+  ASSIGN_OR_RETURN(ScheduleOutcome outcome, RunEmbedded(query, options, slice_count, workers));
   return std::move(outcome.result);
 }
 

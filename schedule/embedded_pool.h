@@ -7,23 +7,20 @@
 #include "absl/status/statusor.h"
 #include "core/merge.h"
 #include "core/query.h"
-#include "schedule/slice_scheduler.h"
 #include "core/slice_solver.h"
+#include "schedule/slice_scheduler.h"
 
 namespace sliceplan {
 
 // Solves slices 0..slice_count-1 on `workers` in-process workers and
 // merges them. Errors as RunSlices. REQUIRES: workers >= 1.
-absl::StatusOr<ScheduleOutcome> RunEmbedded(const Query& query,
-                                            const SearchOptions& options,
+absl::StatusOr<ScheduleOutcome> RunEmbedded(const Query& query, const SearchOptions& options,
                                             uint32_t slice_count, int workers,
                                             const ScheduleOptions& schedule = {});
 
 // RunEmbedded's merged result alone.
-absl::StatusOr<OptimizeResult> OptimizeEmbedded(const Query& query,
-                                                const SearchOptions& options,
-                                                uint32_t slice_count,
-                                                int workers);
+absl::StatusOr<OptimizeResult> OptimizeEmbedded(const Query& query, const SearchOptions& options,
+                                                uint32_t slice_count, int workers);
 
 }  // namespace sliceplan
 

@@ -8,10 +8,10 @@
 
 #include "absl/base/thread_annotations.h"
 #include "absl/strings/str_cat.h"
-#include "absl/synchronization/mutex.h"
-#include "absl/time/time.h"
 #include "absl/strings/str_format.h"
 #include "absl/strings/str_join.h"
+#include "absl/synchronization/mutex.h"
+#include "absl/time/time.h"
 #include "core/search_estimate.h"
 #include "core/status_macros.h"
 
@@ -67,11 +67,18 @@ class Run {
  public:
   Run(const Query& query, const SearchOptions& options, uint32_t slice_count,
       std::span<SliceWorker* const> workers, const ScheduleOptions& schedule)
-      : query_(query), options_(options), count_(slice_count),
-        workers_(workers.begin(), workers.end()), schedule_(schedule),
-        busy_(workers_.size(), 0), failed_(workers_.size()),
-        solved_by_(workers_.size(), 0), attempts_of_(slice_count, 0),
-        running_of_(slice_count, 0), faults_of_(slice_count), answers_(slice_count),
+      : query_(query),
+        options_(options),
+        count_(slice_count),
+        workers_(workers.begin(), workers.end()),
+        schedule_(schedule),
+        busy_(workers_.size(), 0),
+        failed_(workers_.size()),
+        solved_by_(workers_.size(), 0),
+        attempts_of_(slice_count, 0),
+        running_of_(slice_count, 0),
+        faults_of_(slice_count),
+        answers_(slice_count),
         answer_worker_(slice_count, 0) {
     for (uint32_t i = 0; i < slice_count; ++i) pending_.push_back(i);
   }
@@ -95,8 +102,8 @@ class Run {
       if (!error_.ok() || done_ == count_) break;
       Wait();
       if (schedule_.cancelled && error_.ok() && schedule_.cancelled()) {
-        error_ = absl::CancelledError(absl::StrCat("the request was cancelled with ", done_,
-                                                   " of ", count_, " slices solved"));
+        error_ = absl::CancelledError(absl::StrCat("the request was cancelled with ", done_, " of ",
+                                                   count_, " slices solved"));
       }
     }
     CancelAll();
@@ -196,9 +203,8 @@ class Run {
   void StartCalls(const std::vector<Attempt*>& picked) ABSL_LOCKS_EXCLUDED(mu_) {
     for (Attempt* a : picked) {
       SliceTask task{&query_, options_, {a->slice, count_}, schedule_.deadline};
-      auto call = workers_[a->worker]->Start(task, [this, a](absl::StatusOr<SliceResult> r) {
-        Finish(a, std::move(r));
-      });
+      auto call = workers_[a->worker]->Start(
+          task, [this, a](absl::StatusOr<SliceResult> r) { Finish(a, std::move(r)); });
       absl::MutexLock lock(&mu_);
       a->call = std::move(call);
       if (cancelled_ && !a->finished) a->call->Cancel();
@@ -241,8 +247,7 @@ class Run {
     if (running_of_[a->slice] > 0) return std::nullopt;  // its twin still runs
     if (attempts_of_[a->slice] >= schedule_.max_attempts_per_slice) {
       error_ = absl::Status(r.status().code(),
-                            absl::StrCat("slice ", a->slice, " failed ",
-                                         attempts_of_[a->slice],
+                            absl::StrCat("slice ", a->slice, " failed ", attempts_of_[a->slice],
                                          " times; last: ", r.status().message()));
       return std::nullopt;
     }
@@ -290,10 +295,10 @@ class Run {
   }
 
   absl::Status PoisonSlice(uint32_t slice) const ABSL_EXCLUSIVE_LOCKS_REQUIRED(mu_) {
-    return absl::InternalError(absl::StrCat(
-        "slice ", slice, " of ", count_, " failed on ", faults_of_[slice].size(),
-        " workers (", absl::StrJoin(faults_of_[slice], "; "),
-        "); it is not sent to another worker, since it may be what brings them down"));
+    return absl::InternalError(
+        absl::StrCat("slice ", slice, " of ", count_, " failed on ", faults_of_[slice].size(),
+                     " workers (", absl::StrJoin(faults_of_[slice], "; "),
+                     "); it is not sent to another worker, since it may be what brings them down"));
   }
 
   absl::Status NoWorkerLeft() const ABSL_EXCLUSIVE_LOCKS_REQUIRED(mu_) {
@@ -303,14 +308,11 @@ class Run {
                                  failed_[w].ok() ? "unhealthy" : failed_[w].message()));
     }
     return absl::UnavailableError(absl::StrCat(
-        "no worker available with ", count_ - done_, " of ", count_,
-        " slices unsolved (", why.empty() ? "no workers configured" : absl::StrJoin(why, "; "),
-        ")"));
+        "no worker available with ", count_ - done_, " of ", count_, " slices unsolved (",
+        why.empty() ? "no workers configured" : absl::StrJoin(why, "; "), ")"));
   }
 
-  double Elapsed() const {
-    return std::chrono::duration<double>(Clock::now() - start_).count();
-  }
+  double Elapsed() const { return std::chrono::duration<double>(Clock::now() - start_).count(); }
 
   absl::StatusOr<ScheduleOutcome> Outcome() ABSL_EXCLUSIVE_LOCKS_REQUIRED(mu_) {
     if (!error_.ok()) return error_;
@@ -324,14 +326,13 @@ class Run {
     const double coverage = static_cast<double>(done_) / count_;
     if (deadline_passed_ && done_ < count_) {
       if (!schedule_.partial_on_deadline || !best_cost_) {
-        return absl::DeadlineExceededError(absl::StrCat(
-            "deadline passed with ", done_, " of ", count_, " slices solved"));
+        return absl::DeadlineExceededError(
+            absl::StrCat("deadline passed with ", done_, " of ", count_, " slices solved"));
       }
     }
     absl::StatusOr<OptimizeResult> merged =
         done_ == count_ ? MergeSlices(std::move(solved), count_, options_.cluster.objectives)
-                        : MergeSolvedSlices(std::move(solved), count_,
-                                            options_.cluster.objectives);
+                        : MergeSolvedSlices(std::move(solved), count_, options_.cluster.objectives);
     if (!merged.ok()) return merged.status();
     ApplyChoice(*merged, options_.cluster.choice);
     ScheduleOutcome out;
@@ -378,8 +379,8 @@ class Run {
 
 }  // namespace
 
-absl::Status CheckCanFinish(const Query& query, const SearchOptions& options,
-                            uint32_t slice_count, std::span<SliceWorker* const> workers,
+absl::Status CheckCanFinish(const Query& query, const SearchOptions& options, uint32_t slice_count,
+                            std::span<SliceWorker* const> workers,
                             const ScheduleOptions& schedule) {
   if (!schedule.deadline || schedule.partial_on_deadline || !options.cross_products) {
     return absl::OkStatus();
@@ -395,8 +396,7 @@ absl::Status CheckCanFinish(const Query& query, const SearchOptions& options,
   const double rounds = std::ceil(static_cast<double>(slice_count) / slots);
   const double splits = DenseSplits(query.size(), options.shape, k, true);
   const double at_least = rounds * splits * per_split;
-  const double allowed =
-      std::chrono::duration<double>(*schedule.deadline - Clock::now()).count();
+  const double allowed = std::chrono::duration<double>(*schedule.deadline - Clock::now()).count();
   if (at_least <= allowed) return absl::OkStatus();
   return absl::DeadlineExceededError(absl::StrFormat(
       "refused up front: %u slices of %.3g splits each on %d worker slots need at least "
@@ -405,8 +405,7 @@ absl::Status CheckCanFinish(const Query& query, const SearchOptions& options,
       slice_count, splits, slots, at_least, std::max(0.0, allowed)));
 }
 
-absl::StatusOr<ScheduleOutcome> RunSlices(const Query& query,
-                                          const SearchOptions& options,
+absl::StatusOr<ScheduleOutcome> RunSlices(const Query& query, const SearchOptions& options,
                                           uint32_t slice_count,
                                           std::span<SliceWorker* const> workers,
                                           const ScheduleOptions& schedule) {

@@ -65,23 +65,22 @@ inline constexpr std::chrono::milliseconds kCancelPoll{20};
 
 struct ScheduleOutcome {
   OptimizeResult result;
-  bool proven_optimal = true;  // every slice solved
-  double coverage = 1;         // fraction of slices solved
-  uint32_t retries = 0;        // re-dispatches after a failed call
-  uint32_t hedges = 0;         // second copies started
-  uint32_t workers_used = 0;   // workers that solved at least one slice
+  bool proven_optimal = true;              // every slice solved
+  double coverage = 1;                     // fraction of slices solved
+  uint32_t retries = 0;                    // re-dispatches after a failed call
+  uint32_t hedges = 0;                     // second copies started
+  uint32_t workers_used = 0;               // workers that solved at least one slice
   std::vector<std::string> slice_workers;  // by result.slices position
 };
 
 // Solves slices 0..slice_count-1 of `query` on `workers` and merges them.
 // Errors: ValidateSlice's; DEADLINE_EXCEEDED up front, with the numbers,
 // when the cross-product search could not finish by the deadline even at
-// kFastestSplitSeconds per split (unless partial_on_deadline); UNAVAILABLE naming each worker's last error when
-// no usable worker is left; DEADLINE_EXCEEDED with the coverage when the
-// deadline passes (unless partial_on_deadline and some slice has a plan);
-// a slice's own error when re-running cannot change it.
-absl::StatusOr<ScheduleOutcome> RunSlices(const Query& query,
-                                          const SearchOptions& options,
+// kFastestSplitSeconds per split (unless partial_on_deadline); UNAVAILABLE naming each worker's
+// last error when no usable worker is left; DEADLINE_EXCEEDED with the coverage when the deadline
+// passes (unless partial_on_deadline and some slice has a plan); a slice's own error when
+// re-running cannot change it.
+absl::StatusOr<ScheduleOutcome> RunSlices(const Query& query, const SearchOptions& options,
                                           uint32_t slice_count,
                                           std::span<SliceWorker* const> workers,
                                           const ScheduleOptions& schedule);

@@ -46,8 +46,7 @@ class SliceWorker {
   virtual bool Healthy() const { return true; }
   // Starts solving `task`; `done` runs exactly once, on any thread. The
   // returned call must not be destroyed from inside `done`.
-  virtual std::unique_ptr<SliceCall> Start(const SliceTask& task,
-                                           SliceDone done) = 0;
+  virtual std::unique_ptr<SliceCall> Start(const SliceTask& task, SliceDone done) = 0;
 };
 
 }  // namespace sliceplan

@@ -12,9 +12,9 @@ namespace {
 
 struct Frame {
   bool array = false;
-  int index = 0;            // arrays: the element being read
-  std::string key;          // objects: the member being read
-  bool want_key = true;     // objects: a string now is a key
+  int index = 0;         // arrays: the element being read
+  std::string key;       // objects: the member being read
+  bool want_key = true;  // objects: a string now is a key
   absl::flat_hash_set<std::string> keys;
 };
 

@@ -7,19 +7,19 @@
 
 #include "absl/container/flat_hash_map.h"
 #include "absl/strings/str_cat.h"
-#include "wire/json_shape.h"
 #include "core/status_macros.h"
 #include "core/user_text.h"
 #include "google/protobuf/util/json_util.h"
+#include "wire/json_shape.h"
 
 namespace sliceplan {
 namespace {
 
 absl::StatusOr<Relation> RelationFromProto(const v1::Relation& m, int i) {
   if (!m.has_rows()) {
-    return absl::InvalidArgumentError(absl::StrCat(
-        "relations[", i, "] (", ShortName(m.name()), ").rows: missing; every relation "
-        "needs an estimated row count"));
+    return absl::InvalidArgumentError(absl::StrCat("relations[", i, "] (", ShortName(m.name()),
+                                                   ").rows: missing; every relation "
+                                                   "needs an estimated row count"));
   }
   Relation rel{m.name(), m.rows().value(), kDefaultRowBytes};
   if (m.has_row_bytes()) rel.row_bytes = m.row_bytes().value();
@@ -27,27 +27,24 @@ absl::StatusOr<Relation> RelationFromProto(const v1::Relation& m, int i) {
 }
 
 absl::StatusOr<Predicate> PredicateFromProto(
-    const v1::Predicate& m, int j,
-    const absl::flat_hash_map<std::string, RelationId>& ids) {
+    const v1::Predicate& m, int j, const absl::flat_hash_map<std::string, RelationId>& ids) {
   Predicate p;
   for (int k = 0; k < m.relations_size(); ++k) {
     const std::string& name = m.relations(k);
     const auto it = ids.find(name);
     if (it == ids.end()) {
-      return absl::InvalidArgumentError(
-          absl::StrCat("predicates[", j, "].relations[", k,
-                       "]: unknown relation \"", ShortName(name), "\""));
+      return absl::InvalidArgumentError(absl::StrCat(
+          "predicates[", j, "].relations[", k, "]: unknown relation \"", ShortName(name), "\""));
     }
     if (Contains(p.relations, it->second)) {
-      return absl::InvalidArgumentError(
-          absl::StrCat("predicates[", j, "].relations[", k,
-                       "]: relation \"", ShortName(name), "\" is named twice"));
+      return absl::InvalidArgumentError(absl::StrCat("predicates[", j, "].relations[", k,
+                                                     "]: relation \"", ShortName(name),
+                                                     "\" is named twice"));
     }
     p.relations |= Singleton(it->second);
   }
   if (!m.has_selectivity()) {
-    return absl::InvalidArgumentError(
-        absl::StrCat("predicates[", j, "].selectivity: missing"));
+    return absl::InvalidArgumentError(absl::StrCat("predicates[", j, "].selectivity: missing"));
   }
   p.selectivity = m.selectivity().value();
   return p;
@@ -55,19 +52,19 @@ absl::StatusOr<Predicate> PredicateFromProto(
 
 absl::Status CheckSizes(const v1::Query& message, const InputLimits& limits) {
   if (message.relations_size() > limits.max_relations) {
-    return absl::ResourceExhaustedError(absl::StrCat(
-        "relations: ", message.relations_size(), " relations given; the limit is ",
-        limits.max_relations));
+    return absl::ResourceExhaustedError(absl::StrCat("relations: ", message.relations_size(),
+                                                     " relations given; the limit is ",
+                                                     limits.max_relations));
   }
   if (message.predicates_size() > limits.max_predicates) {
-    return absl::ResourceExhaustedError(absl::StrCat(
-        "predicates: ", message.predicates_size(), " predicates given; the limit is ",
-        limits.max_predicates));
+    return absl::ResourceExhaustedError(absl::StrCat("predicates: ", message.predicates_size(),
+                                                     " predicates given; the limit is ",
+                                                     limits.max_predicates));
   }
   if (message.relations_size() > kMaxRelations) {
-    return absl::InvalidArgumentError(absl::StrCat(
-        "relations: ", message.relations_size(),
-        " relations given; the exact search takes at most ", kMaxRelations));
+    return absl::InvalidArgumentError(
+        absl::StrCat("relations: ", message.relations_size(),
+                     " relations given; the exact search takes at most ", kMaxRelations));
   }
   return absl::OkStatus();
 }
@@ -84,15 +81,15 @@ absl::Status CheckNames(const v1::Query& message) {
                                                      " bytes; a name has at most ", kMaxNameBytes));
     }
     if (!IsValidRelationName(name)) {
-      return absl::InvalidArgumentError(absl::StrCat(
-          "relations[", i, "].name: \"", ShortName(name),
-          "\" is not a name of the form [A-Za-z_][A-Za-z0-9_]*"));
+      return absl::InvalidArgumentError(
+          absl::StrCat("relations[", i, "].name: \"", ShortName(name),
+                       "\" is not a name of the form [A-Za-z_][A-Za-z0-9_]*"));
     }
     const auto [it, inserted] = seen.emplace(name, i);
     if (!inserted) {
-      return absl::InvalidArgumentError(absl::StrCat(
-          "relations[", i, "].name: duplicate relation name \"", ShortName(name),
-          "\" (also relations[", it->second, "])"));
+      return absl::InvalidArgumentError(
+          absl::StrCat("relations[", i, "].name: duplicate relation name \"", ShortName(name),
+                       "\" (also relations[", it->second, "])"));
     }
   }
   return absl::OkStatus();
@@ -112,8 +109,7 @@ absl::StatusOr<Query> QueryFromProto(const v1::Query& message, const InputLimits
   }
   std::vector<Predicate> predicates;
   for (int j = 0; j < message.predicates_size(); ++j) {
-    ASSIGN_OR_RETURN(Predicate p,
-                     PredicateFromProto(message.predicates(j), j, ids));
+    ASSIGN_OR_RETURN(Predicate p, PredicateFromProto(message.predicates(j), j, ids));
     predicates.push_back(p);
   }
   // Query::Create reports duplicate names before a predicate could have
@@ -131,9 +127,7 @@ v1::Query QueryToProto(const Query& query) {
   }
   for (const Predicate& p : query.predicates()) {
     v1::Predicate* out = m.add_predicates();
-    ForEachMember(p.relations, [&](RelationId r) {
-      out->add_relations(query.relation(r).name);
-    });
+    ForEachMember(p.relations, [&](RelationId r) { out->add_relations(query.relation(r).name); });
     out->mutable_selectivity()->set_value(p.selectivity);
   }
   return m;
@@ -141,8 +135,8 @@ v1::Query QueryToProto(const Query& query) {
 
 absl::StatusOr<Query> ParseQueryJson(std::string_view json, const InputLimits& limits) {
   if (static_cast<int64_t>(json.size()) > limits.max_query_bytes) {
-    return absl::ResourceExhaustedError(absl::StrCat(
-        "query JSON: ", json.size(), " bytes; the limit is ", limits.max_query_bytes));
+    return absl::ResourceExhaustedError(
+        absl::StrCat("query JSON: ", json.size(), " bytes; the limit is ", limits.max_query_bytes));
   }
   if (!IsValidUtf8(json)) {
     return absl::InvalidArgumentError("query JSON: not valid UTF-8");
@@ -152,11 +146,9 @@ absl::StatusOr<Query> ParseQueryJson(std::string_view json, const InputLimits& l
   google::protobuf::util::JsonParseOptions options;
   options.ignore_unknown_fields = false;
   const auto status = google::protobuf::util::JsonStringToMessage(
-      google::protobuf::StringPiece(json.data(), json.size()), &message,
-      options);
+      google::protobuf::StringPiece(json.data(), json.size()), &message, options);
   if (!status.ok()) {
-    return absl::InvalidArgumentError(
-        absl::StrCat("query JSON: ", status.message().as_string()));
+    return absl::InvalidArgumentError(absl::StrCat("query JSON: ", status.message().as_string()));
   }
   return QueryFromProto(message, limits);
 }
@@ -166,22 +158,20 @@ absl::StatusOr<Query> ReadQueryFile(const std::string& path, const InputLimits& 
   if (!in) {
     const int err = errno;
     const std::string why = absl::StrCat(path, ": ", std::strerror(err));
-    return err == EACCES ? absl::PermissionDeniedError(why)
-                         : absl::NotFoundError(why);
+    return err == EACCES ? absl::PermissionDeniedError(why) : absl::NotFoundError(why);
   }
   // Sized before it is read: a file past the limit is never loaded.
   const std::streamoff size = in.tellg();
   if (size > limits.max_query_bytes) {
-    return absl::ResourceExhaustedError(absl::StrCat(
-        path, ": ", size, " bytes; the query size limit is ", limits.max_query_bytes));
+    return absl::ResourceExhaustedError(
+        absl::StrCat(path, ": ", size, " bytes; the query size limit is ", limits.max_query_bytes));
   }
   in.seekg(0);
   std::ostringstream text;
   text << in.rdbuf();
   auto query = ParseQueryJson(text.str(), limits);
   if (!query.ok()) {
-    return absl::Status(query.status().code(),
-                        absl::StrCat(path, ": ", query.status().message()));
+    return absl::Status(query.status().code(), absl::StrCat(path, ": ", query.status().message()));
   }
   return query;
 }

@@ -24,8 +24,7 @@ namespace sliceplan {
 // name (reported before any predicate is read), a missing rows or
 // selectivity, a predicate naming an unknown or a repeated relation, and
 // everything Query::Create checks. Names quoted in messages are cut short.
-absl::StatusOr<Query> QueryFromProto(const v1::Query& message,
-                                     const InputLimits& limits = {});
+absl::StatusOr<Query> QueryFromProto(const v1::Query& message, const InputLimits& limits = {});
 
 v1::Query QueryToProto(const Query& query);
 

@@ -16,9 +16,12 @@ namespace {
 
 absl::StatusOr<Metric> MetricFromProto(v1::Metric m, const std::string& at) {
   switch (m) {
-    case v1::METRIC_LATENCY_S: return Metric::kLatency;
-    case v1::METRIC_NODE_SECONDS: return Metric::kNodeSeconds;
-    case v1::METRIC_COMPLETENESS: return Metric::kCompleteness;
+    case v1::METRIC_LATENCY_S:
+      return Metric::kLatency;
+    case v1::METRIC_NODE_SECONDS:
+      return Metric::kNodeSeconds;
+    case v1::METRIC_COMPLETENESS:
+      return Metric::kCompleteness;
     default:
       return absl::InvalidArgumentError(absl::StrCat(at, ": not a metric (", m, ")"));
   }
@@ -26,24 +29,29 @@ absl::StatusOr<Metric> MetricFromProto(v1::Metric m, const std::string& at) {
 
 v1::Metric MetricToProto(Metric m) {
   switch (m) {
-    case Metric::kLatency: return v1::METRIC_LATENCY_S;
-    case Metric::kNodeSeconds: return v1::METRIC_NODE_SECONDS;
-    case Metric::kCompleteness: return v1::METRIC_COMPLETENESS;
+    case Metric::kLatency:
+      return v1::METRIC_LATENCY_S;
+    case Metric::kNodeSeconds:
+      return v1::METRIC_NODE_SECONDS;
+    case Metric::kCompleteness:
+      return v1::METRIC_COMPLETENESS;
   }
   return v1::METRIC_UNSPECIFIED;
 }
 
 uint8_t ObjectiveBit(Metric m) {
   switch (m) {
-    case Metric::kLatency: return Objectives::kLatency;
-    case Metric::kNodeSeconds: return Objectives::kNodeSeconds;
-    case Metric::kCompleteness: return Objectives::kCompleteness;
+    case Metric::kLatency:
+      return Objectives::kLatency;
+    case Metric::kNodeSeconds:
+      return Objectives::kNodeSeconds;
+    case Metric::kCompleteness:
+      return Objectives::kCompleteness;
   }
   return 0;
 }
 
-absl::StatusOr<Objectives> ObjectivesFromProto(
-    const google::protobuf::RepeatedField<int>& list) {
+absl::StatusOr<Objectives> ObjectivesFromProto(const google::protobuf::RepeatedField<int>& list) {
   Objectives out{0};
   for (int i = 0; i < list.size(); ++i) {
     const std::string at = absl::StrCat("options.objectives[", i, "]");
@@ -90,9 +98,12 @@ v1::Operator OperatorOf(const PlanNode& node, CostModelKind model) {
   if (node.is_leaf()) return v1::OPERATOR_SCAN;
   if (model != CostModelKind::kCluster) return v1::OPERATOR_JOIN;
   switch (node.strategy) {
-    case JoinStrategy::kShuffle: return v1::OPERATOR_SHUFFLE;
-    case JoinStrategy::kBroadcastRight: return v1::OPERATOR_BROADCAST_RIGHT;
-    case JoinStrategy::kBroadcastLeft: return v1::OPERATOR_BROADCAST_LEFT;
+    case JoinStrategy::kShuffle:
+      return v1::OPERATOR_SHUFFLE;
+    case JoinStrategy::kBroadcastRight:
+      return v1::OPERATOR_BROADCAST_RIGHT;
+    case JoinStrategy::kBroadcastLeft:
+      return v1::OPERATOR_BROADCAST_LEFT;
   }
   return v1::OPERATOR_UNSPECIFIED;
 }
@@ -120,16 +131,24 @@ absl::StatusOr<SearchOptions> SearchOptionsFromProto(const v1::SearchOptions& m)
   SearchOptions out;
   switch (m.shape()) {
     case v1::PLAN_SHAPE_UNSPECIFIED:
-    case v1::PLAN_SHAPE_BUSHY: out.shape = PlanShape::kBushy; break;
-    case v1::PLAN_SHAPE_LEFT_DEEP: out.shape = PlanShape::kLeftDeep; break;
+    case v1::PLAN_SHAPE_BUSHY:
+      out.shape = PlanShape::kBushy;
+      break;
+    case v1::PLAN_SHAPE_LEFT_DEEP:
+      out.shape = PlanShape::kLeftDeep;
+      break;
     default:
       return absl::InvalidArgumentError(
           absl::StrCat("options.shape: unknown plan shape ", m.shape()));
   }
   switch (m.cost()) {
     case v1::COST_MODEL_UNSPECIFIED:
-    case v1::COST_MODEL_COUT: out.cost = CostModelKind::kCout; break;
-    case v1::COST_MODEL_CLUSTER: out.cost = CostModelKind::kCluster; break;
+    case v1::COST_MODEL_COUT:
+      out.cost = CostModelKind::kCout;
+      break;
+    case v1::COST_MODEL_CLUSTER:
+      out.cost = CostModelKind::kCluster;
+      break;
     default:
       return absl::InvalidArgumentError(
           absl::StrCat("options.cost: unknown cost model ", m.cost()));
@@ -140,9 +159,9 @@ absl::StatusOr<SearchOptions> SearchOptionsFromProto(const v1::SearchOptions& m)
   for (int i = 0; i < m.cluster().node_counts_size(); ++i) {
     const uint32_t n = m.cluster().node_counts(i);
     if (n > static_cast<uint32_t>(kMaxNodeCount)) {  // before narrowing to int
-      return absl::InvalidArgumentError(absl::StrCat(
-          "options.cluster.node_counts[", i, "]: must be a whole number in 1..", kMaxNodeCount,
-          ", got ", n));
+      return absl::InvalidArgumentError(absl::StrCat("options.cluster.node_counts[", i,
+                                                     "]: must be a whole number in 1..",
+                                                     kMaxNodeCount, ", got ", n));
     }
     if (i == 0) p.node_counts.clear();
     p.node_counts.push_back(static_cast<int>(n));
@@ -181,8 +200,7 @@ absl::StatusOr<SearchOptions> SearchOptionsFromProto(const v1::SearchOptions& m)
 
 v1::SearchOptions SearchOptionsToProto(const SearchOptions& options) {
   v1::SearchOptions m;
-  m.set_shape(options.shape == PlanShape::kBushy ? v1::PLAN_SHAPE_BUSHY
-                                                  : v1::PLAN_SHAPE_LEFT_DEEP);
+  m.set_shape(options.shape == PlanShape::kBushy ? v1::PLAN_SHAPE_BUSHY : v1::PLAN_SHAPE_LEFT_DEEP);
   m.set_cost(v1::COST_MODEL_COUT);
   m.mutable_cross_products()->set_value(options.cross_products);
   m.set_memo_limit_bytes(options.memo_limit_bytes);
@@ -240,8 +258,7 @@ v1::Plan PlanToProto(const Plan& plan, CostModelKind model) {
   return m;
 }
 
-absl::StatusOr<Plan> PlanFromProto(const v1::Plan& m, const Query& query,
-                                   CostModelKind model) {
+absl::StatusOr<Plan> PlanFromProto(const v1::Plan& m, const Query& query, CostModelKind model) {
   Plan plan;
   RelSet leaves = 0;
   for (int i = 0; i < m.nodes_size(); ++i) {
@@ -250,14 +267,14 @@ absl::StatusOr<Plan> PlanFromProto(const v1::Plan& m, const Query& query,
     PlanNode node;
     if (in.kind_case() == v1::PlanNode::kRelation) {
       if (in.relation() >= static_cast<uint32_t>(query.size())) {
-        return absl::InvalidArgumentError(absl::StrCat(
-            at, ".relation: unknown relation id ", in.relation(), " (the query has ",
-            query.size(), ")"));
+        return absl::InvalidArgumentError(absl::StrCat(at, ".relation: unknown relation id ",
+                                                       in.relation(), " (the query has ",
+                                                       query.size(), ")"));
       }
       node.relations = Singleton(RelationId{static_cast<uint8_t>(in.relation())});
       if (leaves & node.relations) {
-        return absl::InvalidArgumentError(absl::StrCat(
-            at, ".relation: relation ", in.relation(), " appears twice"));
+        return absl::InvalidArgumentError(
+            absl::StrCat(at, ".relation: relation ", in.relation(), " appears twice"));
       }
       leaves |= node.relations;
     } else if (in.kind_case() == v1::PlanNode::kJoin) {
@@ -297,8 +314,8 @@ absl::StatusOr<Plan> PlanFromProto(const v1::Plan& m, const Query& query,
     // NaN or a negative cost must not decide the merge.
     for (const double v : {node.cost, node.cardinality, node.metrics.node_seconds}) {
       if (!(v >= 0 && v <= kValueCeiling)) {
-        return absl::InvalidArgumentError(absl::StrCat(
-            at, ": a cost or cardinality is not a number in [0, 1e300], got ", v));
+        return absl::InvalidArgumentError(
+            absl::StrCat(at, ": a cost or cardinality is not a number in [0, 1e300], got ", v));
       }
     }
     if (!(node.metrics.completeness > 0 && node.metrics.completeness <= 1)) {
@@ -339,8 +356,7 @@ v1::SolveSliceResponse SliceResultToProto(const SliceResult& r, CostModelKind mo
 }
 
 absl::StatusOr<SliceResult> SliceResultFromProto(const v1::SolveSliceResponse& m,
-                                                 const Query& query,
-                                                 CostModelKind model,
+                                                 const Query& query, CostModelKind model,
                                                  SliceSpec slice) {
   SliceResult r{slice, std::nullopt, SliceStatsFromProto(m.stats()), {}, 0};
   if (m.has_plan()) {
@@ -377,8 +393,7 @@ v1::OptimizeResponse OutcomeToProto(const ScheduleOutcome& outcome, CostModelKin
   return m;
 }
 
-absl::StatusOr<ScheduleOutcome> OutcomeFromProto(const v1::OptimizeResponse& m,
-                                                 const Query& query,
+absl::StatusOr<ScheduleOutcome> OutcomeFromProto(const v1::OptimizeResponse& m, const Query& query,
                                                  CostModelKind model) {
   ScheduleOutcome out;
   ASSIGN_OR_RETURN(out.result.plan, PlanFromProto(m.plan(), query, model));

@@ -8,8 +8,8 @@
 #include "absl/status/statusor.h"
 #include "core/merge.h"
 #include "core/query.h"
-#include "schedule/slice_scheduler.h"
 #include "core/slice_solver.h"
+#include "schedule/slice_scheduler.h"
 #include "sliceplan.pb.h"
 
 namespace sliceplan {
@@ -26,22 +26,19 @@ v1::Plan PlanToProto(const Plan& plan, CostModelKind model);
 // Rebuilds a plan and checks it is a tree over the query: every relation
 // id known ("plan.nodes[i].relation: unknown relation id 7"), children
 // before parents, each relation once, the root covering the query.
-absl::StatusOr<Plan> PlanFromProto(const v1::Plan& m, const Query& query,
-                                   CostModelKind model);
+absl::StatusOr<Plan> PlanFromProto(const v1::Plan& m, const Query& query, CostModelKind model);
 
 v1::SliceStats SliceStatsToProto(const SliceResult& r);
 SearchStats SliceStatsFromProto(const v1::SliceStats& m);
 
 v1::SolveSliceResponse SliceResultToProto(const SliceResult& r, CostModelKind model);
 absl::StatusOr<SliceResult> SliceResultFromProto(const v1::SolveSliceResponse& m,
-                                                 const Query& query,
-                                                 CostModelKind model,
+                                                 const Query& query, CostModelKind model,
                                                  SliceSpec slice);
 
 // The coordinator's answer. `slice_workers` may be empty.
 v1::OptimizeResponse OutcomeToProto(const ScheduleOutcome& outcome, CostModelKind model);
-absl::StatusOr<ScheduleOutcome> OutcomeFromProto(const v1::OptimizeResponse& m,
-                                                 const Query& query,
+absl::StatusOr<ScheduleOutcome> OutcomeFromProto(const v1::OptimizeResponse& m, const Query& query,
                                                  CostModelKind model);
 
 }  // namespace sliceplan

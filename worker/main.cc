@@ -74,7 +74,8 @@ int main(int argc, char** argv) {
     return Refuse("--max_deadline_seconds: must be in (0, 1e7]");
   }
   const double grace = absl::GetFlag(FLAGS_shutdown_grace_seconds);
-  if (!(grace >= 0 && grace <= 3600)) return Refuse("--shutdown_grace_seconds: must be in [0, 3600]");
+  if (!(grace >= 0 && grace <= 3600))
+    return Refuse("--shutdown_grace_seconds: must be in [0, 3600]");
   config.test_hang_seconds = absl::GetFlag(FLAGS_test_only_hang_seconds);
   config.test_crash_slice = absl::GetFlag(FLAGS_test_only_crash_on_slice);
   sliceplan::WorkerService service(config);

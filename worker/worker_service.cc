@@ -6,12 +6,12 @@
 #include <thread>
 
 #include "absl/strings/str_cat.h"
+#include "core/slice_solver.h"
+#include "core/status_macros.h"
 #include "rpc/call_deadline.h"
 #include "rpc/rpc_status.h"
 #include "wire/query_proto.h"
 #include "wire/service_proto.h"
-#include "core/slice_solver.h"
-#include "core/status_macros.h"
 
 namespace sliceplan {
 namespace {
@@ -44,9 +44,8 @@ absl::StatusOr<Parsed> Parse(const v1::SolveSliceRequest& request, const WorkerC
 
 bool WorkerService::Acquire(grpc::ServerContext* context) {
   absl::MutexLock lock(&mu_);
-  const auto free = [this]() ABSL_EXCLUSIVE_LOCKS_REQUIRED(mu_) {
-    return running_ < config_.threads;
-  };
+  const auto free = [this]()
+                        ABSL_EXCLUSIVE_LOCKS_REQUIRED(mu_) { return running_ < config_.threads; };
   // Polls the call's cancel while it waits (gRPC has no wake-up for it).
   while (!mu_.AwaitWithTimeout(absl::Condition(&free), absl::Milliseconds(10))) {
     if (context->IsCancelled()) return false;
@@ -67,8 +66,9 @@ grpc::Status WorkerService::SolveSlice(grpc::ServerContext* context,
   if (!parsed.ok()) return ToGrpc(parsed.status());
   if (parsed->slice.index == config_.test_crash_slice) std::abort();
   if (!Acquire(context)) return grpc::Status(grpc::StatusCode::CANCELLED, "call ended");
-  const auto hang_until = Clock::now() + std::chrono::duration_cast<Clock::duration>(
-                                             std::chrono::duration<double>(config_.test_hang_seconds));
+  const auto hang_until =
+      Clock::now() + std::chrono::duration_cast<Clock::duration>(
+                         std::chrono::duration<double>(config_.test_hang_seconds));
   while (Clock::now() < hang_until && !context->IsCancelled()) {
     std::this_thread::sleep_for(std::chrono::milliseconds(5));
   }
@@ -85,8 +85,7 @@ grpc::Status WorkerService::SolveSlice(grpc::ServerContext* context,
   return grpc::Status::OK;
 }
 
-grpc::Status WorkerService::DescribeWorker(grpc::ServerContext*,
-                                           const v1::DescribeWorkerRequest*,
+grpc::Status WorkerService::DescribeWorker(grpc::ServerContext*, const v1::DescribeWorkerRequest*,
                                            v1::DescribeWorkerResponse* response) {
   response->set_threads(static_cast<uint32_t>(config_.threads));
   response->set_memo_limit_bytes(config_.memo_limit_bytes);

@@ -31,8 +31,7 @@ class WorkerService final : public v1::SliceWorker::Service {
  public:
   explicit WorkerService(const WorkerConfig& config) : config_(config) {}
 
-  grpc::Status SolveSlice(grpc::ServerContext* context,
-                          const v1::SolveSliceRequest* request,
+  grpc::Status SolveSlice(grpc::ServerContext* context, const v1::SolveSliceRequest* request,
                           v1::SolveSliceResponse* response) override;
   grpc::Status DescribeWorker(grpc::ServerContext* context,
                               const v1::DescribeWorkerRequest* request,

@@ -21,8 +21,8 @@ Query YardQuery() {
 TEST(CardinalityTest, ProductOfRowsAndTheSelectivitiesInside) {
   const Cardinality card(YardQuery());
   EXPECT_EQ(card.Of(kBerths), 120);
-  EXPECT_EQ(card.Of(kBerths | kCranes), 120.0 * 40 * 0.05);           // 240
-  EXPECT_EQ(card.Of(kBerths | kShifts), 120.0 * 300);                 // no predicate inside
+  EXPECT_EQ(card.Of(kBerths | kCranes), 120.0 * 40 * 0.05);  // 240
+  EXPECT_EQ(card.Of(kBerths | kShifts), 120.0 * 300);        // no predicate inside
   EXPECT_EQ(card.Of(kBerths | kCranes | kShifts), 120.0 * 40 * 300 * 0.05 * 0.01);  // 720
 }
 

@@ -3,20 +3,22 @@
 // completeness-level rule, slicing, and a TPC-H join graph.
 #include <cmath>
 
-#include "schedule/embedded_pool.h"
-#include "wire/query_proto.h"
 #include "core/slice_solver.h"
 #include "gtest/gtest.h"
+#include "schedule/embedded_pool.h"
 #include "tests/support/cluster_reference.h"
 #include "tests/support/reference_search.h"
 #include "tests/support/test_queries.h"
+#include "wire/query_proto.h"
 
 namespace sliceplan {
 namespace {
 
 using testing::RefCosts;
 
-bool Near(double a, double b) { return std::fabs(a - b) <= 1e-9 * std::max(std::fabs(a), std::fabs(b)); }
+bool Near(double a, double b) {
+  return std::fabs(a - b) <= 1e-9 * std::max(std::fabs(a), std::fabs(b));
+}
 bool Same(const RefCosts& r, const ClusterCosts& c) {
   return Near(r.latency, c.latency_s) && Near(r.node_seconds, c.node_seconds) &&
          Near(r.completeness, c.completeness);
@@ -60,8 +62,8 @@ TEST(ClusterModelTest, HandComputedTwoRelationStage) {
   EXPECT_DOUBLE_EQ(c.latency_s, 0.500165);
   EXPECT_DOUBLE_EQ(c.node_seconds, 2.00066);
   // The search picks the shuffle: lowest latency and node-seconds.
-  const Query q = testing::MakeQueryOrDie({{"berths", 1000, 100}, {"cranes", 2000, 50}},
-                                          {{0b11, 0.001}});
+  const Query q =
+      testing::MakeQueryOrDie({{"berths", 1000, 100}, {"cranes", 2000, 50}}, {{0b11, 0.001}});
   const auto f = Frontier(q, ClusterOptions({4}, {1.0}));
   ASSERT_EQ(f.size(), 1u);
   EXPECT_NEAR(f[0].root().metrics.latency_s, 0.500165, 1e-12);
@@ -77,9 +79,9 @@ TEST(ClusterModelTest, HandComputedTwoRelationStage) {
 //      = 0.5 + 1e-4 + 1e-4 + 7e-5 = 0.50027
 // latency = 0.500165 + 0.50027 = 1.000435; node_seconds = 4 * both.
 TEST(ClusterModelTest, HandComputedThreeRelationPlan) {
-  const Query q = testing::MakeQueryOrDie(
-      {{"berths", 1000, 100}, {"cranes", 2000, 50}, {"moves", 10000, 20}},
-      {{0b011, 0.001}, {0b110, 1e-4}});
+  const Query q =
+      testing::MakeQueryOrDie({{"berths", 1000, 100}, {"cranes", 2000, 50}, {"moves", 10000, 20}},
+                              {{0b011, 0.001}, {0b110, 1e-4}});
   const ClusterParams p{{4}, {1.0}};
   Plan plan;
   plan.nodes.resize(5);
@@ -118,8 +120,8 @@ TEST_P(ClusterFrontierTest, ExactFrontierEqualsExhaustiveEnumeration) {
       if (!Same(want[i], got[i].root().metrics)) {
         ADD_FAILURE() << "seed " << seed << " first difference at " << i << ": want "
                       << want[i].latency << "/" << want[i].node_seconds << "/"
-                      << want[i].completeness << " got " << got[i].root().metrics.latency_s
-                      << "/" << got[i].root().metrics.node_seconds << "/"
+                      << want[i].completeness << " got " << got[i].root().metrics.latency_s << "/"
+                      << got[i].root().metrics.node_seconds << "/"
                       << got[i].root().metrics.completeness;
         break;
       }
@@ -196,7 +198,8 @@ TEST(ClusterSearchTest, PruningAcrossCompletenessLevelsWouldLoseFrontierPlans) {
   int lossy = 0;
   for (uint64_t seed = 1; seed <= 8 && lossy == 0; ++seed) {
     const Query q = testing::MakeQuery(testing::GraphShape::kRandom, 5, seed);
-    const auto exact = testing::RefFrontier(testing::RefAllClusterPlans(q, o.cluster.params, false));
+    const auto exact =
+        testing::RefFrontier(testing::RefAllClusterPlans(q, o.cluster.params, false));
     const auto shortcut = testing::RefFrontierPruningAcrossLevels(q, o.cluster.params);
     if (shortcut.size() >= exact.size()) continue;
     ++lossy;
@@ -209,7 +212,8 @@ TEST(ClusterSearchTest, PruningAcrossCompletenessLevelsWouldLoseFrontierPlans) {
 
 TEST(ClusterSearchTest, MergedFrontierIsTheSameForEverySliceCount) {
   for (PlanShape shape : {PlanShape::kBushy, PlanShape::kLeftDeep}) {
-    const Query q = testing::MakeQuery(testing::GraphShape::kRandom, shape == PlanShape::kBushy ? 9 : 6, 4);
+    const Query q =
+        testing::MakeQuery(testing::GraphShape::kRandom, shape == PlanShape::kBushy ? 9 : 6, 4);
     const SearchOptions o = ClusterOptions({4, 16}, {1.0, 0.1}, 1.0, shape);
     const auto whole = Frontier(q, o, 1);
     ASSERT_FALSE(whole.empty());
@@ -260,8 +264,10 @@ TEST(ClusterSearchTest, BadParametersNameTheField) {
     return std::string(r.status().message());
   };
   EXPECT_NE(code_and_message(ClusterOptions({4}, {1.0}, 0.9)).find("alpha"), std::string::npos);
-  EXPECT_NE(code_and_message(ClusterOptions({4}, {1.5})).find("sample_rates[0]"), std::string::npos);
-  EXPECT_NE(code_and_message(ClusterOptions({4}, {0.0})).find("sample_rates[0]"), std::string::npos);
+  EXPECT_NE(code_and_message(ClusterOptions({4}, {1.5})).find("sample_rates[0]"),
+            std::string::npos);
+  EXPECT_NE(code_and_message(ClusterOptions({4}, {0.0})).find("sample_rates[0]"),
+            std::string::npos);
   EXPECT_NE(code_and_message(ClusterOptions({0}, {1.0})).find("node_counts[0]"), std::string::npos);
   EXPECT_NE(code_and_message(ClusterOptions({}, {1.0})).find("node_counts"), std::string::npos);
   EXPECT_FALSE(ParseObjectives("").ok());

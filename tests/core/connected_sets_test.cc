@@ -34,12 +34,14 @@ struct Expected {
 Expected Formula(GraphShape g, int n) {
   const uint64_t u = static_cast<uint64_t>(n);
   switch (g) {
-    case GraphShape::kChain: return {u * (u + 1) / 2, (u * u * u - u) / 6};
+    case GraphShape::kChain:
+      return {u * (u + 1) / 2, (u * u * u - u) / 6};
     case GraphShape::kCycle:
       return {u * u - u + 1, (u * u * u - 2 * u * u + u) / 2};
     case GraphShape::kStar:
       return {Pow(2, n - 1) + u - 1, (u - 1) * (n >= 2 ? Pow(2, n - 2) : 0)};
-    default: return {Pow(2, n) - 1, (Pow(3, n) - Pow(2, n + 1) + 1) / 2};
+    default:
+      return {Pow(2, n) - 1, (Pow(3, n) - Pow(2, n + 1) + 1) / 2};
   }
 }
 
@@ -54,8 +56,8 @@ SearchStats Solve(const Query& q) {
 }
 
 TEST(ConnectedCountTest, CsgAndCcpCountsMatchTheClosedForms) {
-  for (GraphShape g : {GraphShape::kChain, GraphShape::kCycle, GraphShape::kStar,
-                       GraphShape::kClique}) {
+  for (GraphShape g :
+       {GraphShape::kChain, GraphShape::kCycle, GraphShape::kStar, GraphShape::kClique}) {
     const int max_n = g == GraphShape::kClique ? 12 : g == GraphShape::kStar ? 16 : 30;
     for (int n = 3; n <= max_n; ++n) {
       const SearchStats stats = Solve(testing::MakeQuery(g, n, 1));
@@ -76,12 +78,9 @@ TEST(ConnectedCountTest, SixtyRelationChainAndCycleAreExact) {
 }
 
 TEST(ConnectedCountTest, PlannerCountsConnectedSetsUpToItsCap) {
-  EXPECT_EQ(CountConnectedSets(testing::MakeQuery(GraphShape::kChain, 20, 1), 1000),
-            210u);
-  EXPECT_EQ(CountConnectedSets(testing::MakeQuery(GraphShape::kStar, 10, 1), 1000),
-            521u);
-  EXPECT_EQ(CountConnectedSets(testing::MakeQuery(GraphShape::kClique, 20, 1), 500),
-            500u);
+  EXPECT_EQ(CountConnectedSets(testing::MakeQuery(GraphShape::kChain, 20, 1), 1000), 210u);
+  EXPECT_EQ(CountConnectedSets(testing::MakeQuery(GraphShape::kStar, 10, 1), 1000), 521u);
+  EXPECT_EQ(CountConnectedSets(testing::MakeQuery(GraphShape::kClique, 20, 1), 500), 500u);
 }
 
 }  // namespace

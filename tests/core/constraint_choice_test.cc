@@ -12,8 +12,8 @@ namespace {
 using testing::GraphShape;
 
 TEST(ConstraintChoiceTest, DisjointDeterministicAndSized) {
-  for (GraphShape g : {GraphShape::kChain, GraphShape::kStar, GraphShape::kRandom,
-                       GraphShape::kHyper}) {
+  for (GraphShape g :
+       {GraphShape::kChain, GraphShape::kStar, GraphShape::kRandom, GraphShape::kHyper}) {
     const Query q = testing::MakeQuery(g, 13, 2);
     for (PlanShape shape : {PlanShape::kBushy, PlanShape::kLeftDeep}) {
       for (int k = 1; k <= MaxSliceBits(13, shape); ++k) {

@@ -39,8 +39,7 @@ TEST(PlanCountTest, UnslicedCountsWithCrossProducts) {
     const Query q = testing::MakeUniformQuery(GraphShape::kChain, n);
     EXPECT_EQ(Count(q, PlanShape::kLeftDeep, true, {0, 1}), Factorial(n));
     // (2n-2)!/(n-1)! = n! * Catalan(n-1).
-    EXPECT_EQ(Count(q, PlanShape::kBushy, true, {0, 1}),
-              Factorial(n) * Catalan(n - 1));
+    EXPECT_EQ(Count(q, PlanShape::kBushy, true, {0, 1}), Factorial(n) * Catalan(n - 1));
   }
 }
 
@@ -84,8 +83,7 @@ TEST(PlanCountTest, BushySlicesCoverEveryTreeAndCountTheirOwn) {
       EXPECT_EQ(trees * (uint64_t{1} << (n - 1)), Factorial(n) * Catalan(n - 1));
       for (uint32_t i = 0; i < p; ++i) {
         // Each unordered tree has 2^(n-1) child orders, all in its slice.
-        EXPECT_EQ(Count(q, PlanShape::kBushy, true, {i, p}),
-                  inside[i] << (n - 1))
+        EXPECT_EQ(Count(q, PlanShape::kBushy, true, {i, p}), inside[i] << (n - 1))
             << "n=" << n << " slice " << i << "/" << p;
       }
     }
@@ -97,15 +95,11 @@ TEST(PlanCountTest, CountsWithoutCrossProducts) {
     const Query chain = testing::MakeUniformQuery(GraphShape::kChain, n);
     const Query star = testing::MakeUniformQuery(GraphShape::kStar, n);
     const Query clique = testing::MakeUniformQuery(GraphShape::kClique, n);
-    EXPECT_EQ(Count(chain, PlanShape::kLeftDeep, false, {0, 1}),
-              uint64_t{1} << (n - 1));
-    EXPECT_EQ(Count(star, PlanShape::kLeftDeep, false, {0, 1}),
-              2 * Factorial(n - 1));
-    EXPECT_EQ(Count(chain, PlanShape::kBushy, false, {0, 1}),
-              Catalan(n - 1) << (n - 1));
+    EXPECT_EQ(Count(chain, PlanShape::kLeftDeep, false, {0, 1}), uint64_t{1} << (n - 1));
+    EXPECT_EQ(Count(star, PlanShape::kLeftDeep, false, {0, 1}), 2 * Factorial(n - 1));
+    EXPECT_EQ(Count(chain, PlanShape::kBushy, false, {0, 1}), Catalan(n - 1) << (n - 1));
     EXPECT_EQ(Count(clique, PlanShape::kLeftDeep, false, {0, 1}), Factorial(n));
-    EXPECT_EQ(Count(clique, PlanShape::kBushy, false, {0, 1}),
-              Factorial(n) * Catalan(n - 1));
+    EXPECT_EQ(Count(clique, PlanShape::kBushy, false, {0, 1}), Factorial(n) * Catalan(n - 1));
   }
 }
 

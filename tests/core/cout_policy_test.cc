@@ -2,8 +2,8 @@
 // 0, C_out(L join R) = card(L u R) + C_out(L) + C_out(R)).
 #include "core/cout_policy.h"
 
-#include "schedule/embedded_pool.h"
 #include "gtest/gtest.h"
+#include "schedule/embedded_pool.h"
 #include "tests/support/test_queries.h"
 
 namespace sliceplan {

@@ -18,8 +18,7 @@ uint64_t Pow(uint64_t b, int e) {
   return r;
 }
 
-SliceConstraints Constraints(const Query& q, PlanShape shape, uint32_t index,
-                             int k) {
+SliceConstraints Constraints(const Query& q, PlanShape shape, uint32_t index, int k) {
   auto c = SliceConstraints::ForSlice(q, shape, {index, uint32_t{1} << k});
   EXPECT_TRUE(c.ok()) << c.status();
   return *c;
@@ -35,9 +34,8 @@ TEST(DenseLayoutTest, SlotCountIsTheClosedFormAndMatchesAdmissibleSets) {
         const DenseLayout layout(n, c);
         // docs/slicing.md: 3^k 2^(n-2k) sets per pair slice, 7^k 2^(n-3k) per
         // triple slice (the empty set included).
-        const uint64_t want = shape == PlanShape::kBushy
-                                  ? Pow(7, k) << (n - 3 * k)
-                                  : Pow(3, k) << (n - 2 * k);
+        const uint64_t want =
+            shape == PlanShape::kBushy ? Pow(7, k) << (n - 3 * k) : Pow(3, k) << (n - 2 * k);
         EXPECT_EQ(layout.slot_count(), want) << "n=" << n << " k=" << k;
         uint64_t admissible = 0;
         for (RelSet s = 0; s < (RelSet{1} << n); ++s) {

@@ -13,9 +13,10 @@
 // Per free x: S holds x, any admissible rest: f 2^(f-1) 3^k. Per pair
 // (a, c) (c needs a): remove a from {a} or c from {a, c}: 2k 3^(k-1) 2^f.
 // Minus the f + k admissible singletons, whose rest is empty.
+#include "core/search_estimate.h"
+
 #include <cmath>
 
-#include "core/search_estimate.h"
 #include "core/slice_constraints.h"
 #include "core/slice_solver.h"
 #include "gtest/gtest.h"
@@ -100,8 +101,7 @@ TEST(SplitCountTest, EngineCountsMatchTheClosedFormsUpToSixteenRelations) {
         // cout is symmetric: bushy slices cost each unordered split once.
         const double want = shape == PlanShape::kBushy ? ordered / 2 : ordered;
         EXPECT_EQ(costed->stats.splits, static_cast<uint64_t>(want));
-        EXPECT_EQ(costed->stats.subsets,
-                  static_cast<uint64_t>(DenseSlots(n, shape, k)));
+        EXPECT_EQ(costed->stats.subsets, static_cast<uint64_t>(DenseSlots(n, shape, k)));
         if (n <= 13) {  // the counting policy offers both orders
           auto counted = CountSlicePlans(q, options, slice);
           ASSERT_TRUE(counted.ok());
@@ -117,12 +117,12 @@ TEST(SplitCountTest, WorkShrinksTowardsTheSlicingRatios) {
   // to (3/4)^k of the unsliced search.
   const int n = 18;
   for (int k = 1; k <= 4; ++k) {
-    const double bushy = DenseSplits(n, PlanShape::kBushy, k, false) /
-                         DenseSplits(n, PlanShape::kBushy, 0, false);
+    const double bushy =
+        DenseSplits(n, PlanShape::kBushy, k, false) / DenseSplits(n, PlanShape::kBushy, 0, false);
     EXPECT_NEAR(bushy, std::pow(21.0 / 27.0, k), 0.01 * std::pow(21.0 / 27.0, k));
-    EXPECT_DOUBLE_EQ(DenseSlots(n, PlanShape::kLeftDeep, k) /
-                         DenseSlots(n, PlanShape::kLeftDeep, 0),
-                     std::pow(0.75, k));
+    EXPECT_DOUBLE_EQ(
+        DenseSlots(n, PlanShape::kLeftDeep, k) / DenseSlots(n, PlanShape::kLeftDeep, 0),
+        std::pow(0.75, k));
   }
 }
 

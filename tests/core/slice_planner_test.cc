@@ -19,8 +19,7 @@ TEST(SlicePlannerTest, SmallSearchStaysWhole) {
   EXPECT_EQ(ChooseSliceCount(testing::MakeQuery(GraphShape::kChain, 8, 1), {}, 16), 1u);
   SearchOptions connected;
   connected.cross_products = false;
-  EXPECT_EQ(ChooseSliceCount(testing::MakeQuery(GraphShape::kChain, 60, 1), connected, 16),
-            1u);
+  EXPECT_EQ(ChooseSliceCount(testing::MakeQuery(GraphShape::kChain, 60, 1), connected, 16), 1u);
 }
 
 TEST(SlicePlannerTest, OneRoundOfSlicesForPowerOfTwoPools) {

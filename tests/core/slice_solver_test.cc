@@ -7,11 +7,11 @@
 #include <cmath>
 #include <tuple>
 
-#include "schedule/embedded_pool.h"
 #include "gtest/gtest.h"
-#include "wire/query_proto.h"
+#include "schedule/embedded_pool.h"
 #include "tests/support/reference_search.h"
 #include "tests/support/test_queries.h"
+#include "wire/query_proto.h"
 
 namespace sliceplan {
 namespace {
@@ -21,8 +21,7 @@ using testing::GraphShape;
 constexpr double kRelTol = 1e-9;
 
 void ExpectNear(double want, double got) {
-  EXPECT_LE(std::fabs(got - want), kRelTol * std::fabs(want))
-      << "want " << want << " got " << got;
+  EXPECT_LE(std::fabs(got - want), kRelTol * std::fabs(want)) << "want " << want << " got " << got;
 }
 
 struct Case {
@@ -38,9 +37,8 @@ TEST_P(SliceSolverTest, MergedOptimumEqualsReferenceForEverySliceCount) {
   const Case c = GetParam();
   for (uint64_t seed = 1; seed <= 3; ++seed) {
     const Query query = testing::MakeQuery(c.graph, c.n, seed);
-    const double want = c.shape == PlanShape::kBushy
-                            ? testing::RefBestBushy(query, c.cross)
-                            : testing::RefBestLeftDeep(query, c.cross);
+    const double want = c.shape == PlanShape::kBushy ? testing::RefBestBushy(query, c.cross)
+                                                     : testing::RefBestLeftDeep(query, c.cross);
     ASSERT_TRUE(std::isfinite(want));
     SearchOptions options{c.shape, c.cross, CostModelKind::kCout};
     for (uint32_t p : {1u, 2u, 4u, 8u}) {
@@ -68,8 +66,7 @@ TEST_P(SliceSolverTest, MergedOptimumEqualsReferenceForEverySliceCount) {
 std::vector<Case> AllCases() {
   std::vector<Case> out;
   for (GraphShape g : {GraphShape::kChain, GraphShape::kCycle, GraphShape::kStar,
-                       GraphShape::kClique, GraphShape::kRandom,
-                       GraphShape::kHyper}) {
+                       GraphShape::kClique, GraphShape::kRandom, GraphShape::kHyper}) {
     for (PlanShape s : {PlanShape::kBushy, PlanShape::kLeftDeep}) {
       for (bool cross : {true, false}) {
         // n = 9 gives bushy plans room for P = 8 (three triples).
@@ -82,14 +79,13 @@ std::vector<Case> AllCases() {
   return out;
 }
 
-INSTANTIATE_TEST_SUITE_P(
-    Shapes, SliceSolverTest, ::testing::ValuesIn(AllCases()),
-    [](const ::testing::TestParamInfo<Case>& param_info) {
-      const Case& c = param_info.param;
-      return testing::ShapeName(c.graph) + "_n" + std::to_string(c.n) + "_" +
-             (c.shape == PlanShape::kBushy ? "bushy" : "leftdeep") +
-             (c.cross ? "_cross" : "_connected");
-    });
+INSTANTIATE_TEST_SUITE_P(Shapes, SliceSolverTest, ::testing::ValuesIn(AllCases()),
+                         [](const ::testing::TestParamInfo<Case>& param_info) {
+                           const Case& c = param_info.param;
+                           return testing::ShapeName(c.graph) + "_n" + std::to_string(c.n) + "_" +
+                                  (c.shape == PlanShape::kBushy ? "bushy" : "leftdeep") +
+                                  (c.cross ? "_cross" : "_connected");
+                         });
 
 TEST(SliceSolverErrorsTest, RefusesSliceCountTooLargeForTheQuery) {
   const Query query = testing::MakeQuery(GraphShape::kChain, 5, 1);
@@ -117,11 +113,9 @@ TEST(SliceSolverErrorsTest, RefusesMemoOverTheLimitWithTheNumbers) {
   auto r = SolveSlice(query, {}, {0, 1}, control);
   ASSERT_FALSE(r.ok());
   EXPECT_EQ(r.status().code(), absl::StatusCode::kResourceExhausted);
-  EXPECT_NE(r.status().message().find("1.074e+09 sets x 12 bytes"),
-            std::string::npos)
+  EXPECT_NE(r.status().message().find("1.074e+09 sets x 12 bytes"), std::string::npos)
       << r.status();
-  EXPECT_NE(r.status().message().find("at least 16 slices"), std::string::npos)
-      << r.status();
+  EXPECT_NE(r.status().message().find("at least 16 slices"), std::string::npos) << r.status();
 }
 
 TEST(SliceSolverErrorsTest, ConnectedMemoLimitIsResourceExhausted) {
@@ -145,9 +139,8 @@ TEST(SliceSolverErrorsTest, CancelledSearchReturnsCancelled) {
 }
 
 TEST(SliceSolverErrorsTest, DisconnectedGraphWithoutCrossProductsIsNotFound) {
-  const Query query = testing::MakeQueryOrDie(
-      {{"a", 10, 100}, {"b", 10, 100}, {"c", 10, 100}},
-      {{0b011, 0.1}});  // c joins nothing
+  const Query query = testing::MakeQueryOrDie({{"a", 10, 100}, {"b", 10, 100}, {"c", 10, 100}},
+                                              {{0b011, 0.1}});  // c joins nothing
   SearchOptions options;
   options.cross_products = false;
   auto r = OptimizeEmbedded(query, options, 1, 1);
@@ -162,14 +155,13 @@ TEST(SliceSolverErrorsTest, DisconnectedGraphWithoutCrossProductsIsNotFound) {
 class TpchTest : public ::testing::TestWithParam<const char*> {};
 
 TEST_P(TpchTest, PlanIsValidAndOptimal) {
-  auto query = ReadQueryFile(std::string(SLICEPLAN_SOURCE_DIR) +
-                             "/examples/tpch/" + GetParam() + ".json");
+  auto query =
+      ReadQueryFile(std::string(SLICEPLAN_SOURCE_DIR) + "/examples/tpch/" + GetParam() + ".json");
   ASSERT_TRUE(query.ok()) << query.status();
   for (PlanShape shape : {PlanShape::kBushy, PlanShape::kLeftDeep}) {
     for (bool cross : {true, false}) {
-      const double want = shape == PlanShape::kBushy
-                              ? testing::RefBestBushy(*query, cross)
-                              : testing::RefBestLeftDeep(*query, cross);
+      const double want = shape == PlanShape::kBushy ? testing::RefBestBushy(*query, cross)
+                                                     : testing::RefBestLeftDeep(*query, cross);
       ASSERT_TRUE(std::isfinite(want)) << "the reference found no plan";
       for (uint32_t p : {1u, 2u, 4u}) {
         SCOPED_TRACE(std::string(GetParam()) + " P=" + std::to_string(p) +

@@ -8,9 +8,9 @@
 #include <cmath>
 
 #include "core/cardinality.h"
-#include "schedule/embedded_pool.h"
 #include "core/plan.h"
 #include "gtest/gtest.h"
+#include "schedule/embedded_pool.h"
 #include "tests/support/test_queries.h"
 
 namespace sliceplan {
@@ -67,8 +67,7 @@ TEST(ValueRangeTest, SaturatedSubPlansLoseToExactOnes) {
       ASSERT_TRUE(r.ok()) << r.status();
       EXPECT_NEAR(r->plan.root().cost, 2.0, 1e-9);
       const std::string tree = TreeString(r->plan, q);
-      EXPECT_TRUE(tree.find("a b") == std::string::npos &&
-                  tree.find("b a") == std::string::npos)
+      EXPECT_TRUE(tree.find("a b") == std::string::npos && tree.find("b a") == std::string::npos)
           << tree;
     }
   }
@@ -101,8 +100,8 @@ TEST(ValueRangeTest, QueryWhoseResultSaturatesIsRefusedUpFront) {
 // first joins two of them (1e400 rows): every plan saturates, found only
 // after the search, and refused by the merge.
 TEST(ValueRangeTest, QueryWhoseEveryPlanSaturatesIsRefusedAfterTheSearch) {
-  const Query q = MakeQueryOrDie({{"a", 1e200}, {"b", 1e200}, {"c", 1e200}},
-                                 {{kA | kB | kC, 1e-320}});
+  const Query q =
+      MakeQueryOrDie({{"a", 1e200}, {"b", 1e200}, {"c", 1e200}}, {{kA | kB | kC, 1e-320}});
   ExpectOutOfRange(q, {PlanShape::kBushy, true, CostModelKind::kCout}, "1e+300");
   ExpectOutOfRange(q, {PlanShape::kLeftDeep, true, CostModelKind::kCout}, "1e+300");
 }

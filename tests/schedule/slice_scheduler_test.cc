@@ -6,8 +6,8 @@
 #include <atomic>
 #include <thread>
 
-#include "schedule/local_worker.h"
 #include "gtest/gtest.h"
+#include "schedule/local_worker.h"
 #include "tests/support/test_queries.h"
 
 namespace sliceplan {

@@ -15,12 +15,12 @@
 #include <thread>
 
 #include "cli/rpc_client.h"
-#include "wire/query_proto.h"
-#include "gtest/gtest.h"
 #include "grpcpp/grpcpp.h"
+#include "gtest/gtest.h"
 #include "sliceplan.grpc.pb.h"
 #include "tests/support/process.h"
 #include "tests/support/test_queries.h"
+#include "wire/query_proto.h"
 
 namespace sliceplan {
 namespace {
@@ -89,7 +89,8 @@ v1::OptimizeRequest Request(const Query& q, uint32_t p = 0) {
 }
 
 grpc::Status Optimize(const Cluster& c, const v1::OptimizeRequest& request,
-                      std::chrono::milliseconds timeout = 20s, v1::OptimizeResponse* out = nullptr) {
+                      std::chrono::milliseconds timeout = 20s,
+                      v1::OptimizeResponse* out = nullptr) {
   grpc::ClientContext context;
   context.set_deadline(std::chrono::system_clock::now() + timeout);
   v1::OptimizeResponse ignored;
@@ -109,8 +110,9 @@ TEST(HostileClientTest, EachServerListensOnExactlyTheAnnouncedPort) {
 }
 
 TEST(HostileClientTest, PortOutsideTheRangeIsRefusedAtStart) {
-  for (const std::string& bin : {std::string(SLICEPLAN_WORKER_BIN),
-                                std::string(SLICEPLAN_COORDINATOR_BIN) + " --workers=127.0.0.1:1"}) {
+  for (const std::string& bin :
+       {std::string(SLICEPLAN_WORKER_BIN),
+        std::string(SLICEPLAN_COORDINATOR_BIN) + " --workers=127.0.0.1:1"}) {
     const std::string cmd = bin + " --listen=127.0.0.1:99999 2>&1";
     FILE* out = popen(cmd.c_str(), "r");
     ASSERT_NE(out, nullptr);
@@ -193,8 +195,7 @@ TEST(HostileClientTest, DeadlineValuesAreCheckedOrCut) {
     r.set_deadline_seconds(bad);
     const grpc::Status s = Optimize(c, r);
     EXPECT_EQ(s.error_code(), grpc::StatusCode::INVALID_ARGUMENT) << bad;
-    EXPECT_NE(s.error_message().find("deadline_seconds: must be a number >= 0"),
-              std::string::npos)
+    EXPECT_NE(s.error_message().find("deadline_seconds: must be a number >= 0"), std::string::npos)
         << s.error_message();
   }
   for (double huge : {std::numeric_limits<double>::infinity(), 1e308}) {
@@ -238,9 +239,9 @@ TEST(HostileClientTest, DeadWorkerComesBackWhenItIsBack) {
   Cluster c;
   c.workers.push_back(StartWorker({at}));
   ASSERT_TRUE(c.workers[0]);
-  auto p = ServerProcess::Start({SLICEPLAN_COORDINATOR_BIN, "--listen=127.0.0.1:0",
-                                 "--workers=" + c.workers[0]->address(),
-                                 "--health_interval_ms=200"});
+  auto p =
+      ServerProcess::Start({SLICEPLAN_COORDINATOR_BIN, "--listen=127.0.0.1:0",
+                            "--workers=" + c.workers[0]->address(), "--health_interval_ms=200"});
   ASSERT_TRUE(p.ok()) << p.status();
   c.coordinator = *std::move(p);
   c.stub = v1::Coordinator::NewStub(

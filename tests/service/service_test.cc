@@ -7,14 +7,14 @@
 #include <thread>
 
 #include "cli/rpc_client.h"
+#include "grpcpp/grpcpp.h"
+#include "gtest/gtest.h"
 #include "rpc/rpc_status.h"
 #include "schedule/embedded_pool.h"
-#include "wire/query_proto.h"
-#include "gtest/gtest.h"
-#include "grpcpp/grpcpp.h"
 #include "sliceplan.grpc.pb.h"
 #include "tests/support/process.h"
 #include "tests/support/test_queries.h"
+#include "wire/query_proto.h"
 
 namespace sliceplan {
 namespace {
@@ -64,8 +64,8 @@ double Optimum(const Query& q) {
 }
 
 absl::StatusOr<ScheduleOutcome> Remote(const std::string& coordinator, const Query& q,
-                                       SearchOptions options, uint32_t p,
-                                       double deadline = 0, bool partial = false) {
+                                       SearchOptions options, uint32_t p, double deadline = 0,
+                                       bool partial = false) {
   cli::RemoteRequest r{coordinator, options, p, deadline, partial};
   return cli::OptimizeRemote(r, q, {});
 }
@@ -74,8 +74,8 @@ TEST(ServiceTest, RpcAnswerEqualsEmbeddedAnswer) {
   Cluster c = StartCluster(3);
   ASSERT_TRUE(c.coordinator);
   int checked = 0;
-  for (GraphShape g : {GraphShape::kChain, GraphShape::kStar, GraphShape::kRandom,
-                       GraphShape::kCycle}) {
+  for (GraphShape g :
+       {GraphShape::kChain, GraphShape::kStar, GraphShape::kRandom, GraphShape::kCycle}) {
     for (PlanShape shape : {PlanShape::kBushy, PlanShape::kLeftDeep}) {
       const Query q = testing::MakeQuery(g, shape == PlanShape::kBushy ? 12 : 10, 11);
       for (uint32_t p : {1u, 2u, 4u, 8u, 16u}) {

@@ -81,7 +81,8 @@ class AllPlans {
                 const double t = Stage(p_, strategy, m, a, wl, b, wr, rows);
                 out.push_back({{std::max(a.c.latency, b.c.latency) + t,
                                 a.c.node_seconds + b.c.node_seconds + m * t, comp},
-                               rows, false});
+                               rows,
+                               false});
               }
             }
           }
@@ -172,7 +173,8 @@ RefCosts RefCostsOf(const Query& query, const ClusterParams& params, const Plan&
     const double t = Stage(params, strategy, n.nodes, a, Width(query, l), b, Width(query, r), rows);
     at[i] = {{std::max(a.c.latency, b.c.latency) + t,
               a.c.node_seconds + b.c.node_seconds + n.nodes * t, comp},
-             rows, false};
+             rows,
+             false};
   }
   return at.back().c;
 }

@@ -85,8 +85,8 @@ double RefCard(const Query& query, RelSet x) {
 
 bool RefJoinable(const Query& query, RelSet left, RelSet right) {
   for (const Predicate& p : query.predicates()) {
-    if ((p.relations | left | right) == (left | right) &&
-        (p.relations & left) && (p.relations & right)) {
+    if ((p.relations | left | right) == (left | right) && (p.relations & left) &&
+        (p.relations & right)) {
       return true;
     }
   }
@@ -136,8 +136,7 @@ double RefCoutOf(const Query& query, const Plan& plan) {
 bool RefFreeOfCrossProducts(const Query& query, const Plan& plan) {
   for (const PlanNode& node : plan.nodes) {
     if (node.is_leaf()) continue;
-    if (!RefJoinable(query, plan.nodes[node.left].relations,
-                     plan.nodes[node.right].relations)) {
+    if (!RefJoinable(query, plan.nodes[node.left].relations, plan.nodes[node.right].relations)) {
       return false;
     }
   }
@@ -158,8 +157,7 @@ bool RefCoversQuery(const Query& query, const Plan& plan) {
     leaves |= node.relations;
     ++count;
   }
-  return leaves == query.all() && count == query.size() &&
-         plan.root().relations == query.all();
+  return leaves == query.all() && count == query.size() && plan.root().relations == query.all();
 }
 
 }  // namespace sliceplan::testing

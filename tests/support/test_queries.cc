@@ -11,18 +11,23 @@ namespace sliceplan::testing {
 
 std::string ShapeName(GraphShape shape) {
   switch (shape) {
-    case GraphShape::kChain: return "chain";
-    case GraphShape::kCycle: return "cycle";
-    case GraphShape::kStar: return "star";
-    case GraphShape::kClique: return "clique";
-    case GraphShape::kRandom: return "random";
-    case GraphShape::kHyper: return "hyper";
+    case GraphShape::kChain:
+      return "chain";
+    case GraphShape::kCycle:
+      return "cycle";
+    case GraphShape::kStar:
+      return "star";
+    case GraphShape::kClique:
+      return "clique";
+    case GraphShape::kRandom:
+      return "random";
+    case GraphShape::kHyper:
+      return "hyper";
   }
   return "?";
 }
 
-std::vector<std::vector<int>> ShapeEdges(GraphShape shape, int n,
-                                         uint64_t seed) {
+std::vector<std::vector<int>> ShapeEdges(GraphShape shape, int n, uint64_t seed) {
   std::vector<std::vector<int>> edges;
   switch (shape) {
     case GraphShape::kChain:
@@ -61,8 +66,7 @@ std::vector<std::vector<int>> ShapeEdges(GraphShape shape, int n,
   return edges;
 }
 
-Query MakeQueryOrDie(std::vector<Relation> relations,
-                     std::vector<Predicate> predicates) {
+Query MakeQueryOrDie(std::vector<Relation> relations, std::vector<Predicate> predicates) {
   auto query = Query::Create(std::move(relations), std::move(predicates));
   if (!query.ok()) {
     std::cerr << "bad test query: " << query.status() << "\n";
@@ -95,12 +99,8 @@ Query Build(GraphShape shape, int n, uint64_t seed, bool uniform) {
 
 }  // namespace
 
-Query MakeQuery(GraphShape shape, int n, uint64_t seed) {
-  return Build(shape, n, seed, false);
-}
+Query MakeQuery(GraphShape shape, int n, uint64_t seed) { return Build(shape, n, seed, false); }
 
-Query MakeUniformQuery(GraphShape shape, int n) {
-  return Build(shape, n, 0, true);
-}
+Query MakeUniformQuery(GraphShape shape, int n) { return Build(shape, n, 0, true); }
 
 }  // namespace sliceplan::testing

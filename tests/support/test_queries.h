@@ -19,8 +19,7 @@ std::string ShapeName(GraphShape shape);
 
 // The edges of a shape over n relations (kRandom: a random spanning tree
 // plus extra edges; kHyper: a chain plus one predicate over three relations).
-std::vector<std::vector<int>> ShapeEdges(GraphShape shape, int n,
-                                         uint64_t seed);
+std::vector<std::vector<int>> ShapeEdges(GraphShape shape, int n, uint64_t seed);
 
 // A query with relations r0..r{n-1}, rows in [10, 1e6] and selectivities
 // in [1e-4, 0.5], log-uniform, over the edges of `shape`.
@@ -30,8 +29,7 @@ Query MakeQuery(GraphShape shape, int n, uint64_t seed);
 Query MakeUniformQuery(GraphShape shape, int n);
 
 // A query from explicit parts; aborts the test binary on invalid input.
-Query MakeQueryOrDie(std::vector<Relation> relations,
-                     std::vector<Predicate> predicates);
+Query MakeQueryOrDie(std::vector<Relation> relations, std::vector<Predicate> predicates);
 
 }  // namespace sliceplan::testing
 

@@ -65,13 +65,11 @@ const BadCase kBadCases[] = {
      "(relations[0]) size"},
     {"unknown top-level field", R"({"relations": [{"name": "a", "rows": 1}], "joins": []})",
      "joins"},
-    {"wrong type", R"({"relations": [{"name": "a", "rows": "many"}]})",
-     "relations[0].rows"},
+    {"wrong type", R"({"relations": [{"name": "a", "rows": "many"}]})", "relations[0].rows"},
     {"no relations", R"({"relations": []})", "relations: the query has no relations"},
     {"duplicate name", R"({"relations": [{"name": "a", "rows": 1}, {"name": "a", "rows": 2}]})",
      "relations[1].name: duplicate relation name \"a\""},
-    {"bad name", R"({"relations": [{"name": "9lives", "rows": 1}]})",
-     "relations[0].name"},
+    {"bad name", R"({"relations": [{"name": "9lives", "rows": 1}]})", "relations[0].name"},
     {"missing rows", R"({"relations": [{"name": "a"}]})", "relations[0] (a).rows: missing"},
     {"zero rows", R"({"relations": [{"name": "a", "rows": 0}]})", "relations[0] (a).rows"},
     {"negative rows", R"({"relations": [{"name": "b", "rows": 3}, {"name": "a", "rows": -5}]})",
@@ -129,8 +127,8 @@ INSTANTIATE_TEST_SUITE_P(Files, QueryProtoBadInputTest, ::testing::ValuesIn(kBad
 TEST(QueryProtoTest, RefusesMoreThanSixtyFourRelations) {
   std::string json = R"({"relations": [)";
   for (int i = 0; i < 65; ++i) {
-    json += (i ? "," : "") + std::string(R"({"name": "r)") + std::to_string(i) +
-            R"(", "rows": 10})";
+    json +=
+        (i ? "," : "") + std::string(R"({"name": "r)") + std::to_string(i) + R"(", "rows": 10})";
   }
   json += "]}";
   auto q = ParseQueryJson(json);
@@ -148,7 +146,8 @@ TEST(QueryProtoTest, LongNamesAreRefusedAndNeverEchoedWhole) {
   EXPECT_EQ(q.status().message(), "relations[0].name: 100000 bytes; a name has at most 256");
   auto unknown = ParseQueryJson(
       R"({"relations": [{"name": "a", "rows": 1}, {"name": "b", "rows": 1}],
-          "predicates": [{"relations": ["a", ")" + name + R"("], "selectivity": 0.1}]})");
+          "predicates": [{"relations": ["a", ")" +
+      name + R"("], "selectivity": 0.1}]})");
   ASSERT_FALSE(unknown.ok());
   EXPECT_LT(unknown.status().message().size(), 200u) << unknown.status();
   EXPECT_NE(unknown.status().message().find("... (100000 bytes)"), std::string::npos);
