@@ -19,6 +19,7 @@
 #include "gtest/gtest.h"
 #include "sliceplan.grpc.pb.h"
 #include "tests/support/process.h"
+#include "tests/support/servers.h"
 #include "tests/support/test_queries.h"
 #include "wire/query_proto.h"
 
@@ -30,14 +31,6 @@ using testing::GraphShape;
 using testing::ServerProcess;
 using Clock = std::chrono::steady_clock;
 
-std::unique_ptr<ServerProcess> StartWorker(std::vector<std::string> extra = {}) {
-  std::vector<std::string> argv = {SLICEPLAN_WORKER_BIN, "--listen=127.0.0.1:0", "--threads=1"};
-  argv.insert(argv.end(), extra.begin(), extra.end());
-  auto p = ServerProcess::Start(argv);
-  EXPECT_TRUE(p.ok()) << p.status();
-  return p.ok() ? *std::move(p) : nullptr;
-}
-
 struct Cluster {
   std::vector<std::unique_ptr<ServerProcess>> workers;
   std::unique_ptr<ServerProcess> coordinator;
@@ -47,19 +40,12 @@ struct Cluster {
 Cluster StartCluster(int n, std::vector<std::string> worker_flags = {},
                      std::vector<std::string> coordinator_flags = {}) {
   Cluster c;
-  std::string list;
   for (int i = 0; i < n; ++i) {
-    c.workers.push_back(StartWorker(worker_flags));
+    c.workers.push_back(testing::StartWorker(worker_flags));
     if (!c.workers.back()) return c;
-    list += (list.empty() ? "" : ",") + c.workers.back()->address();
   }
-  std::vector<std::string> argv = {SLICEPLAN_COORDINATOR_BIN, "--listen=127.0.0.1:0",
-                                   "--workers=" + list, "--health_interval_ms=200"};
-  argv.insert(argv.end(), coordinator_flags.begin(), coordinator_flags.end());
-  auto p = ServerProcess::Start(argv);
-  EXPECT_TRUE(p.ok()) << p.status();
-  if (!p.ok()) return c;
-  c.coordinator = *std::move(p);
+  c.coordinator = testing::StartCoordinator(c.workers, coordinator_flags);
+  if (!c.coordinator) return c;
   c.stub = v1::Coordinator::NewStub(
       grpc::CreateChannel(c.coordinator->address(), grpc::InsecureChannelCredentials()));
   return c;
@@ -237,7 +223,7 @@ int FreePort() {
 TEST(HostileClientTest, DeadWorkerComesBackWhenItIsBack) {
   const std::string at = "--listen=127.0.0.1:" + std::to_string(FreePort());
   Cluster c;
-  c.workers.push_back(StartWorker({at}));
+  c.workers.push_back(testing::StartWorker({at}));
   ASSERT_TRUE(c.workers[0]);
   auto p =
       ServerProcess::Start({SLICEPLAN_COORDINATOR_BIN, "--listen=127.0.0.1:0",
@@ -251,7 +237,7 @@ TEST(HostileClientTest, DeadWorkerComesBackWhenItIsBack) {
   c.workers[0]->Signal(SIGKILL);
   std::this_thread::sleep_for(500ms);
   EXPECT_EQ(Optimize(c, r, 5s).error_code(), grpc::StatusCode::UNAVAILABLE);
-  c.workers[0] = StartWorker({at});
+  c.workers[0] = testing::StartWorker({at});
   ASSERT_TRUE(c.workers[0]);
   grpc::Status s;
   for (int i = 0; i < 50 && !(s = Optimize(c, r, 5s)).ok(); ++i) {
@@ -281,7 +267,7 @@ TEST(HostileClientTest, SigtermDeliversTheRunningAnswerAndExits) {
 }
 
 TEST(HostileClientTest, SigtermStopsAWorkerMidSliceWithinTheGrace) {
-  auto w = StartWorker({"--shutdown_grace_seconds=1"});
+  auto w = testing::StartWorker({"--shutdown_grace_seconds=1"});
   ASSERT_TRUE(w);
   auto stub = v1::SliceWorker::NewStub(
       grpc::CreateChannel(w->address(), grpc::InsecureChannelCredentials()));

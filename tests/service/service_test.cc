@@ -13,6 +13,7 @@
 #include "schedule/embedded_pool.h"
 #include "sliceplan.grpc.pb.h"
 #include "tests/support/process.h"
+#include "tests/support/servers.h"
 #include "tests/support/test_queries.h"
 #include "wire/query_proto.h"
 
@@ -24,25 +25,8 @@ using testing::GraphShape;
 using testing::ServerProcess;
 using Clock = std::chrono::steady_clock;
 
-std::unique_ptr<ServerProcess> StartWorker(std::vector<std::string> extra = {}) {
-  std::vector<std::string> argv = {SLICEPLAN_WORKER_BIN, "--listen=127.0.0.1:0", "--threads=1"};
-  argv.insert(argv.end(), extra.begin(), extra.end());
-  auto p = ServerProcess::Start(argv);
-  EXPECT_TRUE(p.ok()) << p.status();
-  return p.ok() ? *std::move(p) : nullptr;
-}
-
-std::unique_ptr<ServerProcess> StartCoordinator(
-    const std::vector<std::unique_ptr<ServerProcess>>& workers, std::vector<std::string> extra = {},
-    std::string list = "") {
-  for (const auto& w : workers) list += (list.empty() ? "" : ",") + w->address();
-  std::vector<std::string> argv = {SLICEPLAN_COORDINATOR_BIN, "--listen=127.0.0.1:0",
-                                   "--workers=" + list, "--health_interval_ms=200"};
-  argv.insert(argv.end(), extra.begin(), extra.end());
-  auto p = ServerProcess::Start(argv);
-  EXPECT_TRUE(p.ok()) << p.status();
-  return p.ok() ? *std::move(p) : nullptr;
-}
+using testing::StartCoordinator;
+using testing::StartWorker;
 
 struct Cluster {
   std::vector<std::unique_ptr<ServerProcess>> workers;
