@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <type_traits>
 
 #include "core/count_policy.h"
 #include "core/cout_policy.h"
@@ -64,7 +65,8 @@ absl::Status Prepare(const Query& query, const SearchOptions& options, SliceSpec
   RETURN_IF_ERROR(ValidateSearchOptions(options));
   ASSIGN_OR_RETURN(SliceConstraints constraints,
                    SliceConstraints::ForSlice(query, options.shape, slice, options.cross_products));
-  if (options.cost == CostModelKind::kCout) RETURN_IF_ERROR(CheckCoutInRange(query));
+  // Only a cost can pass the ceiling: counting plans needs no check.
+  if constexpr (std::is_same_v<Policy, CoutPolicy>) RETURN_IF_ERROR(CheckCoutInRange(query));
   if (options.cross_products) {
     RETURN_IF_ERROR(CheckDenseMemo(query.size(), options.shape, slice.bits(), Policy::kBytesPerSlot,
                                    options.memo_limit_bytes));
