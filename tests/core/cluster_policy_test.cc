@@ -91,6 +91,18 @@ TEST(ClusterModelTest, HandComputedThreeRelationPlan) {
   plan.nodes[3] = {0b100, -1, -1};
   plan.nodes[4] = {0b111, 2, 3};
   plan.nodes[2].nodes = plan.nodes[4].nodes = 4;
+  // The engine's model, stage by stage, against the hand computation.
+  const double t1 =
+      StageSeconds(p, JoinStrategy::kShuffle, 4, {1000, 100, true}, {2000, 50, true}, 2000);
+  const double t2 =
+      StageSeconds(p, JoinStrategy::kShuffle, 4, {2000, 150, false}, {1e4, 20, true}, 2000);
+  EXPECT_NEAR(t2, 0.50027, 1e-12);
+  const ClusterCosts first = JoinCosts({0, 0, 1}, {0, 0, 1}, 4, t1);
+  const ClusterCosts whole = JoinCosts(first, {0, 0, 1}, 4, t2);
+  EXPECT_NEAR(whole.latency_s, 1.000435, 1e-12);
+  EXPECT_NEAR(whole.node_seconds, 4 * 1.000435, 1e-11);
+  EXPECT_EQ(whole.completeness, 1);
+  // The independent reference agrees on the same plan.
   const RefCosts c = testing::RefCostsOf(q, p, plan);
   EXPECT_NEAR(c.latency, 1.000435, 1e-12);
   EXPECT_NEAR(c.node_seconds, 4 * 1.000435, 1e-11);
@@ -167,7 +179,13 @@ INSTANTIATE_TEST_SUITE_P(
                       FrontierCase{4, {4, 16}, {1.0, 0.1, 0.01}, PlanShape::kBushy},
                       FrontierCase{4, {4, 64}, {1.0, 0.1, 0.01}, PlanShape::kLeftDeep},
                       FrontierCase{3, {4, 16, 64}, {1.0}, PlanShape::kBushy},
-                      FrontierCase{4, {4}, {0.1}, PlanShape::kBushy}));
+                      FrontierCase{4, {4}, {0.1}, PlanShape::kBushy}),
+    [](const ::testing::TestParamInfo<FrontierCase>& param_info) {
+      const FrontierCase& c = param_info.param;
+      return "n" + std::to_string(c.n) + "_" + std::to_string(c.nodes.size()) + "counts_" +
+             std::to_string(c.rates.size()) + "rates_" +
+             (c.shape == PlanShape::kBushy ? "bushy" : "leftdeep");
+    });
 
 TEST(ClusterSearchTest, ExactFrontierWithoutCrossProducts) {
   // The connected-sets enumerators keep a set's Pareto set in place while

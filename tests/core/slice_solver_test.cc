@@ -49,8 +49,18 @@ TEST_P(SliceSolverTest, MergedOptimumEqualsReferenceForEverySliceCount) {
       ASSERT_TRUE(result.ok()) << result.status();
       const Plan& plan = result->plan;
       ExpectNear(want, plan.root().cost);
-      // The plan is real: its shape recomputes to the reported cost.
+      // The plan is real: its shape recomputes to the reported cost, and
+      // every node's reported cardinality and cost match an independent
+      // recomputation (so a cost scaled by a constant would show).
       ExpectNear(testing::RefCoutOf(query, plan), plan.root().cost);
+      std::vector<double> cost(plan.nodes.size());
+      for (size_t i = 0; i < plan.nodes.size(); ++i) {
+        const PlanNode& node = plan.nodes[i];
+        const double card = testing::RefCard(query, node.relations);
+        cost[i] = node.is_leaf() ? 0 : card + cost[node.left] + cost[node.right];
+        ExpectNear(card, node.cardinality);
+        ExpectNear(cost[i], node.cost);
+      }
       EXPECT_TRUE(testing::RefCoversQuery(query, plan));
       if (c.shape == PlanShape::kLeftDeep) {
         EXPECT_TRUE(IsLeftDeep(plan));

@@ -2,6 +2,8 @@
 // is refused with a message naming the field and its position.
 #include "wire/query_proto.h"
 
+#include <cctype>
+
 #include "gtest/gtest.h"
 
 namespace sliceplan {
@@ -122,7 +124,14 @@ const BadCase kBadCases[] = {
      "relations[0] (a).row_bytes: must be a number in (0, 1e+12], got 1e+300"},
 };
 
-INSTANTIATE_TEST_SUITE_P(Files, QueryProtoBadInputTest, ::testing::ValuesIn(kBadCases));
+INSTANTIATE_TEST_SUITE_P(Files, QueryProtoBadInputTest, ::testing::ValuesIn(kBadCases),
+                         [](const ::testing::TestParamInfo<BadCase>& param_info) {
+                           std::string name = param_info.param.what;
+                           for (char& c : name) {
+                             if (!std::isalnum(static_cast<unsigned char>(c))) c = '_';
+                           }
+                           return name;
+                         });
 
 TEST(QueryProtoTest, RefusesMoreThanSixtyFourRelations) {
   std::string json = R"({"relations": [)";
