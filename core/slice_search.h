@@ -91,17 +91,35 @@ class SliceSearch {
   // The slot of the whole query, if the slice holds a plan for it.
   std::optional<Slot> RootSlot() const {
     const RelSet all = working_.all();
-    if (layout_) return layout_->SlotOf(all);
+    if (layout_) {
+      const Slot slot = layout_->SlotOf(all);
+      if (!policy_.HasPlan(slot)) return std::nullopt;
+      return slot;
+    }
     const auto slot = memo_.Find(all);
     if (!slot || !policy_.HasPlan(*slot)) return std::nullopt;
     return slot;
   }
 
   // The best plan, in original relation ids. REQUIRES: RootSlot() and a
-  // policy with BestLeft (a cost model).
-  Plan ExtractPlan() const {
+  // policy with BestLeft (a cost model). A memo entry below the root
+  // without a best split is an engine bug: INTERNAL naming the set, never
+  // a walk through an empty back-pointer.
+  absl::StatusOr<Plan> ExtractPlan() const {
+    RelSet broken = 0;
     Plan plan = BuildPlan(
-        working_.all(), [&](RelSet set) { return SetOf(policy_.BestLeft(SlotOf(set))); }, card_);
+        working_.all(),
+        [&](RelSet set) {
+          const Slot left = policy_.BestLeft(SlotOf(set));
+          if (left != kNoSlot) return SetOf(left);
+          if (broken == 0) broken = set;
+          return LowestBit(set);  // any proper split, so the walk ends
+        },
+        card_);
+    if (broken != 0) {
+      return absl::InternalError(absl::StrCat(
+          "memo entry of ", Size(broken), " relations has no best split below the root"));
+    }
     if (layout_) RenumberPlan(plan, layout_->inverse_perm());
     return plan;
   }

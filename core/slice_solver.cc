@@ -153,7 +153,7 @@ absl::StatusOr<SliceResult> SolveSlice(const Query& query, const SearchOptions& 
   RETURN_IF_ERROR(search.Run(control));
   SliceResult result{slice, std::nullopt, search.stats(), {}, 0};
   if (search.RootSlot()) {
-    result.plan = search.ExtractPlan();
+    ASSIGN_OR_RETURN(result.plan, search.ExtractPlan());
     CostWithCout(*result.plan);
   }
   return result;
