@@ -117,8 +117,8 @@ class SliceSearch {
         },
         card_);
     if (broken != 0) {
-      return absl::InternalError(absl::StrCat(
-          "memo entry of ", Size(broken), " relations has no best split below the root"));
+      return absl::InternalError(absl::StrCat("memo entry of ", Size(broken),
+                                              " relations has no best split below the root"));
     }
     if (layout_) RenumberPlan(plan, layout_->inverse_perm());
     return plan;

@@ -9,6 +9,7 @@
 
 #include "gtest/gtest.h"
 #include "schedule/embedded_pool.h"
+#include "tests/support/reference_dp.h"
 #include "tests/support/reference_search.h"
 #include "tests/support/test_queries.h"
 #include "wire/query_proto.h"
@@ -95,6 +96,52 @@ INSTANTIATE_TEST_SUITE_P(Shapes, SliceSolverTest, ::testing::ValuesIn(AllCases()
                            return testing::ShapeName(c.graph) + "_n" + std::to_string(c.n) + "_" +
                                   (c.shape == PlanShape::kBushy ? "bushy" : "leftdeep") +
                                   (c.cross ? "_cross" : "_connected");
+                         });
+
+// Larger cases against the second oracle (tests/support/reference_dp.h):
+// 14 relations, every graph shape, with and without cross products, every
+// slice count the query has room for: P <= 16 bushy, P <= 128 left-deep.
+class SliceSolverLargeTest : public ::testing::TestWithParam<GraphShape> {};
+
+TEST_P(SliceSolverLargeTest, MergedOptimumEqualsTheSubsetDpForEverySliceCount) {
+  const Query query = testing::MakeQuery(GetParam(), 14, 4);
+  for (bool cross : {true, false}) {
+    for (PlanShape shape : {PlanShape::kBushy, PlanShape::kLeftDeep}) {
+      const double want = shape == PlanShape::kBushy ? testing::DpBestBushy(query, cross)
+                                                     : testing::DpBestLeftDeep(query, cross);
+      ASSERT_TRUE(std::isfinite(want)) << "the join graphs are connected";
+      for (int k = 0; k <= MaxSliceBits(14, shape); ++k) {
+        SCOPED_TRACE(std::string(cross ? "cross" : "connected") +
+                     (shape == PlanShape::kBushy ? " bushy" : " left-deep") +
+                     " P=" + std::to_string(1 << k));
+        auto r = OptimizeEmbedded(query, {shape, cross, CostModelKind::kCout}, 1u << k, 2);
+        ASSERT_TRUE(r.ok()) << r.status();
+        ExpectNear(want, r->plan.root().cost);
+        ExpectNear(testing::RefCoutOf(query, r->plan), r->plan.root().cost);
+      }
+    }
+  }
+}
+
+// The two oracles agree where both reach: a wrong DP oracle would pass
+// wrong engines above.
+TEST(SliceSolverOraclesTest, SubsetDpEqualsExplicitEnumeration) {
+  for (GraphShape g : {GraphShape::kChain, GraphShape::kCycle, GraphShape::kStar,
+                       GraphShape::kClique, GraphShape::kRandom, GraphShape::kHyper}) {
+    const Query q = testing::MakeQuery(g, 7, 9);
+    for (bool cross : {true, false}) {
+      ExpectNear(testing::RefBestBushy(q, cross), testing::DpBestBushy(q, cross));
+      ExpectNear(testing::RefBestLeftDeep(q, cross), testing::DpBestLeftDeep(q, cross));
+    }
+  }
+}
+
+INSTANTIATE_TEST_SUITE_P(Shapes, SliceSolverLargeTest,
+                         ::testing::Values(GraphShape::kChain, GraphShape::kCycle,
+                                           GraphShape::kStar, GraphShape::kClique,
+                                           GraphShape::kRandom, GraphShape::kHyper),
+                         [](const ::testing::TestParamInfo<GraphShape>& param_info) {
+                           return testing::ShapeName(param_info.param);
                          });
 
 TEST(SliceSolverErrorsTest, RefusesSliceCountTooLargeForTheQuery) {
