@@ -60,6 +60,8 @@ check key_twice 2 "relations[0].rows: given twice in one object" optimize "$bad/
 check alpha_with_cout 2 "alpha: only the cluster model" optimize "$examples/port_calls_small.json" --alpha=1.5
 check hopeless_deadline 1 "refused up front" optimize "$examples/port_logistics.json" --slices=1 --workers=1 --deadline-seconds=0.001
 check node_counts_past_limit 2 "node_counts: 17 given; the limit is 16" optimize "$examples/port_calls_small.json" --cost=cluster --node-counts=1,2,3,4,5,6,7,8,9,10,11,12,13,14,15,16,17
+check no_coordinator 1 "coordinator 127.0.0.1:1:" optimize "$examples/port_calls_small.json" --coordinator=127.0.0.1:1
+check workers_no_coordinator 1 "coordinator 127.0.0.1:1:" workers --coordinator=127.0.0.1:1
 check memo_limit 2 "over the limit" optimize "$examples/port_logistics.json" --slices=1 --memo-limit=1MiB
 
 # The cluster model's parameters.

@@ -114,7 +114,8 @@ TEST(SliceSchedulerTest, DeadlineGivesPartialAnswerWhenAsked) {
   LocalWorker good("good");
   SliceWorker* workers[] = {&hung, &good};
   ScheduleOptions schedule;
-  schedule.deadline = std::chrono::steady_clock::now() + 300ms;
+  schedule.deadline =
+      std::chrono::steady_clock::now() + 1000ms;  // three small slices need milliseconds
   schedule.partial_on_deadline = true;
   auto out = RunSlices(q, {}, 4, workers, schedule);
   ASSERT_TRUE(out.ok()) << out.status();

@@ -185,7 +185,7 @@ TEST(ServiceTest, DeadlineExceededOrPartialAsRequested) {
   const Query big = testing::MakeQuery(GraphShape::kRandom, 24, 3);
   auto start = Clock::now();
   auto remote = Remote(c.coordinator->address(), big, {}, 4, /*deadline=*/1.5);
-  EXPECT_LT(Clock::now() - start, 3s);
+  EXPECT_LT(Clock::now() - start, 6s);  // a 1.5 s deadline, with room for a slow machine
   ASSERT_FALSE(remote.ok());
   EXPECT_EQ(remote.status().code(), absl::StatusCode::kDeadlineExceeded) << remote.status();
 
@@ -198,7 +198,7 @@ TEST(ServiceTest, DeadlineExceededOrPartialAsRequested) {
   const Query q = testing::MakeQuery(GraphShape::kRandom, 12, 3);
   start = Clock::now();
   remote = Remote(coordinator->address(), q, {}, 4, /*deadline=*/1.5, /*partial=*/true);
-  EXPECT_LT(Clock::now() - start, 3s);
+  EXPECT_LT(Clock::now() - start, 6s);
   ASSERT_TRUE(remote.ok()) << remote.status();
   EXPECT_FALSE(remote->proven_optimal);
   EXPECT_DOUBLE_EQ(remote->coverage, 0.75);
@@ -263,6 +263,42 @@ TEST(ServiceTest, BadRpcInputIsInvalidArgumentNamingTheField) {
   s = Call(*worker, &v1::SliceWorker::Stub::SolveSlice, bad_index, &slice_out);
   EXPECT_EQ(s.error_code(), grpc::StatusCode::INVALID_ARGUMENT);
   EXPECT_NE(s.error_message().find("slice_index: 2"), std::string::npos);
+
+  v1::SolveSliceRequest zero;
+  *zero.mutable_query() = query;
+  s = Call(*worker, &v1::SliceWorker::Stub::SolveSlice, zero, &slice_out);
+  EXPECT_EQ(s.error_code(), grpc::StatusCode::INVALID_ARGUMENT);
+  EXPECT_EQ(s.error_message(), "slice_count: 0 is not a power of two (1, 2, 4, 8, ...)");
+
+  v1::SolveSliceRequest too_many;  // 6 relations hold 2 triples at most
+  *too_many.mutable_query() = query;
+  too_many.set_slice_count(8);
+  s = Call(*worker, &v1::SliceWorker::Stub::SolveSlice, too_many, &slice_out);
+  EXPECT_EQ(s.error_code(), grpc::StatusCode::INVALID_ARGUMENT);
+  EXPECT_NE(s.error_message().find("slice_count: 8 slices need 3 disjoint triples"),
+            std::string::npos)
+      << s.error_message();
+
+  v1::SolveSliceRequest bad_query;
+  *bad_query.mutable_query() = query;
+  bad_query.set_slice_count(1);
+  bad_query.mutable_query()->mutable_relations(2)->mutable_rows()->set_value(-3);
+  s = Call(*worker, &v1::SliceWorker::Stub::SolveSlice, bad_query, &slice_out);
+  EXPECT_EQ(s.error_code(), grpc::StatusCode::INVALID_ARGUMENT);
+  EXPECT_NE(s.error_message().find("query.relations[2] (r2).rows: must be a finite number > 0"),
+            std::string::npos)
+      << s.error_message();
+
+  v1::SolveSliceRequest bad_options;
+  *bad_options.mutable_query() = query;
+  bad_options.set_slice_count(1);
+  bad_options.mutable_options()->set_cost(v1::COST_MODEL_CLUSTER);
+  bad_options.mutable_options()->mutable_cluster()->add_node_counts(0);
+  s = Call(*worker, &v1::SliceWorker::Stub::SolveSlice, bad_options, &slice_out);
+  EXPECT_EQ(s.error_code(), grpc::StatusCode::INVALID_ARGUMENT);
+  EXPECT_NE(s.error_message().find("node_counts[0]: must be a whole number in 1..1000000, got 0"),
+            std::string::npos)
+      << s.error_message();
 
   v1::SolveSliceRequest too_big;  // memo over the worker's limit
   *too_big.mutable_query() = QueryToProto(testing::MakeQuery(GraphShape::kChain, 34, 1));
