@@ -24,11 +24,29 @@ TEST(CliConfigTest, DefaultsAndTheQueryPath) {
 }
 
 TEST(CliConfigTest, EveryFlagLandsInItsField) {
-  auto c = Parse({"--shape=left-deep", "--cross-products=false", "--cost=cluster", "q.json",
-                  "--slices=8", "--workers=5", "--format=json", "--deadline-seconds=2.5",
-                  "--partial-on-deadline=true", "--memo-limit=512MiB", "--alpha=1.05",
-                  "--node-counts=4,16", "--sample-rates=1,0.1", "--quiet",
-                  "--coordinator=10.0.0.7:7000"});
+  auto c = Parse({"--shape=left-deep",
+                  "--cross-products=false",
+                  "--cost=cluster",
+                  "q.json",
+                  "--slices=8",
+                  "--workers=5",
+                  "--format=json",
+                  "--deadline-seconds=2.5",
+                  "--partial-on-deadline=true",
+                  "--memo-limit=512MiB",
+                  "--alpha=1.05",
+                  "--node-counts=4,16",
+                  "--sample-rates=1,0.1",
+                  "--quiet",
+                  "--coordinator=10.0.0.7:7000",
+                  "--net-bytes-per-s=2e9",
+                  "--cpu-rows-per-s=1e8",
+                  "--scan-bytes-per-s=7e8",
+                  "--stage-startup-s=0.25",
+                  "--objectives=latency_s,completeness",
+                  "--bound=completeness>=0.9",
+                  "--prefer=node_seconds",
+                  "--plot=f.svg"});
   ASSERT_TRUE(c.ok()) << c.status();
   EXPECT_EQ(c->search.shape, PlanShape::kLeftDeep);
   EXPECT_FALSE(c->search.cross_products);
@@ -44,6 +62,16 @@ TEST(CliConfigTest, EveryFlagLandsInItsField) {
   EXPECT_EQ(c->search.cluster.params.sample_rates, (std::vector<double>{1, 0.1}));
   EXPECT_TRUE(c->quiet);
   EXPECT_EQ(c->coordinator, "10.0.0.7:7000");
+  const ClusterParams& p = c->search.cluster.params;
+  EXPECT_EQ(p.net_bytes_per_s, 2e9);
+  EXPECT_EQ(p.cpu_rows_per_s, 1e8);
+  EXPECT_EQ(p.scan_bytes_per_s, 7e8);
+  EXPECT_EQ(p.stage_startup_s, 0.25);
+  EXPECT_EQ(c->search.cluster.objectives.mask, Objectives::kLatency | Objectives::kCompleteness);
+  ASSERT_EQ(c->search.cluster.choice.bounds.size(), 1u);
+  EXPECT_EQ(c->search.cluster.choice.bounds[0].value, 0.9);
+  EXPECT_EQ(c->search.cluster.choice.prefer.node_seconds, 1);
+  EXPECT_EQ(c->plot_path, "f.svg");
 }
 
 TEST(CliConfigTest, BadValuesNameTheFlag) {

@@ -114,6 +114,38 @@ for s in slices:
 PY
 then passed=$((passed + 1)); else failed=$((failed + 1)); echo "FAIL json_fields"; fi
 
+# --cross-products=false: the JSON says so and no join of the plan is a
+# cross product (every join is backed by a predicate between its sides).
+if "$bin" optimize "$examples/port_calls_small.json" --cross-products=false --format=json \
+     --shape=left-deep >"$tmp/connected" 2>/dev/null &&
+   python3 - "$tmp/connected" "$examples/port_calls_small.json" <<'PY'
+import json, sys
+doc, query = json.load(open(sys.argv[1])), json.load(open(sys.argv[2]))
+assert doc["cross_products"] is False and doc["shape"] == "left-deep", doc
+tree = doc["plans"][0]["tree"]
+def parse(s, i=0):
+    if s[i] == "(":
+        left, i = parse(s, i + 1)
+        right, i = parse(s, i + 1)
+        return (left, right), i + 1
+    j = i
+    while j < len(s) and s[j] not in " ()":
+        j += 1
+    return s[i:j], j
+def leaves(t):
+    return {t} if isinstance(t, str) else leaves(t[0]) | leaves(t[1])
+def check(t):
+    if isinstance(t, str):
+        return
+    l, r = leaves(t[0]), leaves(t[1])
+    assert isinstance(t[1], str), ("left-deep", t)
+    assert any(set(p["relations"]) <= l | r and set(p["relations"]) & l and set(p["relations"]) & r
+               for p in query["predicates"]), ("cross product", l, r)
+    check(t[0]); check(t[1])
+check(parse(tree)[0])
+PY
+then passed=$((passed + 1)); else failed=$((failed + 1)); echo "FAIL connected_plan"; fi
+
 # Every format names the same plan: the same query, slice count and one
 # worker (a deterministic run) in text, JSON and DOT; each run must succeed,
 # and the DOT graph is rebuilt into a tree and compared with the JSON tree.

@@ -1,6 +1,7 @@
 // The cluster model and its Pareto search: hand-computed stage times, the
 // exact frontier against exhaustive enumeration, the alpha guarantee, the
 // completeness-level rule, slicing, and a TPC-H join graph.
+#include <algorithm>
 #include <bit>
 #include <cmath>
 
@@ -182,6 +183,46 @@ INSTANTIATE_TEST_SUITE_P(
              std::to_string(c.rates.size()) + "rates_" +
              (c.shape == PlanShape::kBushy ? "bushy" : "leftdeep");
     });
+
+// On latency and node-seconds alone, the frontier is the set of distinct
+// (latency, node-seconds) points no other plan beats on both, whatever its
+// completeness; with latency alone, one plan of least latency.
+TEST(ClusterSearchTest, FrontierOnASubsetOfObjectives) {
+  for (uint64_t seed = 1; seed <= 3; ++seed) {
+    const Query q = testing::MakeQuery(testing::GraphShape::kRandom, 3, seed);
+    SearchOptions o = ClusterOptions({4, 16}, {1.0, 0.1});
+    o.cluster.objectives.mask = Objectives::kLatency | Objectives::kNodeSeconds;
+    const auto all = testing::RefAllClusterPlans(q, o.cluster.params, false);
+    std::vector<std::pair<double, double>> want;
+    for (const RefCosts& a : all) {
+      bool beaten = false;
+      for (const RefCosts& b : all) {
+        beaten |= b.latency <= a.latency && b.node_seconds <= a.node_seconds &&
+                  (b.latency < a.latency || b.node_seconds < a.node_seconds);
+      }
+      if (!beaten) want.emplace_back(a.latency, a.node_seconds);
+    }
+    std::sort(want.begin(), want.end());
+    want.erase(std::unique(want.begin(), want.end(),
+                           [](const auto& x, const auto& y) {
+                             return Near(x.first, y.first) && Near(x.second, y.second);
+                           }),
+               want.end());
+    ASSERT_GE(want.size(), 2u) << "a real trade-off";
+    for (uint32_t p : {1u, 2u}) {
+      const auto got = Frontier(q, o, p);
+      ASSERT_EQ(got.size(), want.size()) << "seed " << seed << " P=" << p;
+      for (size_t i = 0; i < got.size(); ++i) {
+        EXPECT_TRUE(Near(got[i].root().metrics.latency_s, want[i].first));
+        EXPECT_TRUE(Near(got[i].root().metrics.node_seconds, want[i].second));
+      }
+    }
+    o.cluster.objectives.mask = Objectives::kLatency;
+    const auto fastest = Frontier(q, o);
+    ASSERT_EQ(fastest.size(), 1u);
+    EXPECT_TRUE(Near(fastest[0].root().metrics.latency_s, want.front().first));
+  }
+}
 
 TEST(ClusterSearchTest, ExactFrontierWithoutCrossProducts) {
   // The connected-sets enumerators keep a set's Pareto set in place while

@@ -5,6 +5,7 @@
 
 #include <atomic>
 #include <chrono>
+#include <cstdio>
 #include <thread>
 
 #include "cli/rpc_client.h"
@@ -157,6 +158,41 @@ TEST(ServiceTest, HangingWorkerIsHedgedWithinTheDeadline) {
   EXPECT_GE(remote->hedges, 1u);
   const double want = Optimum(q);
   EXPECT_NEAR(remote->result.plan.root().cost, want, 1e-12 * want);
+}
+
+// max_workers caps the workers a request uses; `sliceplan workers` lists
+// the pool with each worker's solved count.
+TEST(ServiceTest, MaxWorkersAndThePoolListing) {
+  Cluster c = StartCluster(3);
+  ASSERT_TRUE(c.coordinator);
+  auto stub = v1::Coordinator::NewStub(
+      grpc::CreateChannel(c.coordinator->address(), grpc::InsecureChannelCredentials()));
+  v1::OptimizeRequest r;
+  *r.mutable_query() = QueryToProto(testing::MakeQuery(GraphShape::kChain, 12, 1));
+  r.set_slice_count(8);
+  r.set_max_workers(1);
+  grpc::ClientContext context;
+  context.set_deadline(std::chrono::system_clock::now() + 20s);
+  v1::OptimizeResponse out;
+  ASSERT_TRUE(stub->Optimize(&context, r, &out).ok());
+  EXPECT_EQ(out.workers_used(), 1u);
+  ASSERT_EQ(out.slices_size(), 8);
+  for (const v1::SliceStats& s : out.slices()) EXPECT_EQ(s.worker(), out.slices(0).worker());
+
+  const std::string cmd =
+      std::string(SLICEPLAN_CLI_BIN) + " workers --coordinator=" + c.coordinator->address();
+  FILE* pipe = popen(cmd.c_str(), "r");
+  ASSERT_NE(pipe, nullptr);
+  std::string listing;
+  char buf[256];
+  while (fgets(buf, sizeof buf, pipe) != nullptr) listing += buf;
+  EXPECT_EQ(WEXITSTATUS(pclose(pipe)), 0);
+  EXPECT_NE(listing.find("3 of 3 workers healthy"), std::string::npos) << listing;
+  EXPECT_NE(listing.find(out.slices(0).worker()), std::string::npos) << listing;
+  // The worker that did all eight slices says so.
+  const size_t row = listing.find(out.slices(0).worker());
+  const std::string line = listing.substr(row, listing.find('\n', row) - row);
+  EXPECT_NE(line.find(" 8 "), std::string::npos) << line;
 }
 
 TEST(ServiceTest, AllWorkersDownIsUnavailableNotAHang) {
