@@ -239,7 +239,10 @@ TEST_P(TpchTest, PlanIsValidAndOptimal) {
   }
 }
 
-INSTANTIATE_TEST_SUITE_P(Queries, TpchTest, ::testing::Values("q5", "q8", "q9"));
+INSTANTIATE_TEST_SUITE_P(Queries, TpchTest, ::testing::Values("q5", "q8", "q9"),
+                         [](const ::testing::TestParamInfo<const char*>& param_info) {
+                           return std::string(param_info.param);
+                         });
 
 }  // namespace
 }  // namespace sliceplan

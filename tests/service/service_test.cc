@@ -240,6 +240,29 @@ TEST(ServiceTest, DeadlineExceededOrPartialAsRequested) {
   EXPECT_DOUBLE_EQ(remote->coverage, 0.75);
 }
 
+// The CLI's --deadline-seconds and --partial-on-deadline end to end: a
+// hung worker holds one slice of four, the answer covers the other three.
+TEST(ServiceTest, CliPartialAnswerOnDeadline) {
+  std::vector<std::unique_ptr<ServerProcess>> workers;
+  workers.push_back(StartWorker({"--test_only_hang_seconds=600"}));
+  workers.push_back(StartWorker());
+  auto coordinator = StartCoordinator(workers, {"--hedge_after_seconds=0"});
+  ASSERT_TRUE(coordinator);
+  const std::string query = std::string(SLICEPLAN_SOURCE_DIR) + "/examples/port_calls_small.json";
+  const std::string cmd = std::string(SLICEPLAN_CLI_BIN) + " optimize " + query +
+                          " --slices=4 --format=json --deadline-seconds=1.5 "
+                          "--partial-on-deadline=true --quiet --coordinator=" +
+                          coordinator->address();
+  FILE* pipe = popen(cmd.c_str(), "r");
+  ASSERT_NE(pipe, nullptr);
+  std::string json;
+  char buf[512];
+  while (fgets(buf, sizeof buf, pipe) != nullptr) json += buf;
+  EXPECT_EQ(WEXITSTATUS(pclose(pipe)), 0);
+  EXPECT_NE(json.find("\"proven_optimal\": false"), std::string::npos) << json;
+  EXPECT_NE(json.find("\"coverage\": 0.75"), std::string::npos) << json;
+}
+
 template <class Stub, class Request, class Response, class Method>
 grpc::Status Call(Stub& stub, Method method, const Request& request, Response* response) {
   grpc::ClientContext context;
