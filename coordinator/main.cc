@@ -15,6 +15,8 @@
 #include "spdlog/spdlog.h"
 
 ABSL_FLAG(std::string, listen, "127.0.0.1:0", "address to serve on (port 0: any free port)");
+ABSL_FLAG(bool, insecure, false,
+          "allow a plaintext listener on an address other than loopback (no TLS yet)");
 ABSL_FLAG(std::string, workers, "",
           "worker addresses HOST:PORT,... (a name with many addresses gives many workers)");
 ABSL_FLAG(double, hedge_after_seconds, 2.0,
@@ -77,6 +79,12 @@ int main(int argc, char** argv) {
   spdlog::set_default_logger(spdlog::stderr_color_mt("sliceplan"));
   const std::string listen = absl::GetFlag(FLAGS_listen);
   if (auto s = sliceplan::ValidateListenAddress(listen); !s.ok()) return Refuse(s);
+  const bool insecure = absl::GetFlag(FLAGS_insecure);
+  if (auto s = sliceplan::CheckPlaintextAllowed(listen, insecure); !s.ok()) return Refuse(s);
+  if (insecure && !sliceplan::IsLoopbackAddress(listen)) {
+    spdlog::warn("coordinator: serving plaintext on {}, reachable from other hosts (--insecure)",
+                 listen);
+  }
   auto entries = sliceplan::ParseWorkerList(absl::GetFlag(FLAGS_workers));
   if (!entries.ok()) return Refuse(entries.status());
   auto config = ConfigFromFlags();
@@ -92,6 +100,7 @@ int main(int argc, char** argv) {
                absl::GetFlag(FLAGS_hedge_after_seconds));
   sliceplan::ServeOptions serve;
   serve.max_request_bytes = config->limits.max_query_bytes;
+  serve.allow_plaintext_off_host = insecure;
   serve.shutdown_grace = std::chrono::milliseconds(static_cast<int64_t>(grace * 1000));
   const auto status = sliceplan::Serve(listen, {&service}, serve);
   if (!status.ok()) {

@@ -38,6 +38,22 @@ absl::Status ValidateListenAddress(const std::string& address, const char* flag)
   return absl::OkStatus();
 }
 
+bool IsLoopbackAddress(const std::string& address) {
+  std::string host = address.substr(0, address.rfind(':'));
+  if (host.size() > 2 && host.front() == '[' && host.back() == ']') {
+    host = host.substr(1, host.size() - 2);
+  }
+  return host == "localhost" || host == "::1" || host.rfind("127.", 0) == 0;
+}
+
+absl::Status CheckPlaintextAllowed(const std::string& listen, bool allow_off_host) {
+  if (IsLoopbackAddress(listen) || allow_off_host) return absl::OkStatus();
+  return absl::FailedPreconditionError(absl::StrCat(
+      "--listen: ", ShortName(listen),
+      " is reachable from other hosts, and this server has no TLS yet; listen on loopback, "
+      "or pass --insecure to serve plaintext off-host"));
+}
+
 namespace {
 
 // gRPC answers a request it cannot parse (a string field holding invalid
@@ -76,6 +92,7 @@ class UnparsedRequestInterceptorFactory
 absl::Status Serve(const std::string& listen, const std::vector<grpc::Service*>& services,
                    const ServeOptions& options) {
   if (auto s = ValidateListenAddress(listen); !s.ok()) return s;
+  if (auto s = CheckPlaintextAllowed(listen, options.allow_plaintext_off_host); !s.ok()) return s;
   grpc::EnableDefaultHealthCheckService(true);
   grpc::reflection::InitProtoReflectionServerBuilderPlugin();
   grpc::ServerBuilder builder;

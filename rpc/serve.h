@@ -25,7 +25,21 @@ void BlockStopSignals();
 // [V6]:PORT) with a port of decimal digits in 0..65535.
 absl::Status ValidateListenAddress(const std::string& address, const char* flag = "--listen");
 
+// True when `address` (HOST:PORT) names a loopback host: localhost,
+// 127.0.0.0/8 or ::1. Anything else, the wildcard 0.0.0.0 and [::]
+// included, is reachable from other hosts.
+bool IsLoopbackAddress(const std::string& address);
+
+// FAILED_PRECONDITION naming the address when `listen` is off-host and
+// plaintext off-host is not allowed (ServeOptions). Mains call it before
+// they start anything, so the refusal comes first.
+absl::Status CheckPlaintextAllowed(const std::string& listen, bool allow_off_host);
+
 struct ServeOptions {
+  // These servers speak plaintext gRPC (TLS is not built yet), so a listen
+  // address other than loopback is refused (FAILED_PRECONDITION) unless
+  // this is set (the servers' --insecure flag), and then logged.
+  bool allow_plaintext_off_host = false;
   // Largest request accepted (gRPC's receive limit); larger ones fail with
   // RESOURCE_EXHAUSTED before they are parsed.
   int64_t max_request_bytes = int64_t{16} << 20;
@@ -38,8 +52,9 @@ struct ServeOptions {
 };
 
 // Serves `services` on `listen` until a stop signal. Errors:
-// INVALID_ARGUMENT for a malformed address or port, UNAVAILABLE when the
-// address cannot be bound.
+// INVALID_ARGUMENT for a malformed address or port, FAILED_PRECONDITION for
+// an off-host address without allow_plaintext_off_host, UNAVAILABLE when
+// the address cannot be bound.
 absl::Status Serve(const std::string& listen, const std::vector<grpc::Service*>& services,
                    const ServeOptions& options = {});
 

@@ -15,6 +15,8 @@
 #include "worker/worker_service.h"
 
 ABSL_FLAG(std::string, listen, "127.0.0.1:0", "address to serve on (port 0: any free port)");
+ABSL_FLAG(bool, insecure, false,
+          "allow a plaintext listener on an address other than loopback (no TLS yet)");
 ABSL_FLAG(int, threads, 0, "slices solved at once (0: the machine's cores)");
 ABSL_FLAG(double, memo_limit_gib, 8.0, "per-slice memo limit in GiB");
 ABSL_FLAG(int64_t, max_request_bytes, int64_t{16} << 20, "largest request accepted, in bytes");
@@ -56,6 +58,14 @@ int main(int argc, char** argv) {
   if (auto s = sliceplan::ValidateListenAddress(listen); !s.ok()) {
     return Refuse(std::string(s.message()));
   }
+  const bool insecure = absl::GetFlag(FLAGS_insecure);
+  if (auto s = sliceplan::CheckPlaintextAllowed(listen, insecure); !s.ok()) {
+    return Refuse(std::string(s.message()));
+  }
+  if (insecure && !sliceplan::IsLoopbackAddress(listen)) {
+    spdlog::warn("worker: serving plaintext on {}, reachable from other hosts (--insecure)",
+                 listen);
+  }
   sliceplan::WorkerConfig config;
   config.threads = absl::GetFlag(FLAGS_threads);
   if (config.threads <= 0) {
@@ -83,6 +93,7 @@ int main(int argc, char** argv) {
                config.test_hang_seconds > 0 ? " (test fault: hanging)" : "");
   sliceplan::ServeOptions serve;
   serve.max_request_bytes = config.limits.max_query_bytes;
+  serve.allow_plaintext_off_host = insecure;
   serve.shutdown_grace = std::chrono::milliseconds(static_cast<int64_t>(grace * 1000));
   const auto status = sliceplan::Serve(listen, {&service}, serve);
   if (!status.ok()) {

@@ -110,6 +110,24 @@ TEST(HostileClientTest, PortOutsideTheRangeIsRefusedAtStart) {
   }
 }
 
+// Plaintext only on loopback unless --insecure: nothing listens off-host
+// without TLS unless told.
+TEST(HostileClientTest, OffHostPlaintextNeedsInsecure) {
+  for (const std::string& bin :
+       {std::string(SLICEPLAN_WORKER_BIN),
+        std::string(SLICEPLAN_COORDINATOR_BIN) + " --workers=127.0.0.1:1"}) {
+    FILE* out = popen((bin + " --listen=0.0.0.0:0 2>&1").c_str(), "r");
+    ASSERT_NE(out, nullptr);
+    char buf[512] = {};
+    const size_t n = fread(buf, 1, sizeof buf - 1, out);
+    EXPECT_EQ(WEXITSTATUS(pclose(out)), 2) << bin;
+    EXPECT_NE(std::string(buf, n).find("is reachable from other hosts"), std::string::npos) << buf;
+  }
+  auto w = testing::StartWorker({"--listen=0.0.0.0:0", "--insecure"});
+  ASSERT_TRUE(w);
+  EXPECT_EQ(w->address().rfind("0.0.0.0:", 0), 0u) << w->address();
+}
+
 TEST(HostileClientTest, CancelledStreamStopsEveryWorker) {
   Cluster c = StartCluster(2);
   ASSERT_TRUE(c.coordinator);
