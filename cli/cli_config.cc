@@ -34,6 +34,16 @@ absl::StatusOr<double> ParseDouble(const std::string& flag, const std::string& v
   return d;
 }
 
+// The connection flags shared by `optimize --coordinator` and `workers`.
+// REQUIRES: flag is one of tls-ca, tls-cert, tls-key, token-file.
+void SetConnectionFlag(const std::string& flag, const std::string& value, TlsFiles& tls,
+                       std::string& token_file) {
+  if (flag == "tls-ca") tls.ca = value;
+  if (flag == "tls-cert") tls.cert = value;
+  if (flag == "tls-key") tls.key = value;
+  if (flag == "token-file") token_file = value;
+}
+
 absl::Status SetFlag(OptimizeConfig& config, const std::string& flag, const std::string& value) {
   if (flag == "shape") {
     if (value == "bushy")
@@ -124,6 +134,9 @@ absl::Status SetFlag(OptimizeConfig& config, const std::string& flag, const std:
       config.partial_on_deadline = false;
     else
       return BadFlag(flag, value, "true or false");
+  } else if (flag == "tls-ca" || flag == "tls-cert" || flag == "tls-key" || flag == "token-file") {
+    if (value.empty()) return BadFlag(flag, value, "a file name");
+    SetConnectionFlag(flag, value, config.tls, config.token_file);
   } else if (flag == "memo-limit") {
     auto bytes = ParseBytes(value);
     if (!bytes.ok()) return BadFlag(flag, value, "bytes, e.g. 512MiB or 8GiB");
@@ -179,14 +192,26 @@ absl::StatusOr<OptimizeConfig> ParseOptimizeArgs(const std::vector<std::string>&
   if (config.query_path.empty()) {
     return absl::InvalidArgumentError("QUERY.json: no query file given");
   }
+  if ((config.tls.any() || !config.token_file.empty()) && !config.coordinator) {
+    return absl::InvalidArgumentError(
+        "--tls-ca, --tls-cert, --tls-key and --token-file: need --coordinator");
+  }
   return config;
 }
 
 absl::StatusOr<WorkersConfig> ParseWorkersArgs(const std::vector<std::string>& args) {
   WorkersConfig config;
   for (const std::string& arg : args) {
-    if (arg.rfind("--coordinator=", 0) == 0 && arg.size() > 14) {
-      config.coordinator = arg.substr(14);
+    const size_t eq = arg.find('=');
+    const std::string flag =
+        arg.rfind("--", 0) == 0 && eq != std::string::npos ? arg.substr(2, eq - 2) : std::string();
+    const std::string value = eq == std::string::npos ? "" : arg.substr(eq + 1);
+    if (flag == "coordinator" && !value.empty()) {
+      config.coordinator = value;
+    } else if ((flag == "tls-ca" || flag == "tls-cert" || flag == "tls-key" ||
+                flag == "token-file") &&
+               !value.empty()) {
+      SetConnectionFlag(flag, value, config.tls, config.token_file);
     } else {
       return absl::InvalidArgumentError(absl::StrCat(arg, ": unknown argument"));
     }
@@ -223,12 +248,16 @@ The cluster model (--cost=cluster) returns the Pareto set of plans:
   --bound=METRIC<=V|>=V          repeatable, e.g. --bound=completeness>=0.99
   --prefer=METRIC|weights:M=W,.. which frontier plan to name (latency_s)
   --plot=FILE.svg                latency against node-seconds, one point a plan
+  --tls-ca=FILE                  with --coordinator: verify it against this CA (TLS)
+  --tls-cert=FILE --tls-key=FILE with --coordinator: present this certificate
+  --token-file=FILE              with --coordinator: send its first bearer token
   --deadline-seconds=S           give up after S seconds
   --partial-on-deadline=true     at the deadline, print the best plan so far
                                  (marked not proven optimal) instead of failing
   --quiet                        no progress bar on stderr
 
-usage: sliceplan workers --coordinator=HOST:PORT
+usage: sliceplan workers --coordinator=HOST:PORT [--tls-ca=FILE [--tls-cert=FILE --tls-key=FILE]]
+                         [--token-file=FILE]
 
 Lists the coordinator's worker pool and its health.
 

@@ -10,6 +10,7 @@
 
 #include "absl/status/statusor.h"
 #include "core/slice_solver.h"
+#include "rpc/tls.h"
 
 namespace sliceplan::cli {
 
@@ -26,11 +27,15 @@ struct OptimizeConfig {
   bool partial_on_deadline = false;  // best plan so far instead of an error
   bool quiet = false;                // no progress bar
   std::string plot_path;             // --plot=FILE.svg (cluster model)
+  TlsFiles tls;                      // --tls-ca, --tls-cert, --tls-key (with --coordinator)
+  std::string token_file;            // --token-file (with --coordinator)
 };
 
 // `sliceplan workers --coordinator=HOST:PORT`.
 struct WorkersConfig {
   std::string coordinator;
+  TlsFiles tls;
+  std::string token_file;
 };
 absl::StatusOr<WorkersConfig> ParseWorkersArgs(const std::vector<std::string>& args);
 

@@ -50,8 +50,10 @@ absl::StatusOr<ScheduleOutcome> Solve(const OptimizeConfig& config, const Query&
                                       ProgressBar& bar) {
   const auto progress = [&bar](const ScheduleProgress& p) { bar.Update(p); };
   if (config.coordinator) {
-    RemoteRequest request{*config.coordinator, config.search, config.slices.value_or(0),
-                          config.deadline_seconds, config.partial_on_deadline};
+    RemoteRequest request{*config.coordinator,        config.search,
+                          config.slices.value_or(0),  config.deadline_seconds,
+                          config.partial_on_deadline, config.tls,
+                          config.token_file};
     return OptimizeRemote(request, query, progress);
   }
   const uint32_t slices =
@@ -112,7 +114,7 @@ int Optimize(const std::vector<std::string>& args) {
 int Workers(const std::vector<std::string>& args) {
   auto config = ParseWorkersArgs(args);
   if (!config.ok()) return Fail(config.status());
-  auto pool = ListWorkersRemote(config->coordinator);
+  auto pool = ListWorkersRemote(config->coordinator, config->tls, config->token_file);
   if (!pool.ok()) return Fail(pool.status());
   std::cout << absl::StrFormat("%-28s %-9s %7s %8s %8s  %s\n", "worker", "health", "threads",
                                "solved", "failed", "last error");

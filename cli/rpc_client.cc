@@ -3,7 +3,9 @@
 #include <chrono>
 
 #include "absl/strings/str_cat.h"
+#include "core/status_macros.h"
 #include "grpcpp/grpcpp.h"
+#include "rpc/bearer_tokens.h"
 #include "rpc/rpc_status.h"
 #include "sliceplan.grpc.pb.h"
 #include "wire/query_proto.h"
@@ -12,11 +14,21 @@
 namespace sliceplan::cli {
 namespace {
 
-std::unique_ptr<v1::Coordinator::Stub> Connect(const std::string& address) {
+absl::StatusOr<std::unique_ptr<v1::Coordinator::Stub>> Connect(const std::string& address,
+                                                               const TlsFiles& tls) {
+  ASSIGN_OR_RETURN(std::shared_ptr<grpc::ChannelCredentials> credentials,
+                   ChannelCredentialsFor(tls));
   grpc::ChannelArguments args;
   args.SetMaxReceiveMessageSize(64 << 20);
-  return v1::Coordinator::NewStub(
-      grpc::CreateCustomChannel(address, grpc::InsecureChannelCredentials(), args));
+  return v1::Coordinator::NewStub(grpc::CreateCustomChannel(address, credentials, args));
+}
+
+// Adds the bearer token of `token_file`, if one is named.
+absl::Status Authorize(grpc::ClientContext& context, const std::string& token_file) {
+  if (token_file.empty()) return absl::OkStatus();
+  ASSIGN_OR_RETURN(const std::string token, ReadClientToken(token_file));
+  context.AddMetadata("authorization", "Bearer " + token);
+  return absl::OkStatus();
 }
 
 }  // namespace
@@ -24,7 +36,7 @@ std::unique_ptr<v1::Coordinator::Stub> Connect(const std::string& address) {
 absl::StatusOr<ScheduleOutcome> OptimizeRemote(
     const RemoteRequest& request, const Query& query,
     const std::function<void(const ScheduleProgress&)>& on_progress) {
-  auto stub = Connect(request.coordinator);
+  ASSIGN_OR_RETURN(auto stub, Connect(request.coordinator, request.tls));
   v1::OptimizeRequest m;
   *m.mutable_query() = QueryToProto(query);
   *m.mutable_options() = SearchOptionsToProto(request.options);
@@ -32,6 +44,7 @@ absl::StatusOr<ScheduleOutcome> OptimizeRemote(
   m.set_deadline_seconds(request.deadline_seconds);
   m.set_partial_on_deadline(request.partial_on_deadline);
   grpc::ClientContext context;
+  RETURN_IF_ERROR(Authorize(context, request.token_file));
   // Room for the answer to travel back; past a year the server's own
   // maximum is the bound, and the call gets none.
   if (request.deadline_seconds > 0 && request.deadline_seconds < 3.2e7) {
@@ -65,9 +78,12 @@ absl::StatusOr<ScheduleOutcome> OptimizeRemote(
   return OutcomeFromProto(*result, query, request.options.cost);
 }
 
-absl::StatusOr<v1::ListWorkersResponse> ListWorkersRemote(const std::string& coordinator) {
-  auto stub = Connect(coordinator);
+absl::StatusOr<v1::ListWorkersResponse> ListWorkersRemote(const std::string& coordinator,
+                                                          const TlsFiles& tls,
+                                                          const std::string& token_file) {
+  ASSIGN_OR_RETURN(auto stub, Connect(coordinator, tls));
   grpc::ClientContext context;
+  RETURN_IF_ERROR(Authorize(context, token_file));
   context.set_deadline(std::chrono::system_clock::now() + std::chrono::seconds(5));
   v1::ListWorkersResponse response;
   const grpc::Status status = stub->ListWorkers(&context, v1::ListWorkersRequest(), &response);

@@ -8,6 +8,7 @@
 
 #include "absl/status/statusor.h"
 #include "core/query.h"
+#include "rpc/tls.h"
 #include "schedule/slice_scheduler.h"
 #include "sliceplan.pb.h"
 
@@ -19,6 +20,8 @@ struct RemoteRequest {
   uint32_t slice_count = 0;  // 0: the coordinator chooses
   double deadline_seconds = 0;
   bool partial_on_deadline = false;
+  TlsFiles tls;            // --tls-ca [--tls-cert --tls-key]; none: plaintext
+  std::string token_file;  // --token-file: the bearer token sent with each call
 };
 
 // Calls OptimizeStream and converts the answer (the plan is checked
@@ -27,7 +30,9 @@ absl::StatusOr<ScheduleOutcome> OptimizeRemote(
     const RemoteRequest& request, const Query& query,
     const std::function<void(const ScheduleProgress&)>& on_progress);
 
-absl::StatusOr<v1::ListWorkersResponse> ListWorkersRemote(const std::string& coordinator);
+absl::StatusOr<v1::ListWorkersResponse> ListWorkersRemote(const std::string& coordinator,
+                                                          const TlsFiles& tls = {},
+                                                          const std::string& token_file = "");
 
 }  // namespace sliceplan::cli
 

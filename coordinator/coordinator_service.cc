@@ -89,9 +89,15 @@ absl::StatusOr<v1::OptimizeResponse> CoordinatorService::Run(
   return OutcomeToProto(*outcome, options.cost);
 }
 
+absl::Status CoordinatorService::Authenticate(const grpc::ServerContext& context) const {
+  if (!config_.tokens) return absl::OkStatus();
+  return config_.tokens->Check(context);
+}
+
 grpc::Status CoordinatorService::Optimize(grpc::ServerContext* context,
                                           const v1::OptimizeRequest* request,
                                           v1::OptimizeResponse* response) {
+  if (auto s = Authenticate(*context); !s.ok()) return ToGrpc(s);
   auto result = Run(context, *request, {});
   if (!result.ok()) return ToGrpc(result.status());
   *response = *std::move(result);
@@ -101,6 +107,7 @@ grpc::Status CoordinatorService::Optimize(grpc::ServerContext* context,
 grpc::Status CoordinatorService::OptimizeStream(grpc::ServerContext* context,
                                                 const v1::OptimizeRequest* request,
                                                 grpc::ServerWriter<v1::OptimizeEvent>* writer) {
+  if (auto s = Authenticate(*context); !s.ok()) return ToGrpc(s);
   absl::Mutex write_mu;  // progress comes from the scheduler's threads
   auto result = Run(context, *request, [&](const ScheduleProgress& p) {
     v1::OptimizeEvent event;
@@ -120,8 +127,10 @@ grpc::Status CoordinatorService::OptimizeStream(grpc::ServerContext* context,
   return grpc::Status::OK;
 }
 
-grpc::Status CoordinatorService::ListWorkers(grpc::ServerContext*, const v1::ListWorkersRequest*,
+grpc::Status CoordinatorService::ListWorkers(grpc::ServerContext* context,
+                                             const v1::ListWorkersRequest*,
                                              v1::ListWorkersResponse* response) {
+  if (auto s = Authenticate(*context); !s.ok()) return ToGrpc(s);
   for (const auto& w : pool_.Workers()) {
     v1::WorkerStatus* s = response->add_workers();
     const WorkerCounters c = w->counters();

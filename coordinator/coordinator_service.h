@@ -11,6 +11,7 @@
 #include "absl/status/statusor.h"
 #include "coordinator/worker_pool.h"
 #include "core/input_limits.h"
+#include "rpc/bearer_tokens.h"
 #include "schedule/slice_scheduler.h"
 #include "sliceplan.grpc.pb.h"
 
@@ -22,6 +23,9 @@ struct CoordinatorConfig {
   // Answer this long before the call's deadline, to get the answer back in time.
   std::chrono::milliseconds deadline_margin{50};
   InputLimits limits;
+  // Bearer tokens every client call must carry; none: calls are not
+  // authenticated (loopback development, tests).
+  std::optional<BearerTokens> tokens;
 };
 
 class CoordinatorService final : public v1::Coordinator::Service {
@@ -37,6 +41,8 @@ class CoordinatorService final : public v1::Coordinator::Service {
                            v1::ListWorkersResponse* response) override;
 
  private:
+  // UNAUTHENTICATED when tokens are configured and the call has none of them.
+  absl::Status Authenticate(const grpc::ServerContext& context) const;
   absl::StatusOr<v1::OptimizeResponse> Run(
       grpc::ServerContext* context, const v1::OptimizeRequest& request,
       const std::function<void(const ScheduleProgress&)>& on_progress);

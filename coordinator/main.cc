@@ -2,6 +2,8 @@
 //
 //   sliceplan-coordinator --listen=HOST:PORT --workers=HOST:PORT,...
 #include <iostream>
+#include <string>
+#include <vector>
 
 #include "absl/flags/flag.h"
 #include "absl/flags/parse.h"
@@ -10,13 +12,18 @@
 #include "absl/strings/match.h"
 #include "coordinator/coordinator_service.h"
 #include "coordinator/worker_pool.h"
+#include "rpc/flag_names.h"
 #include "rpc/serve.h"
+#include "rpc/tls.h"
 #include "spdlog/sinks/stdout_color_sinks.h"
 #include "spdlog/spdlog.h"
 
 ABSL_FLAG(std::string, listen, "127.0.0.1:0", "address to serve on (port 0: any free port)");
-ABSL_FLAG(bool, insecure, false,
-          "allow a plaintext listener on an address other than loopback (no TLS yet)");
+ABSL_FLAG(bool, insecure, false, "allow a plaintext listener on an address other than loopback");
+ABSL_FLAG(std::string, tls_cert, "", "PEM certificate to serve TLS with (with --tls-key)");
+ABSL_FLAG(std::string, tls_key, "", "PEM private key of --tls-cert");
+ABSL_FLAG(std::string, tls_ca, "",
+          "PEM CA: clients must present a certificate it signed (mutual TLS)");
 ABSL_FLAG(std::string, workers, "",
           "worker addresses HOST:PORT,... (a name with many addresses gives many workers)");
 ABSL_FLAG(double, hedge_after_seconds, 2.0,
@@ -29,6 +36,8 @@ ABSL_FLAG(int64_t, max_node_counts, 16, "most node counts a cluster-model reques
 ABSL_FLAG(int64_t, max_sample_rates, 16, "most sample rates a cluster-model request may list");
 ABSL_FLAG(double, max_deadline_seconds, 3600,
           "longest a request may run; a longer or absent deadline is cut to it");
+ABSL_FLAG(std::string, token_file, "",
+          "bearer tokens, one per line; client calls without one are UNAUTHENTICATED");
 ABSL_FLAG(double, shutdown_grace_seconds, 5,
           "on SIGTERM, how long running requests may go on before they are cancelled");
 
@@ -74,14 +83,26 @@ int main(int argc, char** argv) {
   };
   usage.contains_helpshort_flags = usage.contains_help_flags;
   absl::SetFlagsUsageConfig(usage);
-  absl::ParseCommandLine(argc, argv);
+  std::vector<std::string> arg_storage;
+  std::vector<char*> args = sliceplan::UnderscoreFlagNames(argc, argv, arg_storage);
+  absl::ParseCommandLine(static_cast<int>(args.size()), args.data());
   // Logs go to stderr: stdout carries only the listening line.
   spdlog::set_default_logger(spdlog::stderr_color_mt("sliceplan"));
   const std::string listen = absl::GetFlag(FLAGS_listen);
   if (auto s = sliceplan::ValidateListenAddress(listen); !s.ok()) return Refuse(s);
   const bool insecure = absl::GetFlag(FLAGS_insecure);
-  if (auto s = sliceplan::CheckPlaintextAllowed(listen, insecure); !s.ok()) return Refuse(s);
-  if (insecure && !sliceplan::IsLoopbackAddress(listen)) {
+  const sliceplan::TlsFiles tls{absl::GetFlag(FLAGS_tls_cert), absl::GetFlag(FLAGS_tls_key),
+                                absl::GetFlag(FLAGS_tls_ca)};
+  auto server_credentials = sliceplan::ServerCredentialsFor(tls);
+  if (!server_credentials.ok()) return Refuse(server_credentials.status());
+  // Toward the workers the coordinator is a client: its own certificate as
+  // its identity, the CA to verify them.
+  auto worker_credentials = sliceplan::ChannelCredentialsFor(tls);
+  if (!worker_credentials.ok()) return Refuse(worker_credentials.status());
+  if (auto s = sliceplan::CheckPlaintextAllowed(listen, tls.any() || insecure); !s.ok()) {
+    return Refuse(s);
+  }
+  if (!tls.any() && insecure && !sliceplan::IsLoopbackAddress(listen)) {
     spdlog::warn("coordinator: serving plaintext on {}, reachable from other hosts (--insecure)",
                  listen);
   }
@@ -89,18 +110,25 @@ int main(int argc, char** argv) {
   if (!entries.ok()) return Refuse(entries.status());
   auto config = ConfigFromFlags();
   if (!config.ok()) return Refuse(config.status());
+  if (const std::string path = absl::GetFlag(FLAGS_token_file); !path.empty()) {
+    auto tokens = sliceplan::BearerTokens::Load(path);
+    if (!tokens.ok()) return Refuse(tokens.status());
+    config->tokens = *std::move(tokens);
+  }
   const double grace = absl::GetFlag(FLAGS_shutdown_grace_seconds);
   if (!(grace >= 0 && grace <= 3600)) {
     return Refuse(absl::InvalidArgumentError("--shutdown_grace_seconds: must be in [0, 3600]"));
   }
   sliceplan::WorkerPool pool(*entries,
-                             std::chrono::milliseconds(absl::GetFlag(FLAGS_health_interval_ms)));
+                             std::chrono::milliseconds(absl::GetFlag(FLAGS_health_interval_ms)),
+                             tls.any() ? *worker_credentials : nullptr);
   sliceplan::CoordinatorService service(pool, *config);
   spdlog::info("coordinator: {} worker entries, hedge after {:.1f} s", entries->size(),
                absl::GetFlag(FLAGS_hedge_after_seconds));
   sliceplan::ServeOptions serve;
   serve.max_request_bytes = config->limits.max_query_bytes;
   serve.allow_plaintext_off_host = insecure;
+  if (tls.any()) serve.credentials = *server_credentials;
   serve.shutdown_grace = std::chrono::milliseconds(static_cast<int64_t>(grace * 1000));
   const auto status = sliceplan::Serve(listen, {&service}, serve);
   if (!status.ok()) {

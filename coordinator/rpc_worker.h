@@ -28,7 +28,9 @@ struct WorkerCounters {
 
 class RpcWorker : public SliceWorker {
  public:
-  explicit RpcWorker(std::string address);
+  // `credentials`: how to reach the worker (rpc/tls.h); null: plaintext.
+  explicit RpcWorker(std::string address,
+                     std::shared_ptr<grpc::ChannelCredentials> credentials = nullptr);
 
   std::string Name() const override { return address_; }
   int Slots() const override { return slots_.load(); }

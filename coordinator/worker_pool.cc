@@ -56,8 +56,9 @@ std::vector<std::string> ResolveEntry(const std::string& entry) {
   return {out.begin(), out.end()};
 }
 
-WorkerPool::WorkerPool(std::vector<std::string> entries, std::chrono::milliseconds interval)
-    : entries_(std::move(entries)), interval_(interval) {
+WorkerPool::WorkerPool(std::vector<std::string> entries, std::chrono::milliseconds interval,
+                       std::shared_ptr<grpc::ChannelCredentials> credentials)
+    : entries_(std::move(entries)), interval_(interval), credentials_(std::move(credentials)) {
   Refresh();
   thread_ = std::thread([this] { Loop(); });
 }
@@ -84,7 +85,7 @@ void WorkerPool::Refresh() {
   for (const std::string& a : addresses) {
     const bool known = std::any_of(workers_.begin(), workers_.end(),
                                    [&](const auto& w) { return w->Name() == a; });
-    if (!known) workers_.push_back(std::make_shared<RpcWorker>(a));
+    if (!known) workers_.push_back(std::make_shared<RpcWorker>(a, credentials_));
   }
 }
 

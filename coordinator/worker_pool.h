@@ -31,7 +31,9 @@ std::vector<std::string> ResolveEntry(const std::string& entry);
 
 class WorkerPool {
  public:
-  WorkerPool(std::vector<std::string> entries, std::chrono::milliseconds interval);
+  // `credentials` reach every worker (rpc/tls.h); null: plaintext.
+  WorkerPool(std::vector<std::string> entries, std::chrono::milliseconds interval,
+             std::shared_ptr<grpc::ChannelCredentials> credentials = nullptr);
   ~WorkerPool();  // stops the health thread
 
   // Every worker known now (healthy or not).
@@ -45,6 +47,7 @@ class WorkerPool {
 
   const std::vector<std::string> entries_;
   const std::chrono::milliseconds interval_;
+  const std::shared_ptr<grpc::ChannelCredentials> credentials_;
   mutable absl::Mutex mu_;
   std::vector<std::shared_ptr<RpcWorker>> workers_ ABSL_GUARDED_BY(mu_);
   bool stop_ ABSL_GUARDED_BY(mu_) = false;

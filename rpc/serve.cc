@@ -50,7 +50,7 @@ absl::Status CheckPlaintextAllowed(const std::string& listen, bool allow_off_hos
   if (IsLoopbackAddress(listen) || allow_off_host) return absl::OkStatus();
   return absl::FailedPreconditionError(absl::StrCat(
       "--listen: ", ShortName(listen),
-      " is reachable from other hosts, and this server has no TLS yet; listen on loopback, "
+      " is reachable from other hosts: serve TLS (--tls-cert, --tls-key), listen on loopback, "
       "or pass --insecure to serve plaintext off-host"));
 }
 
@@ -92,12 +92,16 @@ class UnparsedRequestInterceptorFactory
 absl::Status Serve(const std::string& listen, const std::vector<grpc::Service*>& services,
                    const ServeOptions& options) {
   if (auto s = ValidateListenAddress(listen); !s.ok()) return s;
-  if (auto s = CheckPlaintextAllowed(listen, options.allow_plaintext_off_host); !s.ok()) return s;
+  const bool tls = options.credentials != nullptr;
+  if (auto s = CheckPlaintextAllowed(listen, tls || options.allow_plaintext_off_host); !s.ok()) {
+    return s;
+  }
   grpc::EnableDefaultHealthCheckService(true);
   grpc::reflection::InitProtoReflectionServerBuilderPlugin();
   grpc::ServerBuilder builder;
   int port = 0;
-  builder.AddListeningPort(listen, grpc::InsecureServerCredentials(), &port);
+  builder.AddListeningPort(listen, tls ? options.credentials : grpc::InsecureServerCredentials(),
+                           &port);
   // Without this, gRPC opens one socket per poller with SO_REUSEPORT: with
   // port 0 each gets a different free port, and only the first is
   // announced; with a fixed port another process could share it.

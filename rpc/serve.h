@@ -9,6 +9,7 @@
 #include <chrono>
 #include <cstdint>
 #include <functional>
+#include <memory>
 #include <string>
 #include <vector>
 
@@ -31,15 +32,17 @@ absl::Status ValidateListenAddress(const std::string& address, const char* flag 
 bool IsLoopbackAddress(const std::string& address);
 
 // FAILED_PRECONDITION naming the address when `listen` is off-host and
-// plaintext off-host is not allowed (ServeOptions). Mains call it before
+// `allow_off_host` is false (no TLS, no --insecure). Mains call it before
 // they start anything, so the refusal comes first.
 absl::Status CheckPlaintextAllowed(const std::string& listen, bool allow_off_host);
 
 struct ServeOptions {
-  // These servers speak plaintext gRPC (TLS is not built yet), so a listen
-  // address other than loopback is refused (FAILED_PRECONDITION) unless
-  // this is set (the servers' --insecure flag), and then logged.
+  // A plaintext listener on an address other than loopback is refused
+  // (FAILED_PRECONDITION) unless this is set (the servers' --insecure
+  // flag), and then logged.
   bool allow_plaintext_off_host = false;
+  // TLS (rpc/tls.h); null: plaintext. A TLS server may listen anywhere.
+  std::shared_ptr<grpc::ServerCredentials> credentials;
   // Largest request accepted (gRPC's receive limit); larger ones fail with
   // RESOURCE_EXHAUSTED before they are parsed.
   int64_t max_request_bytes = int64_t{16} << 20;

@@ -2,21 +2,28 @@
 //
 //   sliceplan-worker --listen=HOST:PORT [--threads=N] [--memo_limit_gib=G]
 #include <iostream>
+#include <string>
 #include <thread>
+#include <vector>
 
 #include "absl/flags/flag.h"
 #include "absl/flags/parse.h"
 #include "absl/flags/usage.h"
 #include "absl/flags/usage_config.h"
 #include "absl/strings/match.h"
+#include "rpc/flag_names.h"
 #include "rpc/serve.h"
+#include "rpc/tls.h"
 #include "spdlog/sinks/stdout_color_sinks.h"
 #include "spdlog/spdlog.h"
 #include "worker/worker_service.h"
 
 ABSL_FLAG(std::string, listen, "127.0.0.1:0", "address to serve on (port 0: any free port)");
-ABSL_FLAG(bool, insecure, false,
-          "allow a plaintext listener on an address other than loopback (no TLS yet)");
+ABSL_FLAG(bool, insecure, false, "allow a plaintext listener on an address other than loopback");
+ABSL_FLAG(std::string, tls_cert, "", "PEM certificate to serve TLS with (with --tls-key)");
+ABSL_FLAG(std::string, tls_key, "", "PEM private key of --tls-cert");
+ABSL_FLAG(std::string, tls_ca, "",
+          "PEM CA: clients must present a certificate it signed (mutual TLS)");
 ABSL_FLAG(int, threads, 0, "slices solved at once (0: the machine's cores)");
 ABSL_FLAG(double, memo_limit_gib, 8.0, "per-slice memo limit in GiB");
 ABSL_FLAG(int64_t, max_request_bytes, int64_t{16} << 20, "largest request accepted, in bytes");
@@ -51,7 +58,9 @@ int main(int argc, char** argv) {
   };
   usage.contains_helpshort_flags = usage.contains_help_flags;
   absl::SetFlagsUsageConfig(usage);
-  absl::ParseCommandLine(argc, argv);
+  std::vector<std::string> arg_storage;
+  std::vector<char*> args = sliceplan::UnderscoreFlagNames(argc, argv, arg_storage);
+  absl::ParseCommandLine(static_cast<int>(args.size()), args.data());
   // Logs go to stderr: stdout carries only the listening line.
   spdlog::set_default_logger(spdlog::stderr_color_mt("sliceplan"));
   const std::string listen = absl::GetFlag(FLAGS_listen);
@@ -59,10 +68,14 @@ int main(int argc, char** argv) {
     return Refuse(std::string(s.message()));
   }
   const bool insecure = absl::GetFlag(FLAGS_insecure);
-  if (auto s = sliceplan::CheckPlaintextAllowed(listen, insecure); !s.ok()) {
+  const sliceplan::TlsFiles tls{absl::GetFlag(FLAGS_tls_cert), absl::GetFlag(FLAGS_tls_key),
+                                absl::GetFlag(FLAGS_tls_ca)};
+  auto credentials = sliceplan::ServerCredentialsFor(tls);
+  if (!credentials.ok()) return Refuse(std::string(credentials.status().message()));
+  if (auto s = sliceplan::CheckPlaintextAllowed(listen, tls.any() || insecure); !s.ok()) {
     return Refuse(std::string(s.message()));
   }
-  if (insecure && !sliceplan::IsLoopbackAddress(listen)) {
+  if (!tls.any() && insecure && !sliceplan::IsLoopbackAddress(listen)) {
     spdlog::warn("worker: serving plaintext on {}, reachable from other hosts (--insecure)",
                  listen);
   }
@@ -94,6 +107,7 @@ int main(int argc, char** argv) {
   sliceplan::ServeOptions serve;
   serve.max_request_bytes = config.limits.max_query_bytes;
   serve.allow_plaintext_off_host = insecure;
+  if (tls.any()) serve.credentials = *credentials;
   serve.shutdown_grace = std::chrono::milliseconds(static_cast<int64_t>(grace * 1000));
   const auto status = sliceplan::Serve(listen, {&service}, serve);
   if (!status.ok()) {

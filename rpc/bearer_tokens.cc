@@ -1,0 +1,66 @@
+#include "rpc/bearer_tokens.h"
+
+#include <fstream>
+
+#include "absl/strings/ascii.h"
+#include "absl/strings/str_cat.h"
+#include "core/user_text.h"
+
+namespace sliceplan {
+namespace {
+
+// Equal in time that depends only on the lengths, not on where they differ.
+bool ConstantTimeEqual(std::string_view a, std::string_view b) {
+  if (a.size() != b.size()) return false;
+  unsigned char diff = 0;
+  for (size_t i = 0; i < a.size(); ++i) diff |= static_cast<unsigned char>(a[i] ^ b[i]);
+  return diff == 0;
+}
+
+}  // namespace
+
+absl::StatusOr<BearerTokens> BearerTokens::Load(const std::string& path) {
+  std::ifstream in(path, std::ios::binary | std::ios::ate);
+  if (!in)
+    return absl::InvalidArgumentError(absl::StrCat("--token-file: cannot read ", ShortName(path)));
+  if (in.tellg() > (int64_t{1} << 20)) {
+    return absl::InvalidArgumentError("--token-file: over 1 MiB");
+  }
+  in.seekg(0);
+  std::vector<std::string> tokens;
+  std::string line;
+  while (std::getline(in, line)) {
+    const std::string token(absl::StripAsciiWhitespace(line));
+    if (!token.empty() && token[0] != '#') tokens.push_back(token);
+  }
+  if (tokens.empty()) {
+    return absl::InvalidArgumentError(
+        absl::StrCat("--token-file: ", ShortName(path), " lists no token"));
+  }
+  return BearerTokens(std::move(tokens));
+}
+
+absl::StatusOr<std::string> ReadClientToken(const std::string& path) {
+  absl::StatusOr<BearerTokens> tokens = BearerTokens::Load(path);
+  if (!tokens.ok()) return tokens.status();
+  return tokens->first();
+}
+
+absl::Status BearerTokens::Check(const grpc::ServerContext& context) const {
+  const auto& metadata = context.client_metadata();
+  const auto it = metadata.find("authorization");
+  constexpr std::string_view kPrefix = "Bearer ";
+  if (it != metadata.end()) {
+    const std::string_view value(it->second.data(), it->second.size());
+    if (value.substr(0, kPrefix.size()) == kPrefix) {
+      const std::string_view token = value.substr(kPrefix.size());
+      bool known = false;
+      for (const std::string& t : tokens_) known |= ConstantTimeEqual(token, t);
+      if (known) return absl::OkStatus();
+    }
+  }
+  return absl::UnauthenticatedError(
+      "missing or unknown bearer token (metadata \"authorization: Bearer TOKEN\")");
+}
+
+}  // namespace sliceplan
