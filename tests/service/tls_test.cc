@@ -1,0 +1,119 @@
+// Transport security end to end: certificates from deploy/make-certs (a
+// throwaway CA), a worker requiring client certificates, a coordinator
+// serving TLS with bearer tokens and presenting its own certificate to the
+// worker, and clients with and without each credential.
+#include <sys/wait.h>
+
+#include <cstdio>
+#include <cstdlib>
+#include <fstream>
+#include <string>
+
+#include "cli/rpc_client.h"
+#include "gtest/gtest.h"
+#include "tests/support/process.h"
+#include "tests/support/servers.h"
+#include "tests/support/test_queries.h"
+
+namespace sliceplan {
+namespace {
+
+using testing::ServerProcess;
+
+class TlsTest : public ::testing::Test {
+ protected:
+  static void SetUpTestSuite() {
+    dir_ = new std::string(::testing::TempDir() + "sliceplan-certs");
+    const std::string cmd =
+        std::string(SLICEPLAN_SOURCE_DIR) + "/deploy/make-certs " + *dir_ + " > /dev/null";
+    ASSERT_EQ(std::system(cmd.c_str()), 0) << "deploy/make-certs failed (is openssl installed?)";
+  }
+  static void TearDownTestSuite() { delete dir_; }
+
+  static std::string File(const char* name) { return *dir_ + "/" + name; }
+  static std::vector<std::string> ServerTls() {
+    return {"--tls-cert=" + File("server.pem"), "--tls-key=" + File("server.key"),
+            "--tls-ca=" + File("ca.pem")};
+  }
+  static TlsFiles ClientTls() { return {File("client.pem"), File("client.key"), File("ca.pem")}; }
+
+  // A worker requiring client certificates and a coordinator with tokens.
+  void StartSecureCluster() {
+    workers_.push_back(testing::StartWorker(ServerTls()));
+    ASSERT_TRUE(workers_.back());
+    std::vector<std::string> flags = ServerTls();
+    flags.push_back("--token-file=" + File("tokens"));
+    coordinator_ = testing::StartCoordinator(workers_, flags);
+    ASSERT_TRUE(coordinator_);
+  }
+
+  absl::StatusOr<ScheduleOutcome> Optimize(const TlsFiles& tls, const std::string& token_file) {
+    const Query q = testing::MakeQuery(testing::GraphShape::kChain, 8, 1);
+    cli::RemoteRequest r{coordinator_->address(), {}, 2, 20, false, tls, token_file};
+    return cli::OptimizeRemote(r, q, {});
+  }
+
+  static std::string* dir_;
+  std::vector<std::unique_ptr<ServerProcess>> workers_;
+  std::unique_ptr<ServerProcess> coordinator_;
+};
+
+std::string* TlsTest::dir_ = nullptr;
+
+TEST_F(TlsTest, CertificatesAndATokenGetAPlan) {
+  StartSecureCluster();
+  auto r = Optimize(ClientTls(), File("tokens"));
+  ASSERT_TRUE(r.ok()) << r.status();
+  EXPECT_TRUE(r->proven_optimal);
+  auto pool = cli::ListWorkersRemote(coordinator_->address(), ClientTls(), File("tokens"));
+  ASSERT_TRUE(pool.ok()) << pool.status();
+  EXPECT_TRUE(pool->workers(0).healthy());  // the coordinator reached the mTLS worker
+}
+
+TEST_F(TlsTest, MissingOrWrongTokenIsUnauthenticated) {
+  StartSecureCluster();
+  EXPECT_EQ(Optimize(ClientTls(), "").status().code(), absl::StatusCode::kUnauthenticated);
+  const std::string wrong = File("wrong-tokens");
+  std::ofstream(wrong) << "not-the-token\n";
+  EXPECT_EQ(Optimize(ClientTls(), wrong).status().code(), absl::StatusCode::kUnauthenticated);
+  EXPECT_EQ(cli::ListWorkersRemote(coordinator_->address(), ClientTls(), wrong).status().code(),
+            absl::StatusCode::kUnauthenticated);
+}
+
+TEST_F(TlsTest, PlaintextClientCannotTalkToATlsServer) {
+  StartSecureCluster();
+  EXPECT_EQ(Optimize({}, File("tokens")).status().code(), absl::StatusCode::kUnavailable);
+}
+
+TEST_F(TlsTest, WorkerRefusesACoordinatorWithoutACertificate) {
+  workers_.push_back(testing::StartWorker(ServerTls()));
+  ASSERT_TRUE(workers_.back());
+  coordinator_ = testing::StartCoordinator(workers_);  // plaintext toward the worker
+  ASSERT_TRUE(coordinator_);
+  auto r = Optimize({}, "");
+  ASSERT_FALSE(r.ok());
+  EXPECT_EQ(r.status().code(), absl::StatusCode::kUnavailable) << r.status();
+}
+
+TEST_F(TlsTest, TlsListenerMayBeOffHostAndBadFilesAreRefused) {
+  std::vector<std::string> flags = ServerTls();
+  flags.push_back("--listen=0.0.0.0:0");
+  auto w = testing::StartWorker(flags);
+  ASSERT_TRUE(w);
+  const std::string bin = SLICEPLAN_WORKER_BIN;
+  for (const auto& [args, part] : std::vector<std::pair<std::string, std::string>>{
+           {" --tls-cert=" + File("server.pem"), "give both"},
+           {" --tls-cert=/nonexistent.pem --tls-key=" + File("server.key"), "cannot read"},
+           {" --tls-cert=" + File("tokens") + " --tls-key=" + File("server.key"),
+            "no PEM block"}}) {
+    FILE* out = popen((bin + args + " 2>&1").c_str(), "r");
+    ASSERT_NE(out, nullptr);
+    char buf[512] = {};
+    const size_t n = fread(buf, 1, sizeof buf - 1, out);
+    EXPECT_EQ(WEXITSTATUS(pclose(out)), 2) << args;
+    EXPECT_NE(std::string(buf, n).find(part), std::string::npos) << buf;
+  }
+}
+
+}  // namespace
+}  // namespace sliceplan
