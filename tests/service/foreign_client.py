@@ -3,6 +3,8 @@ python3-grpcio, stubs generated from proto/ by python3-grpc-tools at test
 time) calls the coordinator and prints the plan tree it gets back.
 
 usage: foreign_client.py COORDINATOR_ADDRESS PROTO_DIR QUERY.json SLICES
+           [CA.pem CLIENT.pem CLIENT.key TOKENS]
+With the last four it speaks mutual TLS and sends the first bearer token.
 """
 import os
 import sys
@@ -13,6 +15,7 @@ from grpc_tools import protoc
 
 def main():
     address, proto_dir, query_path, slices = sys.argv[1:5]
+    secure = sys.argv[5:9]
     out = tempfile.mkdtemp(prefix="sliceplan-stubs-")
     well_known = os.path.join(os.path.dirname(protoc.__file__), "_proto")
     status = protoc.main(["protoc", "-I" + proto_dir, "-I" + well_known,
@@ -31,9 +34,18 @@ def main():
     with open(query_path) as f:
         query = json_format.Parse(f.read(), query_pb2.Query())
     request = sliceplan_pb2.OptimizeRequest(query=query, slice_count=int(slices))
-    with grpc.insecure_channel(address) as channel:
+    metadata = ()
+    if secure:
+        ca, cert, key, tokens = (open(p, "rb").read() for p in secure)
+        credentials = grpc.ssl_channel_credentials(ca, key, cert)
+        channel = grpc.secure_channel(address, credentials)
+        token = [t for t in tokens.decode().split() if t and not t.startswith("#")][0]
+        metadata = (("authorization", "Bearer " + token),)
+    else:
+        channel = grpc.insecure_channel(address)
+    with channel:
         stub = sliceplan_pb2_grpc.CoordinatorStub(channel)
-        response = stub.Optimize(request, timeout=60)
+        response = stub.Optimize(request, timeout=60, metadata=metadata)
     nodes = response.plan.nodes
     names = [r.name for r in query.relations]
 
