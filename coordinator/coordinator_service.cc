@@ -90,8 +90,19 @@ absl::StatusOr<v1::OptimizeResponse> CoordinatorService::Run(
 }
 
 absl::Status CoordinatorService::Authenticate(const grpc::ServerContext& context) const {
-  if (!config_.tokens) return absl::OkStatus();
-  return config_.tokens->Check(context);
+  std::shared_ptr<const BearerTokens> tokens;
+  {
+    absl::MutexLock lock(&tokens_mu_);
+    tokens = tokens_;
+  }
+  if (tokens == nullptr) return absl::OkStatus();
+  return tokens->Check(context);
+}
+
+void CoordinatorService::SetTokens(BearerTokens tokens) {
+  auto fresh = std::make_shared<const BearerTokens>(std::move(tokens));
+  absl::MutexLock lock(&tokens_mu_);
+  tokens_ = std::move(fresh);
 }
 
 grpc::Status CoordinatorService::Optimize(grpc::ServerContext* context,

@@ -6,9 +6,12 @@
 
 #include <chrono>
 #include <functional>
+#include <memory>
 #include <optional>
 
+#include "absl/base/thread_annotations.h"
 #include "absl/status/statusor.h"
+#include "absl/synchronization/mutex.h"
 #include "coordinator/worker_pool.h"
 #include "core/input_limits.h"
 #include "rpc/bearer_tokens.h"
@@ -31,7 +34,13 @@ struct CoordinatorConfig {
 class CoordinatorService final : public v1::Coordinator::Service {
  public:
   CoordinatorService(WorkerPool& pool, const CoordinatorConfig& config)
-      : pool_(pool), config_(config) {}
+      : pool_(pool), config_(config) {
+    if (config.tokens) tokens_ = std::make_shared<const BearerTokens>(*config.tokens);
+  }
+
+  // Replaces the bearer tokens (a re-read token file); calls already
+  // admitted are not affected.
+  void SetTokens(BearerTokens tokens) ABSL_LOCKS_EXCLUDED(tokens_mu_);
 
   grpc::Status Optimize(grpc::ServerContext* context, const v1::OptimizeRequest* request,
                         v1::OptimizeResponse* response) override;
@@ -42,13 +51,16 @@ class CoordinatorService final : public v1::Coordinator::Service {
 
  private:
   // UNAUTHENTICATED when tokens are configured and the call has none of them.
-  absl::Status Authenticate(const grpc::ServerContext& context) const;
+  absl::Status Authenticate(const grpc::ServerContext& context) const
+      ABSL_LOCKS_EXCLUDED(tokens_mu_);
   absl::StatusOr<v1::OptimizeResponse> Run(
       grpc::ServerContext* context, const v1::OptimizeRequest& request,
       const std::function<void(const ScheduleProgress&)>& on_progress);
 
   WorkerPool& pool_;
   const CoordinatorConfig config_;
+  mutable absl::Mutex tokens_mu_;
+  std::shared_ptr<const BearerTokens> tokens_ ABSL_GUARDED_BY(tokens_mu_);
 };
 
 }  // namespace sliceplan

@@ -128,6 +128,18 @@ int main(int argc, char** argv) {
   sliceplan::ServeOptions serve;
   serve.max_request_bytes = config->limits.max_query_bytes;
   serve.allow_plaintext_off_host = insecure;
+  if (const std::string path = absl::GetFlag(FLAGS_token_file); !path.empty()) {
+    serve.on_reload = [&service, path] {  // SIGHUP: re-read the token file
+      auto tokens = sliceplan::BearerTokens::Load(path);
+      if (!tokens.ok()) {
+        spdlog::error("coordinator: kept the old tokens: {}",
+                      std::string(tokens.status().message()));
+        return;
+      }
+      service.SetTokens(*std::move(tokens));
+      spdlog::info("coordinator: re-read {}", path);
+    };
+  }
   if (tls.any()) serve.credentials = *server_credentials;
   serve.shutdown_grace = std::chrono::milliseconds(static_cast<int64_t>(grace * 1000));
   const auto status = sliceplan::Serve(listen, {&service}, serve);

@@ -20,6 +20,7 @@ void BlockStopSignals() {
   sigemptyset(&set);
   sigaddset(&set, SIGINT);
   sigaddset(&set, SIGTERM);
+  sigaddset(&set, SIGHUP);
   pthread_sigmask(SIG_BLOCK, &set, nullptr);
 }
 
@@ -125,8 +126,11 @@ absl::Status Serve(const std::string& listen, const std::vector<grpc::Service*>&
     sigemptyset(&set);
     sigaddset(&set, SIGINT);
     sigaddset(&set, SIGTERM);
+    sigaddset(&set, SIGHUP);
     int sig = 0;
-    sigwait(&set, &sig);
+    for (sigwait(&set, &sig); sig == SIGHUP; sigwait(&set, &sig)) {
+      if (options.on_reload) options.on_reload();
+    }
     if (options.on_stop) options.on_stop();
     // Refuses new calls at once; running ones finish (and answer) until
     // the grace period ends, when gRPC cancels them and every search sees

@@ -18,7 +18,7 @@
 
 namespace sliceplan {
 
-// Blocks SIGINT and SIGTERM in the calling thread (and the threads it
+// Blocks SIGINT, SIGTERM and SIGHUP in the calling thread (and the threads it
 // starts later). Call first in main, before any thread exists.
 void BlockStopSignals();
 
@@ -52,6 +52,8 @@ struct ServeOptions {
   // Runs after the stop signal, before the shutdown (e.g. to end
   // background threads).
   std::function<void()> on_stop;
+  // Runs on each SIGHUP (e.g. to re-read the token file); serving goes on.
+  std::function<void()> on_reload;
 };
 
 // Serves `services` on `listen` until a stop signal. Errors:

@@ -2,12 +2,14 @@
 // throwaway CA), a worker requiring client certificates, a coordinator
 // serving TLS with bearer tokens and presenting its own certificate to the
 // worker, and clients with and without each credential.
+#include <signal.h>
 #include <sys/wait.h>
 
 #include <cstdio>
 #include <cstdlib>
 #include <fstream>
 #include <string>
+#include <thread>
 
 #include "cli/rpc_client.h"
 #include "gtest/gtest.h"
@@ -78,6 +80,32 @@ TEST_F(TlsTest, MissingOrWrongTokenIsUnauthenticated) {
   EXPECT_EQ(Optimize(ClientTls(), wrong).status().code(), absl::StatusCode::kUnauthenticated);
   EXPECT_EQ(cli::ListWorkersRemote(coordinator_->address(), ClientTls(), wrong).status().code(),
             absl::StatusCode::kUnauthenticated);
+}
+
+// SIGHUP re-reads the token file: the old token stops working, the new
+// one works, and serving never stops.
+TEST_F(TlsTest, SighupReReadsTheTokenFile) {
+  const std::string tokens = File("rotating-tokens");
+  std::ofstream(tokens) << "first-token\n";
+  workers_.push_back(testing::StartWorker(ServerTls()));
+  ASSERT_TRUE(workers_.back());
+  std::vector<std::string> flags = ServerTls();
+  flags.push_back("--token-file=" + tokens);
+  coordinator_ = testing::StartCoordinator(workers_, flags);
+  ASSERT_TRUE(coordinator_);
+  ASSERT_TRUE(Optimize(ClientTls(), tokens).ok());
+  const std::string old_copy = File("first-token-copy");
+  std::ofstream(old_copy) << "first-token\n";
+  std::ofstream(tokens, std::ios::trunc) << "# rotated\nsecond-token\n";
+  coordinator_->Signal(SIGHUP);
+  absl::Status old_status;
+  for (int i = 0; i < 50; ++i) {  // the reload is asynchronous: poll for it
+    old_status = Optimize(ClientTls(), old_copy).status();
+    if (old_status.code() == absl::StatusCode::kUnauthenticated) break;
+    std::this_thread::sleep_for(std::chrono::milliseconds(20));
+  }
+  EXPECT_EQ(old_status.code(), absl::StatusCode::kUnauthenticated);
+  EXPECT_TRUE(Optimize(ClientTls(), tokens).ok());
 }
 
 TEST_F(TlsTest, PlaintextClientCannotTalkToATlsServer) {
