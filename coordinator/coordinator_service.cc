@@ -49,6 +49,13 @@ absl::StatusOr<v1::OptimizeResponse> CoordinatorService::Run(
   if (auto s = CheckOptionLimits(options, config_.limits); !s.ok()) {
     return absl::Status(s.code(), absl::StrCat("options.cluster.", s.message()));
   }
+  std::optional<Admission::Ticket> ticket;
+  if (auto s = admission_.Enter(
+          deadline, [context] { return context->IsCancelled(); }, ticket);
+      !s.ok()) {
+    spdlog::warn("optimize: refused: {}", std::string(s.message()));
+    return s;
+  }
 
   std::vector<std::shared_ptr<RpcWorker>> pool = pool_.Workers();
   std::vector<SliceWorker*> workers;

@@ -12,6 +12,7 @@
 #include "absl/base/thread_annotations.h"
 #include "absl/status/statusor.h"
 #include "absl/synchronization/mutex.h"
+#include "coordinator/admission.h"
 #include "coordinator/worker_pool.h"
 #include "core/input_limits.h"
 #include "rpc/bearer_tokens.h"
@@ -29,12 +30,16 @@ struct CoordinatorConfig {
   // Bearer tokens every client call must carry; none: calls are not
   // authenticated (loopback development, tests).
   std::optional<BearerTokens> tokens;
+  int max_concurrent_requests = 16;  // run at once
+  int max_queued_requests = 64;      // wait for a place; more are refused
 };
 
 class CoordinatorService final : public v1::Coordinator::Service {
  public:
   CoordinatorService(WorkerPool& pool, const CoordinatorConfig& config)
-      : pool_(pool), config_(config) {
+      : pool_(pool),
+        config_(config),
+        admission_(config.max_concurrent_requests, config.max_queued_requests) {
     if (config.tokens) tokens_ = std::make_shared<const BearerTokens>(*config.tokens);
   }
 
@@ -59,6 +64,7 @@ class CoordinatorService final : public v1::Coordinator::Service {
 
   WorkerPool& pool_;
   const CoordinatorConfig config_;
+  Admission admission_;
   mutable absl::Mutex tokens_mu_;
   std::shared_ptr<const BearerTokens> tokens_ ABSL_GUARDED_BY(tokens_mu_);
 };

@@ -36,6 +36,9 @@ ABSL_FLAG(int64_t, max_node_counts, 16, "most node counts a cluster-model reques
 ABSL_FLAG(int64_t, max_sample_rates, 16, "most sample rates a cluster-model request may list");
 ABSL_FLAG(double, max_deadline_seconds, 3600,
           "longest a request may run; a longer or absent deadline is cut to it");
+ABSL_FLAG(int, max_concurrent_requests, 16, "requests run at once");
+ABSL_FLAG(int, max_queued_requests, 64,
+          "requests that may wait for a place; more are refused with RESOURCE_EXHAUSTED");
 ABSL_FLAG(std::string, token_file, "",
           "bearer tokens, one per line; client calls without one are UNAUTHENTICATED");
 ABSL_FLAG(double, shutdown_grace_seconds, 5,
@@ -68,6 +71,12 @@ absl::StatusOr<sliceplan::CoordinatorConfig> ConfigFromFlags() {
   limits.max_deadline_seconds = absl::GetFlag(FLAGS_max_deadline_seconds);
   if (!(limits.max_deadline_seconds > 0 && limits.max_deadline_seconds <= 1e7)) {
     return absl::InvalidArgumentError("--max_deadline_seconds: must be in (0, 1e7]");
+  }
+  config.max_concurrent_requests = absl::GetFlag(FLAGS_max_concurrent_requests);
+  config.max_queued_requests = absl::GetFlag(FLAGS_max_queued_requests);
+  if (config.max_concurrent_requests < 1 || config.max_queued_requests < 0) {
+    return absl::InvalidArgumentError(
+        "--max_concurrent_requests: must be >= 1; --max_queued_requests: >= 0");
   }
   return config;
 }

@@ -128,6 +128,35 @@ TEST(HostileClientTest, OffHostPlaintextNeedsInsecure) {
   EXPECT_EQ(w->address().rfind("0.0.0.0:", 0), 0u) << w->address();
 }
 
+// A burst beyond the coordinator's limits is refused at once, not queued
+// without bound.
+TEST(HostileClientTest, RequestsPastTheConcurrencyLimitsAreRefused) {
+  Cluster c = StartCluster(1, {}, {"--max_concurrent_requests=1", "--max_queued_requests=0"});
+  ASSERT_TRUE(c.coordinator);
+  grpc::ClientContext running;
+  v1::OptimizeResponse out;
+  std::thread first([&] { c.stub->Optimize(&running, Request(Endless(), 1), &out); });
+  // The first is running once the worker burns CPU on it.
+  const double idle = c.workers[0]->CpuSeconds();
+  for (int i = 0; i < 500 && c.workers[0]->CpuSeconds() < idle + 0.05; ++i) {
+    std::this_thread::sleep_for(10ms);
+  }
+  grpc::Status s = Optimize(c, Request(testing::MakeQuery(GraphShape::kChain, 4, 1)), 5s);
+  EXPECT_EQ(s.error_code(), grpc::StatusCode::RESOURCE_EXHAUSTED) << s.error_message();
+  EXPECT_NE(s.error_message().find("--max_concurrent_requests=1"), std::string::npos)
+      << s.error_message();
+  running.TryCancel();
+  first.join();
+  // Once the first has stopped (its cancel takes a poll to arrive),
+  // requests run again.
+  for (int i = 0; i < 100; ++i) {
+    s = Optimize(c, Request(testing::MakeQuery(GraphShape::kChain, 4, 1)), 5s);
+    if (s.ok()) break;
+    std::this_thread::sleep_for(20ms);
+  }
+  EXPECT_TRUE(s.ok()) << s.error_message();
+}
+
 TEST(HostileClientTest, CancelledStreamStopsEveryWorker) {
   Cluster c = StartCluster(2);
   ASSERT_TRUE(c.coordinator);
