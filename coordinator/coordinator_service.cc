@@ -93,6 +93,13 @@ absl::StatusOr<v1::OptimizeResponse> CoordinatorService::Run(
       outcome.ok() ? (outcome->proven_optimal ? "optimal" : "partial")
                    : std::string(outcome.status().message()));
   if (!outcome.ok()) return outcome.status();
+  const auto plans = static_cast<int64_t>(outcome->result.frontier.size());
+  if (plans > config_.limits.max_frontier_plans) {
+    return absl::ResourceExhaustedError(
+        absl::StrCat("the Pareto set has ", plans, " plans, over the limit of ",
+                     config_.limits.max_frontier_plans,
+                     " (--max_frontier_plans); ask for a precision alpha > 1 or fewer objectives"));
+  }
   return OutcomeToProto(*outcome, options.cost);
 }
 

@@ -34,6 +34,7 @@ ABSL_FLAG(int64_t, max_relations, 10000, "most relations per query");
 ABSL_FLAG(int64_t, max_predicates, 100000, "most predicates per query");
 ABSL_FLAG(int64_t, max_node_counts, 16, "most node counts a cluster-model request may list");
 ABSL_FLAG(int64_t, max_sample_rates, 16, "most sample rates a cluster-model request may list");
+ABSL_FLAG(int64_t, max_frontier_plans, 10000, "most plans of a Pareto set an answer returns");
 ABSL_FLAG(double, max_deadline_seconds, 3600,
           "longest a request may run; a longer or absent deadline is cut to it");
 ABSL_FLAG(int, max_concurrent_requests, 16, "requests run at once");
@@ -69,6 +70,7 @@ absl::StatusOr<sliceplan::CoordinatorConfig> ConfigFromFlags() {
   limits.max_node_counts = absl::GetFlag(FLAGS_max_node_counts);
   limits.max_sample_rates = absl::GetFlag(FLAGS_max_sample_rates);
   limits.max_deadline_seconds = absl::GetFlag(FLAGS_max_deadline_seconds);
+  limits.max_frontier_plans = absl::GetFlag(FLAGS_max_frontier_plans);
   if (!(limits.max_deadline_seconds > 0 && limits.max_deadline_seconds <= 1e7)) {
     return absl::InvalidArgumentError("--max_deadline_seconds: must be in (0, 1e7]");
   }

@@ -20,6 +20,7 @@ struct InputLimits {
   int64_t max_node_counts = 16;                 // cluster model: node counts to try
   int64_t max_sample_rates = 16;                // cluster model: sample rates to try
   double max_deadline_seconds = 3600;           // a longer or absent deadline is cut to it
+  int64_t max_frontier_plans = 10000;           // plans of a merged Pareto set returned
 };
 
 // Bounds on single values, so no input is near double's range by itself.

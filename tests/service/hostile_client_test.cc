@@ -219,6 +219,21 @@ TEST(HostileClientTest, ManyObjectiveSearchStopsAtItsDeadline) {
       << refused.error_message();
 }
 
+TEST(HostileClientTest, ParetoSetsPastTheLimitAreRefused) {
+  Cluster c = StartCluster(1, {}, {"--max_frontier_plans=2"});
+  ASSERT_TRUE(c.coordinator);
+  auto query = ReadQueryFile(std::string(SLICEPLAN_SOURCE_DIR) + "/examples/port_calls_small.json");
+  ASSERT_TRUE(query.ok());
+  v1::OptimizeRequest r = Request(*query, 1);
+  r.mutable_options()->set_cost(v1::COST_MODEL_CLUSTER);
+  r.mutable_options()->mutable_cluster()->add_sample_rates(1.0);
+  r.mutable_options()->mutable_cluster()->add_sample_rates(0.1);
+  const grpc::Status s = Optimize(c, r);
+  EXPECT_EQ(s.error_code(), grpc::StatusCode::RESOURCE_EXHAUSTED) << s.error_message();
+  EXPECT_NE(s.error_message().find("over the limit of 2 (--max_frontier_plans)"), std::string::npos)
+      << s.error_message();
+}
+
 TEST(HostileClientTest, DeadlineValuesAreCheckedOrCut) {
   Cluster c = StartCluster(1);
   ASSERT_TRUE(c.coordinator);
