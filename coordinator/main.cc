@@ -6,14 +6,10 @@
 #include <vector>
 
 #include "absl/flags/flag.h"
-#include "absl/flags/parse.h"
-#include "absl/flags/usage.h"
-#include "absl/flags/usage_config.h"
-#include "absl/strings/match.h"
 #include "coordinator/coordinator_service.h"
 #include "coordinator/worker_pool.h"
-#include "rpc/flag_names.h"
 #include "rpc/serve.h"
+#include "rpc/server_setup.h"
 #include "rpc/tls.h"
 #include "spdlog/sinks/stdout_color_sinks.h"
 #include "spdlog/spdlog.h"
@@ -87,36 +83,23 @@ absl::StatusOr<sliceplan::CoordinatorConfig> ConfigFromFlags() {
 
 int main(int argc, char** argv) {
   sliceplan::BlockStopSignals();
-  absl::SetProgramUsageMessage("sliceplan-coordinator --listen=HOST:PORT --workers=HOST:PORT,...");
-  absl::FlagsUsageConfig usage;
-  usage.contains_help_flags = [](absl::string_view file) {
-    return absl::StrContains(file, "coordinator/main.cc");
-  };
-  usage.contains_helpshort_flags = usage.contains_help_flags;
-  absl::SetFlagsUsageConfig(usage);
-  std::vector<std::string> arg_storage;
-  std::vector<char*> args = sliceplan::UnderscoreFlagNames(argc, argv, arg_storage);
-  absl::ParseCommandLine(static_cast<int>(args.size()), args.data());
+  sliceplan::ParseServerCommandLine(
+      argc, argv, "sliceplan-coordinator --listen=HOST:PORT --workers=HOST:PORT,...",
+      "coordinator/main.cc");
   // Logs go to stderr: stdout carries only the listening line.
   spdlog::set_default_logger(spdlog::stderr_color_mt("sliceplan"));
   const std::string listen = absl::GetFlag(FLAGS_listen);
-  if (auto s = sliceplan::ValidateListenAddress(listen); !s.ok()) return Refuse(s);
   const bool insecure = absl::GetFlag(FLAGS_insecure);
   const sliceplan::TlsFiles tls{absl::GetFlag(FLAGS_tls_cert), absl::GetFlag(FLAGS_tls_key),
                                 absl::GetFlag(FLAGS_tls_ca)};
-  auto server_credentials = sliceplan::ServerCredentialsFor(tls);
-  if (!server_credentials.ok()) return Refuse(server_credentials.status());
+  sliceplan::ServeOptions serve;
+  if (auto s = sliceplan::PrepareListener(listen, tls, insecure, "coordinator", serve); !s.ok()) {
+    return Refuse(s);
+  }
   // Toward the workers the coordinator is a client: its own certificate as
   // its identity, the CA to verify them.
   auto worker_credentials = sliceplan::ChannelCredentialsFor(tls);
   if (!worker_credentials.ok()) return Refuse(worker_credentials.status());
-  if (auto s = sliceplan::CheckPlaintextAllowed(listen, tls.any() || insecure); !s.ok()) {
-    return Refuse(s);
-  }
-  if (!tls.any() && insecure && !sliceplan::IsLoopbackAddress(listen)) {
-    spdlog::warn("coordinator: serving plaintext on {}, reachable from other hosts (--insecure)",
-                 listen);
-  }
   auto entries = sliceplan::ParseWorkerList(absl::GetFlag(FLAGS_workers));
   if (!entries.ok()) return Refuse(entries.status());
   auto config = ConfigFromFlags();
@@ -136,9 +119,7 @@ int main(int argc, char** argv) {
   sliceplan::CoordinatorService service(pool, *config);
   spdlog::info("coordinator: {} worker entries, hedge after {:.1f} s", entries->size(),
                absl::GetFlag(FLAGS_hedge_after_seconds));
-  sliceplan::ServeOptions serve;
   serve.max_request_bytes = config->limits.max_query_bytes;
-  serve.allow_plaintext_off_host = insecure;
   if (const std::string path = absl::GetFlag(FLAGS_token_file); !path.empty()) {
     serve.on_reload = [&service, path] {  // SIGHUP: re-read the token file
       auto tokens = sliceplan::BearerTokens::Load(path);
@@ -151,7 +132,6 @@ int main(int argc, char** argv) {
       spdlog::info("coordinator: re-read {}", path);
     };
   }
-  if (tls.any()) serve.credentials = *server_credentials;
   serve.shutdown_grace = std::chrono::milliseconds(static_cast<int64_t>(grace * 1000));
   const auto status = sliceplan::Serve(listen, {&service}, serve);
   if (!status.ok()) {

@@ -7,12 +7,8 @@
 #include <vector>
 
 #include "absl/flags/flag.h"
-#include "absl/flags/parse.h"
-#include "absl/flags/usage.h"
-#include "absl/flags/usage_config.h"
-#include "absl/strings/match.h"
-#include "rpc/flag_names.h"
 #include "rpc/serve.h"
+#include "rpc/server_setup.h"
 #include "rpc/tls.h"
 #include "spdlog/sinks/stdout_color_sinks.h"
 #include "spdlog/spdlog.h"
@@ -51,33 +47,18 @@ int Refuse(const std::string& message) {
 
 int main(int argc, char** argv) {
   sliceplan::BlockStopSignals();
-  absl::SetProgramUsageMessage("sliceplan-worker --listen=HOST:PORT [--threads=N]");
-  absl::FlagsUsageConfig usage;
-  usage.contains_help_flags = [](absl::string_view file) {
-    return absl::StrContains(file, "worker/main.cc");
-  };
-  usage.contains_helpshort_flags = usage.contains_help_flags;
-  absl::SetFlagsUsageConfig(usage);
-  std::vector<std::string> arg_storage;
-  std::vector<char*> args = sliceplan::UnderscoreFlagNames(argc, argv, arg_storage);
-  absl::ParseCommandLine(static_cast<int>(args.size()), args.data());
+  sliceplan::ParseServerCommandLine(argc, argv, "sliceplan-worker --listen=HOST:PORT [--threads=N]",
+                                    "worker/main.cc");
   // Logs go to stderr: stdout carries only the listening line.
   spdlog::set_default_logger(spdlog::stderr_color_mt("sliceplan"));
   const std::string listen = absl::GetFlag(FLAGS_listen);
-  if (auto s = sliceplan::ValidateListenAddress(listen); !s.ok()) {
-    return Refuse(std::string(s.message()));
-  }
-  const bool insecure = absl::GetFlag(FLAGS_insecure);
   const sliceplan::TlsFiles tls{absl::GetFlag(FLAGS_tls_cert), absl::GetFlag(FLAGS_tls_key),
                                 absl::GetFlag(FLAGS_tls_ca)};
-  auto credentials = sliceplan::ServerCredentialsFor(tls);
-  if (!credentials.ok()) return Refuse(std::string(credentials.status().message()));
-  if (auto s = sliceplan::CheckPlaintextAllowed(listen, tls.any() || insecure); !s.ok()) {
+  sliceplan::ServeOptions serve;
+  if (auto s =
+          sliceplan::PrepareListener(listen, tls, absl::GetFlag(FLAGS_insecure), "worker", serve);
+      !s.ok()) {
     return Refuse(std::string(s.message()));
-  }
-  if (!tls.any() && insecure && !sliceplan::IsLoopbackAddress(listen)) {
-    spdlog::warn("worker: serving plaintext on {}, reachable from other hosts (--insecure)",
-                 listen);
   }
   sliceplan::WorkerConfig config;
   config.threads = absl::GetFlag(FLAGS_threads);
@@ -104,10 +85,7 @@ int main(int argc, char** argv) {
   sliceplan::WorkerService service(config);
   spdlog::info("worker: {} threads, memo limit {:.1f} GiB{}", config.threads, gib,
                config.test_hang_seconds > 0 ? " (test fault: hanging)" : "");
-  sliceplan::ServeOptions serve;
   serve.max_request_bytes = config.limits.max_query_bytes;
-  serve.allow_plaintext_off_host = insecure;
-  if (tls.any()) serve.credentials = *credentials;
   serve.shutdown_grace = std::chrono::milliseconds(static_cast<int64_t>(grace * 1000));
   const auto status = sliceplan::Serve(listen, {&service}, serve);
   if (!status.ok()) {
