@@ -99,14 +99,9 @@ TEST(HostileClientTest, PortOutsideTheRangeIsRefusedAtStart) {
   for (const std::string& bin :
        {std::string(SLICEPLAN_WORKER_BIN),
         std::string(SLICEPLAN_COORDINATOR_BIN) + " --workers=127.0.0.1:1"}) {
-    const std::string cmd = bin + " --listen=127.0.0.1:99999 2>&1";
-    FILE* out = popen(cmd.c_str(), "r");
-    ASSERT_NE(out, nullptr);
-    char buf[512] = {};
-    const size_t n = fread(buf, 1, sizeof buf - 1, out);
-    const int status = pclose(out);
-    EXPECT_EQ(WEXITSTATUS(status), 2) << bin;
-    EXPECT_NE(std::string(buf, n).find("port past 65535"), std::string::npos) << buf;
+    const testing::CommandResult r = testing::RunCommand(bin + " --listen=127.0.0.1:99999 2>&1");
+    EXPECT_EQ(r.exit_status, 2) << bin;
+    EXPECT_NE(r.output.find("port past 65535"), std::string::npos) << r.output;
   }
 }
 
@@ -116,12 +111,9 @@ TEST(HostileClientTest, OffHostPlaintextNeedsInsecure) {
   for (const std::string& bin :
        {std::string(SLICEPLAN_WORKER_BIN),
         std::string(SLICEPLAN_COORDINATOR_BIN) + " --workers=127.0.0.1:1"}) {
-    FILE* out = popen((bin + " --listen=0.0.0.0:0 2>&1").c_str(), "r");
-    ASSERT_NE(out, nullptr);
-    char buf[512] = {};
-    const size_t n = fread(buf, 1, sizeof buf - 1, out);
-    EXPECT_EQ(WEXITSTATUS(pclose(out)), 2) << bin;
-    EXPECT_NE(std::string(buf, n).find("is reachable from other hosts"), std::string::npos) << buf;
+    const testing::CommandResult r = testing::RunCommand(bin + " --listen=0.0.0.0:0 2>&1");
+    EXPECT_EQ(r.exit_status, 2) << bin;
+    EXPECT_NE(r.output.find("is reachable from other hosts"), std::string::npos) << r.output;
   }
   auto w = testing::StartWorker({"--listen=0.0.0.0:0", "--insecure"});
   ASSERT_TRUE(w);

@@ -181,12 +181,9 @@ TEST(ServiceTest, MaxWorkersAndThePoolListing) {
 
   const std::string cmd =
       std::string(SLICEPLAN_CLI_BIN) + " workers --coordinator=" + c.coordinator->address();
-  FILE* pipe = popen(cmd.c_str(), "r");
-  ASSERT_NE(pipe, nullptr);
-  std::string listing;
-  char buf[256];
-  while (fgets(buf, sizeof buf, pipe) != nullptr) listing += buf;
-  EXPECT_EQ(WEXITSTATUS(pclose(pipe)), 0);
+  const testing::CommandResult run = testing::RunCommand(cmd);
+  const std::string& listing = run.output;
+  EXPECT_EQ(run.exit_status, 0);
   EXPECT_NE(listing.find("3 of 3 workers healthy"), std::string::npos) << listing;
   EXPECT_NE(listing.find(out.slices(0).worker()), std::string::npos) << listing;
   // The worker that did all eight slices says so.
@@ -253,12 +250,9 @@ TEST(ServiceTest, CliPartialAnswerOnDeadline) {
                           " --slices=4 --format=json --deadline-seconds=1.5 "
                           "--partial-on-deadline=true --quiet --coordinator=" +
                           coordinator->address();
-  FILE* pipe = popen(cmd.c_str(), "r");
-  ASSERT_NE(pipe, nullptr);
-  std::string json;
-  char buf[512];
-  while (fgets(buf, sizeof buf, pipe) != nullptr) json += buf;
-  EXPECT_EQ(WEXITSTATUS(pclose(pipe)), 0);
+  const testing::CommandResult run = testing::RunCommand(cmd);
+  const std::string& json = run.output;
+  EXPECT_EQ(run.exit_status, 0);
   EXPECT_NE(json.find("\"proven_optimal\": false"), std::string::npos) << json;
   EXPECT_NE(json.find("\"coverage\": 0.75"), std::string::npos) << json;
 }

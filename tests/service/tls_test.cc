@@ -134,12 +134,9 @@ TEST_F(TlsTest, TlsListenerMayBeOffHostAndBadFilesAreRefused) {
            {" --tls-cert=/nonexistent.pem --tls-key=" + File("server.key"), "cannot read"},
            {" --tls-cert=" + File("tokens") + " --tls-key=" + File("server.key"),
             "no PEM block"}}) {
-    FILE* out = popen((bin + args + " 2>&1").c_str(), "r");
-    ASSERT_NE(out, nullptr);
-    char buf[512] = {};
-    const size_t n = fread(buf, 1, sizeof buf - 1, out);
-    EXPECT_EQ(WEXITSTATUS(pclose(out)), 2) << args;
-    EXPECT_NE(std::string(buf, n).find(part), std::string::npos) << buf;
+    const testing::CommandResult r = testing::RunCommand(bin + args + " 2>&1");
+    EXPECT_EQ(r.exit_status, 2) << args;
+    EXPECT_NE(r.output.find(part), std::string::npos) << r.output;
   }
 }
 

@@ -6,6 +6,7 @@
 #include <sys/wait.h>
 #include <unistd.h>
 
+#include <cstdio>
 #include <filesystem>
 #include <fstream>
 #include <iterator>
@@ -16,6 +17,18 @@
 #include "absl/strings/str_cat.h"
 
 namespace sliceplan::testing {
+
+CommandResult RunCommand(const std::string& command) {
+  CommandResult out;
+  FILE* pipe = popen(command.c_str(), "r");
+  if (pipe == nullptr) return out;
+  char buf[4096];
+  size_t n = 0;
+  while ((n = fread(buf, 1, sizeof buf, pipe)) > 0) out.output.append(buf, n);
+  const int status = pclose(pipe);
+  out.exit_status = WIFEXITED(status) ? WEXITSTATUS(status) : 128 + WTERMSIG(status);
+  return out;
+}
 
 absl::StatusOr<std::unique_ptr<ServerProcess>> ServerProcess::Start(
     const std::vector<std::string>& argv, std::chrono::milliseconds timeout) {

@@ -16,6 +16,16 @@
 
 namespace sliceplan::testing {
 
+// What a finished command printed and how it ended.
+struct CommandResult {
+  int exit_status = -1;  // or 128 + signal
+  std::string output;    // stdout (add 2>&1 to the command for stderr too)
+};
+
+// Runs `command` through the shell to its end (for binaries that are
+// expected to exit: refusals at start, the CLI).
+CommandResult RunCommand(const std::string& command);
+
 class ServerProcess {
  public:
   // Runs argv and waits up to `timeout` for its listening line.
