@@ -57,11 +57,7 @@ absl::Status CheckPredicate(const Predicate& p, size_t j, int n) {
   if (Size(p.relations) < 2) {
     return Invalid(absl::StrCat(at, ".relations"), "must name two or more distinct relations");
   }
-  if (!(p.selectivity > 0 && p.selectivity <= 1)) {
-    return Invalid(absl::StrCat(at, ".selectivity"),
-                   absl::StrCat("must lie in (0, 1], got ", p.selectivity));
-  }
-  return absl::OkStatus();
+  return ValidateSelectivity(p.selectivity, j);
 }
 
 // Predicates over one relation set become one whose selectivity is the
@@ -84,6 +80,22 @@ std::vector<Predicate> MergeEqualPredicates(std::vector<Predicate> predicates) {
 
 }  // namespace
 
+absl::Status ValidateRelations(std::span<const Relation> relations) {
+  absl::flat_hash_set<std::string_view> seen;
+  for (size_t i = 0; i < relations.size(); ++i) {
+    RETURN_IF_ERROR(CheckRelation(relations[i], i, seen));
+  }
+  return absl::OkStatus();
+}
+
+absl::Status ValidateSelectivity(double selectivity, size_t j) {
+  if (!(selectivity > 0 && selectivity <= 1)) {
+    return Invalid(absl::StrCat("predicates[", j, "].selectivity"),
+                   absl::StrCat("must lie in (0, 1], got ", selectivity));
+  }
+  return absl::OkStatus();
+}
+
 bool IsValidRelationName(std::string_view name) {
   if (name.empty()) return false;
   const auto alpha = [](char c) {
@@ -102,15 +114,13 @@ absl::StatusOr<Query> Query::Create(std::vector<Relation> relations,
     return Invalid("relations", "the query has no relations");
   }
   if (relations.size() > static_cast<size_t>(kMaxRelations)) {
-    return Invalid("relations", absl::StrCat(relations.size(),
-                                             " relations given; the exact search takes at "
-                                             "most ",
-                                             kMaxRelations));
+    return Invalid("relations",
+                   absl::StrCat(relations.size(),
+                                " relations given; the exact search takes at "
+                                "most ",
+                                kMaxRelations, " (the greedy, linear and idp tiers take more)"));
   }
-  absl::flat_hash_set<std::string_view> seen;
-  for (size_t i = 0; i < relations.size(); ++i) {
-    RETURN_IF_ERROR(CheckRelation(relations[i], i, seen));
-  }
+  RETURN_IF_ERROR(ValidateRelations(relations));
   const int n = static_cast<int>(relations.size());
   for (size_t j = 0; j < predicates.size(); ++j) {
     RETURN_IF_ERROR(CheckPredicate(predicates[j], j, n));

@@ -66,6 +66,13 @@ class Query {
 // Maps a set through a permutation: bit i of `s` becomes bit perm[i].
 RelSet PermuteSet(RelSet s, std::span<const RelationId> perm);
 
+// Checks relations as Query::Create does: names (form, length, no
+// duplicates), rows, row_bytes. INVALID_ARGUMENT naming the relation.
+absl::Status ValidateRelations(std::span<const Relation> relations);
+
+// INVALID_ARGUMENT naming predicates[j] unless selectivity is in (0, 1].
+absl::Status ValidateSelectivity(double selectivity, size_t j);
+
 // True when `name` matches [A-Za-z_][A-Za-z0-9_]*.
 bool IsValidRelationName(std::string_view name);
 

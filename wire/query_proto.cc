@@ -1,5 +1,6 @@
 #include "wire/query_proto.h"
 
+#include <algorithm>
 #include <cerrno>
 #include <cstring>
 #include <fstream>
@@ -26,9 +27,10 @@ absl::StatusOr<Relation> RelationFromProto(const v1::Relation& m, int i) {
   return rel;
 }
 
-absl::StatusOr<Predicate> PredicateFromProto(
-    const v1::Predicate& m, int j, const absl::flat_hash_map<std::string, RelationId>& ids) {
-  Predicate p;
+absl::StatusOr<WidePredicate> PredicateFromProto(
+    const v1::Predicate& m, int j, const absl::flat_hash_map<std::string_view, int32_t>& ids) {
+  WidePredicate p;
+  p.relations.reserve(m.relations_size());
   for (int k = 0; k < m.relations_size(); ++k) {
     const std::string& name = m.relations(k);
     const auto it = ids.find(name);
@@ -36,12 +38,12 @@ absl::StatusOr<Predicate> PredicateFromProto(
       return absl::InvalidArgumentError(absl::StrCat(
           "predicates[", j, "].relations[", k, "]: unknown relation \"", ShortName(name), "\""));
     }
-    if (Contains(p.relations, it->second)) {
+    if (std::find(p.relations.begin(), p.relations.end(), it->second) != p.relations.end()) {
       return absl::InvalidArgumentError(absl::StrCat("predicates[", j, "].relations[", k,
                                                      "]: relation \"", ShortName(name),
                                                      "\" is named twice"));
     }
-    p.relations |= Singleton(it->second);
+    p.relations.push_back(it->second);
   }
   if (!m.has_selectivity()) {
     return absl::InvalidArgumentError(absl::StrCat("predicates[", j, "].selectivity: missing"));
@@ -60,11 +62,6 @@ absl::Status CheckSizes(const v1::Query& message, const InputLimits& limits) {
     return absl::ResourceExhaustedError(absl::StrCat("predicates: ", message.predicates_size(),
                                                      " predicates given; the limit is ",
                                                      limits.max_predicates));
-  }
-  if (message.relations_size() > kMaxRelations) {
-    return absl::InvalidArgumentError(
-        absl::StrCat("relations: ", message.relations_size(),
-                     " relations given; the exact search takes at most ", kMaxRelations));
   }
   return absl::OkStatus();
 }
@@ -97,24 +94,32 @@ absl::Status CheckNames(const v1::Query& message) {
 
 }  // namespace
 
-absl::StatusOr<Query> QueryFromProto(const v1::Query& message, const InputLimits& limits) {
+absl::StatusOr<WideQuery> WideQueryFromProto(const v1::Query& message, const InputLimits& limits) {
   RETURN_IF_ERROR(CheckSizes(message, limits));
   RETURN_IF_ERROR(CheckNames(message));
   std::vector<Relation> relations;
-  absl::flat_hash_map<std::string, RelationId> ids;
+  relations.reserve(message.relations_size());
+  absl::flat_hash_map<std::string_view, int32_t> ids;
+  ids.reserve(message.relations_size());
   for (int i = 0; i < message.relations_size(); ++i) {
     ASSIGN_OR_RETURN(Relation rel, RelationFromProto(message.relations(i), i));
-    ids.emplace(rel.name, RelationId{static_cast<uint8_t>(i)});
+    ids.emplace(message.relations(i).name(), i);
     relations.push_back(std::move(rel));
   }
-  std::vector<Predicate> predicates;
+  std::vector<WidePredicate> predicates;
+  predicates.reserve(message.predicates_size());
   for (int j = 0; j < message.predicates_size(); ++j) {
-    ASSIGN_OR_RETURN(Predicate p, PredicateFromProto(message.predicates(j), j, ids));
-    predicates.push_back(p);
+    ASSIGN_OR_RETURN(WidePredicate p, PredicateFromProto(message.predicates(j), j, ids));
+    predicates.push_back(std::move(p));
   }
-  // Query::Create reports duplicate names before a predicate could have
-  // resolved to the wrong one of two equal names: names are checked first.
-  return Query::Create(std::move(relations), std::move(predicates));
+  // Names were checked first, so no predicate resolved to the wrong one of
+  // two equal names.
+  return WideQuery::Create(std::move(relations), std::move(predicates));
+}
+
+absl::StatusOr<Query> QueryFromProto(const v1::Query& message, const InputLimits& limits) {
+  ASSIGN_OR_RETURN(const WideQuery wide, WideQueryFromProto(message, limits));
+  return ToExactQuery(wide);
 }
 
 v1::Query QueryToProto(const Query& query) {
@@ -133,7 +138,7 @@ v1::Query QueryToProto(const Query& query) {
   return m;
 }
 
-absl::StatusOr<Query> ParseQueryJson(std::string_view json, const InputLimits& limits) {
+absl::StatusOr<WideQuery> ParseWideQueryJson(std::string_view json, const InputLimits& limits) {
   if (static_cast<int64_t>(json.size()) > limits.max_query_bytes) {
     return absl::ResourceExhaustedError(
         absl::StrCat("query JSON: ", json.size(), " bytes; the limit is ", limits.max_query_bytes));
@@ -150,10 +155,15 @@ absl::StatusOr<Query> ParseQueryJson(std::string_view json, const InputLimits& l
   if (!status.ok()) {
     return absl::InvalidArgumentError(absl::StrCat("query JSON: ", status.message().as_string()));
   }
-  return QueryFromProto(message, limits);
+  return WideQueryFromProto(message, limits);
 }
 
-absl::StatusOr<Query> ReadQueryFile(const std::string& path, const InputLimits& limits) {
+absl::StatusOr<Query> ParseQueryJson(std::string_view json, const InputLimits& limits) {
+  ASSIGN_OR_RETURN(const WideQuery wide, ParseWideQueryJson(json, limits));
+  return ToExactQuery(wide);
+}
+
+absl::StatusOr<WideQuery> ReadWideQueryFile(const std::string& path, const InputLimits& limits) {
   std::ifstream in(path, std::ios::binary | std::ios::ate);
   if (!in) {
     const int err = errno;
@@ -169,7 +179,16 @@ absl::StatusOr<Query> ReadQueryFile(const std::string& path, const InputLimits& 
   in.seekg(0);
   std::ostringstream text;
   text << in.rdbuf();
-  auto query = ParseQueryJson(text.str(), limits);
+  auto query = ParseWideQueryJson(text.str(), limits);
+  if (!query.ok()) {
+    return absl::Status(query.status().code(), absl::StrCat(path, ": ", query.status().message()));
+  }
+  return query;
+}
+
+absl::StatusOr<Query> ReadQueryFile(const std::string& path, const InputLimits& limits) {
+  ASSIGN_OR_RETURN(const WideQuery wide, ReadWideQueryFile(path, limits));
+  auto query = ToExactQuery(wide);
   if (!query.ok()) {
     return absl::Status(query.status().code(), absl::StrCat(path, ": ", query.status().message()));
   }

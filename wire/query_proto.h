@@ -1,5 +1,6 @@
 // Conversion between the query message of proto/query.proto, its JSON form
-// (the query file) and the core Query.
+// (the query file), the WideQuery every request enters as, and the exact
+// engine's Query (the Wide form narrowed by ToExactQuery).
 //
 // The JSON goes through protobuf's own JSON mapping, so a query file and an
 // RPC request are one format by construction. Unknown fields are rejected.
@@ -13,6 +14,7 @@
 #include "absl/status/statusor.h"
 #include "core/input_limits.h"
 #include "core/query.h"
+#include "core/wide_query.h"
 #include "query.pb.h"
 
 namespace sliceplan {
@@ -24,6 +26,9 @@ namespace sliceplan {
 // name (reported before any predicate is read), a missing rows or
 // selectivity, a predicate naming an unknown or a repeated relation, and
 // everything Query::Create checks. Names quoted in messages are cut short.
+absl::StatusOr<WideQuery> WideQueryFromProto(const v1::Query& message,
+                                             const InputLimits& limits = {});
+// The same, then ToExactQuery: more than 64 relations is INVALID_ARGUMENT.
 absl::StatusOr<Query> QueryFromProto(const v1::Query& message, const InputLimits& limits = {});
 
 v1::Query QueryToProto(const Query& query);
@@ -33,11 +38,14 @@ v1::Query QueryToProto(const Query& query);
 // where it is.
 // Text past limits.max_query_bytes is RESOURCE_EXHAUSTED; text that is not
 // UTF-8 is INVALID_ARGUMENT.
+absl::StatusOr<WideQuery> ParseWideQueryJson(std::string_view json, const InputLimits& limits = {});
 absl::StatusOr<Query> ParseQueryJson(std::string_view json, const InputLimits& limits = {});
 
 // Reads and parses a query file. A file that cannot be read is NOT_FOUND
 // (or PERMISSION_DENIED) with the path in the message; a file larger than
 // limits.max_query_bytes is RESOURCE_EXHAUSTED before it is read.
+absl::StatusOr<WideQuery> ReadWideQueryFile(const std::string& path,
+                                            const InputLimits& limits = {});
 absl::StatusOr<Query> ReadQueryFile(const std::string& path, const InputLimits& limits = {});
 
 }  // namespace sliceplan

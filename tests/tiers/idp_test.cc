@@ -1,0 +1,111 @@
+// Iterative DP over blocks: never below the optimum, never above its start
+// plan, exact when one block covers the query, hyperedges kept, and large
+// queries improved within a time limit.
+#include "tiers/idp.h"
+
+#include <gtest/gtest.h>
+
+#include <chrono>
+
+#include "schedule/embedded_pool.h"
+#include "tests/support/reference_dp.h"
+#include "tests/support/test_queries.h"
+#include "tests/support/wide_queries.h"
+#include "tiers/greedy.h"
+
+namespace sliceplan {
+namespace {
+
+using testing::GraphShape;
+
+BlockSearch InProcess(bool cross_products) {
+  return [cross_products](const Query& block) -> absl::StatusOr<Plan> {
+    SearchOptions options;
+    options.cross_products = cross_products;
+    auto result = OptimizeEmbedded(block, options, 1, 1);
+    if (!result.ok()) return result.status();
+    return result->plan;
+  };
+}
+
+TEST(IdpTest, OneBlockOverTheWholeQueryIsExact) {
+  for (const GraphShape shape : {GraphShape::kChain, GraphShape::kStar, GraphShape::kClique,
+                                 GraphShape::kRandom, GraphShape::kHyper}) {
+    const Query q = testing::MakeQuery(shape, 10, 5);
+    const WideQuery w = WideQuery::FromExact(q);
+    for (const bool cross : {false, true}) {
+      IdpConfig config;
+      config.block = 10;
+      config.cross_products = cross;
+      const IdpResult r =
+          ImproveByBlocks(w, GreedyPlan(w, PlanShape::kBushy), config, InProcess(cross));
+      ASSERT_TRUE(CheckWidePlan(r.plan, 10).ok());
+      const double best = testing::DpBestBushy(q, cross);
+      EXPECT_NEAR(r.plan.cost(), best, 1e-9 * best) << testing::ShapeName(shape) << cross;
+      EXPECT_GE(r.stats.blocks, 1);
+    }
+  }
+}
+
+TEST(IdpTest, SmallBlocksNeverBelowTheOptimumNorAboveTheStart) {
+  for (const GraphShape shape : {GraphShape::kChain, GraphShape::kCycle, GraphShape::kStar,
+                                 GraphShape::kClique, GraphShape::kRandom, GraphShape::kHyper}) {
+    for (uint64_t seed = 1; seed <= 3; ++seed) {
+      const Query q = testing::MakeQuery(shape, 13, seed);
+      const WideQuery w = WideQuery::FromExact(q);
+      for (const bool cross : {false, true}) {
+        IdpConfig config;
+        config.block = 5;
+        config.cross_products = cross;
+        const WidePlan start = GreedyPlan(w, PlanShape::kBushy);
+        const IdpResult r = ImproveByBlocks(w, start, config, InProcess(cross));
+        ASSERT_TRUE(CheckWidePlan(r.plan, 13).ok());
+        if (!cross) {
+          EXPECT_FALSE(HasCrossProduct(r.plan, w));
+        }
+        EXPECT_LE(r.plan.cost(), start.cost());
+        EXPECT_DOUBLE_EQ(r.stats.start_cost, start.cost());
+        const double best = testing::DpBestBushy(q, cross);
+        EXPECT_GE(r.plan.cost(), best * (1 - 1e-12)) << testing::ShapeName(shape);
+      }
+    }
+  }
+}
+
+TEST(IdpTest, ImprovesAPoorStartOnAChain) {
+  // A left-deep start on a chain whose optimum is bushy: blocks of 6
+  // find cheaper sub-plans.
+  const Query q = testing::MakeQuery(GraphShape::kChain, 14, 2);
+  const WideQuery w = WideQuery::FromExact(q);
+  const WidePlan start = GreedyPlan(w, PlanShape::kLeftDeep);
+  IdpConfig config;
+  config.block = 6;
+  config.cross_products = false;
+  const IdpResult r = ImproveByBlocks(w, start, config, InProcess(false));
+  const double best = testing::DpBestBushy(q, false);
+  ASSERT_GT(start.cost(), best * 1.01);  // the start is poor
+  EXPECT_LT(r.plan.cost(), start.cost());
+  EXPECT_GT(r.stats.improved, 0);
+}
+
+TEST(IdpTest, LargeQueriesStopWhenTimeIsOut) {
+  const WideQuery w = testing::MakeWideQuery(testing::WideShape::kTreeWithHyperedges, 1000, 3);
+  const WidePlan start = GreedyPlan(w, PlanShape::kBushy);
+  IdpConfig config;
+  config.block = 8;
+  config.cross_products = false;
+  const auto until = std::chrono::steady_clock::now() + std::chrono::milliseconds(300);
+  config.out_of_time = [until] { return std::chrono::steady_clock::now() > until; };
+  const auto began = std::chrono::steady_clock::now();
+  const IdpResult r = ImproveByBlocks(w, start, config, InProcess(false));
+  const double seconds =
+      std::chrono::duration<double>(std::chrono::steady_clock::now() - began).count();
+  ASSERT_TRUE(CheckWidePlan(r.plan, 1000).ok());
+  EXPECT_FALSE(HasCrossProduct(r.plan, w));
+  EXPECT_LE(r.plan.cost(), start.cost());
+  EXPECT_GT(r.stats.blocks, 0);
+  EXPECT_LT(seconds, 2.0);  // one block past the limit at most; blocks of 8 take milliseconds
+}
+
+}  // namespace
+}  // namespace sliceplan

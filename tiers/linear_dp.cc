@@ -1,0 +1,222 @@
+#include "tiers/linear_dp.h"
+
+#include <algorithm>
+#include <limits>
+#include <memory>
+#include <utility>
+
+#include "absl/strings/str_cat.h"
+#include "core/cout_policy.h"
+#include "core/value_range.h"
+#include "tiers/ikkbz.h"
+#include "tiers/join_forest.h"
+
+namespace sliceplan {
+namespace {
+
+constexpr double kInf = std::numeric_limits<double>::infinity();
+constexpr int32_t kNever = std::numeric_limits<int32_t>::max();
+
+class RunTable {
+ public:
+  RunTable(const WideQuery& query, const std::vector<int32_t>& order)
+      : n_(query.size()),
+        card_(size_t(n_) * n_),
+        cost_(size_t(n_) * n_, kInf),
+        cost_by_end_(size_t(n_) * n_, kInf),
+        reach_(size_t(n_) * n_, kNever),
+        split_(size_t(n_) * n_, -1) {
+    FillCards(query, order);
+    FillReach();
+  }
+
+  // Bushy: every split of every run. Left-deep: a single relation on the
+  // right, taken from either end of the run.
+  absl::Status Solve(bool bushy, bool cross_products, SearchControl& control) {
+    for (int i = 0; i < n_; ++i) Set(i, i, 0, -1);
+    for (int len = 2; len <= n_; ++len) {
+      for (int i = 0; i + len <= n_; ++i) {
+        const int j = i + len - 1;
+        bushy ? SolveBushy(i, j, cross_products) : SolveLeftDeep(i, j, cross_products);
+      }
+      if (control.Tick(bushy ? uint64_t(n_ - len + 1) * (len - 1) : 2 * (n_ - len + 1))) {
+        return control.status();
+      }
+    }
+    return absl::OkStatus();
+  }
+
+  bool Solved() const { return cost_[At(0, n_ - 1)] < kInf; }
+
+  // The plan of run [0, n-1] in order's relations, built without recursion.
+  WidePlan Build(const std::vector<int32_t>& order) const {
+    WidePlan plan;
+    struct Frame {
+      int i, j;
+      int32_t left = -1;  // node built for the left part, once done
+    };
+    std::vector<Frame> stack{{0, n_ - 1}};
+    std::vector<int32_t> results;
+    while (!stack.empty()) {
+      Frame& f = stack.back();
+      if (f.i == f.j) {
+        results.push_back(AddLeaf(plan, order[f.i]));
+        stack.pop_back();
+        continue;
+      }
+      const int32_t k = split_[At(f.i, f.j)];
+      // Left-deep splits at k = i put relation i on the right.
+      const bool right_single_low = k < 0;
+      const int lo_i = right_single_low ? f.i + 1 : f.i;
+      const int lo_j = right_single_low ? f.j : k;
+      const int hi_i = right_single_low ? f.i : k + 1;
+      const int hi_j = right_single_low ? f.i : f.j;
+      if (f.left == -1) {
+        f.left = -2;
+        stack.push_back({lo_i, lo_j});
+      } else if (f.left == -2) {
+        f.left = -3;
+        stack.push_back({hi_i, hi_j});
+      } else {
+        const int32_t right = results.back();
+        results.pop_back();
+        const int32_t left = results.back();
+        results.pop_back();
+        results.push_back(AddJoin(plan, left, right));
+        stack.pop_back();
+      }
+    }
+    return plan;
+  }
+
+ private:
+  size_t At(int i, int j) const { return size_t(i) * n_ + j; }
+  size_t AtByEnd(int i, int j) const { return size_t(j) * n_ + i; }
+
+  void Set(int i, int j, double cost, int32_t split) {
+    cost_[At(i, j)] = cost;
+    cost_by_end_[AtByEnd(i, j)] = cost;
+    split_[At(i, j)] = split;
+  }
+
+  // card(i, j) = card(i, j-1) rows(j) times the selectivity of each
+  // predicate whose last position is j and first is at or after i.
+  void FillCards(const WideQuery& query, const std::vector<int32_t>& order) {
+    std::vector<int32_t> position(n_);
+    for (int i = 0; i < n_; ++i) position[order[i]] = i;
+    std::vector<std::vector<std::pair<int32_t, double>>> ending(n_);  // (first, selectivity)
+    first_of_.assign(n_, {});
+    for (const WidePredicate& p : query.predicates()) {
+      int32_t first = n_, last = -1;
+      for (const int32_t r : p.relations) {
+        first = std::min(first, position[r]);
+        last = std::max(last, position[r]);
+      }
+      ending[last].push_back({first, p.selectivity});
+      first_of_[first].push_back(last);
+    }
+    std::vector<double> factor(n_);
+    for (int j = 0; j < n_; ++j) {
+      std::fill(factor.begin(), factor.begin() + j + 1, 1.0);
+      for (const auto& [first, sel] : ending[j]) factor[first] *= sel;
+      // factor(i) becomes the product over firsts >= i.
+      for (int i = j - 1; i >= 0; --i) factor[i] *= factor[i + 1];
+      const double rows = query.relation(order[j]).rows;
+      card_[At(j, j)] = rows;
+      for (int i = j - 1; i >= 0; --i) {
+        card_[At(i, j)] = Saturate(card_[At(i, j - 1)] * rows * factor[i]);
+      }
+    }
+  }
+
+  void FillReach() {
+    for (int k = 0; k < n_; ++k) {
+      int32_t best = kNever;
+      for (int i = k; i >= 0; --i) {
+        for (const int32_t last : first_of_[i]) {
+          if (last > k) best = std::min(best, last);
+        }
+        reach_[At(i, k)] = best;
+      }
+    }
+  }
+
+  void SolveBushy(int i, int j, bool cross_products) {
+    const double* left = &cost_[At(i, 0)];
+    const double* right = &cost_by_end_[AtByEnd(0, j)];
+    const int32_t* reach = &reach_[At(i, 0)];
+    double best = kInf;
+    if (cross_products) {
+      for (int k = i; k < j; ++k) best = std::min(best, left[k] + right[k + 1]);
+    } else {
+      for (int k = i; k < j; ++k) {
+        const double v = reach[k] <= j ? left[k] + right[k + 1] : kInf;
+        best = std::min(best, v);
+      }
+    }
+    if (!(best < kInf)) return;
+    int32_t at = i;
+    while (!(left[at] + right[at + 1] == best && (cross_products || reach[at] <= j))) ++at;
+    Set(i, j, CoutJoin(card_[At(i, j)], left[at], right[at + 1]), at);
+  }
+
+  void SolveLeftDeep(int i, int j, bool cross_products) {
+    // Relation j on the right (split at j - 1), or relation i (split "-1").
+    const bool high_ok = cross_products || reach_[At(i, j - 1)] <= j;
+    const bool low_ok = cross_products || reach_[At(i, i)] <= j;
+    const double high = high_ok ? cost_[At(i, j - 1)] : kInf;
+    const double low = low_ok ? cost_[At(i + 1, j)] : kInf;
+    if (!(std::min(high, low) < kInf)) return;
+    if (high <= low) {
+      Set(i, j, CoutJoin(card_[At(i, j)], high, 0), j - 1);
+    } else {
+      Set(i, j, CoutJoin(card_[At(i, j)], low, 0), -1);
+    }
+  }
+
+  const int n_;
+  std::vector<double> card_;
+  std::vector<double> cost_;                    // [i][j]
+  std::vector<double> cost_by_end_;             // [j][i]
+  std::vector<int32_t> reach_;                  // [i][k]
+  std::vector<int32_t> split_;                  // [i][j]: k, or -1 for "relation i on the right"
+  std::vector<std::vector<int32_t>> first_of_;  // per first position: the last positions
+};
+
+}  // namespace
+
+absl::StatusOr<WidePlan> LinearizedDp(const WideQuery& query, const std::vector<int32_t>& order,
+                                      PlanShape shape, bool cross_products,
+                                      SearchControl& control) {
+  if (query.size() > kMaxLinearRelations) {
+    return absl::ResourceExhaustedError(
+        absl::StrCat("the linear tier takes at most ", kMaxLinearRelations, " relations (",
+                     query.size(), " given); the greedy and idp tiers take more"));
+  }
+  const bool bushy = shape == PlanShape::kBushy;
+  auto table = std::make_unique<RunTable>(query, order);
+  if (auto s = table->Solve(bushy, cross_products, control); !s.ok()) return s;
+  if (!table->Solved()) {
+    // Runs of the order joined by hyperedges alone may leave no connected
+    // plan; a disconnected join graph never has one.
+    if (IsConnected(query)) {
+      return absl::FailedPreconditionError(
+          "no plan without cross products follows this order of the relations");
+    }
+    table = std::make_unique<RunTable>(query, order);
+    if (auto s = table->Solve(bushy, true, control); !s.ok()) return s;
+  }
+  WidePlan plan = table->Build(order);
+  CostWidePlan(plan, query);
+  return plan;
+}
+
+absl::StatusOr<WidePlan> LinearPlan(const WideQuery& query, PlanShape shape, bool cross_products,
+                                    SearchControl& control, int max_roots) {
+  if (query.size() > kMaxLinearRelations) {
+    return LinearizedDp(query, {}, shape, cross_products, control);
+  }
+  return LinearizedDp(query, IkkbzOrder(query, max_roots), shape, cross_products, control);
+}
+
+}  // namespace sliceplan

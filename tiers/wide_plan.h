@@ -1,0 +1,61 @@
+// A join plan over a query of any size: a binary tree whose leaves name
+// relation ids, with every node's cardinality and C_out cost. The exact
+// engine's Plan (core/plan.h) converts to it; the heuristic tiers build it
+// directly. Plain value type.
+#ifndef SLICEPLAN_TIERS_WIDE_PLAN_H_
+#define SLICEPLAN_TIERS_WIDE_PLAN_H_
+
+#include <cstdint>
+#include <string>
+#include <vector>
+
+#include "absl/status/status.h"
+#include "core/plan.h"
+#include "core/wide_query.h"
+
+namespace sliceplan {
+
+struct WideNode {
+  int32_t relation = -1;  // leaves: the relation id; joins: -1
+  int32_t left = -1;      // joins: child node indices
+  int32_t right = -1;
+  double cardinality = 0;
+  double cost = 0;  // C_out of the subtree
+  bool is_leaf() const { return left < 0; }
+};
+
+struct WidePlan {
+  std::vector<WideNode> nodes;  // children before parents; the root is last
+  const WideNode& root() const { return nodes.back(); }
+  double cost() const { return nodes.empty() ? 0 : nodes.back().cost; }
+};
+
+// A leaf node and a join node, for builders.
+int32_t AddLeaf(WidePlan& plan, int32_t relation);
+int32_t AddJoin(WidePlan& plan, int32_t left, int32_t right);
+
+// OK when the plan is a binary tree over every relation of a query of n
+// relations, each exactly once, children before parents, root last (and,
+// if left_deep, every right operand a leaf). INTERNAL naming the fault
+// otherwise: a tier that returns such a plan has a bug.
+absl::Status CheckWidePlan(const WidePlan& plan, int n, bool left_deep = false);
+
+// Fills every node's cardinality and C_out (core/cout_policy.h's
+// rounding); returns the root's cost. REQUIRES: CheckWidePlan is OK.
+double CostWidePlan(WidePlan& plan, const WideQuery& query);
+
+// True when some join of the plan is a cross product (no predicate spans
+// its two inputs). REQUIRES: CheckWidePlan is OK.
+bool HasCrossProduct(const WidePlan& plan, const WideQuery& query);
+
+// "((shipments vessels) ports)", as TreeString (core/plan.h). Iterative:
+// a 10,000-deep left-deep plan does not recurse.
+std::string WideTreeString(const WidePlan& plan, const WideQuery& query);
+
+// The exact engine's plan in this form (leaf = the set's single member),
+// cardinalities and costs copied.
+WidePlan FromExactPlan(const Plan& plan);
+
+}  // namespace sliceplan
+
+#endif  // SLICEPLAN_TIERS_WIDE_PLAN_H_
