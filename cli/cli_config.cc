@@ -8,6 +8,7 @@
 #include "absl/strings/str_split.h"
 #include "core/pareto.h"
 #include "core/plan_choice.h"
+#include "core/search_tier.h"
 #include "core/status_macros.h"
 
 namespace sliceplan::cli {
@@ -127,6 +128,14 @@ absl::Status SetFlag(OptimizeConfig& config, const std::string& flag, const std:
     const auto d = ParseDouble(flag, value);
     if (!d.ok() || !(*d > 0)) return BadFlag(flag, value, "a number of seconds > 0");
     config.deadline_seconds = *d;
+  } else if (flag == "tier") {
+    const auto tier = ParseTier(value);
+    if (!tier) return BadFlag(flag, value, "auto, exact, idp, linear or greedy");
+    config.tier = *tier;
+  } else if (flag == "budget-seconds") {
+    const auto d = ParseDouble(flag, value);
+    if (!d.ok() || !(*d > 0) || *d > 3600) return BadFlag(flag, value, "seconds in (0, 3600]");
+    config.budget_seconds = *d;
   } else if (flag == "partial-on-deadline") {
     if (value == "true")
       config.partial_on_deadline = true;
@@ -236,6 +245,12 @@ space on workers and merging their optima.
   --workers=N                    in-process workers (default: the cores)
   --coordinator=HOST:PORT        solve on a running coordinator
   --format=text|json|dot         output (default text)
+  --tier=auto|exact|idp|linear|greedy
+                                 how to search (default auto: exact when it
+                                 fits the time on this pool, else idp from the
+                                 best of greedy and linear; any query size)
+  --budget-seconds=S             the time auto and idp plan for without a
+                                 deadline (default 10)
   --memo-limit=BYTES             per-slice memo limit (default 8GiB)
 
 The cluster model (--cost=cluster) returns the Pareto set of plans:
@@ -251,9 +266,11 @@ The cluster model (--cost=cluster) returns the Pareto set of plans:
   --tls-ca=FILE                  with --coordinator: verify it against this CA (TLS)
   --tls-cert=FILE --tls-key=FILE with --coordinator: present this certificate
   --token-file=FILE              with --coordinator: send its first bearer token
-  --deadline-seconds=S           give up after S seconds
-  --partial-on-deadline=true     at the deadline, print the best plan so far
-                                 (marked not proven optimal) instead of failing
+  --deadline-seconds=S           answer within S seconds: auto and idp return
+                                 the best plan found by then
+  --partial-on-deadline=true     --tier=exact or the cluster model: at the
+                                 deadline, print the best plan so far (marked
+                                 not proven optimal) instead of failing
   --quiet                        no progress bar on stderr
 
 usage: sliceplan workers --coordinator=HOST:PORT [--tls-ca=FILE [--tls-cert=FILE --tls-key=FILE]]

@@ -9,6 +9,7 @@
 #include <vector>
 
 #include "absl/status/statusor.h"
+#include "core/search_tier.h"
 #include "core/slice_solver.h"
 #include "rpc/tls.h"
 
@@ -23,12 +24,14 @@ struct OptimizeConfig {
   int workers = 1;                 // --workers=N; default: the machine's cores
   std::optional<std::string> coordinator;
   OutputFormat format = OutputFormat::kText;
-  double deadline_seconds = 0;       // 0: none
-  bool partial_on_deadline = false;  // best plan so far instead of an error
-  bool quiet = false;                // no progress bar
-  std::string plot_path;             // --plot=FILE.svg (cluster model)
-  TlsFiles tls;                      // --tls-ca, --tls-cert, --tls-key (with --coordinator)
-  std::string token_file;            // --token-file (with --coordinator)
+  SearchTier tier = SearchTier::kAuto;  // --tier
+  double budget_seconds = 10;           // --budget-seconds: auto's time without a deadline
+  double deadline_seconds = 0;          // 0: none
+  bool partial_on_deadline = false;     // best plan so far instead of an error
+  bool quiet = false;                   // no progress bar
+  std::string plot_path;                // --plot=FILE.svg (cluster model)
+  TlsFiles tls;                         // --tls-ca, --tls-cert, --tls-key (with --coordinator)
+  std::string token_file;               // --token-file (with --coordinator)
 };
 
 // `sliceplan workers --coordinator=HOST:PORT`.

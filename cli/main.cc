@@ -2,6 +2,7 @@
 // the embedded coordinator or calls a remote one, and prints the result.
 #include <fstream>
 #include <iostream>
+#include <optional>
 #include <string>
 #include <thread>
 #include <vector>
@@ -15,6 +16,7 @@
 #include "cli/rpc_client.h"
 #include "core/input_limits.h"
 #include "core/slice_planner.h"
+#include "core/wide_query.h"
 #include "schedule/embedded_pool.h"
 #include "wire/query_proto.h"
 
@@ -46,23 +48,44 @@ int Fail(const absl::Status& status) {
   return ExitCodeFor(status);
 }
 
-absl::StatusOr<ScheduleOutcome> Solve(const OptimizeConfig& config, const Query& query,
-                                      ProgressBar& bar) {
+absl::StatusOr<TieredOutcome> Solve(const OptimizeConfig& config, const WideQuery& query,
+                                    ProgressBar& bar) {
   const auto progress = [&bar](const ScheduleProgress& p) { bar.Update(p); };
   if (config.coordinator) {
-    RemoteRequest request{*config.coordinator,        config.search,
-                          config.slices.value_or(0),  config.deadline_seconds,
-                          config.partial_on_deadline, config.tls,
-                          config.token_file};
+    RemoteRequest request;
+    request.coordinator = *config.coordinator;
+    request.options = config.search;
+    request.slice_count = config.slices.value_or(0);
+    request.tier = config.tier;
+    request.budget_seconds = config.budget_seconds;
+    request.deadline_seconds = config.deadline_seconds;
+    request.partial_on_deadline = config.partial_on_deadline;
+    request.tls = config.tls;
+    request.token_file = config.token_file;
     return OptimizeRemote(request, query, progress);
   }
-  const uint32_t slices =
-      config.slices.value_or(ChooseSliceCount(query, config.search, config.workers));
+  TierRequest tiers;
+  tiers.tier = config.tier;
+  tiers.slice_count = config.slices.value_or(0);
+  tiers.budget_seconds =
+      config.deadline_seconds > 0 ? config.deadline_seconds : config.budget_seconds;
   ScheduleOptions schedule;
   schedule.on_progress = progress;
   schedule.partial_on_deadline = config.partial_on_deadline;
   if (config.deadline_seconds > 0) schedule.deadline = SteadyAfter(config.deadline_seconds);
-  return RunEmbedded(query, config.search, slices, config.workers, schedule);
+  return RunEmbeddedTiers(query, config.search, tiers, config.workers, schedule);
+}
+
+// --slices fixes the exact search's slice count: checked against the query.
+absl::Status CheckSlicesFlag(const OptimizeConfig& config, const WideQuery& query) {
+  if (!config.slices) return absl::OkStatus();
+  if (query.size() > kMaxRelations) {
+    return absl::InvalidArgumentError(
+        absl::StrCat("--slices: slices divide the exact search, which takes at most ",
+                     kMaxRelations, " relations (", query.size(), " given)"));
+  }
+  return ValidateSlice({0, *config.slices}, query.size(), config.search.shape,
+                       {"--slices", "slice index"});
 }
 
 int Optimize(const std::vector<std::string>& args) {
@@ -74,14 +97,12 @@ int Optimize(const std::vector<std::string>& args) {
   if (!config->plot_path.empty() && config->search.cost != CostModelKind::kCluster) {
     return Fail(absl::InvalidArgumentError("--plot: needs --cost=cluster (a frontier to plot)"));
   }
-  auto query = ReadQueryFile(config->query_path);
+  auto query = ReadWideQueryFile(config->query_path);
   if (!query.ok()) return Fail(query.status());
-  if (config->slices) {
-    const absl::Status s = ValidateSlice({0, *config->slices}, query->size(), config->search.shape,
-                                         {"--slices", "slice index"});
-    if (!s.ok()) return Fail(s);
-  }
-  absl::StatusOr<ScheduleOutcome> outcome;
+  if (auto s = CheckSlicesFlag(*config, *query); !s.ok()) return Fail(s);
+  std::optional<Query> exact;
+  if (query->size() <= kMaxRelations) exact = *ToExactQuery(*query);
+  absl::StatusOr<TieredOutcome> outcome;
   {
     ProgressBar bar(!config->quiet);
     outcome = Solve(*config, *query, bar);
@@ -89,13 +110,14 @@ int Optimize(const std::vector<std::string>& args) {
   if (!outcome.ok()) return Fail(outcome.status());
   if (!config->plot_path.empty()) {
     std::ofstream plot(config->plot_path);
-    plot << FrontierSvg(outcome->result.frontier, *query, outcome->result.chosen);
+    plot << FrontierSvg(outcome->schedule.result.frontier, *exact, outcome->schedule.result.chosen);
     if (!plot) {
       return Fail(absl::UnavailableError(absl::StrCat("--plot: cannot write ", config->plot_path)));
     }
   }
-  RunInfo info{&*query, config->search, config->workers, !config->slices};
-  if (config->coordinator) info.workers = static_cast<int>(outcome->workers_used);
+  RunInfo info{&*query, exact ? &*exact : nullptr, config->search, config->workers,
+               !config->slices};
+  if (config->coordinator) info.workers = static_cast<int>(outcome->schedule.workers_used);
   switch (config->format) {
     case OutputFormat::kText:
       std::cout << RenderText(*outcome, info);

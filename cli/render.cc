@@ -43,25 +43,16 @@ void CollectLines(const Plan& plan, int i, int depth, const Query& query,
   CollectLines(plan, node.right, depth + 1, query, out);
 }
 
-// One line per node, children indented under their join, figures aligned.
-void AppendTextTree(const Plan& plan, const Query& query, std::string& out, bool cluster = false) {
+// The cluster plan, one line per node with its physical choice, children
+// indented under their join, figures aligned.
+void AppendClusterTree(const Plan& plan, const Query& query, std::string& out) {
   std::vector<TextLine> lines;
   CollectLines(plan, static_cast<int>(plan.nodes.size()) - 1, 0, query, lines);
-  if (cluster) {
-    for (TextLine& l : lines) {
-      l.head = l.head.substr(0, l.head.find_first_not_of(' ')) + PhysicalLabel(*l.node, query);
-    }
+  for (TextLine& l : lines) {
+    l.head = l.head.substr(0, l.head.find_first_not_of(' ')) + PhysicalLabel(*l.node, query);
   }
   size_t width = 0;
   for (const TextLine& l : lines) width = std::max(width, l.head.size());
-  if (!cluster) {
-    absl::StrAppendFormat(&out, "%-*s  %12s  %12s\n", width, "node", "card", "cost");
-    for (const TextLine& l : lines) {
-      absl::StrAppendFormat(&out, "%-*s  %12.4g  %12.4g\n", width, l.head, l.node->cardinality,
-                            l.node->cost);
-    }
-    return;
-  }
   absl::StrAppendFormat(&out, "%-*s  %12s  %10s  %12s  %12s\n", width, "node", "rows", "latency_s",
                         "node_seconds", "completeness");
   for (const TextLine& l : lines) {
@@ -71,6 +62,34 @@ void AppendTextTree(const Plan& plan, const Query& query, std::string& out, bool
                           m.completeness);
   }
 }
+
+// The cout plan as an indented table, children under their join; built
+// without recursion (a left-deep plan of thousands is thousands deep).
+void AppendWideTree(const WidePlan& plan, const WideQuery& query, std::string& out) {
+  std::vector<std::pair<std::string, const WideNode*>> lines;
+  std::vector<std::pair<int32_t, int>> stack{{static_cast<int32_t>(plan.nodes.size()) - 1, 0}};
+  while (!stack.empty()) {
+    const auto [i, depth] = stack.back();
+    stack.pop_back();
+    const WideNode& node = plan.nodes[i];
+    lines.push_back({std::string(2 * depth, ' ') +
+                         (node.is_leaf() ? query.relation(node.relation).name : "join"),
+                     &node});
+    if (node.is_leaf()) continue;
+    stack.push_back({node.right, depth + 1});
+    stack.push_back({node.left, depth + 1});
+  }
+  size_t width = 0;
+  for (const auto& l : lines) width = std::max(width, l.first.size());
+  absl::StrAppendFormat(&out, "%-*s  %12s  %12s\n", width, "node", "card", "cost");
+  for (const auto& [head, node] : lines) {
+    absl::StrAppendFormat(&out, "%-*s  %12.4g  %12.4g\n", width, head, node->cardinality,
+                          node->cost);
+  }
+}
+
+// Above this many relations the text output gives the tree string only.
+constexpr int kMaxTextTableRelations = 64;
 
 // %.17g round-trips a double; JSON has no inf or nan, so those become null.
 std::string JsonNumber(double x) {
@@ -127,11 +146,12 @@ SliceBalance Balance(const OptimizeResult& result) {
   return b;
 }
 
-std::string RenderText(const ScheduleOutcome& outcome, const RunInfo& info) {
-  const OptimizeResult& result = outcome.result;
-  const Query& query = *info.query;
+std::string RenderText(const TieredOutcome& outcome, const RunInfo& info) {
+  const OptimizeResult& result = outcome.schedule.result;
+  const WideQuery& wide = *info.query;
   std::string out;
   if (info.search.cost == CostModelKind::kCluster) {
+    const Query& query = *info.exact;
     absl::StrAppendFormat(&out,
                           "Pareto frontier of %s plans of %d relations (cross products %s), "
                           "objectives %s, alpha %g: %d plans\n\n",
@@ -150,29 +170,52 @@ std::string RenderText(const ScheduleOutcome& outcome, const RunInfo& info) {
     if (result.chosen) {
       absl::StrAppendFormat(&out, "\nchosen: plan %d (* above)\n\n",
                             static_cast<int>(*result.chosen));
-      AppendTextTree(result.plan, query, out, true);
+      AppendClusterTree(result.plan, query, out);
     } else {
       out += "\nno plan of the frontier meets the bounds\n";
     }
   } else {
-    absl::StrAppendFormat(&out, "best %s plan of %d relations (cross products %s): %s %.6g\n\n",
-                          ShapeName(info.search.shape), query.size(),
+    absl::StrAppendFormat(&out, "best %s plan of %d relations (cross products %s): %s %.6g\n",
+                          ShapeName(info.search.shape), wide.size(),
                           info.search.cross_products ? "allowed" : "excluded",
-                          MetricName(info.search.cost), result.plan.root().cost);
-    if (!outcome.proven_optimal) {
+                          MetricName(info.search.cost), outcome.plan.cost());
+    absl::StrAppendFormat(&out, "tier: %s, %s; %s\n\n", TierName(outcome.tier),
+                          outcome.proven_optimal ? "proven optimal" : "not proven optimal",
+                          outcome.reason);
+    if (outcome.tier == SearchTier::kExact && !outcome.proven_optimal) {
       absl::StrAppendFormat(&out,
                             "NOT PROVEN OPTIMAL: the deadline passed with %.0f%% of the slices "
                             "solved; this is the best plan found so far\n\n",
                             100 * outcome.coverage);
     }
-    out += TreeString(result.plan, query) + "\n\n";
-    AppendTextTree(result.plan, query, out);
+    out += WideTreeString(outcome.plan, wide) + "\n\n";
+    if (wide.size() <= kMaxTextTableRelations) {
+      AppendWideTree(outcome.plan, wide, out);
+    } else {
+      absl::StrAppendFormat(&out,
+                            "(the node table is shown up to %d relations; --format=json "
+                            "has every figure)\n",
+                            kMaxTextTableRelations);
+    }
+  }
+  if (outcome.tier == SearchTier::kIdp || (!outcome.exact_ran && !result.slices.empty())) {
+    absl::StrAppendFormat(&out,
+                          "\nidp: %d blocks searched exactly (largest %d relations), %d improved "
+                          "the plan, %d passes, %u slices solved; wall time %.3f s\n",
+                          outcome.idp.blocks, outcome.idp.largest_block, outcome.idp.improved,
+                          outcome.idp.passes, static_cast<unsigned>(result.slices.size()),
+                          outcome.wall_seconds);
+    return out;
+  }
+  if (!outcome.exact_ran) {
+    absl::StrAppendFormat(&out, "\nwall time %.3f s\n", outcome.wall_seconds);
+    return out;
   }
   const SliceBalance b = Balance(result);
   absl::StrAppendFormat(&out, "\nslices: %u (%s), workers: %d, wall time %.3f s\n",
                         result.slice_count,
                         info.slices_chosen ? "chosen by the coordinator" : "as requested",
-                        info.workers, result.wall_seconds);
+                        info.workers, outcome.wall_seconds);
   absl::StrAppendFormat(&out, "  %-6s %14s %16s %10s\n", "slice", "subsets", "splits", "seconds");
   for (const SliceResult& s : result.slices) {
     absl::StrAppendFormat(&out, "  %-6u %14u %16u %10.4f%s\n", s.slice.index, s.stats.subsets,
@@ -181,18 +224,18 @@ std::string RenderText(const ScheduleOutcome& outcome, const RunInfo& info) {
   }
   absl::StrAppendFormat(&out, "slowest slice: %u (%.4f s); balance (max/mean splits): %.3f\n",
                         b.slowest, b.slowest_seconds, b.max_over_mean_splits);
-  if (outcome.retries > 0 || outcome.hedges > 0) {
-    absl::StrAppendFormat(&out, "re-dispatched slices: %u, hedged slices: %u\n", outcome.retries,
-                          outcome.hedges);
+  if (outcome.schedule.retries > 0 || outcome.schedule.hedges > 0) {
+    absl::StrAppendFormat(&out, "re-dispatched slices: %u, hedged slices: %u\n",
+                          outcome.schedule.retries, outcome.schedule.hedges);
   }
   return out;
 }
 
-std::string RenderJson(const ScheduleOutcome& outcome, const RunInfo& info) {
-  const OptimizeResult& result = outcome.result;
-  const Query& query = *info.query;
+std::string RenderJson(const TieredOutcome& outcome, const RunInfo& info) {
+  const OptimizeResult& result = outcome.schedule.result;
   std::string out = "{\n  \"plans\": [\n";
   if (info.search.cost == CostModelKind::kCluster) {
+    const Query& query = *info.exact;
     for (size_t i = 0; i < result.frontier.size(); ++i) {
       const ClusterCosts& m = result.frontier[i].root().metrics;
       absl::StrAppend(&out, "    {\"tree\": ", JsonString(TreeString(result.frontier[i], query)),
@@ -204,20 +247,30 @@ std::string RenderJson(const ScheduleOutcome& outcome, const RunInfo& info) {
     absl::StrAppend(&out, "  ],\n  \"chosen\": ",
                     result.chosen ? absl::StrCat(*result.chosen) : std::string("null"), ",\n");
   } else {
-    absl::StrAppend(&out, "    {\"tree\": ", JsonString(TreeString(result.plan, query)),
+    absl::StrAppend(&out, "    {\"tree\": ", JsonString(WideTreeString(outcome.plan, *info.query)),
                     ", \"costs\": {", JsonString(MetricName(info.search.cost)), ": ",
-                    JsonNumber(result.plan.root().cost),
-                    "}, \"cardinality\": ", JsonNumber(result.plan.root().cardinality),
-                    ", \"slice\": ", result.best_slice, "}\n  ],\n");
+                    JsonNumber(outcome.plan.cost()),
+                    "}, \"cardinality\": ", JsonNumber(outcome.plan.root().cardinality));
+    if (outcome.exact_ran) absl::StrAppend(&out, ", \"slice\": ", result.best_slice);
+    out += "}\n  ],\n";
   }
   absl::StrAppend(&out, "  \"shape\": \"", ShapeName(info.search.shape),
                   "\",\n  \"cross_products\": ", info.search.cross_products ? "true" : "false",
+                  ",\n  \"tier\": ", JsonString(TierName(outcome.tier)),
                   ",\n  \"proven_optimal\": ", outcome.proven_optimal ? "true" : "false",
-                  ",\n  \"coverage\": ", JsonNumber(outcome.coverage), ",\n");
+                  ",\n  \"coverage\": ", JsonNumber(outcome.coverage),
+                  ",\n  \"tier_reason\": ", JsonString(outcome.reason), ",\n");
   absl::StrAppend(&out, "  \"stats\": {\n    \"slice_count\": ", result.slice_count,
                   ",\n    \"workers\": ", info.workers,
-                  ",\n    \"wall_seconds\": ", JsonNumber(result.wall_seconds),
-                  ",\n    \"slices\": [\n");
+                  ",\n    \"wall_seconds\": ", JsonNumber(outcome.wall_seconds));
+  if (outcome.idp.blocks > 0) {
+    absl::StrAppend(&out, ",\n    \"idp\": {\"blocks\": ", outcome.idp.blocks,
+                    ", \"improved\": ", outcome.idp.improved,
+                    ", \"largest_block\": ", outcome.idp.largest_block,
+                    ", \"passes\": ", outcome.idp.passes,
+                    ", \"start_cost\": ", JsonNumber(outcome.idp.start_cost), "}");
+  }
+  out += ",\n    \"slices\": [\n";
   for (size_t i = 0; i < result.slices.size(); ++i) {
     const SliceResult& s = result.slices[i];
     absl::StrAppend(
@@ -229,16 +282,14 @@ std::string RenderJson(const ScheduleOutcome& outcome, const RunInfo& info) {
   return out;
 }
 
-std::string RenderDot(const ScheduleOutcome& outcome, const RunInfo& info) {
-  const OptimizeResult& result = outcome.result;
-  const Query& query = *info.query;
+std::string RenderDot(const TieredOutcome& outcome, const RunInfo& info) {
   std::string out = "digraph plan {\n  node [shape=box, fontname=\"Helvetica\"];\n";
-  const Plan& plan = result.plan;
+  const WidePlan& plan = outcome.plan;
   for (size_t i = 0; i < plan.nodes.size(); ++i) {
-    const PlanNode& node = plan.nodes[i];
+    const WideNode& node = plan.nodes[i];
     absl::StrAppendFormat(&out, "  n%d [label=\"%s\\ncard %.4g\\ncost %.4g\"%s];\n", i,
-                          NodeLabel(node, query), node.cardinality, node.cost,
-                          node.is_leaf() ? ", shape=ellipse" : "");
+                          node.is_leaf() ? info.query->relation(node.relation).name : "join",
+                          node.cardinality, node.cost, node.is_leaf() ? ", shape=ellipse" : "");
     if (!node.is_leaf()) {
       absl::StrAppendFormat(&out, "  n%d -> n%d [label=\"L\"];\n  n%d -> n%d [label=\"R\"];\n", i,
                             node.left, i, node.right);

@@ -8,21 +8,25 @@
 #include "cli/cli_config.h"
 #include "core/merge.h"
 #include "core/query.h"
+#include "core/wide_query.h"
 #include "schedule/slice_scheduler.h"
+#include "schedule/tiered_search.h"
 
 namespace sliceplan::cli {
 
 // What the run was, for the headers of the outputs.
 struct RunInfo {
-  const Query* query = nullptr;
+  const WideQuery* query = nullptr;
+  const Query* exact = nullptr;  // the same query for the exact engine (n <= 64), else null
   SearchOptions search;
   int workers = 1;
   bool slices_chosen = false;  // by the planner, not by --slices
 };
 
-std::string RenderText(const ScheduleOutcome& outcome, const RunInfo& info);
-std::string RenderJson(const ScheduleOutcome& outcome, const RunInfo& info);
-std::string RenderDot(const ScheduleOutcome& outcome, const RunInfo& info);
+// The cluster model's outputs need info.exact.
+std::string RenderText(const TieredOutcome& outcome, const RunInfo& info);
+std::string RenderJson(const TieredOutcome& outcome, const RunInfo& info);
+std::string RenderDot(const TieredOutcome& outcome, const RunInfo& info);
 
 // Summary figures of the slices: the slowest slice and max/mean splits.
 struct SliceBalance {

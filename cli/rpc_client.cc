@@ -10,6 +10,7 @@
 #include "sliceplan.grpc.pb.h"
 #include "wire/query_proto.h"
 #include "wire/service_proto.h"
+#include "wire/tier_proto.h"
 
 namespace sliceplan::cli {
 namespace {
@@ -33,12 +34,14 @@ absl::Status Authorize(grpc::ClientContext& context, const std::string& token_fi
 
 }  // namespace
 
-absl::StatusOr<ScheduleOutcome> OptimizeRemote(
-    const RemoteRequest& request, const Query& query,
+absl::StatusOr<TieredOutcome> OptimizeRemote(
+    const RemoteRequest& request, const WideQuery& query,
     const std::function<void(const ScheduleProgress&)>& on_progress) {
   ASSIGN_OR_RETURN(auto stub, Connect(request.coordinator, request.tls));
   v1::OptimizeRequest m;
-  *m.mutable_query() = QueryToProto(query);
+  *m.mutable_query() = WideQueryToProto(query);
+  m.set_tier(TierToProto(request.tier));
+  m.set_budget_seconds(request.budget_seconds);
   *m.mutable_options() = SearchOptionsToProto(request.options);
   m.set_slice_count(request.slice_count);
   m.set_deadline_seconds(request.deadline_seconds);
@@ -75,7 +78,17 @@ absl::StatusOr<ScheduleOutcome> OptimizeRemote(
     return s;
   }
   if (!result) return absl::InternalError("coordinator sent no result");
-  return OutcomeFromProto(*result, query, request.options.cost);
+  return TieredFromProto(*result, query, request.options.cost);
+}
+
+absl::StatusOr<ScheduleOutcome> OptimizeRemote(
+    const RemoteRequest& request, const Query& query,
+    const std::function<void(const ScheduleProgress&)>& on_progress) {
+  RemoteRequest exact = request;
+  exact.tier = SearchTier::kExact;
+  ASSIGN_OR_RETURN(TieredOutcome out,
+                   OptimizeRemote(exact, WideQuery::FromExact(query), on_progress));
+  return std::move(out.schedule);
 }
 
 absl::StatusOr<v1::ListWorkersResponse> ListWorkersRemote(const std::string& coordinator,

@@ -10,6 +10,7 @@
 #include "core/query.h"
 #include "rpc/tls.h"
 #include "schedule/slice_scheduler.h"
+#include "schedule/tiered_search.h"
 #include "sliceplan.pb.h"
 
 namespace sliceplan::cli {
@@ -22,10 +23,19 @@ struct RemoteRequest {
   bool partial_on_deadline = false;
   TlsFiles tls;            // --tls-ca [--tls-cert --tls-key]; none: plaintext
   std::string token_file;  // --token-file: the bearer token sent with each call
+  SearchTier tier = SearchTier::kAuto;
+  double budget_seconds = 0;  // 0: the coordinator's default
 };
 
 // Calls OptimizeStream and converts the answer (the plan is checked
 // against the query). Errors: the coordinator's status as it came.
+absl::StatusOr<TieredOutcome> OptimizeRemote(
+    const RemoteRequest& request, const WideQuery& query,
+    const std::function<void(const ScheduleProgress&)>& on_progress);
+
+// The exact tier on a query of at most 64 relations, whatever
+// request.tier says: the slice machinery's answer as the scheduler gives
+// it (the service tests and benchmarks read its slices).
 absl::StatusOr<ScheduleOutcome> OptimizeRemote(
     const RemoteRequest& request, const Query& query,
     const std::function<void(const ScheduleProgress&)>& on_progress);

@@ -6,9 +6,11 @@
 #include "core/status_macros.h"
 #include "rpc/call_deadline.h"
 #include "rpc/rpc_status.h"
+#include "schedule/tiered_search.h"
 #include "spdlog/spdlog.h"
 #include "wire/query_proto.h"
 #include "wire/service_proto.h"
+#include "wire/tier_proto.h"
 
 namespace sliceplan {
 namespace {
@@ -41,11 +43,15 @@ absl::StatusOr<v1::OptimizeResponse> CoordinatorService::Run(
     const std::function<void(const ScheduleProgress&)>& on_progress) {
   RETURN_IF_ERROR(ValidateRequest(request));
   ASSIGN_OR_RETURN(const Clock::time_point deadline, RunDeadline(context, request, config_));
-  auto query = QueryFromProto(request.query(), config_.limits);
+  auto query = WideQueryFromProto(request.query(), config_.limits);
   if (!query.ok()) {
     return absl::Status(query.status().code(), absl::StrCat("query.", query.status().message()));
   }
   ASSIGN_OR_RETURN(const SearchOptions options, SearchOptionsFromProto(request.options()));
+  ASSIGN_OR_RETURN(const SearchTier tier, TierFromProto(request.tier()));
+  ASSIGN_OR_RETURN(const double budget,
+                   AllowedSeconds(request.budget_seconds(), config_.limits.max_deadline_seconds,
+                                  "budget_seconds"));
   if (auto s = CheckOptionLimits(options, config_.limits); !s.ok()) {
     return absl::Status(s.code(), absl::StrCat("options.cluster.", s.message()));
   }
@@ -71,10 +77,23 @@ absl::StatusOr<v1::OptimizeResponse> CoordinatorService::Run(
   for (const auto& w : pool) {
     if (!w->Healthy()) workers.push_back(w.get());
   }
-  const uint32_t p = request.slice_count() != 0
-                         ? request.slice_count()
-                         : ChooseSliceCount(*query, options, std::max(1, slots));
-  RETURN_IF_ERROR(ValidateSlice({0, p}, query->size(), options.shape, kRpcSliceFields));
+  if (request.slice_count() != 0) {
+    if (query->size() > kMaxRelations) {
+      return absl::InvalidArgumentError(
+          absl::StrCat("slice_count: slices divide the exact search, which takes at most ",
+                       kMaxRelations, " relations (", query->size(), " given)"));
+    }
+    RETURN_IF_ERROR(
+        ValidateSlice({0, request.slice_count()}, query->size(), options.shape, kRpcSliceFields));
+  }
+  TierRequest tiers;
+  tiers.tier = tier;
+  tiers.slice_count = request.slice_count();
+  // The time auto plans for: the request's deadline, else its budget,
+  // else the server's default; the call's deadline still bounds it.
+  tiers.budget_seconds = request.deadline_seconds() > 0 ? request.deadline_seconds()
+                         : request.budget_seconds() > 0 ? budget
+                                                        : config_.default_budget_seconds;
   ScheduleOptions schedule;
   if (config_.hedge_after) schedule.hedge_after = *config_.hedge_after;
   schedule.deadline = deadline;
@@ -83,24 +102,25 @@ absl::StatusOr<v1::OptimizeResponse> CoordinatorService::Run(
   // A caller that cancels or goes away cancels every slice it started.
   schedule.cancelled = [context] { return context->IsCancelled(); };
   const auto start = Clock::now();
-  auto outcome = RunSlices(*query, options, p, workers, schedule);
+  auto outcome = RunTiers(*query, options, tiers, workers, schedule);
   const double wall = std::chrono::duration<double>(Clock::now() - start).count();
   spdlog::info(
-      "optimize: {} relations, P={}, {} workers ({} slots), retries={}, hedges={}, "
+      "optimize: {} relations, tier {}, {} workers ({} slots), retries={}, hedges={}, "
       "wall {:.3f} s, {}",
-      query->size(), p, workers.size(), slots, outcome.ok() ? outcome->retries : 0,
-      outcome.ok() ? outcome->hedges : 0, wall,
-      outcome.ok() ? (outcome->proven_optimal ? "optimal" : "partial")
+      query->size(), outcome.ok() ? TierName(outcome->tier) : TierName(tier), workers.size(), slots,
+      outcome.ok() ? outcome->schedule.retries : 0, outcome.ok() ? outcome->schedule.hedges : 0,
+      wall,
+      outcome.ok() ? (outcome->proven_optimal ? "optimal" : "not proven optimal")
                    : std::string(outcome.status().message()));
   if (!outcome.ok()) return outcome.status();
-  const auto plans = static_cast<int64_t>(outcome->result.frontier.size());
+  const auto plans = static_cast<int64_t>(outcome->schedule.result.frontier.size());
   if (plans > config_.limits.max_frontier_plans) {
     return absl::ResourceExhaustedError(
         absl::StrCat("the Pareto set has ", plans, " plans, over the limit of ",
                      config_.limits.max_frontier_plans,
                      " (--max_frontier_plans); ask for a precision alpha > 1 or fewer objectives"));
   }
-  return OutcomeToProto(*outcome, options.cost);
+  return TieredToProto(*outcome, options.cost);
 }
 
 absl::Status CoordinatorService::Authenticate(const grpc::ServerContext& context) const {

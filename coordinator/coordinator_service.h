@@ -32,6 +32,8 @@ struct CoordinatorConfig {
   std::optional<BearerTokens> tokens;
   int max_concurrent_requests = 16;  // run at once
   int max_queued_requests = 64;      // wait for a place; more are refused
+  // The time auto and idp plan for when a request names none.
+  double default_budget_seconds = 10;
 };
 
 class CoordinatorService final : public v1::Coordinator::Service {

@@ -33,6 +33,8 @@ ABSL_FLAG(int64_t, max_sample_rates, 16, "most sample rates a cluster-model requ
 ABSL_FLAG(int64_t, max_frontier_plans, 10000, "most plans of a Pareto set an answer returns");
 ABSL_FLAG(double, max_deadline_seconds, 3600,
           "longest a request may run; a longer or absent deadline is cut to it");
+ABSL_FLAG(double, default_budget_seconds, 10,
+          "the time the auto and idp tiers plan for when a request gives no deadline");
 ABSL_FLAG(int, max_concurrent_requests, 16, "requests run at once");
 ABSL_FLAG(int, max_queued_requests, 64,
           "requests that may wait for a place; more are refused with RESOURCE_EXHAUSTED");
@@ -69,6 +71,12 @@ absl::StatusOr<sliceplan::CoordinatorConfig> ConfigFromFlags() {
   limits.max_frontier_plans = absl::GetFlag(FLAGS_max_frontier_plans);
   if (!(limits.max_deadline_seconds > 0 && limits.max_deadline_seconds <= 1e7)) {
     return absl::InvalidArgumentError("--max_deadline_seconds: must be in (0, 1e7]");
+  }
+  config.default_budget_seconds = absl::GetFlag(FLAGS_default_budget_seconds);
+  if (!(config.default_budget_seconds > 0 &&
+        config.default_budget_seconds <= limits.max_deadline_seconds)) {
+    return absl::InvalidArgumentError(
+        "--default_budget_seconds: must be in (0, --max_deadline_seconds]");
   }
   config.max_concurrent_requests = absl::GetFlag(FLAGS_max_concurrent_requests);
   config.max_queued_requests = absl::GetFlag(FLAGS_max_queued_requests);

@@ -9,6 +9,7 @@
 #include "core/query.h"
 #include "core/slice_solver.h"
 #include "schedule/slice_scheduler.h"
+#include "schedule/tiered_search.h"
 
 namespace sliceplan {
 
@@ -17,6 +18,11 @@ namespace sliceplan {
 absl::StatusOr<ScheduleOutcome> RunEmbedded(const Query& query, const SearchOptions& options,
                                             uint32_t slice_count, int workers,
                                             const ScheduleOptions& schedule = {});
+
+// The tiers (tiered_search.h) over `workers` in-process workers.
+absl::StatusOr<TieredOutcome> RunEmbeddedTiers(const WideQuery& query, const SearchOptions& options,
+                                               const TierRequest& request, int workers,
+                                               const ScheduleOptions& schedule = {});
 
 // RunEmbedded's merged result alone.
 absl::StatusOr<OptimizeResult> OptimizeEmbedded(const Query& query, const SearchOptions& options,

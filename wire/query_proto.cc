@@ -138,6 +138,22 @@ v1::Query QueryToProto(const Query& query) {
   return m;
 }
 
+v1::Query WideQueryToProto(const WideQuery& query) {
+  v1::Query m;
+  for (const Relation& rel : query.relations()) {
+    v1::Relation* r = m.add_relations();
+    r->set_name(rel.name);
+    r->mutable_rows()->set_value(rel.rows);
+    r->mutable_row_bytes()->set_value(rel.row_bytes);
+  }
+  for (const WidePredicate& p : query.predicates()) {
+    v1::Predicate* out = m.add_predicates();
+    for (const int32_t r : p.relations) out->add_relations(query.relation(r).name);
+    out->mutable_selectivity()->set_value(p.selectivity);
+  }
+  return m;
+}
+
 absl::StatusOr<WideQuery> ParseWideQueryJson(std::string_view json, const InputLimits& limits) {
   if (static_cast<int64_t>(json.size()) > limits.max_query_bytes) {
     return absl::ResourceExhaustedError(

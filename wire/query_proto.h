@@ -32,6 +32,7 @@ absl::StatusOr<WideQuery> WideQueryFromProto(const v1::Query& message,
 absl::StatusOr<Query> QueryFromProto(const v1::Query& message, const InputLimits& limits = {});
 
 v1::Query QueryToProto(const Query& query);
+v1::Query WideQueryToProto(const WideQuery& query);
 
 // Parses the JSON form of v1::Query. A syntax error, an unknown field or a
 // value of the wrong type is INVALID_ARGUMENT with protobuf's description of

@@ -67,10 +67,13 @@ double CpuAfter(const Cluster& c, std::chrono::milliseconds settle,
   return PoolCpu(c) - before;
 }
 
+// The exact tier: these reproducers probe the slice machinery (auto would
+// answer an endless search with a heuristic plan in milliseconds).
 v1::OptimizeRequest Request(const Query& q, uint32_t p = 0) {
   v1::OptimizeRequest r;
   *r.mutable_query() = QueryToProto(q);
   r.set_slice_count(p);
+  r.set_tier(v1::TIER_EXACT);
   return r;
 }
 

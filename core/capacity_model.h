@@ -1,0 +1,50 @@
+// Predicting an exact search's wall time on a pool before running it: the
+// model `auto` uses to choose a tier and idp to size its blocks, and the
+// capacity planner prints (docs/tiers.md).
+//
+// With cross products the work of each slice is known exactly (the closed
+// forms of search_estimate.h). Without, the connected sets of the join
+// graph are counted up to what the horizon could afford (Neumann and
+// Radke's "count first" rule), and a slice is taken to do (21/27)^k
+// (bushy) or (3/4)^k (left-deep) of the unsliced work, as in the cross
+// product space. Seconds come from per-unit rates measured on the
+// project's reference machine (docs/benchmarks.md); a caller may pass its
+// own. Pure.
+#ifndef SLICEPLAN_CORE_CAPACITY_MODEL_H_
+#define SLICEPLAN_CORE_CAPACITY_MODEL_H_
+
+#include <cstdint>
+
+#include "core/query.h"
+#include "core/search_options.h"
+
+namespace sliceplan {
+
+struct MachineRates {
+  // One split of the dense kernel (1.2-1.3 ns measured, RelWithDebInfo).
+  double dense_split_seconds = 1.3e-9;
+  // One connected set of the connected-only search, its pairs included
+  // (1-14 us measured over stars, cycles, cliques and random graphs).
+  double connected_set_seconds = 8e-6;
+  // A round trip of one slice call (scheduling, the call, the merge).
+  double slice_overhead_seconds = 0.2e-3;
+};
+
+struct ExactForecast {
+  double seconds = 0;           // wall time on the pool; +inf past the horizon
+  uint32_t slices = 1;          // P, as the coordinator would choose it
+  double work_units = 0;        // splits (cross products) or connected sets of one slice
+  double memo_bytes = 0;        // per slice
+  bool beyond_horizon = false;  // the count stopped at its cap
+};
+
+// The exact search of `query` on `slots` slice slots at once, P chosen by
+// ChooseSliceCount unless `slices` (a power of two) is given. Counting
+// stops once the search could not finish within `horizon_seconds`.
+ExactForecast ForecastExact(const Query& query, const SearchOptions& options, int slots,
+                            double horizon_seconds, const MachineRates& rates = {},
+                            uint32_t slices = 0);
+
+}  // namespace sliceplan
+
+#endif  // SLICEPLAN_CORE_CAPACITY_MODEL_H_

@@ -1,0 +1,292 @@
+#include "schedule/tiered_search.h"
+
+#include <algorithm>
+#include <atomic>
+#include <chrono>
+#include <cmath>
+#include <utility>
+
+#include "absl/strings/str_cat.h"
+#include "absl/strings/str_format.h"
+#include "core/input_limits.h"
+#include "core/slice_planner.h"
+#include "core/status_macros.h"
+#include "tiers/greedy.h"
+#include "tiers/join_forest.h"
+#include "tiers/linear_dp.h"
+
+namespace sliceplan {
+namespace {
+
+using Clock = std::chrono::steady_clock;
+
+double SecondsBetween(Clock::time_point a, Clock::time_point b) {
+  return std::chrono::duration<double>(b - a).count();
+}
+
+int PoolSlots(std::span<SliceWorker* const> workers) {
+  int slots = 0;
+  for (SliceWorker* w : workers) {
+    if (w->Healthy()) slots += w->Slots();
+  }
+  return std::max(1, slots);
+}
+
+// The tier checks that need no search.
+absl::Status CheckTierFits(const WideQuery& query, const SearchOptions& options, SearchTier tier) {
+  if (options.cost == CostModelKind::kCluster) {
+    if (tier != SearchTier::kAuto && tier != SearchTier::kExact) {
+      return absl::InvalidArgumentError(absl::StrCat(
+          "--tier=", TierName(tier), ": the cluster model is searched by the exact tier only"));
+    }
+    if (query.size() > kMaxRelations) {
+      return absl::InvalidArgumentError(
+          absl::StrCat("relations: ", query.size(),
+                       " relations given; the cluster model is searched by the "
+                       "exact tier only, which takes at most ",
+                       kMaxRelations, " (the cout model takes more)"));
+    }
+  }
+  if (tier == SearchTier::kIdp && options.shape == PlanShape::kLeftDeep) {
+    return absl::InvalidArgumentError(
+        "--tier=idp: idp builds bushy plans; for left-deep plans use exact, linear or greedy");
+  }
+  if (tier == SearchTier::kExact && query.size() > kMaxRelations) {
+    return ToExactQuery(query).status();
+  }
+  if (!options.cross_products && !IsConnected(query)) {
+    return absl::NotFoundError(
+        "the join graph is not connected, so every plan has a cross product; allow them "
+        "(cross products = true)");
+  }
+  return absl::OkStatus();
+}
+
+// One run's state: the incumbent and what each tier did.
+class TierRun {
+ public:
+  TierRun(const WideQuery& query, const SearchOptions& options, const TierRequest& request,
+          std::span<SliceWorker* const> workers, const ScheduleOptions& schedule)
+      : query_(query),
+        options_(options),
+        request_(request),
+        workers_(workers),
+        schedule_(schedule),
+        start_(Clock::now()),
+        deadline_(std::min(schedule.deadline.value_or(Clock::time_point::max()),
+                           SteadyAfter(request.budget_seconds))),
+        slots_(PoolSlots(workers)) {}
+
+  absl::StatusOr<TieredOutcome> Run() {
+    const SearchTier tier = request_.tier;
+    if (options_.cost == CostModelKind::kCluster || tier == SearchTier::kExact) {
+      return ExactAlone();
+    }
+    Offer(GreedyPlan(query_, options_.shape), SearchTier::kGreedy);
+    out_.start_cost = out_.plan.cost();
+    if (query_.size() <= 2) out_.proven_optimal = true;  // one plan (up to sides)
+    if (tier == SearchTier::kGreedy || query_.size() <= 2) {
+      return Finish(tier == SearchTier::kGreedy ? "greedy: requested" : "greedy: one plan");
+    }
+    if (tier == SearchTier::kLinear || query_.size() <= kAutoLinearRelations) {
+      RETURN_IF_ERROR(TryLinear(tier == SearchTier::kLinear));
+      if (tier == SearchTier::kLinear) return Finish("linear: requested");
+    }
+    if (Cancelled()) return absl::CancelledError("the caller cancelled");
+    if (tier == SearchTier::kAuto && query_.size() <= kMaxRelations) {
+      ASSIGN_OR_RETURN(const bool done, TryExact());
+      if (done) return Finish(reason_);
+    } else if (tier == SearchTier::kAuto) {
+      reason_ = absl::StrCat(query_.size(), " relations, past the exact search's ", kMaxRelations);
+    }
+    if (options_.shape == PlanShape::kLeftDeep) {
+      return Finish(absl::StrCat(reason_,
+                                 "; idp builds bushy plans, so the best of greedy and "
+                                 "linear is returned"));
+    }
+    RunIdp();
+    if (Cancelled()) return absl::CancelledError("the caller cancelled");
+    return Finish(reason_);
+  }
+
+ private:
+  bool Cancelled() const { return schedule_.cancelled && schedule_.cancelled(); }
+  double Remaining() const { return std::max(0.0, SecondsBetween(Clock::now(), deadline_)); }
+
+  void Offer(WidePlan plan, SearchTier tier) {
+    if (!out_.plan.nodes.empty() && !(plan.cost() < out_.plan.cost())) return;
+    out_.plan = std::move(plan);
+    out_.tier = tier;
+  }
+
+  absl::StatusOr<TieredOutcome> Finish(std::string reason) {
+    out_.reason = std::move(reason);
+    out_.wall_seconds = SecondsBetween(start_, Clock::now());
+    return std::move(out_);
+  }
+
+  // The exact tier forced, or the cluster model: the scheduler's rules.
+  absl::StatusOr<TieredOutcome> ExactAlone() {
+    ASSIGN_OR_RETURN(const Query exact, ToExactQuery(query_));
+    const uint32_t p = request_.slice_count != 0 ? request_.slice_count
+                                                 : ChooseSliceCount(exact, options_, slots_);
+    ASSIGN_OR_RETURN(ScheduleOutcome outcome, RunSlices(exact, options_, p, workers_, schedule_));
+    out_.tier = SearchTier::kExact;
+    out_.proven_optimal = outcome.proven_optimal;
+    out_.coverage = outcome.coverage;
+    out_.plan = FromExactPlan(outcome.result.plan);
+    out_.schedule = std::move(outcome);
+    out_.exact_ran = true;
+    return Finish(request_.tier == SearchTier::kExact ? "exact: requested"
+                                                      : "exact: the cluster model");
+  }
+
+  absl::Status TryLinear(bool forced) {
+    SearchControl control(nullptr, deadline_);
+    if (schedule_.cancelled) control.set_cancel_check(schedule_.cancelled);
+    auto plan = LinearPlan(query_, options_.shape, options_.cross_products, control);
+    if (plan.ok()) {
+      Offer(*std::move(plan), SearchTier::kLinear);
+      return absl::OkStatus();
+    }
+    // A forced linear tier reports why it has no plan, except where
+    // greedy's plan is the honest answer (no connected plan along the
+    // order; the deadline).
+    if (forced && plan.status().code() == absl::StatusCode::kResourceExhausted) {
+      return plan.status();
+    }
+    reason_ = absl::StrCat("linear: ", plan.status().message(), "; the greedy plan stands");
+    return absl::OkStatus();
+  }
+
+  // Runs the exact search when the model says it fits. True when it
+  // finished (the answer is proven optimal).
+  absl::StatusOr<bool> TryExact() {
+    ASSIGN_OR_RETURN(const Query exact, ToExactQuery(query_));
+    const double remaining = Remaining();
+    const ExactForecast f =
+        ForecastExact(exact, options_, slots_, remaining, request_.rates, request_.slice_count);
+    out_.forecast = f;
+    if (!(f.seconds <= kExactShare * remaining)) {
+      reason_ = absl::StrFormat(
+          "the exact search was predicted %s on %d slots, past %.0f%% of the %.3g s left",
+          f.beyond_horizon ? std::string("to take longer") : absl::StrFormat("%.3g s", f.seconds),
+          slots_, 100 * kExactShare, remaining);
+      return false;
+    }
+    ScheduleOptions schedule = schedule_;
+    schedule.deadline = deadline_;
+    schedule.partial_on_deadline = true;
+    auto outcome = RunSlices(exact, options_, f.slices, workers_, schedule);
+    if (!outcome.ok()) {
+      const absl::StatusCode code = outcome.status().code();
+      if (code != absl::StatusCode::kDeadlineExceeded &&
+          code != absl::StatusCode::kResourceExhausted) {
+        return outcome.status();
+      }
+      reason_ = absl::StrFormat("exact (predicted %.3g s) stopped: %s", f.seconds,
+                                outcome.status().message());
+      return false;
+    }
+    Offer(FromExactPlan(outcome->result.plan), SearchTier::kExact);
+    out_.coverage = outcome->coverage;
+    const bool proven = outcome->proven_optimal;
+    if (proven) {
+      // The optimum: nothing is cheaper, whichever plan got there first.
+      out_.plan = FromExactPlan(outcome->result.plan);
+      out_.tier = SearchTier::kExact;
+      out_.proven_optimal = true;
+    }
+    reason_ = proven
+                  ? absl::StrFormat("exact: predicted %.3g s on %d slots, within the %.3g s left",
+                                    f.seconds, slots_, remaining)
+                  : absl::StrFormat(
+                        "exact (predicted %.3g s) cut short by the deadline with "
+                        "%.0f%% of the slices solved",
+                        f.seconds, 100 * outcome->coverage);
+    out_.schedule = *std::move(outcome);
+    out_.exact_ran = true;
+    return proven;
+  }
+
+  // The block size for the time left: the largest k whose predicted block
+  // time, extrapolated from the last block (x3 per unit with cross
+  // products, the growth of 3^k; x2 without, a tree block's 2^k bound),
+  // fits the blocks still to come.
+  int NextBlock(int last, double seconds) {
+    const double growth = options_.cross_products ? 3.0 : 2.0;
+    const int most = std::min({query_.size(), options_.cross_products ? 20 : 28, kMaxRelations});
+    const double remaining = 0.8 * Remaining();
+    int best = 3;
+    for (int k = 3; k <= std::min(most, last + 4); ++k) {
+      const double blocks = std::max(1.0, 2.0 * (query_.size() - 1) / (k - 1) - out_.idp.blocks);
+      const double predicted = std::max(seconds, 1e-5) * std::pow(growth, k - last);
+      if (predicted * blocks <= remaining) best = k;
+    }
+    return best;
+  }
+
+  void RunIdp() {
+    IdpConfig config;
+    config.cross_products = options_.cross_products;
+    config.block = std::min(query_.size(), 10);
+    config.out_of_time = [this] { return Cancelled() || Clock::now() >= deadline_; };
+    config.next_block = [this](int k, double seconds) { return NextBlock(k, seconds); };
+    SearchOptions block_options = options_;
+    block_options.shape = PlanShape::kBushy;
+    const BlockSearch search = [&](const Query& block) -> absl::StatusOr<Plan> {
+      ScheduleOptions schedule = schedule_;
+      schedule.deadline = deadline_;
+      schedule.partial_on_deadline = false;
+      schedule.on_progress = nullptr;
+      const uint32_t p = ChooseSliceCount(block, block_options, slots_);
+      ASSIGN_OR_RETURN(ScheduleOutcome o, RunSlices(block, block_options, p, workers_, schedule));
+      ScheduleOutcome& all = out_.schedule;
+      for (size_t i = 0; i < o.result.slices.size(); ++i) {
+        all.result.slices.push_back(std::move(o.result.slices[i]));
+        if (i < o.slice_workers.size()) all.slice_workers.push_back(o.slice_workers[i]);
+      }
+      all.retries += o.retries;
+      all.hedges += o.hedges;
+      all.workers_used = std::max(all.workers_used, o.workers_used);
+      return std::move(o.result.plan);
+    };
+    const SearchTier seed = out_.tier;
+    // A cut-short exact search's slices stay listed beside the blocks'.
+    out_.exact_ran = false;
+    out_.schedule.result.slice_count = 0;
+    IdpResult r = ImproveByBlocks(query_, out_.plan, config, search);
+    out_.idp = r.stats;
+    const double before = out_.plan.cost();
+    Offer(std::move(r.plan), SearchTier::kIdp);
+    absl::StrAppendFormat(
+        &reason_,
+        "%sidp from the %s plan: %d blocks of up to %d relations searched exactly, %d "
+        "improved, %d passes; cost %.4g -> %.4g",
+        reason_.empty() ? "" : "; ", TierName(seed), r.stats.blocks, r.stats.largest_block,
+        r.stats.improved, r.stats.passes, before, out_.plan.cost());
+  }
+
+  const WideQuery& query_;
+  const SearchOptions& options_;
+  const TierRequest& request_;
+  std::span<SliceWorker* const> workers_;
+  const ScheduleOptions& schedule_;
+  const Clock::time_point start_;
+  const Clock::time_point deadline_;
+  const int slots_;
+  TieredOutcome out_;
+  std::string reason_;
+};
+
+}  // namespace
+
+absl::StatusOr<TieredOutcome> RunTiers(const WideQuery& query, const SearchOptions& options,
+                                       const TierRequest& request,
+                                       std::span<SliceWorker* const> workers,
+                                       const ScheduleOptions& schedule) {
+  RETURN_IF_ERROR(CheckTierFits(query, options, request.tier));
+  return TierRun(query, options, request, workers, schedule).Run();
+}
+
+}  // namespace sliceplan

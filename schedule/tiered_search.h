@@ -1,0 +1,89 @@
+// Running a request through the search tiers (docs/tiers.md): the one
+// entry point the embedded mode and the coordinator share above the slice
+// scheduler.
+//
+// `auto` (the default), for the cout model:
+//   1. a greedy plan (milliseconds) is the incumbent, then the linear one
+//      where it is cheap (up to kAutoLinearRelations): every request has a
+//      plan, whatever happens after;
+//   2. up to 64 relations, the exact search runs when the capacity model
+//      (core/capacity_model.h) predicts it finishes within kExactShare of
+//      the time left on this pool; cut short by the deadline, its best
+//      plan so far competes with the incumbent;
+//   3. otherwise (bushy plans) idp improves the incumbent block by block,
+//      each block an exact search sliced over the pool, the block size
+//      chosen and re-chosen by the capacity model from the time left.
+// Without a deadline the time is TierRequest::budget_seconds. The answer
+// is the cheapest plan found, never costlier than the greedy one (nor the
+// linear one where it ran), and names the tier that found it.
+//
+// A forced tier runs that tier alone (idp: seeded as in auto). `exact`
+// keeps the scheduler's deadline rules (partial_on_deadline). The cluster
+// model is searched by the exact tier only.
+//
+// Thread-safe: one call per request, any number at once.
+#ifndef SLICEPLAN_SCHEDULE_TIERED_SEARCH_H_
+#define SLICEPLAN_SCHEDULE_TIERED_SEARCH_H_
+
+#include <optional>
+#include <span>
+#include <string>
+#include <vector>
+
+#include "absl/status/statusor.h"
+#include "core/capacity_model.h"
+#include "core/search_tier.h"
+#include "core/wide_query.h"
+#include "schedule/slice_scheduler.h"
+#include "tiers/idp.h"
+#include "tiers/wide_plan.h"
+
+namespace sliceplan {
+
+// auto runs the linear tier as a second incumbent up to this many
+// relations (its O(n^3) DP takes ~0.1 s at 300 here).
+inline constexpr int kAutoLinearRelations = 300;
+// auto runs the exact search when predicted to take at most this share of
+// the time left (the rest is the margin for the model's error).
+inline constexpr double kExactShare = 0.6;
+inline constexpr double kDefaultBudgetSeconds = 10;
+
+struct TierRequest {
+  SearchTier tier = SearchTier::kAuto;
+  // The time auto and idp plan for: the request's own deadline if it has
+  // one, else a default (kDefaultBudgetSeconds). The scheduler's deadline,
+  // if sooner, still ends everything.
+  double budget_seconds = kDefaultBudgetSeconds;
+  uint32_t slice_count = 0;  // the exact search's P; 0: the planner's
+  MachineRates rates;
+};
+
+struct TieredOutcome {
+  SearchTier tier = SearchTier::kExact;  // the tier whose plan is returned
+  bool proven_optimal = false;
+  double coverage = 0;  // exact: the fraction of slices solved
+  WidePlan plan;        // the answer (cout; the cluster model's chosen plan)
+  // The slices solved: the exact search's over the whole query (with its
+  // retries, hedges and, for the cluster model, the frontier), or those of
+  // idp's blocks (slice_count 0); empty for greedy and linear.
+  ScheduleOutcome schedule;
+  bool exact_ran = false;  // `schedule` is the whole query's exact search
+  IdpStats idp;
+  std::optional<ExactForecast> forecast;  // what auto predicted for exact
+  double start_cost = 0;                  // the greedy plan's
+  std::string reason;                     // one line: why this tier, what it did
+  double wall_seconds = 0;
+};
+
+// Errors: INVALID_ARGUMENT for a tier the options exclude (the cluster
+// model past exact, idp for left-deep plans) or a query the exact tier
+// cannot take; NOT_FOUND without cross products on a disconnected join
+// graph; the exact tier's own errors when it is forced; CANCELLED.
+absl::StatusOr<TieredOutcome> RunTiers(const WideQuery& query, const SearchOptions& options,
+                                       const TierRequest& request,
+                                       std::span<SliceWorker* const> workers,
+                                       const ScheduleOptions& schedule);
+
+}  // namespace sliceplan
+
+#endif  // SLICEPLAN_SCHEDULE_TIERED_SEARCH_H_

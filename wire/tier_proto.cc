@@ -1,0 +1,162 @@
+#include "wire/tier_proto.h"
+
+#include "absl/strings/str_cat.h"
+#include "core/status_macros.h"
+#include "core/value_range.h"
+#include "wire/service_proto.h"
+
+namespace sliceplan {
+
+v1::Tier TierToProto(SearchTier tier) {
+  switch (tier) {
+    case SearchTier::kAuto:
+      return v1::TIER_AUTO;
+    case SearchTier::kExact:
+      return v1::TIER_EXACT;
+    case SearchTier::kIdp:
+      return v1::TIER_IDP;
+    case SearchTier::kLinear:
+      return v1::TIER_LINEAR;
+    case SearchTier::kGreedy:
+      return v1::TIER_GREEDY;
+  }
+  return v1::TIER_AUTO;
+}
+
+absl::StatusOr<SearchTier> TierFromProto(int tier) {
+  switch (tier) {
+    case v1::TIER_UNSPECIFIED:
+    case v1::TIER_AUTO:
+      return SearchTier::kAuto;
+    case v1::TIER_EXACT:
+      return SearchTier::kExact;
+    case v1::TIER_IDP:
+      return SearchTier::kIdp;
+    case v1::TIER_LINEAR:
+      return SearchTier::kLinear;
+    case v1::TIER_GREEDY:
+      return SearchTier::kGreedy;
+    default:
+      return absl::InvalidArgumentError(absl::StrCat("tier: unknown value ", tier));
+  }
+}
+
+v1::Plan WidePlanToProto(const WidePlan& plan) {
+  v1::Plan m;
+  for (const WideNode& node : plan.nodes) {
+    v1::PlanNode* out = m.add_nodes();
+    if (node.is_leaf()) {
+      out->set_relation(static_cast<uint32_t>(node.relation));
+      out->set_op(v1::OPERATOR_SCAN);
+    } else {
+      out->mutable_join()->set_left(static_cast<uint32_t>(node.left));
+      out->mutable_join()->set_right(static_cast<uint32_t>(node.right));
+      out->set_op(v1::OPERATOR_JOIN);
+    }
+    out->set_cardinality(node.cardinality);
+    (*out->mutable_costs())["cout"] = node.cost;
+  }
+  return m;
+}
+
+absl::StatusOr<WidePlan> WidePlanFromProto(const v1::Plan& m, const WideQuery& query) {
+  if (m.nodes_size() != 2 * query.size() - 1) {
+    return absl::InvalidArgumentError(absl::StrCat("plan: ", m.nodes_size(), " nodes; ",
+                                                   query.size(), " relations need ",
+                                                   2 * query.size() - 1));
+  }
+  WidePlan plan;
+  for (int i = 0; i < m.nodes_size(); ++i) {
+    const v1::PlanNode& in = m.nodes(i);
+    const std::string at = absl::StrCat("plan.nodes[", i, "]");
+    WideNode node;
+    if (in.kind_case() == v1::PlanNode::kRelation) {
+      if (in.relation() >= static_cast<uint32_t>(query.size())) {
+        return absl::InvalidArgumentError(
+            absl::StrCat(at, ".relation: unknown relation id ", in.relation()));
+      }
+      node.relation = static_cast<int32_t>(in.relation());
+    } else if (in.kind_case() == v1::PlanNode::kJoin) {
+      if (in.join().left() >= static_cast<uint32_t>(i) ||
+          in.join().right() >= static_cast<uint32_t>(i)) {
+        return absl::InvalidArgumentError(absl::StrCat(at, ".join: children must be earlier"));
+      }
+      node.left = static_cast<int32_t>(in.join().left());
+      node.right = static_cast<int32_t>(in.join().right());
+    } else {
+      return absl::InvalidArgumentError(absl::StrCat(at, ": neither relation nor join"));
+    }
+    const auto cost = in.costs().find("cout");
+    if (cost == in.costs().end()) {
+      return absl::InvalidArgumentError(absl::StrCat(at, ".costs: no \"cout\" entry"));
+    }
+    node.cost = cost->second;
+    node.cardinality = in.cardinality();
+    for (const double v : {node.cost, node.cardinality}) {
+      if (!(v >= 0 && v <= kValueCeiling)) {
+        return absl::InvalidArgumentError(
+            absl::StrCat(at, ": a cost or cardinality is not a number in [0, 1e300], got ", v));
+      }
+    }
+    plan.nodes.push_back(node);
+  }
+  if (auto s = CheckWidePlan(plan, query.size()); !s.ok()) {
+    return absl::InvalidArgumentError(s.message());
+  }
+  return plan;
+}
+
+v1::OptimizeResponse TieredToProto(const TieredOutcome& outcome, CostModelKind model) {
+  v1::OptimizeResponse m = OutcomeToProto(outcome.schedule, model);
+  if (model == CostModelKind::kCout) *m.mutable_plan() = WidePlanToProto(outcome.plan);
+  m.set_proven_optimal(outcome.proven_optimal);
+  m.set_coverage(outcome.coverage);
+  m.set_wall_seconds(outcome.wall_seconds);
+  m.set_tier(TierToProto(outcome.tier));
+  m.set_tier_reason(outcome.reason);
+  return m;
+}
+
+absl::StatusOr<TieredOutcome> TieredFromProto(const v1::OptimizeResponse& m, const WideQuery& query,
+                                              CostModelKind model) {
+  TieredOutcome out;
+  ASSIGN_OR_RETURN(out.tier, TierFromProto(m.tier()));
+  if (out.tier == SearchTier::kAuto) {
+    return absl::InvalidArgumentError("tier: the answer must name the tier that ran");
+  }
+  out.proven_optimal = m.proven_optimal();
+  out.coverage = m.coverage();
+  out.wall_seconds = m.wall_seconds();
+  out.reason = m.tier_reason();
+  if (model == CostModelKind::kCluster) {
+    ASSIGN_OR_RETURN(const Query exact, ToExactQuery(query));
+    ASSIGN_OR_RETURN(out.schedule, OutcomeFromProto(m, exact, model));
+    out.exact_ran = true;
+    out.plan = FromExactPlan(out.schedule.result.plan);
+    return out;
+  }
+  ASSIGN_OR_RETURN(out.plan, WidePlanFromProto(m.plan(), query));
+  if (query.size() <= kMaxRelations) {  // the exact engine's form too
+    ASSIGN_OR_RETURN(const Query exact, ToExactQuery(query));
+    ASSIGN_OR_RETURN(out.schedule.result.plan, PlanFromProto(m.plan(), exact, model));
+  }
+  // The slice figures (their plans are not sent; the answer's is above).
+  ScheduleOutcome& s = out.schedule;
+  s.result.slice_count = m.slice_count();
+  s.result.best_slice = m.best_slice();
+  s.result.wall_seconds = m.wall_seconds();
+  for (const v1::SliceStats& st : m.slices()) {
+    s.result.slices.push_back(
+        SliceResult{{st.index(), m.slice_count()}, std::nullopt, SliceStatsFromProto(st), {}, 0});
+    s.slice_workers.push_back(st.worker());
+  }
+  s.proven_optimal = m.proven_optimal();
+  s.coverage = m.coverage();
+  s.retries = m.retries();
+  s.hedges = m.hedges();
+  s.workers_used = m.workers_used();
+  out.exact_ran = out.tier == SearchTier::kExact && m.slice_count() != 0;
+  return out;
+}
+
+}  // namespace sliceplan
