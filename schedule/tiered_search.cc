@@ -215,10 +215,10 @@ class TierRun {
   // fits the blocks still to come.
   int NextBlock(int last, double seconds) {
     const double growth = options_.cross_products ? 3.0 : 2.0;
-    const int most = std::min({query_.size(), options_.cross_products ? 20 : 28, kMaxRelations});
+    const int most = std::min({query_.size(), options_.cross_products ? 14 : 16, kMaxRelations});
     const double remaining = 0.8 * Remaining();
     int best = 3;
-    for (int k = 3; k <= std::min(most, last + 4); ++k) {
+    for (int k = 3; k <= std::min(most, last + 2); ++k) {
       const double blocks = std::max(1.0, 2.0 * (query_.size() - 1) / (k - 1) - out_.idp.blocks);
       const double predicted = std::max(seconds, 1e-5) * std::pow(growth, k - last);
       if (predicted * blocks <= remaining) best = k;
