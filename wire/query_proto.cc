@@ -122,21 +122,7 @@ absl::StatusOr<Query> QueryFromProto(const v1::Query& message, const InputLimits
   return ToExactQuery(wide);
 }
 
-v1::Query QueryToProto(const Query& query) {
-  v1::Query m;
-  for (const Relation& rel : query.relations()) {
-    v1::Relation* r = m.add_relations();
-    r->set_name(rel.name);
-    r->mutable_rows()->set_value(rel.rows);
-    r->mutable_row_bytes()->set_value(rel.row_bytes);
-  }
-  for (const Predicate& p : query.predicates()) {
-    v1::Predicate* out = m.add_predicates();
-    ForEachMember(p.relations, [&](RelationId r) { out->add_relations(query.relation(r).name); });
-    out->mutable_selectivity()->set_value(p.selectivity);
-  }
-  return m;
-}
+v1::Query QueryToProto(const Query& query) { return WideQueryToProto(WideQuery::FromExact(query)); }
 
 v1::Query WideQueryToProto(const WideQuery& query) {
   v1::Query m;
