@@ -393,10 +393,8 @@ v1::OptimizeResponse OutcomeToProto(const ScheduleOutcome& outcome, CostModelKin
   return m;
 }
 
-absl::StatusOr<ScheduleOutcome> OutcomeFromProto(const v1::OptimizeResponse& m, const Query& query,
-                                                 CostModelKind model) {
+ScheduleOutcome OutcomeStatsFromProto(const v1::OptimizeResponse& m) {
   ScheduleOutcome out;
-  ASSIGN_OR_RETURN(out.result.plan, PlanFromProto(m.plan(), query, model));
   out.result.slice_count = m.slice_count();
   out.result.best_slice = m.best_slice();
   out.result.wall_seconds = m.wall_seconds();
@@ -410,6 +408,13 @@ absl::StatusOr<ScheduleOutcome> OutcomeFromProto(const v1::OptimizeResponse& m, 
   out.retries = m.retries();
   out.hedges = m.hedges();
   out.workers_used = m.workers_used();
+  return out;
+}
+
+absl::StatusOr<ScheduleOutcome> OutcomeFromProto(const v1::OptimizeResponse& m, const Query& query,
+                                                 CostModelKind model) {
+  ScheduleOutcome out = OutcomeStatsFromProto(m);
+  ASSIGN_OR_RETURN(out.result.plan, PlanFromProto(m.plan(), query, model));
   for (const v1::Plan& p : m.frontier()) {
     ASSIGN_OR_RETURN(Plan plan, PlanFromProto(p, query, model));
     out.result.frontier.push_back(std::move(plan));

@@ -40,6 +40,9 @@ absl::StatusOr<SliceResult> SliceResultFromProto(const v1::SolveSliceResponse& m
 v1::OptimizeResponse OutcomeToProto(const ScheduleOutcome& outcome, CostModelKind model);
 absl::StatusOr<ScheduleOutcome> OutcomeFromProto(const v1::OptimizeResponse& m, const Query& query,
                                                  CostModelKind model);
+// The answer's figures alone (slice count and stats, workers, retries,
+// hedges, proven_optimal, coverage); no plan is read.
+ScheduleOutcome OutcomeStatsFromProto(const v1::OptimizeResponse& m);
 
 }  // namespace sliceplan
 

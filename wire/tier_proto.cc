@@ -135,26 +135,12 @@ absl::StatusOr<TieredOutcome> TieredFromProto(const v1::OptimizeResponse& m, con
     out.plan = FromExactPlan(out.schedule.result.plan);
     return out;
   }
+  out.schedule = OutcomeStatsFromProto(m);
   ASSIGN_OR_RETURN(out.plan, WidePlanFromProto(m.plan(), query));
   if (query.size() <= kMaxRelations) {  // the exact engine's form too
     ASSIGN_OR_RETURN(const Query exact, ToExactQuery(query));
     ASSIGN_OR_RETURN(out.schedule.result.plan, PlanFromProto(m.plan(), exact, model));
   }
-  // The slice figures (their plans are not sent; the answer's is above).
-  ScheduleOutcome& s = out.schedule;
-  s.result.slice_count = m.slice_count();
-  s.result.best_slice = m.best_slice();
-  s.result.wall_seconds = m.wall_seconds();
-  for (const v1::SliceStats& st : m.slices()) {
-    s.result.slices.push_back(
-        SliceResult{{st.index(), m.slice_count()}, std::nullopt, SliceStatsFromProto(st), {}, 0});
-    s.slice_workers.push_back(st.worker());
-  }
-  s.proven_optimal = m.proven_optimal();
-  s.coverage = m.coverage();
-  s.retries = m.retries();
-  s.hedges = m.hedges();
-  s.workers_used = m.workers_used();
   out.exact_ran = out.tier == SearchTier::kExact && m.slice_count() != 0;
   return out;
 }
