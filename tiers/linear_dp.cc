@@ -7,6 +7,7 @@
 
 #include "absl/strings/str_cat.h"
 #include "core/cout_policy.h"
+#include "core/status_macros.h"
 #include "core/value_range.h"
 #include "tiers/ikkbz.h"
 #include "tiers/join_forest.h"
@@ -53,7 +54,7 @@ class RunTable {
     WidePlan plan;
     struct Frame {
       int i, j;
-      int32_t left = -1;  // node built for the left part, once done
+      int next = 0;  // 0: build the lower part, 1: the higher part, 2: join them
     };
     std::vector<Frame> stack{{0, n_ - 1}};
     std::vector<int32_t> results;
@@ -71,11 +72,11 @@ class RunTable {
       const int lo_j = right_single_low ? f.j : k;
       const int hi_i = right_single_low ? f.i : k + 1;
       const int hi_j = right_single_low ? f.i : f.j;
-      if (f.left == -1) {
-        f.left = -2;
+      if (f.next == 0) {
+        f.next = 1;
         stack.push_back({lo_i, lo_j});
-      } else if (f.left == -2) {
-        f.left = -3;
+      } else if (f.next == 1) {
+        f.next = 2;
         stack.push_back({hi_i, hi_j});
       } else {
         const int32_t right = results.back();
@@ -183,16 +184,19 @@ class RunTable {
   std::vector<std::vector<int32_t>> first_of_;  // per first position: the last positions
 };
 
+absl::Status CheckLinearSize(const WideQuery& query) {
+  if (query.size() <= kMaxLinearRelations) return absl::OkStatus();
+  return absl::ResourceExhaustedError(
+      absl::StrCat("the linear tier takes at most ", kMaxLinearRelations, " relations (",
+                   query.size(), " given); the greedy and idp tiers take more"));
+}
+
 }  // namespace
 
 absl::StatusOr<WidePlan> LinearizedDp(const WideQuery& query, const std::vector<int32_t>& order,
                                       PlanShape shape, bool cross_products,
                                       SearchControl& control) {
-  if (query.size() > kMaxLinearRelations) {
-    return absl::ResourceExhaustedError(
-        absl::StrCat("the linear tier takes at most ", kMaxLinearRelations, " relations (",
-                     query.size(), " given); the greedy and idp tiers take more"));
-  }
+  RETURN_IF_ERROR(CheckLinearSize(query));
   const bool bushy = shape == PlanShape::kBushy;
   auto table = std::make_unique<RunTable>(query, order);
   if (auto s = table->Solve(bushy, cross_products, control); !s.ok()) return s;
@@ -213,9 +217,7 @@ absl::StatusOr<WidePlan> LinearizedDp(const WideQuery& query, const std::vector<
 
 absl::StatusOr<WidePlan> LinearPlan(const WideQuery& query, PlanShape shape, bool cross_products,
                                     SearchControl& control, int max_roots) {
-  if (query.size() > kMaxLinearRelations) {
-    return LinearizedDp(query, {}, shape, cross_products, control);
-  }
+  RETURN_IF_ERROR(CheckLinearSize(query));
   return LinearizedDp(query, IkkbzOrder(query, max_roots), shape, cross_products, control);
 }
 
