@@ -188,14 +188,15 @@ class TierRun {
                                 outcome.status().message());
       return false;
     }
-    Offer(FromExactPlan(outcome->result.plan), SearchTier::kExact);
     out_.coverage = outcome->coverage;
     const bool proven = outcome->proven_optimal;
     if (proven) {
-      // The optimum: nothing is cheaper, whichever plan got there first.
+      // The optimum: it stands even where an incumbent ties it.
       out_.plan = FromExactPlan(outcome->result.plan);
       out_.tier = SearchTier::kExact;
       out_.proven_optimal = true;
+    } else {
+      Offer(FromExactPlan(outcome->result.plan), SearchTier::kExact);
     }
     reason_ = proven
                   ? absl::StrFormat("exact: predicted %.3g s on %d slots, within the %.3g s left",
