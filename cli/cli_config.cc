@@ -45,21 +45,79 @@ void SetConnectionFlag(const std::string& flag, const std::string& value, TlsFil
   if (flag == "token-file") token_file = value;
 }
 
-absl::Status SetFlag(OptimizeConfig& config, const std::string& flag, const std::string& value) {
+// The flags that shape the searched space, shared by optimize and capacity.
+// REQUIRES: flag is shape, cross-products or memo-limit.
+absl::Status SetSearchSpaceFlag(SearchOptions& search, const std::string& flag,
+                                const std::string& value) {
   if (flag == "shape") {
     if (value == "bushy")
-      config.search.shape = PlanShape::kBushy;
+      search.shape = PlanShape::kBushy;
     else if (value == "left-deep")
-      config.search.shape = PlanShape::kLeftDeep;
+      search.shape = PlanShape::kLeftDeep;
     else
       return BadFlag(flag, value, "bushy or left-deep");
   } else if (flag == "cross-products") {
     if (value == "true")
-      config.search.cross_products = true;
+      search.cross_products = true;
     else if (value == "false")
-      config.search.cross_products = false;
+      search.cross_products = false;
     else
       return BadFlag(flag, value, "true or false");
+  } else {
+    auto bytes = ParseBytes(value);
+    if (!bytes.ok()) return BadFlag(flag, value, "bytes, e.g. 512MiB or 8GiB");
+    search.memo_limit_bytes = *bytes;
+  }
+  return absl::OkStatus();
+}
+
+// A positive finite number of seconds (rates, deadlines).
+absl::StatusOr<double> ParsePositiveSeconds(const std::string& flag, const std::string& value,
+                                            double most) {
+  const auto d = ParseDouble(flag, value);
+  if (!d.ok() || !(*d > 0) || *d > most) {
+    return BadFlag(flag, value, absl::StrCat("seconds in (0, ", most, "]"));
+  }
+  return *d;
+}
+
+absl::Status SetCapacityFlag(CapacityConfig& config, const std::string& flag,
+                             const std::string& value) {
+  if (flag == "shape" || flag == "cross-products" || flag == "memo-limit") {
+    return SetSearchSpaceFlag(config.search, flag, value);
+  } else if (flag == "deadline-seconds") {
+    ASSIGN_OR_RETURN(config.deadline_seconds, ParsePositiveSeconds(flag, value, 1e6));
+  } else if (flag == "threads-per-worker") {
+    ASSIGN_OR_RETURN(const uint64_t t, ParseUnsigned(flag, value));
+    if (t == 0 || t > 1024) return BadFlag(flag, value, "a number in 1..1024");
+    config.threads_per_worker = static_cast<int>(t);
+  } else if (flag == "format") {
+    if (value == "text")
+      config.json = false;
+    else if (value == "json")
+      config.json = true;
+    else
+      return BadFlag(flag, value, "text or json");
+  } else if (flag == "plot") {
+    if (value.empty()) return BadFlag(flag, value, "a file name");
+    config.plot_path = value;
+  } else if (flag == "seconds-per-split") {
+    ASSIGN_OR_RETURN(const double r, ParsePositiveSeconds(flag, value, 1));
+    config.rates.dense_split_seconds = r;
+    config.split_rate_given = true;
+  } else if (flag == "seconds-per-connected-set") {
+    ASSIGN_OR_RETURN(const double r, ParsePositiveSeconds(flag, value, 1));
+    config.rates.connected_set_seconds = r;
+    config.set_rate_given = true;
+  } else {
+    return absl::InvalidArgumentError(absl::StrCat("--", flag, ": unknown flag"));
+  }
+  return absl::OkStatus();
+}
+
+absl::Status SetFlag(OptimizeConfig& config, const std::string& flag, const std::string& value) {
+  if (flag == "shape" || flag == "cross-products" || flag == "memo-limit") {
+    return SetSearchSpaceFlag(config.search, flag, value);
   } else if (flag == "cost") {
     if (value == "cout")
       config.search.cost = CostModelKind::kCout;
@@ -146,10 +204,6 @@ absl::Status SetFlag(OptimizeConfig& config, const std::string& flag, const std:
   } else if (flag == "tls-ca" || flag == "tls-cert" || flag == "tls-key" || flag == "token-file") {
     if (value.empty()) return BadFlag(flag, value, "a file name");
     SetConnectionFlag(flag, value, config.tls, config.token_file);
-  } else if (flag == "memo-limit") {
-    auto bytes = ParseBytes(value);
-    if (!bytes.ok()) return BadFlag(flag, value, "bytes, e.g. 512MiB or 8GiB");
-    config.search.memo_limit_bytes = *bytes;
   } else {
     return absl::InvalidArgumentError(absl::StrCat("--", flag, ": unknown flag"));
   }
@@ -204,6 +258,33 @@ absl::StatusOr<OptimizeConfig> ParseOptimizeArgs(const std::vector<std::string>&
   if ((config.tls.any() || !config.token_file.empty()) && !config.coordinator) {
     return absl::InvalidArgumentError(
         "--tls-ca, --tls-cert, --tls-key and --token-file: need --coordinator");
+  }
+  return config;
+}
+
+absl::StatusOr<CapacityConfig> ParseCapacityArgs(const std::vector<std::string>& args) {
+  CapacityConfig config;
+  for (const std::string& arg : args) {
+    if (arg.rfind("--", 0) != 0) {
+      if (!config.query_path.empty()) {
+        return absl::InvalidArgumentError(
+            absl::StrCat("QUERY.json: a second query file \"", arg, "\" was given"));
+      }
+      config.query_path = arg;
+      continue;
+    }
+    const size_t eq = arg.find('=');
+    if (eq == std::string::npos) {
+      return absl::InvalidArgumentError(
+          absl::StrCat(arg, ": flags take a value, as in ", arg, "=VALUE"));
+    }
+    RETURN_IF_ERROR(SetCapacityFlag(config, arg.substr(2, eq - 2), arg.substr(eq + 1)));
+  }
+  if (config.query_path.empty()) {
+    return absl::InvalidArgumentError("QUERY.json: no query file given");
+  }
+  if (!(config.deadline_seconds > 0)) {
+    return absl::InvalidArgumentError("--deadline-seconds=S: missing (the time to plan for)");
   }
   return config;
 }
@@ -272,6 +353,19 @@ The cluster model (--cost=cluster) returns the Pareto set of plans:
                                  deadline, print the best plan so far (marked
                                  not proven optimal) instead of failing
   --quiet                        no progress bar on stderr
+
+usage: sliceplan capacity QUERY.json --deadline-seconds=S [flags]
+
+Predicts the exact search's wall time on pools of 1, 2, 4, ... 1,024
+workers and marks the smallest that meets the deadline.
+
+  --shape, --cross-products, --memo-limit   as for optimize
+  --threads-per-worker=T         slices each worker runs at once (default 1)
+  --format=text|json             output (default text)
+  --plot=FILE.svg                predicted seconds against workers, log-log
+  --seconds-per-split=S          the dense kernel's rate (default: measured
+                                 here in under a second)
+  --seconds-per-connected-set=S  the connected-only search's rate (same)
 
 usage: sliceplan workers --coordinator=HOST:PORT [--tls-ca=FILE [--tls-cert=FILE --tls-key=FILE]]
                          [--token-file=FILE]

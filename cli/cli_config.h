@@ -9,6 +9,7 @@
 #include <vector>
 
 #include "absl/status/statusor.h"
+#include "core/capacity_model.h"
 #include "core/search_tier.h"
 #include "core/slice_solver.h"
 #include "rpc/tls.h"
@@ -33,6 +34,23 @@ struct OptimizeConfig {
   TlsFiles tls;                         // --tls-ca, --tls-cert, --tls-key (with --coordinator)
   std::string token_file;               // --token-file (with --coordinator)
 };
+
+// `sliceplan capacity QUERY.json --deadline-seconds=S`.
+struct CapacityConfig {
+  std::string query_path;
+  SearchOptions search;
+  double deadline_seconds = 0;  // required
+  int threads_per_worker = 1;
+  bool json = false;      // --format=json
+  std::string plot_path;  // --plot=FILE.svg
+  MachineRates rates;     // --seconds-per-split, --seconds-per-connected-set
+  bool split_rate_given = false;
+  bool set_rate_given = false;
+  // The search's own rate was given, so nothing is measured.
+  bool RateGiven() const { return search.cross_products ? split_rate_given : set_rate_given; }
+};
+// Parses the arguments after "capacity"; errors as ParseOptimizeArgs.
+absl::StatusOr<CapacityConfig> ParseCapacityArgs(const std::vector<std::string>& args);
 
 // `sliceplan workers --coordinator=HOST:PORT`.
 struct WorkersConfig {

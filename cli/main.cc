@@ -9,15 +9,20 @@
 
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_format.h"
+#include "cli/capacity_render.h"
 #include "cli/cli_config.h"
 #include "cli/frontier_plot.h"
 #include "cli/progress_bar.h"
 #include "cli/render.h"
 #include "cli/rpc_client.h"
+#include "core/capacity_table.h"
 #include "core/input_limits.h"
+#include "core/rate_calibration.h"
 #include "core/slice_planner.h"
+#include "core/status_macros.h"
 #include "core/wide_query.h"
 #include "schedule/embedded_pool.h"
+#include "tiers/join_forest.h"
 #include "wire/query_proto.h"
 
 namespace sliceplan::cli {
@@ -133,6 +138,52 @@ int Optimize(const std::vector<std::string>& args) {
   return std::cout ? kExitOk : kExitFailure;
 }
 
+absl::StatusOr<CapacityTable> PlanFor(const CapacityConfig& config, const Query& query) {
+  MachineRates rates = config.rates;
+  if (!config.RateGiven()) {
+    ASSIGN_OR_RETURN(const MachineRates measured, CalibrateRates(query, config.search));
+    if (config.search.cross_products) {
+      rates.dense_split_seconds = measured.dense_split_seconds;
+    } else {
+      rates.connected_set_seconds = measured.connected_set_seconds;
+    }
+  }
+  return PlanCapacity(query, config.search, config.deadline_seconds, config.threads_per_worker,
+                      rates);
+}
+
+int Capacity(const std::vector<std::string>& args) {
+  auto config = ParseCapacityArgs(args);
+  if (!config.ok()) return Fail(config.status());
+  if (auto s = ValidateSearchOptions(config->search); !s.ok()) return Fail(s);
+  auto query = ReadWideQueryFile(config->query_path);
+  if (!query.ok()) return Fail(query.status());
+  if (!config->search.cross_products && !IsConnected(*query)) {
+    return Fail(absl::InvalidArgumentError(
+        "the join graph is not connected, so every plan has a cross product; plan with "
+        "--cross-products=true"));
+  }
+  CapacityInfo info{query->size(), config->search, !config->RateGiven()};
+  absl::StatusOr<CapacityTable> table;
+  if (query->size() > kMaxRelations) {
+    info.calibrated = false;
+    table = CapacityPastExact(query->size(), config->deadline_seconds, config->threads_per_worker);
+  } else {
+    table = PlanFor(*config, *ToExactQuery(*query));
+  }
+  if (!table.ok()) return Fail(table.status());
+  if (!config->plot_path.empty()) {
+    std::ofstream plot(config->plot_path);
+    plot << CapacitySvg(*table, info);
+    if (!plot) {
+      return Fail(absl::UnavailableError(absl::StrCat("--plot: cannot write ", config->plot_path)));
+    }
+  }
+  std::cout << (config->json ? RenderCapacityJson(*table, info) : RenderCapacityText(*table, info));
+  std::cout.flush();
+  return std::cout ? kExitOk : kExitFailure;
+}
+
 int Workers(const std::vector<std::string>& args) {
   auto config = ParseWorkersArgs(args);
   if (!config.ok()) return Fail(config.status());
@@ -171,6 +222,7 @@ int main(int argc, char** argv) {
   }
   if (command == "optimize") return Optimize(args);
   if (command == "workers") return Workers(args);
+  if (command == "capacity") return Capacity(args);
   std::cerr << "sliceplan: unknown command \"" << command << "\"\n" << Usage();
   return kExitBadInput;
 }

@@ -91,13 +91,12 @@ void AppendWideTree(const WidePlan& plan, const WideQuery& query, std::string& o
 // Above this many relations the text output gives the tree string only.
 constexpr int kMaxTextTableRelations = 64;
 
-// %.17g round-trips a double; JSON has no inf or nan, so those become null.
+}  // namespace
+
 std::string JsonNumber(double x) {
   if (!(x == x) || x == 1.0 / 0.0 || x == -1.0 / 0.0) return "null";
   return absl::StrFormat("%.17g", x);
 }
-
-}  // namespace
 
 std::string JsonString(const std::string& s) {
   std::string out = "\"";

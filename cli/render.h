@@ -38,6 +38,9 @@ SliceBalance Balance(const OptimizeResult& result);
 
 // A JSON string literal with the escapes of RFC 8259.
 std::string JsonString(const std::string& s);
+// A JSON number: %.17g round-trips a double; JSON has no inf or nan, so
+// those become null.
+std::string JsonNumber(double x);
 
 }  // namespace sliceplan::cli
 

@@ -3,45 +3,52 @@
 #include <algorithm>
 #include <bit>
 #include <cmath>
-#include <limits>
 
+#include "core/connected_set_estimate.h"
 #include "core/cout_policy.h"
 #include "core/search_estimate.h"
 #include "core/slice_planner.h"
 
 namespace sliceplan {
 
+ExactWork MeasureExactWork(const Query& query, const SearchOptions& options) {
+  ExactWork work;
+  work.cross_products = options.cross_products;
+  if (options.cross_products) return work;
+  const ConnectedSetCount count = EstimateConnectedSets(query);
+  work.connected_sets = count.sets;
+  work.estimated = !count.exact;
+  return work;
+}
+
 ExactForecast ForecastExact(const Query& query, const SearchOptions& options, int slots,
-                            double horizon_seconds, const MachineRates& rates, uint32_t slices) {
+                            const MachineRates& rates, uint32_t slices) {
+  return ForecastExact(query, options, MeasureExactWork(query, options), slots, rates, slices);
+}
+
+ExactForecast ForecastExact(const Query& query, const SearchOptions& options, const ExactWork& work,
+                            int slots, const MachineRates& rates, uint32_t slices) {
   ExactForecast out;
   slots = std::max(1, slots);
   out.slices = slices != 0 ? slices : ChooseSliceCount(query, options, slots);
   const int k = std::countr_zero(out.slices);
   const double rounds = std::ceil(static_cast<double>(out.slices) / slots);
   const int n = query.size();
+  double unit_seconds = 0;
   if (options.cross_products) {
     out.work_units = DenseSplits(n, options.shape, k, true);
     out.memo_bytes = DenseSlots(n, options.shape, k) * CoutPolicy::kBytesPerSlot;
-    out.seconds =
-        rounds * (out.work_units * rates.dense_split_seconds + rates.slice_overhead_seconds);
-    return out;
+    unit_seconds = rates.dense_split_seconds;
+  } else {
+    const double shrink = options.shape == PlanShape::kBushy ? 21.0 / 27.0 : 0.75;
+    out.work_units = work.connected_sets * std::pow(shrink, k);
+    // The hash memo: about 40 bytes per connected set (common practice for
+    // an open-addressing table at half load).
+    out.memo_bytes = out.work_units * 40;
+    out.estimated = work.estimated;
+    unit_seconds = rates.connected_set_seconds;
   }
-  const double affordable = horizon_seconds * slots / rates.connected_set_seconds;
-  const auto cap = static_cast<uint64_t>(std::clamp(affordable, 1.0, 5e7)) + 1;
-  const uint64_t sets = CountConnectedSets(query, cap);
-  if (sets >= cap) {
-    out.beyond_horizon = true;
-    out.seconds = std::numeric_limits<double>::infinity();
-    out.work_units = static_cast<double>(sets);
-    return out;
-  }
-  const double shrink = options.shape == PlanShape::kBushy ? 21.0 / 27.0 : 0.75;
-  out.work_units = static_cast<double>(sets) * std::pow(shrink, k);
-  // The hash memo: about 40 bytes per connected set (common practice for an
-  // open-addressing table at half load).
-  out.memo_bytes = out.work_units * 40;
-  out.seconds =
-      rounds * (out.work_units * rates.connected_set_seconds + rates.slice_overhead_seconds);
+  out.seconds = rounds * (out.work_units * unit_seconds + rates.slice_overhead_seconds);
   return out;
 }
 

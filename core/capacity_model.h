@@ -1,15 +1,15 @@
 // Predicting an exact search's wall time on a pool before running it: the
-// model `auto` uses to choose a tier and idp to size its blocks, and the
+// model `auto` uses to choose a tier, idp to size its blocks, and the
 // capacity planner prints (docs/tiers.md).
 //
 // With cross products the work of each slice is known exactly (the closed
 // forms of search_estimate.h). Without, the connected sets of the join
-// graph are counted up to what the horizon could afford (Neumann and
-// Radke's "count first" rule), and a slice is taken to do (21/27)^k
-// (bushy) or (3/4)^k (left-deep) of the unsliced work, as in the cross
-// product space. Seconds come from per-unit rates measured on the
-// project's reference machine (docs/benchmarks.md); a caller may pass its
-// own. Pure.
+// graph are counted, or estimated past a cap (connected_set_estimate.h),
+// and a slice is taken to do (21/27)^k (bushy) or (3/4)^k (left-deep) of
+// the unsliced work, as in the cross-product space. Seconds come from
+// per-unit rates: the defaults were measured on the project's reference
+// machine (docs/benchmarks.md); rate_calibration.h measures them here.
+// Pure.
 #ifndef SLICEPLAN_CORE_CAPACITY_MODEL_H_
 #define SLICEPLAN_CORE_CAPACITY_MODEL_H_
 
@@ -19,6 +19,10 @@
 #include "core/search_options.h"
 
 namespace sliceplan {
+
+// auto runs the exact search when predicted to take at most this share of
+// the time left (the rest is the margin for the model's error).
+inline constexpr double kExactShare = 0.6;
 
 struct MachineRates {
   // One split of the dense kernel (1.2-1.3 ns measured, RelWithDebInfo).
@@ -30,20 +34,31 @@ struct MachineRates {
   double slice_overhead_seconds = 0.2e-3;
 };
 
+// The size of the whole (unsliced) exact search, which does not depend on
+// the pool: computed once, then forecast for any number of slots.
+struct ExactWork {
+  bool cross_products = true;
+  double connected_sets = 0;  // without cross products
+  bool estimated = false;     // connected sets sampled, not counted
+};
+ExactWork MeasureExactWork(const Query& query, const SearchOptions& options);
+
 struct ExactForecast {
-  double seconds = 0;           // wall time on the pool; +inf past the horizon
-  uint32_t slices = 1;          // P, as the coordinator would choose it
-  double work_units = 0;        // splits (cross products) or connected sets of one slice
-  double memo_bytes = 0;        // per slice
-  bool beyond_horizon = false;  // the count stopped at its cap
+  double seconds = 0;      // wall time on the pool
+  uint32_t slices = 1;     // P, as the coordinator would choose it
+  double work_units = 0;   // splits (cross products) or connected sets of one slice
+  double memo_bytes = 0;   // per slice
+  bool estimated = false;  // the work comes from sampled connected sets
 };
 
 // The exact search of `query` on `slots` slice slots at once, P chosen by
-// ChooseSliceCount unless `slices` (a power of two) is given. Counting
-// stops once the search could not finish within `horizon_seconds`.
+// ChooseSliceCount unless `slices` (a power of two) is given.
 ExactForecast ForecastExact(const Query& query, const SearchOptions& options, int slots,
-                            double horizon_seconds, const MachineRates& rates = {},
-                            uint32_t slices = 0);
+                            const MachineRates& rates = {}, uint32_t slices = 0);
+// The same from work measured once (MeasureExactWork of the same query
+// and options).
+ExactForecast ForecastExact(const Query& query, const SearchOptions& options, const ExactWork& work,
+                            int slots, const MachineRates& rates = {}, uint32_t slices = 0);
 
 }  // namespace sliceplan
 

@@ -5,44 +5,66 @@
 namespace sliceplan {
 namespace {
 
+// DPccp's EnumerateCsg, handing each set to `emit` (which returns false to
+// stop the walk).
+template <class Emit>
 class CsgEnumerator {
  public:
-  CsgEnumerator(const Query& query, uint64_t cap) : graph_(query), cap_(cap) {}
+  CsgEnumerator(const Query& query, Emit emit) : graph_(query), emit_(emit) {}
 
-  std::vector<RelSet> Run(int n) {
-    for (int v = n - 1; v >= 0 && !Full(); --v) {
+  void Run(int n) {
+    for (int v = n - 1; v >= 0 && !stopped_; --v) {
       const RelSet start = RelSet{1} << v;
-      out_.push_back(start);
+      if (!Emit1(start)) return;
       Grow(start, FullSet(v + 1));
     }
-    return std::move(out_);
   }
 
  private:
-  bool Full() const { return out_.size() >= cap_; }
+  bool Emit1(RelSet s) {
+    stopped_ = stopped_ || !emit_(s);
+    return !stopped_;
+  }
 
   void Grow(RelSet s, RelSet x) {
     const RelSet nb = graph_.Around(s) & ~x;
     if (nb == 0) return;
-    for (RelSet sub = nb & (0 - nb); !Full(); sub = (sub - nb) & nb) {
-      out_.push_back(s | sub);
+    for (RelSet sub = nb & (0 - nb); Emit1(s | sub); sub = (sub - nb) & nb) {
       if (sub == nb) break;
     }
-    for (RelSet sub = nb & (0 - nb); !Full(); sub = (sub - nb) & nb) {
+    for (RelSet sub = nb & (0 - nb); !stopped_; sub = (sub - nb) & nb) {
       Grow(s | sub, x | nb);
       if (sub == nb) break;
     }
   }
 
   JoinGraph graph_;
-  uint64_t cap_;
-  std::vector<RelSet> out_;
+  Emit emit_;
+  bool stopped_ = false;
 };
+
+template <class Emit>
+void EnumerateConnectedSets(const Query& query, Emit emit) {
+  CsgEnumerator<Emit>(query, emit).Run(query.size());
+}
 
 }  // namespace
 
 std::vector<RelSet> ConnectedSets(const Query& query, uint64_t cap) {
-  return CsgEnumerator(query, cap).Run(query.size());
+  std::vector<RelSet> out;
+  if (cap == 0) return out;
+  EnumerateConnectedSets(query, [&](RelSet s) {
+    out.push_back(s);
+    return out.size() < cap;
+  });
+  return out;
+}
+
+uint64_t CountConnectedSets(const Query& query, uint64_t cap) {
+  uint64_t count = 0;
+  if (cap == 0) return count;
+  EnumerateConnectedSets(query, [&](RelSet) { return ++count < cap; });
+  return count;
 }
 
 }  // namespace sliceplan

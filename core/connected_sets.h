@@ -16,6 +16,10 @@ namespace sliceplan {
 // included, in DPccp's order (sets holding high ids first).
 std::vector<RelSet> ConnectedSets(const Query& query, uint64_t cap);
 
+// The number of connected sets, counted up to `cap` (the count stops
+// there), with no list kept: memory O(n) whatever the cap.
+uint64_t CountConnectedSets(const Query& query, uint64_t cap);
+
 }  // namespace sliceplan
 
 #endif  // SLICEPLAN_CORE_CONNECTED_SETS_H_

@@ -31,10 +31,6 @@ uint32_t ChooseDense(const Query& query, const SearchOptions& options, int worke
 
 }  // namespace
 
-uint64_t CountConnectedSets(const Query& query, uint64_t cap) {
-  return ConnectedSets(query, cap).size();
-}
-
 uint32_t ChooseSliceCount(const Query& query, const SearchOptions& options, int workers) {
   if (options.cross_products) return ChooseDense(query, options, workers);
   // Connected sets only: small searches stay whole; large ones get one

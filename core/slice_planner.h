@@ -12,6 +12,7 @@
 
 #include <cstdint>
 
+#include "core/connected_sets.h"  // CountConnectedSets, for the planner's callers
 #include "core/query.h"
 #include "core/slice_solver.h"
 
@@ -25,10 +26,6 @@ inline constexpr int kMaxPlannedSliceBits = 8;
 
 // REQUIRES: workers >= 1.
 uint32_t ChooseSliceCount(const Query& query, const SearchOptions& options, int workers);
-
-// Connected relation sets of the join graph (predicates as cliques), counted
-// up to `cap` (the count stops there).
-uint64_t CountConnectedSets(const Query& query, uint64_t cap);
 
 }  // namespace sliceplan
 

@@ -165,13 +165,13 @@ class TierRun {
     ASSIGN_OR_RETURN(const Query exact, ToExactQuery(query_));
     const double remaining = Remaining();
     const ExactForecast f =
-        ForecastExact(exact, options_, slots_, remaining, request_.rates, request_.slice_count);
+        ForecastExact(exact, options_, slots_, request_.rates, request_.slice_count);
     out_.forecast = f;
     if (!(f.seconds <= kExactShare * remaining)) {
       reason_ = absl::StrFormat(
-          "the exact search was predicted %s on %d slots, past %.0f%% of the %.3g s left",
-          f.beyond_horizon ? std::string("to take longer") : absl::StrFormat("%.3g s", f.seconds),
-          slots_, 100 * kExactShare, remaining);
+          "the exact search was predicted %.3g s%s on %d slots, past %.0f%% of the %.3g s left",
+          f.seconds, f.estimated ? " (connected sets sampled)" : "", slots_, 100 * kExactShare,
+          remaining);
       return false;
     }
     ScheduleOptions schedule = schedule_;

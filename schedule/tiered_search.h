@@ -43,9 +43,6 @@ namespace sliceplan {
 // auto runs the linear tier as a second incumbent up to this many
 // relations (its O(n^3) DP takes ~0.1 s at 300 here).
 inline constexpr int kAutoLinearRelations = 300;
-// auto runs the exact search when predicted to take at most this share of
-// the time left (the rest is the margin for the model's error).
-inline constexpr double kExactShare = 0.6;
 inline constexpr double kDefaultBudgetSeconds = 10;
 
 struct TierRequest {

@@ -1,0 +1,121 @@
+#include "cli/capacity_render.h"
+
+#include <algorithm>
+
+#include "absl/strings/str_cat.h"
+#include "absl/strings/str_format.h"
+#include "cli/render.h"
+#include "cli/svg_chart.h"
+
+namespace sliceplan::cli {
+namespace {
+
+std::string Bytes(double b) {
+  if (b >= 1024.0 * 1024 * 1024) return absl::StrFormat("%.1f GiB", b / (1024.0 * 1024 * 1024));
+  if (b >= 1024.0 * 1024) return absl::StrFormat("%.1f MiB", b / (1024.0 * 1024));
+  if (b >= 1024.0) return absl::StrFormat("%.1f KiB", b / 1024.0);
+  return absl::StrFormat("%.0f B", b);
+}
+
+std::string Header(const CapacityTable& t, const CapacityInfo& info) {
+  return absl::StrFormat(
+      "exact search of %d relations, %s plans, cross products %s; deadline %.3g s; %d "
+      "thread%s per worker\n",
+      info.relations, info.search.shape == PlanShape::kBushy ? "bushy" : "left-deep",
+      info.search.cross_products ? "allowed" : "not allowed", t.deadline_seconds,
+      t.threads_per_worker, t.threads_per_worker == 1 ? "" : "s");
+}
+
+std::string Rates(const CapacityTable& t, const CapacityInfo& info) {
+  std::string s = absl::StrFormat("rates (%s): %.3g ns per split",
+                                  info.calibrated ? "measured on this machine" : "given",
+                                  t.rates.dense_split_seconds * 1e9);
+  if (!info.search.cross_products) {
+    absl::StrAppendFormat(&s, ", %.3g us per connected set%s", t.rates.connected_set_seconds * 1e6,
+                          t.estimated ? " (connected sets estimated by sampling)" : "");
+  }
+  return s + "\n";
+}
+
+}  // namespace
+
+std::string RenderCapacityText(const CapacityTable& t, const CapacityInfo& info) {
+  std::string out = Header(t, info);
+  if (t.rows.empty()) return out + t.summary + "\n";
+  out += Rates(t, info);
+  absl::StrAppendFormat(&out, "\n  %7s %7s %14s %16s\n", "workers", "slices", "seconds",
+                        "memo per worker");
+  for (const CapacityRow& r : t.rows) {
+    const char* mark = t.enough_workers == r.workers ? "  <- enough" : "";
+    absl::StrAppendFormat(&out, "  %7d %7u %14.4g %16s%s%s\n", r.workers, r.slices, r.seconds,
+                          Bytes(r.memo_bytes), r.fits_memo ? "" : "  (past the memo limit)", mark);
+  }
+  return out + "\n" + t.summary + "\n";
+}
+
+std::string RenderCapacityJson(const CapacityTable& t, const CapacityInfo& info) {
+  std::string out = "{\n  \"rows\": [";
+  for (size_t i = 0; i < t.rows.size(); ++i) {
+    const CapacityRow& r = t.rows[i];
+    absl::StrAppend(&out, i == 0 ? "\n" : ",\n", "    {\"workers\": ", r.workers,
+                    ", \"slices\": ", r.slices, ", \"seconds\": ", JsonNumber(r.seconds),
+                    ", \"memo_bytes\": ", JsonNumber(r.memo_bytes),
+                    ", \"fits_memo\": ", r.fits_memo ? "true" : "false", "}");
+  }
+  const auto optional = [](const std::optional<int>& w) {
+    return w ? absl::StrCat(*w) : std::string("null");
+  };
+  absl::StrAppend(&out, t.rows.empty() ? "],\n" : "\n  ],\n",
+                  "  \"enough_workers\": ", optional(t.enough_workers), ",\n",
+                  "  \"auto_exact_workers\": ", optional(t.auto_exact_workers), ",\n",
+                  "  \"relations\": ", info.relations, ",\n",
+                  "  \"deadline_seconds\": ", JsonNumber(t.deadline_seconds), ",\n",
+                  "  \"threads_per_worker\": ", t.threads_per_worker, ",\n",
+                  "  \"connected_sets_estimated\": ", t.estimated ? "true" : "false", ",\n",
+                  "  \"rates\": {\"split_seconds\": ", JsonNumber(t.rates.dense_split_seconds),
+                  ", \"connected_set_seconds\": ", JsonNumber(t.rates.connected_set_seconds),
+                  ", \"calibrated\": ", info.calibrated ? "true" : "false", "},\n",
+                  "  \"summary\": ", JsonString(t.summary), "\n}\n");
+  return out;
+}
+
+std::string CapacitySvg(const CapacityTable& t, const CapacityInfo& info) {
+  double lo = t.deadline_seconds, hi = t.deadline_seconds;
+  for (const CapacityRow& r : t.rows) lo = std::min(lo, r.seconds), hi = std::max(hi, r.seconds);
+  SvgChart chart(absl::StrFormat("Predicted exact search time, %d relations", info.relations),
+                 MakeChartAxis(1, kCapacityMaxWorkers, true), "workers",
+                 MakeChartAxis(lo, hi, true), "predicted seconds (slowest slice x rounds)");
+  std::string s;
+  std::string points;
+  for (const CapacityRow& r : t.rows) {
+    absl::StrAppendFormat(&points, "%.1f,%.1f ", chart.X(r.workers), chart.Y(r.seconds));
+  }
+  absl::StrAppendFormat(&s,
+                        "<polyline points=\"%s\" fill=\"none\" stroke=\"#1f77b4\" "
+                        "stroke-width=\"2\"/>\n",
+                        points);
+  for (const CapacityRow& r : t.rows) {
+    const bool meets = r.fits_memo && r.seconds <= t.deadline_seconds;
+    absl::StrAppendFormat(&s,
+                          "<circle cx=\"%.1f\" cy=\"%.1f\" r=\"5\" fill=\"%s\" stroke=\"#222\">"
+                          "<title>%d workers: %u slices, %.4g s, %s per worker</title></circle>\n",
+                          chart.X(r.workers), chart.Y(r.seconds), meets ? "#2ca02c" : "#d62728",
+                          r.workers, r.slices, r.seconds, Bytes(r.memo_bytes));
+  }
+  const double y = chart.Y(t.deadline_seconds);
+  absl::StrAppendFormat(&s,
+                        "<line x1=\"%.0f\" y1=\"%.1f\" x2=\"%.0f\" y2=\"%.1f\" stroke=\"#d62728\" "
+                        "stroke-dasharray=\"6 4\" stroke-width=\"1.5\"/>"
+                        "<text x=\"%.0f\" y=\"%.1f\" fill=\"#d62728\">deadline %.3g s</text>\n",
+                        SvgChart::kLeft, y, SvgChart::kLeft + chart.PlotWidth(), y,
+                        SvgChart::kLeft + chart.PlotWidth() + 8, y + 4, t.deadline_seconds);
+  if (t.enough_workers) {
+    absl::StrAppendFormat(
+        &s, "<text x=\"%.0f\" y=\"%.0f\" fill=\"#2ca02c\">enough: %d workers</text>\n",
+        SvgChart::kLeft + chart.PlotWidth() + 8, SvgChart::kTop + 20, *t.enough_workers);
+  }
+  chart.Append(s);
+  return chart.Finish();
+}
+
+}  // namespace sliceplan::cli

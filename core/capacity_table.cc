@@ -1,0 +1,95 @@
+#include "core/capacity_table.h"
+
+#include <algorithm>
+#include <cmath>
+
+#include "absl/strings/str_cat.h"
+#include "absl/strings/str_format.h"
+
+namespace sliceplan {
+namespace {
+
+CapacityRow Row(const Query& query, const SearchOptions& options, const ExactWork& work,
+                int workers, int threads, const MachineRates& rates) {
+  const ExactForecast f = ForecastExact(query, options, work, workers * threads, rates);
+  CapacityRow row;
+  row.workers = workers;
+  row.slices = f.slices;
+  row.seconds = f.seconds;
+  const double per_worker = std::ceil(static_cast<double>(f.slices) / workers);
+  row.memo_bytes = f.memo_bytes * std::min<double>(threads, per_worker);
+  row.fits_memo = f.memo_bytes <= static_cast<double>(options.memo_limit_bytes);
+  return row;
+}
+
+std::string Summary(const CapacityTable& t) {
+  if (t.enough_workers) {
+    std::string s = absl::StrFormat("%d worker%s finish%s the exact search within %.3g s.",
+                                    *t.enough_workers, *t.enough_workers == 1 ? "" : "s",
+                                    *t.enough_workers == 1 ? "es" : "", t.deadline_seconds);
+    if (t.auto_exact_workers == 1) {
+      absl::StrAppendFormat(&s,
+                            " auto runs it on any of these pools (predicted within %.0f%% of "
+                            "the deadline).",
+                            100 * kExactShare);
+    } else if (t.auto_exact_workers) {
+      absl::StrAppendFormat(&s,
+                            " auto runs it from %d workers (predicted within %.0f%% of the "
+                            "deadline); on fewer it returns the best of greedy, linear and "
+                            "idp.",
+                            *t.auto_exact_workers, 100 * kExactShare);
+    }
+    return s;
+  }
+  return absl::StrFormat(
+      "No pool of up to %d workers finishes the exact search within %.3g s: auto would return "
+      "the best of greedy and linear, improved by idp (blocks searched exactly over the pool) "
+      "until the deadline, not proven optimal.",
+      kCapacityMaxWorkers, t.deadline_seconds);
+}
+
+}  // namespace
+
+absl::StatusOr<CapacityTable> PlanCapacity(const Query& query, const SearchOptions& options,
+                                           double deadline_seconds, int threads_per_worker,
+                                           const MachineRates& rates) {
+  if (!std::isfinite(deadline_seconds) || !(deadline_seconds > 0)) {
+    return absl::InvalidArgumentError(
+        absl::StrCat("deadline: must be a finite number of seconds > 0, got ", deadline_seconds));
+  }
+  if (threads_per_worker < 1 || threads_per_worker > kCapacityMaxThreads) {
+    return absl::InvalidArgumentError(absl::StrCat(
+        "threads per worker: must be in 1..", kCapacityMaxThreads, ", got ", threads_per_worker));
+  }
+  CapacityTable t;
+  t.deadline_seconds = deadline_seconds;
+  t.threads_per_worker = threads_per_worker;
+  t.rates = rates;
+  const ExactWork work = MeasureExactWork(query, options);
+  t.estimated = work.estimated;
+  for (int w = 1; w <= kCapacityMaxWorkers; w *= 2) {
+    const CapacityRow row = Row(query, options, work, w, threads_per_worker, rates);
+    if (row.fits_memo && row.seconds <= deadline_seconds && !t.enough_workers) {
+      t.enough_workers = w;
+    }
+    if (row.fits_memo && row.seconds <= kExactShare * deadline_seconds && !t.auto_exact_workers) {
+      t.auto_exact_workers = w;
+    }
+    t.rows.push_back(row);
+  }
+  t.summary = Summary(t);
+  return t;
+}
+
+CapacityTable CapacityPastExact(int relations, double deadline_seconds, int threads_per_worker) {
+  CapacityTable t;
+  t.deadline_seconds = deadline_seconds;
+  t.threads_per_worker = threads_per_worker;
+  t.summary = absl::StrFormat(
+      "%d relations: past the exact search's %d, so no pool runs it. auto returns the best of "
+      "greedy%s, improved by idp (blocks searched exactly over the pool) until the deadline.",
+      relations, kMaxRelations, relations <= 300 ? " and linear" : "");
+  return t;
+}
+
+}  // namespace sliceplan

@@ -1,0 +1,58 @@
+// The capacity planner's table (docs/tiers.md): for pools of 1, 2, 4, ...
+// 1,024 workers, the slice count the coordinator would choose, the
+// predicted slowest-slice wall time and the memo each worker holds, and
+// the smallest pool that finishes the exact search by a deadline. The
+// same model (capacity_model.h) drives `auto` and the slice count, so the
+// table says what a request would do. Pure; thread-safe.
+#ifndef SLICEPLAN_CORE_CAPACITY_TABLE_H_
+#define SLICEPLAN_CORE_CAPACITY_TABLE_H_
+
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "absl/status/statusor.h"
+#include "core/capacity_model.h"
+#include "core/query.h"
+#include "core/search_options.h"
+
+namespace sliceplan {
+
+inline constexpr int kCapacityMaxWorkers = 1024;
+inline constexpr int kCapacityMaxThreads = 1024;
+
+struct CapacityRow {
+  int workers = 1;
+  uint32_t slices = 1;
+  double seconds = 0;     // predicted wall time: rounds x the slowest slice
+  double memo_bytes = 0;  // per worker: its concurrent slices' memos
+  bool fits_memo = true;  // each slice's memo within the memo limit
+};
+
+struct CapacityTable {
+  std::vector<CapacityRow> rows;      // workers 1, 2, 4, ... 1,024
+  std::optional<int> enough_workers;  // smallest pool meeting the deadline
+  // Smallest pool on which `auto` runs the exact search (predicted within
+  // kExactShare of the deadline); none: auto runs the heuristic tiers.
+  std::optional<int> auto_exact_workers;
+  double deadline_seconds = 0;
+  int threads_per_worker = 1;
+  bool estimated = false;  // connected sets sampled, not counted
+  MachineRates rates;      // the rates the table was computed with
+  std::string summary;     // one or two sentences: the answer in words
+};
+
+// Each worker runs `threads_per_worker` slices at once. Errors:
+// INVALID_ARGUMENT for a deadline not finite and > 0 or threads outside
+// 1..kCapacityMaxThreads.
+absl::StatusOr<CapacityTable> PlanCapacity(const Query& query, const SearchOptions& options,
+                                           double deadline_seconds, int threads_per_worker,
+                                           const MachineRates& rates);
+
+// The answer for a query past the exact search's reach (more than
+// kMaxRelations relations): no rows, and a summary naming what auto does.
+CapacityTable CapacityPastExact(int relations, double deadline_seconds, int threads_per_worker);
+
+}  // namespace sliceplan
+
+#endif  // SLICEPLAN_CORE_CAPACITY_TABLE_H_
