@@ -198,5 +198,80 @@ assert render(roots[0]) == tree, (render(roots[0]), tree)
 PY
 then passed=$((passed + 1)); else failed=$((failed + 1)); echo "FAIL formats_agree"; fi
 
+# The capacity planner: refusals, then the table with a given rate checked
+# against the closed form: 19 relations unsliced are (3^19 - 2^20 + 1) / 2 =
+# 580,606,446 symmetric splits, 0.580606446 s at 1 ns, plus the 0.2 ms
+# slice round trip; the rows double from 1 to 1,024 workers and
+# enough_workers is the first row within the deadline.
+check capacity_no_deadline 2 "--deadline-seconds=S: missing" capacity "$examples/port_logistics.json"
+check capacity_bad_deadline 2 "--deadline-seconds=-1: expected seconds" capacity "$examples/port_logistics.json" --deadline-seconds=-1
+check capacity_bad_threads 2 "--threads-per-worker=0: expected a number in 1..1024" capacity "$examples/port_logistics.json" --deadline-seconds=1 --threads-per-worker=0
+check capacity_bad_format 2 "--format=dot: expected text or json" capacity "$examples/port_logistics.json" --deadline-seconds=1 --format=dot
+check capacity_bad_file 2 "relations[0] (berths).rows" capacity "$bad/rows_negative.json" --deadline-seconds=1
+echo '{"relations": [{"name": "berths", "rows": 9}, {"name": "cranes", "rows": 4}], "predicates": []}' >"$tmp/apart.json"
+check capacity_disconnected 2 "not connected" capacity "$tmp/apart.json" --deadline-seconds=1 --cross-products=false
+"$bin" capacity "$examples/port_logistics.json" --deadline-seconds=0.4 --seconds-per-split=1e-9 \
+  --format=json --plot="$tmp/capacity.svg" >"$tmp/capacity.json" 2>"$tmp/err"
+if python3 - "$tmp/capacity.json" "$tmp/capacity.svg" <<'PY'
+import json, sys
+doc = json.load(open(sys.argv[1]))
+rows = doc["rows"]
+assert [r["workers"] for r in rows] == [2 ** i for i in range(11)], rows
+assert rows[0]["slices"] == 1, rows[0]
+assert abs(rows[0]["seconds"] - (0.580606446 + 0.0002)) < 1e-9, rows[0]
+assert all(r["slices"] >= 1 and r["slices"] & (r["slices"] - 1) == 0 for r in rows)
+assert all(a["seconds"] >= b["seconds"] for a, b in zip(rows, rows[1:])), rows
+first = next(r["workers"] for r in rows if r["seconds"] <= 0.4 and r["fits_memo"])
+assert doc["enough_workers"] == first, (doc["enough_workers"], first)
+assert doc["rates"]["calibrated"] is False and doc["rates"]["split_seconds"] == 1e-9
+svg = open(sys.argv[2]).read()
+assert svg.count("<circle") == 11 and "deadline 0.4 s" in svg, svg[:200]
+PY
+then passed=$((passed + 1)); else failed=$((failed + 1)); echo "FAIL capacity_table"; fi
+# Past the exact reach: no rows, and the summary names what auto does.
+"$bin" capacity "$bad/too_many_relations.json" --deadline-seconds=2 --format=json \
+  >"$tmp/capacity.json" 2>"$tmp/err"
+if python3 - "$tmp/capacity.json" <<'PY'
+import json, sys
+doc = json.load(open(sys.argv[1]))
+assert doc["rows"] == [] and doc["enough_workers"] is None, doc
+assert "65 relations: past the exact search's 64" in doc["summary"], doc["summary"]
+PY
+then passed=$((passed + 1)); else failed=$((failed + 1)); echo "FAIL capacity_past_exact"; fi
+
+# Deadlines on queries past what the pool can search exactly. A 40-relation
+# clique with cross products (3^40 splits) and a 2 s deadline: a valid plan
+# over all 40 relations, not claimed optimal, within the deadline (plus a
+# generous margin for a loaded machine). A 40-relation random graph without
+# cross products and no deadline: answered within the 10 s default budget.
+valid_plan() {  # JSON QUERY MAX_SECONDS ELAPSED
+  python3 - "$@" <<'PY'
+import json, re, sys
+doc, query = json.load(open(sys.argv[1])), json.load(open(sys.argv[2]))
+names = sorted(r["name"] for r in query["relations"])
+tree = doc["plans"][0]["tree"]
+assert sorted(re.findall(r"[A-Za-z_][A-Za-z0-9_]*", tree)) == names, tree
+assert tree.count("(") == len(names) - 1, tree
+assert doc["proven_optimal"] is False and doc["tier"] in ("greedy", "linear", "idp", "exact"), doc
+assert float(sys.argv[4]) <= float(sys.argv[3]), ("took", sys.argv[4], "s")
+PY
+}
+python3 "$examples/generate_port_query.py" 40 --graph=clique >"$tmp/clique40.json"
+python3 "$examples/generate_port_query.py" 40 --graph=random >"$tmp/random40.json"
+start=$(date +%s.%N)
+"$bin" optimize "$tmp/clique40.json" --deadline-seconds=2 --workers=2 --format=json \
+  >"$tmp/out" 2>"$tmp/err"
+status=$?
+elapsed=$(python3 -c "print($(date +%s.%N) - $start)")
+if [ "$status" -eq 0 ] && valid_plan "$tmp/out" "$tmp/clique40.json" 3.5 "$elapsed"; then
+  passed=$((passed + 1)); else failed=$((failed + 1)); echo "FAIL clique_deadline ($elapsed s)"; fi
+start=$(date +%s.%N)
+"$bin" optimize "$tmp/random40.json" --cross-products=false --workers=2 --format=json \
+  >"$tmp/out" 2>"$tmp/err"
+status=$?
+elapsed=$(python3 -c "print($(date +%s.%N) - $start)")
+if [ "$status" -eq 0 ] && valid_plan "$tmp/out" "$tmp/random40.json" 12 "$elapsed"; then
+  passed=$((passed + 1)); else failed=$((failed + 1)); echo "FAIL random40_budget ($elapsed s)"; fi
+
 echo "$passed passed, $failed failed"
 [ "$failed" -eq 0 ]
