@@ -88,7 +88,7 @@ CapacityTable CapacityPastExact(int relations, double deadline_seconds, int thre
   t.summary = absl::StrFormat(
       "%d relations: past the exact search's %d, so no pool runs it. auto returns the best of "
       "greedy%s, improved by idp (blocks searched exactly over the pool) until the deadline.",
-      relations, kMaxRelations, relations <= 300 ? " and linear" : "");
+      relations, kMaxRelations, relations <= kMaxLinearTierRelations ? " and linear" : "");
   return t;
 }
 

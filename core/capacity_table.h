@@ -20,6 +20,10 @@ namespace sliceplan {
 
 inline constexpr int kCapacityMaxWorkers = 1024;
 inline constexpr int kCapacityMaxThreads = 1024;
+// The largest query the linear tier (tiers/linear_dp.h) takes; core does
+// not see the tiers, so the summary's number is kept here and checked
+// equal there.
+inline constexpr int kMaxLinearTierRelations = 1000;
 
 struct CapacityRow {
   int workers = 1;

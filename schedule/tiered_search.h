@@ -36,13 +36,17 @@
 #include "core/wide_query.h"
 #include "schedule/slice_scheduler.h"
 #include "tiers/idp.h"
+#include "tiers/linear_dp.h"
 #include "tiers/wide_plan.h"
 
 namespace sliceplan {
 
 // auto runs the linear tier as a second incumbent up to this many
-// relations (its O(n^3) DP takes ~0.1 s at 300 here).
-inline constexpr int kAutoLinearRelations = 300;
+// relations, the linear tier's own limit (its O(n^3) DP takes ~0.1 s at
+// 300 here, ~0.3 s at 1,000; a deadline cuts it short, and greedy's plan
+// stands). Greedy alone is often several times costlier at 1,000
+// (docs/benchmarks.md).
+inline constexpr int kAutoLinearRelations = kMaxLinearRelations;
 inline constexpr double kDefaultBudgetSeconds = 10;
 
 struct TierRequest {

@@ -20,6 +20,7 @@
 #include <vector>
 
 #include "absl/status/statusor.h"
+#include "core/capacity_table.h"  // kMaxLinearTierRelations
 #include "core/search_control.h"
 #include "core/slice_spec.h"
 #include "core/wide_query.h"
@@ -29,6 +30,7 @@ namespace sliceplan {
 
 // The largest query the linear tier takes (memory: 32 n^2 bytes).
 inline constexpr int kMaxLinearRelations = 1000;
+static_assert(kMaxLinearRelations == kMaxLinearTierRelations, "core/capacity_table.h");
 
 // The best plan of `shape` over contiguous runs of `order`, costed. Without
 // cross products: on a disconnected join graph (where no plan avoids them)

@@ -154,7 +154,9 @@ TEST(CapacityTableTest, PastTheExactReachNamesWhatAutoDoes) {
   EXPECT_TRUE(t.rows.empty());
   EXPECT_FALSE(t.enough_workers.has_value());
   EXPECT_NE(t.summary.find("500 relations: past the exact search's 64"), std::string::npos);
-  EXPECT_EQ(t.summary.find("linear"), std::string::npos);  // 500 > 300: no linear tier
+  EXPECT_NE(t.summary.find("greedy and linear"), std::string::npos);
+  // Past 1,000 relations there is no linear tier.
+  EXPECT_EQ(CapacityPastExact(1001, 2.0, 1).summary.find("linear"), std::string::npos);
 }
 
 }  // namespace

@@ -1,0 +1,60 @@
+// The capacity model against measured slice times: for n = 14..20 and
+// P = 1..16, both plan shapes, cross products allowed, the forecast
+// slowest-slice seconds (core/capacity_model.h, with the rate measured by
+// core/rate_calibration.h once per shape) over the measured slowest slice
+// (every slice solved once, one at a time, on one thread). Figures in
+// docs/benchmarks.md.
+#include <bit>
+#include <chrono>
+#include <cstdio>
+
+#include "core/capacity_model.h"
+#include "core/rate_calibration.h"
+#include "core/slice_solver.h"
+#include "tests/support/test_queries.h"
+
+namespace {
+
+using namespace sliceplan;
+using Clock = std::chrono::steady_clock;
+
+double SlowestSlice(const Query& q, const SearchOptions& options, uint32_t p) {
+  double slowest = 0;
+  for (uint32_t i = 0; i < p; ++i) {
+    SearchControl control;
+    const auto start = Clock::now();
+    auto r = SolveSlice(q, options, {i, p}, control);
+    const double s = std::chrono::duration<double>(Clock::now() - start).count();
+    if (!r.ok()) {
+      std::fprintf(stderr, "%s\n", r.status().ToString().c_str());
+      return -1;
+    }
+    slowest = std::max(slowest, s);
+  }
+  return slowest;
+}
+
+}  // namespace
+
+int main() {
+  std::printf("| shape | n | P=1 | P=2 | P=4 | P=8 | P=16 |\n|---|---|---|---|---|---|---|\n");
+  for (const PlanShape shape : {PlanShape::kBushy, PlanShape::kLeftDeep}) {
+    SearchOptions options;
+    options.shape = shape;
+    const Query probe = testing::MakeQuery(testing::GraphShape::kRandom, 16, 1);
+    MachineRates rates = *CalibrateRates(probe, options);
+    rates.slice_overhead_seconds = 0;
+    for (int n = 14; n <= 20; n += 2) {
+      const Query q = testing::MakeQuery(testing::GraphShape::kRandom, n, 7);
+      std::printf("| %s | %d |", shape == PlanShape::kBushy ? "bushy" : "left-deep", n);
+      for (uint32_t p = 1; p <= 16; p *= 2) {
+        const ExactForecast f = ForecastExact(q, options, static_cast<int>(p), rates, p);
+        const double measured = SlowestSlice(q, options, p);
+        std::printf(" %.2f |", f.seconds / measured);
+      }
+      std::printf("\n");
+      std::fflush(stdout);
+    }
+  }
+  return 0;
+}
