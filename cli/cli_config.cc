@@ -4,6 +4,7 @@
 #include <cmath>
 #include <cstdlib>
 
+#include "absl/functional/function_ref.h"
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_split.h"
 #include "core/pareto.h"
@@ -210,6 +211,34 @@ absl::Status SetFlag(OptimizeConfig& config, const std::string& flag, const std:
   return absl::OkStatus();
 }
 
+// The arguments of a command over one query file: the file, --flag=VALUE
+// pairs handed to `set_flag`, and bare flags `bare_flag` takes (it returns
+// true when it took one).
+absl::Status ParseQueryAndFlags(
+    const std::vector<std::string>& args, std::string& query_path,
+    absl::FunctionRef<absl::Status(const std::string&, const std::string&)> set_flag,
+    absl::FunctionRef<bool(const std::string&)> bare_flag) {
+  for (const std::string& arg : args) {
+    if (bare_flag(arg)) continue;
+    if (arg.rfind("--", 0) != 0) {
+      if (!query_path.empty()) {
+        return absl::InvalidArgumentError(
+            absl::StrCat("QUERY.json: a second query file \"", arg, "\" was given"));
+      }
+      query_path = arg;
+      continue;
+    }
+    const size_t eq = arg.find('=');
+    if (eq == std::string::npos) {
+      return absl::InvalidArgumentError(
+          absl::StrCat(arg, ": flags take a value, as in ", arg, "=VALUE"));
+    }
+    RETURN_IF_ERROR(set_flag(arg.substr(2, eq - 2), arg.substr(eq + 1)));
+  }
+  if (query_path.empty()) return absl::InvalidArgumentError("QUERY.json: no query file given");
+  return absl::OkStatus();
+}
+
 }  // namespace
 
 absl::StatusOr<uint64_t> ParseBytes(const std::string& text) {
@@ -232,29 +261,16 @@ absl::StatusOr<OptimizeConfig> ParseOptimizeArgs(const std::vector<std::string>&
                                                  int default_workers) {
   OptimizeConfig config;
   config.workers = default_workers;
-  for (const std::string& arg : args) {
-    if (arg == "--quiet") {
-      config.quiet = true;
-      continue;
-    }
-    if (arg.rfind("--", 0) != 0) {
-      if (!config.query_path.empty()) {
-        return absl::InvalidArgumentError(
-            absl::StrCat("QUERY.json: a second query file \"", arg, "\" was given"));
-      }
-      config.query_path = arg;
-      continue;
-    }
-    const size_t eq = arg.find('=');
-    if (eq == std::string::npos) {
-      return absl::InvalidArgumentError(
-          absl::StrCat(arg, ": flags take a value, as in ", arg, "=VALUE"));
-    }
-    RETURN_IF_ERROR(SetFlag(config, arg.substr(2, eq - 2), arg.substr(eq + 1)));
-  }
-  if (config.query_path.empty()) {
-    return absl::InvalidArgumentError("QUERY.json: no query file given");
-  }
+  RETURN_IF_ERROR(ParseQueryAndFlags(
+      args, config.query_path,
+      [&](const std::string& flag, const std::string& value) {
+        return SetFlag(config, flag, value);
+      },
+      [&](const std::string& arg) {
+        if (arg != "--quiet") return false;
+        config.quiet = true;
+        return true;
+      }));
   if ((config.tls.any() || !config.token_file.empty()) && !config.coordinator) {
     return absl::InvalidArgumentError(
         "--tls-ca, --tls-cert, --tls-key and --token-file: need --coordinator");
@@ -264,25 +280,12 @@ absl::StatusOr<OptimizeConfig> ParseOptimizeArgs(const std::vector<std::string>&
 
 absl::StatusOr<CapacityConfig> ParseCapacityArgs(const std::vector<std::string>& args) {
   CapacityConfig config;
-  for (const std::string& arg : args) {
-    if (arg.rfind("--", 0) != 0) {
-      if (!config.query_path.empty()) {
-        return absl::InvalidArgumentError(
-            absl::StrCat("QUERY.json: a second query file \"", arg, "\" was given"));
-      }
-      config.query_path = arg;
-      continue;
-    }
-    const size_t eq = arg.find('=');
-    if (eq == std::string::npos) {
-      return absl::InvalidArgumentError(
-          absl::StrCat(arg, ": flags take a value, as in ", arg, "=VALUE"));
-    }
-    RETURN_IF_ERROR(SetCapacityFlag(config, arg.substr(2, eq - 2), arg.substr(eq + 1)));
-  }
-  if (config.query_path.empty()) {
-    return absl::InvalidArgumentError("QUERY.json: no query file given");
-  }
+  RETURN_IF_ERROR(ParseQueryAndFlags(
+      args, config.query_path,
+      [&](const std::string& flag, const std::string& value) {
+        return SetCapacityFlag(config, flag, value);
+      },
+      [](const std::string&) { return false; }));
   if (!(config.deadline_seconds > 0)) {
     return absl::InvalidArgumentError("--deadline-seconds=S: missing (the time to plan for)");
   }
