@@ -9,7 +9,7 @@
 namespace sliceplan::cli {
 namespace {
 
-std::string Fmt(double v) { return absl::StrFormat("%.3g", v); }
+std::string Fmt(double v) { return absl::StrFormat("%.4g", v); }
 
 }  // namespace
 
