@@ -36,6 +36,21 @@ absl::StatusOr<double> ParseDouble(const std::string& flag, const std::string& v
   return d;
 }
 
+absl::StatusOr<bool> ParseBool(const std::string& flag, const std::string& value) {
+  if (value == "true") return true;
+  if (value == "false") return false;
+  return BadFlag(flag, value, "true or false");
+}
+
+// A count in 1..most (workers, threads).
+absl::StatusOr<int> ParseCount(const std::string& flag, const std::string& value, int most) {
+  ASSIGN_OR_RETURN(const uint64_t n, ParseUnsigned(flag, value));
+  if (n == 0 || n > static_cast<uint64_t>(most)) {
+    return BadFlag(flag, value, absl::StrCat("a number in 1..", most));
+  }
+  return static_cast<int>(n);
+}
+
 // The connection flags shared by `optimize --coordinator` and `workers`.
 // REQUIRES: flag is one of tls-ca, tls-cert, tls-key, token-file.
 void SetConnectionFlag(const std::string& flag, const std::string& value, TlsFiles& tls,
@@ -58,12 +73,7 @@ absl::Status SetSearchSpaceFlag(SearchOptions& search, const std::string& flag,
     else
       return BadFlag(flag, value, "bushy or left-deep");
   } else if (flag == "cross-products") {
-    if (value == "true")
-      search.cross_products = true;
-    else if (value == "false")
-      search.cross_products = false;
-    else
-      return BadFlag(flag, value, "true or false");
+    ASSIGN_OR_RETURN(search.cross_products, ParseBool(flag, value));
   } else {
     auto bytes = ParseBytes(value);
     if (!bytes.ok()) return BadFlag(flag, value, "bytes, e.g. 512MiB or 8GiB");
@@ -89,9 +99,7 @@ absl::Status SetCapacityFlag(CapacityConfig& config, const std::string& flag,
   } else if (flag == "deadline-seconds") {
     ASSIGN_OR_RETURN(config.deadline_seconds, ParsePositiveSeconds(flag, value, 1e6));
   } else if (flag == "threads-per-worker") {
-    ASSIGN_OR_RETURN(const uint64_t t, ParseUnsigned(flag, value));
-    if (t == 0 || t > 1024) return BadFlag(flag, value, "a number in 1..1024");
-    config.threads_per_worker = static_cast<int>(t);
+    ASSIGN_OR_RETURN(config.threads_per_worker, ParseCount(flag, value, 1024));
   } else if (flag == "format") {
     if (value == "text")
       config.json = false;
@@ -168,9 +176,7 @@ absl::Status SetFlag(OptimizeConfig& config, const std::string& flag, const std:
     if (p > (uint64_t{1} << 31)) return BadFlag(flag, value, "at most 2^31 slices");
     config.slices = static_cast<uint32_t>(p);
   } else if (flag == "workers") {
-    ASSIGN_OR_RETURN(const uint64_t w, ParseUnsigned(flag, value));
-    if (w == 0 || w > 1024) return BadFlag(flag, value, "a number in 1..1024");
-    config.workers = static_cast<int>(w);
+    ASSIGN_OR_RETURN(config.workers, ParseCount(flag, value, 1024));
   } else if (flag == "coordinator") {
     if (value.empty()) return BadFlag(flag, value, "HOST:PORT");
     config.coordinator = value;
@@ -192,16 +198,9 @@ absl::Status SetFlag(OptimizeConfig& config, const std::string& flag, const std:
     if (!tier) return BadFlag(flag, value, "auto, exact, idp, linear or greedy");
     config.tier = *tier;
   } else if (flag == "budget-seconds") {
-    const auto d = ParseDouble(flag, value);
-    if (!d.ok() || !(*d > 0) || *d > 3600) return BadFlag(flag, value, "seconds in (0, 3600]");
-    config.budget_seconds = *d;
+    ASSIGN_OR_RETURN(config.budget_seconds, ParsePositiveSeconds(flag, value, 3600));
   } else if (flag == "partial-on-deadline") {
-    if (value == "true")
-      config.partial_on_deadline = true;
-    else if (value == "false")
-      config.partial_on_deadline = false;
-    else
-      return BadFlag(flag, value, "true or false");
+    ASSIGN_OR_RETURN(config.partial_on_deadline, ParseBool(flag, value));
   } else if (flag == "tls-ca" || flag == "tls-cert" || flag == "tls-key" || flag == "token-file") {
     if (value.empty()) return BadFlag(flag, value, "a file name");
     SetConnectionFlag(flag, value, config.tls, config.token_file);
