@@ -13,7 +13,6 @@ namespace sliceplan {
 
 ExactWork MeasureExactWork(const Query& query, const SearchOptions& options) {
   ExactWork work;
-  work.cross_products = options.cross_products;
   if (options.cross_products) return work;
   const ConnectedSetCount count = EstimateConnectedSets(query);
   work.connected_sets = count.sets;
@@ -30,7 +29,7 @@ ExactForecast ForecastExact(const Query& query, const SearchOptions& options, co
                             int slots, const MachineRates& rates, uint32_t slices) {
   ExactForecast out;
   slots = std::max(1, slots);
-  out.slices = slices != 0 ? slices : ChooseSliceCount(query, options, slots);
+  out.slices = slices != 0 ? slices : ChooseSliceCount(query, options, slots, work.connected_sets);
   const int k = std::countr_zero(out.slices);
   const double rounds = std::ceil(static_cast<double>(out.slices) / slots);
   const int n = query.size();

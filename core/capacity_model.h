@@ -37,7 +37,6 @@ struct MachineRates {
 // The size of the whole (unsliced) exact search, which does not depend on
 // the pool: computed once, then forecast for any number of slots.
 struct ExactWork {
-  bool cross_products = true;
   double connected_sets = 0;  // without cross products
   bool estimated = false;     // connected sets sampled, not counted
 };
@@ -56,7 +55,8 @@ struct ExactForecast {
 ExactForecast ForecastExact(const Query& query, const SearchOptions& options, int slots,
                             const MachineRates& rates = {}, uint32_t slices = 0);
 // The same from work measured once (MeasureExactWork of the same query
-// and options).
+// and options): no connected set is counted again, for the slice count
+// either.
 ExactForecast ForecastExact(const Query& query, const SearchOptions& options, const ExactWork& work,
                             int slots, const MachineRates& rates = {}, uint32_t slices = 0);
 

@@ -33,10 +33,16 @@ uint32_t ChooseDense(const Query& query, const SearchOptions& options, int worke
 
 uint32_t ChooseSliceCount(const Query& query, const SearchOptions& options, int workers) {
   if (options.cross_products) return ChooseDense(query, options, workers);
+  return ChooseSliceCount(query, options, workers,
+                          static_cast<double>(CountConnectedSets(query, kSmallSearchSets)));
+}
+
+uint32_t ChooseSliceCount(const Query& query, const SearchOptions& options, int workers,
+                          double connected_sets) {
+  if (options.cross_products) return ChooseDense(query, options, workers);
   // Connected sets only: small searches stay whole; large ones get one
   // slice per worker (the shrink per slice depends on the graph).
-  constexpr uint64_t kSmallSearchSets = 100000;
-  if (CountConnectedSets(query, kSmallSearchSets) < kSmallSearchSets) return 1;
+  if (connected_sets < static_cast<double>(kSmallSearchSets)) return 1;
   int k = 0;
   const int max_k = std::min(MaxSliceBits(query.size(), options.shape), kMaxPlannedSliceBits);
   while (k < max_k && (1 << k) < workers) ++k;

@@ -21,11 +21,18 @@ namespace sliceplan {
 // Below this many splits a search is not worth slicing (common practice:
 // thread start-up and merge costs are in the tens of microseconds).
 inline constexpr double kMinSplitsToSlice = 4e6;
+// Without cross products, searches with fewer connected sets than this
+// stay whole.
+inline constexpr uint64_t kSmallSearchSets = 100000;
 // The planner never proposes more slices than this.
 inline constexpr int kMaxPlannedSliceBits = 8;
 
 // REQUIRES: workers >= 1.
 uint32_t ChooseSliceCount(const Query& query, const SearchOptions& options, int workers);
+// The same with the query's connected-set count already known (counted, or
+// estimated when past kSmallSearchSets); unused with cross products.
+uint32_t ChooseSliceCount(const Query& query, const SearchOptions& options, int workers,
+                          double connected_sets);
 
 }  // namespace sliceplan
 
