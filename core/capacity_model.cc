@@ -5,6 +5,7 @@
 #include <cmath>
 
 #include "core/connected_set_estimate.h"
+#include "core/connected_strategy.h"
 #include "core/cout_policy.h"
 #include "core/search_estimate.h"
 #include "core/slice_planner.h"
@@ -41,9 +42,10 @@ ExactForecast ForecastExact(const Query& query, const SearchOptions& options, co
   } else {
     const double shrink = options.shape == PlanShape::kBushy ? 21.0 / 27.0 : 0.75;
     out.work_units = work.connected_sets * std::pow(shrink, k);
-    // The hash memo: about 40 bytes per connected set (common practice for
-    // an open-addressing table at half load).
-    out.memo_bytes = out.work_units * 40;
+    // The policy's entry and cached cardinality per set, in the memo the
+    // search would choose (direct or hashed, connected_strategy.h).
+    out.memo_bytes = ConnectedMemoBytes(
+        n, out.work_units, CoutPolicy::kBytesPerSlot + sizeof(double), options.memo_limit_bytes);
     out.estimated = work.estimated;
     unit_seconds = rates.connected_set_seconds;
   }

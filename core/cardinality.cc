@@ -27,6 +27,19 @@ Cardinality::Cardinality(const Query& query)
     below *= p.selectivity;
   }
   wide_range_ = !(above < kValueCeiling && below > kSmallest);
+  pairwise_ = !wide_range_;
+  for (const Predicate& p : predicates_) pairwise_ = pairwise_ && Size(p.relations) == 2;
+  if (!pairwise_) return;
+  partners_.assign(rows_.size(), 0);
+  pair_selectivity_.assign(rows_.size() * kMaxRelations, 1.0);
+  for (const Predicate& p : predicates_) {
+    const int u = std::countr_zero(p.relations);
+    const int v = 63 - std::countl_zero(p.relations);
+    partners_[u] |= RelSet{1} << v;
+    partners_[v] |= RelSet{1} << u;
+    pair_selectivity_[u * kMaxRelations + v] *= p.selectivity;
+    pair_selectivity_[v * kMaxRelations + u] *= p.selectivity;
+  }
 }
 
 double Cardinality::OfByProduct(RelSet x) const {

@@ -9,6 +9,7 @@
 #ifndef SLICEPLAN_CORE_CARDINALITY_H_
 #define SLICEPLAN_CORE_CARDINALITY_H_
 
+#include <bit>
 #include <vector>
 
 #include "core/query.h"
@@ -22,6 +23,25 @@ class Cardinality {
   // card(X), saturated. Cost: O(|X| + predicates). REQUIRES: X within the
   // query.
   double Of(RelSet x) const { return wide_range_ ? OfByLogs(x) : OfByProduct(x); }
+  // card(L u R) for disjoint L and R from their cardinalities: their
+  // product times the selectivity of each binary predicate between them.
+  // Cost O(|smaller side| + predicates between them), Of's value up to
+  // rounding. Falls back to Of on a query with a predicate over three or
+  // more relations or in the logarithmic range.
+  double OfJoin(RelSet left, double left_card, RelSet right, double right_card) const {
+    if (!pairwise_) return Of(left | right);
+    double card = left_card * right_card;
+    const bool left_smaller = Size(left) <= Size(right);
+    RelSet side = left_smaller ? left : right;
+    const RelSet other = left_smaller ? right : left;
+    for (; side != 0; side &= side - 1) {
+      const int u = std::countr_zero(side);
+      for (RelSet across = partners_[u] & other; across != 0; across &= across - 1) {
+        card *= pair_selectivity_[u * kMaxRelations + std::countr_zero(across)];
+      }
+    }
+    return card;
+  }
   // True when some predicate spans the join of L and R (not a cross product).
   bool Connects(RelSet left, RelSet right) const;
   double Rows(RelationId r) const { return rows_[r.value]; }
@@ -37,6 +57,10 @@ class Cardinality {
   std::vector<Predicate> predicates_;
   std::vector<double> log_selectivities_;
   bool wide_range_ = false;
+  // OfJoin's tables: every predicate binary and the product in range.
+  bool pairwise_ = false;
+  std::vector<RelSet> partners_;          // relation -> binary-predicate partners
+  std::vector<double> pair_selectivity_;  // [u * 64 + v]: their predicates' product
 };
 
 }  // namespace sliceplan

@@ -22,10 +22,10 @@ namespace sliceplan {
 
 // Runs the connected left-deep DP into `policy` and `memo` (both empty).
 // Errors as ConnectedBushy::Run.
-template <SearchPolicy Policy>
+template <SearchPolicy Policy, class Memo>
 absl::Status RunConnectedLeftDeep(int n, const JoinGraph& graph, const Cardinality& card,
-                                  const SliceConstraints& constraints, Policy& policy,
-                                  ConnectedMemo& memo, SearchControl& control, SearchStats& stats) {
+                                  const SliceConstraints& constraints, Policy& policy, Memo& memo,
+                                  SearchControl& control, SearchStats& stats) {
   std::vector<RelSet> level;
   const auto add = [&](RelSet s, Slot& slot) {
     auto found = AddConnectedSet(memo, policy, s);

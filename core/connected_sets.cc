@@ -67,4 +67,12 @@ uint64_t CountConnectedSets(const Query& query, uint64_t cap) {
   return count;
 }
 
+void MarkConnectedSets(const Query& query, DirectMemo& memo) {
+  bool added = false;
+  EnumerateConnectedSets(query, [&](RelSet s) {
+    memo.Insert(s, added);
+    return true;
+  });
+}
+
 }  // namespace sliceplan

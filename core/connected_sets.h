@@ -8,6 +8,7 @@
 #include <cstdint>
 #include <vector>
 
+#include "core/direct_memo.h"
 #include "core/query.h"
 
 namespace sliceplan {
@@ -19,6 +20,10 @@ std::vector<RelSet> ConnectedSets(const Query& query, uint64_t cap);
 // The number of connected sets, counted up to `cap` (the count stops
 // there), with no list kept: memory O(n) whatever the cap.
 uint64_t CountConnectedSets(const Query& query, uint64_t cap);
+
+// Adds every connected set to `memo`. REQUIRES: memo over query.size()
+// relations.
+void MarkConnectedSets(const Query& query, DirectMemo& memo);
 
 }  // namespace sliceplan
 

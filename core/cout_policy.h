@@ -2,7 +2,7 @@
 //   C_out(leaf) = 0;  C_out(L join R) = card(L u R) + C_out(L) + C_out(R).
 // One metric, symmetric in L and R, so enumerators offer each unordered
 // split once. Memo: 8 bytes of cost and 4 of best left operand per slot
-// (plus 8 of cardinality in scattered mode). Single-threaded.
+// (24 of cost, cardinality and best left in one entry in scattered mode). Single-threaded.
 #ifndef SLICEPLAN_CORE_COUT_POLICY_H_
 #define SLICEPLAN_CORE_COUT_POLICY_H_
 
@@ -11,6 +11,7 @@
 
 #include "core/cardinality.h"
 #include "core/dense_layout.h"
+#include "core/memo_allocator.h"
 #include "core/search_policy.h"
 #include "core/value_range.h"
 
@@ -37,7 +38,19 @@ class CoutPolicy {
   // `card` must outlive the policy and use the enumerator's numbering.
   explicit CoutPolicy(const Cardinality& card) : card_(card) {}
 
+  // Called before Resize by a search that relaxes sets in scattered order
+  // (connected pairs): each set's cost, cardinality and best split then
+  // share one entry, so relaxing a pair touches one line of the result's
+  // memo instead of three arrays.
+  void UseScatteredLayout() { scattered_ = true; }
+
   void Resize(size_t slots) {
+    if (scattered_) {
+      cost_.resize(slots);
+      left_.resize(slots);
+      set_card_.resize(slots);
+      return;
+    }
     cost_.resize(slots, kInf);
     left_.resize(slots, kNoSlot);
   }
@@ -71,9 +84,13 @@ class CoutPolicy {
     cost_[s] = Saturate(cost_[s]);
   }
 
-  void InitSet(Slot s, RelSet set) {
-    if (set_card_.size() <= s) set_card_.resize(cost_.size());
-    set_card_[s] = card_.Of(set);
+  // Scattered mode only (UseScatteredLayout before Resize); every entry is
+  // initialised by one of these before it is read.
+  void InitSet(Slot s, RelSet set) { Init(s, card_.Of(set)); }
+  // The entry of a set first met as the join of two known sets (their
+  // cardinalities combine in O(|smaller side|), cardinality.h).
+  void InitJoin(Slot s, Slot left, RelSet left_set, Slot right, RelSet right_set) {
+    Init(s, card_.OfJoin(left_set, set_card_[left], right_set, set_card_[right]));
   }
   void Relax(Slot s, Slot left, Slot right) {
     const double v = CoutJoin(set_card_[s], cost_[left], cost_[right]);
@@ -84,16 +101,32 @@ class CoutPolicy {
     if (v < cost_[s]) cost_[s] = v, left_[s] = left;
   }
 
+  // A hint that Relax will soon touch slot s as a join's result and slot
+  // `operand` as an operand.
+  void Prefetch(Slot s, Slot operand) const {
+    __builtin_prefetch(&cost_[s], 1);
+    __builtin_prefetch(&set_card_[s]);
+    __builtin_prefetch(&cost_[operand]);
+  }
+
   bool HasPlan(Slot s) const { return cost_[s] < kInf; }
   double Cost(Slot s) const { return cost_[s]; }
   // The slot of the best plan's left operand; kNoSlot for a leaf.
   Slot BestLeft(Slot s) const { return left_[s]; }
 
  private:
+  void Init(Slot s, double card) {
+    cost_[s] = kInf;
+    left_[s] = kNoSlot;
+    set_card_[s] = card;
+  }
+
   const Cardinality& card_;
-  std::vector<double> cost_;
-  std::vector<Slot> left_;
-  std::vector<double> set_card_;  // scattered mode only
+  bool scattered_ = false;
+  // Scattered mode leaves entries uninitialised until InitSet or InitJoin.
+  std::vector<double, MemoAllocator<double>> cost_;
+  std::vector<Slot, MemoAllocator<Slot>> left_;
+  std::vector<double, MemoAllocator<double>> set_card_;  // scattered mode
 };
 
 static_assert(SearchPolicy<CoutPolicy>);

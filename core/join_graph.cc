@@ -14,10 +14,8 @@ JoinGraph::JoinGraph(const Query& query) : simple_(query.size(), 0), touching_(q
   }
 }
 
-RelSet JoinGraph::Neighbourhood(RelSet s, RelSet x) const {
+RelSet JoinGraph::HyperNeighbourhood(RelSet s, RelSet x) const {
   RelSet out = 0;
-  ForEachMember(s, [&](RelationId r) { out |= simple_[r.value]; });
-  out &= ~(s | x);
   for (RelSet p : hyper_) {
     const RelSet outside = p & ~s;
     if ((p & s) != 0 && outside != 0 && (outside & x) == 0) {

@@ -9,6 +9,7 @@
 #include <cmath>
 #include <optional>
 #include <span>
+#include <type_traits>
 
 #include "absl/status/status.h"
 #include "absl/strings/str_cat.h"
@@ -18,6 +19,8 @@
 #include "core/connected_bushy.h"
 #include "core/connected_left_deep.h"
 #include "core/connected_memo.h"
+#include "core/connected_strategy.h"
+#include "core/connected_subsets.h"
 #include "core/count_policy.h"
 #include "core/cout_policy.h"
 #include "core/dense_bushy.h"
@@ -62,8 +65,7 @@ class SliceSearch {
         layout_(MakeLayout(query)),
         working_(layout_ ? query.Permuted(layout_->perm()) : query),
         card_(working_),
-        policy_(MakePolicy<Policy>(working_, card_, options_)),
-        memo_(options.memo_limit_bytes / kConnectedBytesPerSlot) {}
+        policy_(MakePolicy<Policy>(working_, card_, options_)) {}
 
   absl::Status Run(const SearchControl& outer) {
     const auto start = std::chrono::steady_clock::now();
@@ -96,7 +98,8 @@ class SliceSearch {
       if (!policy_.HasPlan(slot)) return std::nullopt;
       return slot;
     }
-    const auto slot = memo_.Find(all);
+    if (!memo_) return std::nullopt;
+    const auto slot = memo_->Find(all);
     if (!slot || !policy_.HasPlan(*slot)) return std::nullopt;
     return slot;
   }
@@ -135,12 +138,19 @@ class SliceSearch {
     return layout_->inverse_perm();
   }
 
-  Slot SlotOf(RelSet set) const { return layout_ ? layout_->SlotOf(set) : *memo_.Find(set); }
-  RelSet SetOf(Slot slot) const { return layout_ ? layout_->SetOf(slot) : memo_.SetOf(slot); }
+  Slot SlotOf(RelSet set) const { return layout_ ? layout_->SlotOf(set) : *memo_->Find(set); }
+  RelSet SetOf(Slot slot) const { return layout_ ? layout_->SetOf(slot) : memo_->SetOf(slot); }
+  // How the connected-only search ran (unset with cross products).
+  std::optional<ConnectedMethod> connected_method() const { return method_; }
+  // Tests: run the connected-only search with `method` where the limits
+  // allow it (ChooseConnectedStrategy). Call before Run.
+  void want_connected_method(ConnectedMethod method) { wanted_ = method; }
 
  private:
-  static constexpr size_t kConnectedBytesPerSlot =
-      Policy::kBytesPerSlot + ConnectedMemo::kOverheadBytesPerSlot + sizeof(double);
+  // Policy bytes per set of a connected-sets memo (the policy's own and a
+  // cached cardinality for scattered relaxation).
+  static constexpr size_t kPolicyBytesPerSet = Policy::kBytesPerSlot + sizeof(double);
+  static constexpr size_t kHashBytesPerSet = kPolicyBytesPerSet + HashMemo::kBytesPerSet;
 
   std::optional<DenseLayout> MakeLayout(const Query& query) const {
     if (!options_.cross_products) return std::nullopt;
@@ -160,23 +170,52 @@ class SliceSearch {
 
   absl::Status RunConnected(SearchControl& control) {
     const JoinGraph graph(working_);
+    ConnectedStrategy strategy = ChooseConnectedStrategy(
+        working_, graph, options_.shape, kPolicyBytesPerSet, options_.memo_limit_bytes, wanted_);
+    method_ = strategy.method;
     absl::Status status;
-    if (options_.shape == PlanShape::kBushy) {
-      status = ConnectedBushy<Policy>(working_.size(), graph, card_, constraints_, policy_, memo_,
-                                      control, stats_)
-                   .Run();
+    if (strategy.method == ConnectedMethod::kHashPairs) {
+      memo_.emplace(HashMemo(options_.memo_limit_bytes / kHashBytesPerSet));
     } else {
-      status = RunConnectedLeftDeep(working_.size(), graph, card_, constraints_, policy_, memo_,
-                                    control, stats_);
+      memo_.emplace(strategy.connected ? std::move(*strategy.connected)
+                                       : DirectMemo(working_.size()));
     }
-    stats_.subsets = memo_.size();
-    stats_.memo_bytes = memo_.size() * kConnectedBytesPerSlot;
+    constexpr bool kHasLayouts = requires(Policy & p) { p.UseScatteredLayout(); };
+    if constexpr (kHasLayouts) {
+      if (strategy.method != ConnectedMethod::kDirectSubsets) policy_.UseScatteredLayout();
+    }
+    memo_->Visit([&]<class Memo>(Memo& memo) {
+      if constexpr (!Memo::kGrows) policy_.Resize(memo.slot_count());
+      if constexpr (std::is_same_v<Memo, DirectMemo>) {
+        if (strategy.method == ConnectedMethod::kDirectSubsets) {
+          status = RunConnectedSubsets(constraints_, policy_, memo, control, stats_);
+          return;
+        }
+      }
+      status = RunPairs(graph, memo, control);
+    });
+    stats_.subsets = memo_->size();
+    stats_.memo_bytes =
+        memo_->direct()
+            ? static_cast<uint64_t>(DirectMemoBytes(working_.size(), kPolicyBytesPerSet))
+            : memo_->size() * kHashBytesPerSet;
     if (absl::IsResourceExhausted(status)) {
-      return absl::ResourceExhaustedError(
-          absl::StrCat(status.message(), " (memo limit ", options_.memo_limit_bytes, " bytes at ",
-                       kConnectedBytesPerSlot, " bytes per entry)"));
+      return absl::ResourceExhaustedError(absl::StrCat(status.message(), " (memo limit ",
+                                                       options_.memo_limit_bytes, " bytes at ",
+                                                       kHashBytesPerSet, " bytes per entry)"));
     }
     return status;
+  }
+
+  template <class Memo>
+  absl::Status RunPairs(const JoinGraph& graph, Memo& memo, SearchControl& control) {
+    if (options_.shape == PlanShape::kBushy) {
+      return ConnectedBushy<Policy, Memo>(working_.size(), graph, card_, constraints_, policy_,
+                                          memo, control, stats_)
+          .Run();
+    }
+    return RunConnectedLeftDeep(working_.size(), graph, card_, constraints_, policy_, memo, control,
+                                stats_);
   }
 
   SearchOptions options_;
@@ -185,7 +224,9 @@ class SliceSearch {
   Query working_;  // renumbered for the dense layout, else the query itself
   Cardinality card_;
   Policy policy_;
-  ConnectedMemo memo_;
+  std::optional<ConnectedMemo> memo_;  // set by a connected-only run
+  std::optional<ConnectedMethod> method_;
+  std::optional<ConnectedMethod> wanted_;
   SearchStats stats_;
 };
 

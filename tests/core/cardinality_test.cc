@@ -34,5 +34,33 @@ TEST(CardinalityTest, ConnectsOnlyThroughAPredicateSpanningBothSides) {
   EXPECT_TRUE(card.Connects(kShifts, kBerths | kCranes));
 }
 
+TEST(CardinalityTest, OfJoinCombinesTheSidesAndThePredicatesBetweenThem) {
+  // berths 120, cranes 40, shifts 300; berths-cranes 0.05 twice (both
+  // apply), cranes-shifts 0.1.
+  const Query q = testing::MakeQueryOrDie(
+      {{"berths", 120}, {"cranes", 40}, {"shifts", 300}},
+      {{kBerths | kCranes, 0.05}, {kBerths | kCranes, 0.5}, {kCranes | kShifts, 0.1}});
+  const Cardinality card(q);
+  EXPECT_DOUBLE_EQ(card.OfJoin(kBerths, 120, kCranes, 40), 120.0 * 40 * 0.05 * 0.5);
+  EXPECT_DOUBLE_EQ(card.OfJoin(kBerths | kCranes, 120.0, kShifts, 300),
+                   120.0 * 300 * 0.1);  // the left side's card is taken as given
+  EXPECT_DOUBLE_EQ(card.OfJoin(kBerths, 120, kShifts, 300), 120.0 * 300);
+}
+
+TEST(CardinalityTest, OfJoinEqualsOfOnEverySplitOfRandomQueries) {
+  for (testing::GraphShape shape :
+       {testing::GraphShape::kRandom, testing::GraphShape::kClique, testing::GraphShape::kHyper}) {
+    const Query q = testing::MakeQuery(shape, 10, 7);
+    const Cardinality card(q);
+    for (RelSet set = 1; set < (RelSet{1} << 10); set += 37) {
+      for (RelSet left = (set - 1) & set; left != 0; left = (left - 1) & set) {
+        const RelSet right = set ^ left;
+        const double got = card.OfJoin(left, card.Of(left), right, card.Of(right));
+        EXPECT_NEAR(got, card.Of(set), 1e-12 * card.Of(set)) << set << " " << left;
+      }
+    }
+  }
+}
+
 }  // namespace
 }  // namespace sliceplan

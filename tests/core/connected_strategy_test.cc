@@ -1,0 +1,186 @@
+// The connected-only search's three methods (connected_strategy.h): the
+// choice rules, the sampled hit rate against closed forms, and identical
+// answers from every method (cost, plan count, splits, memo sets) for every
+// graph shape, both plan shapes and several slice counts, against the
+// subset-DP reference.
+#include "core/connected_strategy.h"
+
+#include <cmath>
+#include <string>
+
+#include "core/connected_sets.h"
+#include "core/slice_search.h"
+#include "gtest/gtest.h"
+#include "tests/support/reference_dp.h"
+#include "tests/support/test_queries.h"
+
+namespace sliceplan {
+namespace {
+
+using testing::GraphShape;
+
+constexpr uint64_t kLimit = uint64_t{1} << 30;
+constexpr uint64_t kBytes = 20;
+
+ConnectedStrategy Choose(const Query& q, PlanShape shape, uint64_t limit = kLimit) {
+  return ChooseConnectedStrategy(q, JoinGraph(q), shape, kBytes, limit);
+}
+
+DirectMemo Connected(const Query& q) {
+  DirectMemo memo(q.size());
+  MarkConnectedSets(q, memo);
+  return memo;
+}
+
+TEST(SubsetHitRateTest, CliqueSplitsAreAllPairs) {
+  EXPECT_EQ(SubsetHitRate(Connected(testing::MakeQuery(GraphShape::kClique, 12, 1)), 4096), 1.0);
+}
+
+TEST(SubsetHitRateTest, StarMatchesClosedForm) {
+  // A star of n: (n-1) 2^(n-2) csg-cmp pairs; the hub with m of the n-1
+  // leaves has 2^m - 1 tested splits, in all 3^(n-1) - 2^(n-1).
+  for (int n : {8, 10, 14}) {
+    const double pairs = (n - 1) * std::ldexp(1.0, n - 2);
+    const double tested = std::pow(3.0, n - 1) - std::ldexp(1.0, n - 1);
+    const double rate = SubsetHitRate(Connected(testing::MakeQuery(GraphShape::kStar, n, 1)), 4096);
+    EXPECT_NEAR(rate, pairs / tested, 0.02) << "n=" << n;
+  }
+}
+
+TEST(SubsetHitRateTest, ChainMatchesClosedForm) {
+  // A chain of n: the interval of length L has L - 1 pairs among 2^(L-1) - 1
+  // tested splits, n - L + 1 such intervals.
+  const int n = 14;
+  double pairs = 0, tested = 0;
+  for (int len = 2; len <= n; ++len) {
+    pairs += (n - len + 1) * (len - 1);
+    tested += (n - len + 1) * (std::ldexp(1.0, len - 1) - 1);
+  }
+  const double rate = SubsetHitRate(Connected(testing::MakeQuery(GraphShape::kChain, n, 1)), 4096);
+  EXPECT_NEAR(rate, pairs / tested, 0.01);
+}
+
+TEST(SubsetHitRateTest, NoJoinSetIsZero) {
+  EXPECT_EQ(SubsetHitRate(Connected(testing::MakeQuery(GraphShape::kChain, 1, 1)), 4096), 0.0);
+}
+
+TEST(ChooseConnectedStrategyTest, FollowsDensityHitRateAndLimits) {
+  // A 20-chain has 210 connected sets of 2^20: hashed.
+  EXPECT_EQ(Choose(testing::MakeQuery(GraphShape::kChain, 20, 1), PlanShape::kBushy).method,
+            ConnectedMethod::kHashPairs);
+  // A clique: every split is a pair.
+  const ConnectedStrategy clique =
+      Choose(testing::MakeQuery(GraphShape::kClique, 12, 1), PlanShape::kBushy);
+  EXPECT_EQ(clique.method, ConnectedMethod::kDirectSubsets);
+  EXPECT_EQ(clique.hit_rate, 1.0);
+  ASSERT_TRUE(clique.connected.has_value());
+  EXPECT_EQ(clique.connected->size(), (1u << 12) - 1);
+  // A star: half its sets connected, one split in about 40 a pair (n = 12).
+  const ConnectedStrategy star =
+      Choose(testing::MakeQuery(GraphShape::kStar, 12, 1), PlanShape::kBushy);
+  EXPECT_EQ(star.method, ConnectedMethod::kDirectPairs);
+  EXPECT_LT(star.hit_rate, kSubsetsMinHitRate);
+  // Left-deep plans and hyperedges always pair.
+  EXPECT_EQ(Choose(testing::MakeQuery(GraphShape::kClique, 12, 1), PlanShape::kLeftDeep).method,
+            ConnectedMethod::kDirectPairs);
+  // 2^12 sets of 20 bytes and the bits: over 80 KiB is hashed.
+  EXPECT_EQ(
+      Choose(testing::MakeQuery(GraphShape::kClique, 12, 1), PlanShape::kBushy, 80 << 10).method,
+      ConnectedMethod::kHashPairs);
+  EXPECT_EQ(DirectMemoBytes(12, kBytes), 4096.0 * 20 + 512);
+}
+
+TEST(ChooseConnectedStrategyTest, HyperedgesNeverTakeSubsets) {
+  const Query q = testing::MakeQuery(GraphShape::kHyper, 10, 1);
+  const ConnectedStrategy s = ChooseConnectedStrategy(q, JoinGraph(q), PlanShape::kBushy, kBytes,
+                                                      kLimit, ConnectedMethod::kDirectSubsets);
+  EXPECT_EQ(s.method, ConnectedMethod::kDirectPairs);
+}
+
+struct Answer {
+  double cost = 0;
+  uint64_t plans = 0, splits = 0, sets = 0;
+  ConnectedMethod method{};
+};
+
+template <class Policy>
+SliceSearch<Policy> Search(const Query& q, PlanShape shape, SliceSpec slice,
+                           ConnectedMethod method) {
+  auto constraints = SliceConstraints::ForSlice(q, shape, slice, false);
+  EXPECT_TRUE(constraints.ok()) << constraints.status();
+  SliceSearch<Policy> search(q, {shape, false, CostModelKind::kCout}, *std::move(constraints));
+  search.want_connected_method(method);
+  return search;
+}
+
+Answer Solve(const Query& q, PlanShape shape, SliceSpec slice, ConnectedMethod method) {
+  Answer a;
+  SearchControl control;
+  auto cout = Search<CoutPolicy>(q, shape, slice, method);
+  EXPECT_TRUE(cout.Run(control).ok());
+  if (const auto root = cout.RootSlot()) a.cost = cout.policy().Cost(*root);
+  a.splits = cout.stats().splits;
+  a.sets = cout.stats().subsets;
+  a.method = *cout.connected_method();
+  auto count = Search<CountPolicy>(q, shape, slice, method);
+  EXPECT_TRUE(count.Run(control).ok());
+  if (const auto root = count.RootSlot()) a.plans = count.policy().Count(*root);
+  // Bushy counting offers both orders of each pair; a left-deep step has one.
+  EXPECT_EQ(count.stats().splits, (shape == PlanShape::kBushy ? 2 : 1) * a.splits);
+  return a;
+}
+
+void ExpectSame(const Answer& want, const Answer& got) {
+  EXPECT_LE(std::fabs(got.cost - want.cost), 1e-9 * want.cost);
+  EXPECT_EQ(got.plans, want.plans);
+  EXPECT_EQ(got.splits, want.splits);
+  EXPECT_EQ(got.sets, want.sets);
+}
+
+TEST(ConnectedMethodsTest, EveryMethodGivesTheSameAnswerInEverySlice) {
+  for (GraphShape graph : {GraphShape::kChain, GraphShape::kCycle, GraphShape::kStar,
+                           GraphShape::kClique, GraphShape::kRandom, GraphShape::kHyper}) {
+    for (int n : {5, 9, 12}) {
+      const Query q = testing::MakeQuery(graph, n, 3);
+      for (PlanShape shape : {PlanShape::kBushy, PlanShape::kLeftDeep}) {
+        const bool subsets_run = shape == PlanShape::kBushy && graph != GraphShape::kHyper;
+        const double want = shape == PlanShape::kBushy ? testing::DpBestBushy(q, false)
+                                                       : testing::DpBestLeftDeep(q, false);
+        const uint64_t all_plans = Solve(q, shape, {0, 1}, ConnectedMethod::kHashPairs).plans;
+        for (uint32_t p : {1u, 2u, 4u}) {
+          if (std::countr_zero(p) > MaxSliceBits(n, shape)) continue;
+          SCOPED_TRACE(testing::ShapeName(graph) + " n=" + std::to_string(n) +
+                       (shape == PlanShape::kBushy ? " bushy" : " left-deep") +
+                       " P=" + std::to_string(p));
+          double best = INFINITY;
+          uint64_t plans = 0;
+          for (uint32_t i = 0; i < p; ++i) {
+            const Answer hashed = Solve(q, shape, {i, p}, ConnectedMethod::kHashPairs);
+            const Answer direct = Solve(q, shape, {i, p}, ConnectedMethod::kDirectPairs);
+            const Answer subsets = Solve(q, shape, {i, p}, ConnectedMethod::kDirectSubsets);
+            EXPECT_EQ(hashed.method, ConnectedMethod::kHashPairs);
+            EXPECT_EQ(direct.method, ConnectedMethod::kDirectPairs);
+            EXPECT_EQ(subsets.method, subsets_run ? ConnectedMethod::kDirectSubsets
+                                                  : ConnectedMethod::kDirectPairs);
+            ExpectSame(hashed, direct);
+            ExpectSame(hashed, subsets);
+            if (hashed.plans > 0) best = std::min(best, hashed.cost);
+            plans += hashed.plans;
+          }
+          // The slices cover every plan (left-deep slices are disjoint; bushy
+          // ones share the trees where a triple's two relations arrive
+          // together, docs/slicing.md), and the best of them is the optimum.
+          if (shape == PlanShape::kLeftDeep) {
+            EXPECT_EQ(plans, all_plans);
+          } else {
+            EXPECT_GE(plans, all_plans);
+          }
+          EXPECT_LE(std::fabs(best - want), 1e-9 * want);
+        }
+      }
+    }
+  }
+}
+
+}  // namespace
+}  // namespace sliceplan
