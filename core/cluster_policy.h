@@ -47,6 +47,9 @@ struct ClusterEntry {
 class ClusterPolicy {
  public:
   static constexpr bool kSymmetric = true;
+  // Dense enumeration may run on several threads at once (Begin and Finish share one scratch
+  // frontier).
+  static constexpr bool kParallelDense = false;
   // Per slot: card, width, arena start and count, leaf flag (entries are
   // counted against the limit as they are made).
   static constexpr size_t kBytesPerSlot = 3 * sizeof(double) + sizeof(uint32_t) + 1;

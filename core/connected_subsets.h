@@ -15,6 +15,7 @@
 
 #include "absl/status/status.h"
 #include "core/direct_memo.h"
+#include "core/level_threads.h"
 #include "core/search_control.h"
 #include "core/search_policy.h"
 #include "core/search_stats.h"
@@ -22,18 +23,18 @@
 
 namespace sliceplan {
 
-// Runs the search into `policy` (sized to memo.slot_count()). `memo` holds
-// exactly the connected sets on entry; on return it holds those with a plan
-// in this slice (inadmissible sets and sets with no admissible split are
-// taken out as they are met). Errors: CANCELLED / DEADLINE_EXCEEDED.
+namespace connected_subsets_internal {
+
+// Solves the sets of memo words [first, last) in increasing order, adding
+// their splits to `splits`. False once `control` stopped.
 template <SearchPolicy Policy>
-absl::Status RunConnectedSubsets(const SliceConstraints& constraints, Policy& policy,
-                                 DirectMemo& memo, SearchControl& control, SearchStats& stats) {
+bool SolveWords(const SliceConstraints& constraints, Policy& policy, DirectMemo& memo,
+                SearchControl& control, uint64_t& splits, size_t first, size_t last) {
   // Splits tested between two looks at the control inside one large set.
   constexpr uint64_t kCheckEvery = uint64_t{1} << 20;
   const bool sliced = !constraints.constraints().empty();
   const std::vector<uint64_t>& words = memo.words();
-  for (size_t w = 0; w < words.size(); ++w) {
+  for (size_t w = first; w < last; ++w) {
     for (uint64_t bits = words[w]; bits != 0; bits &= bits - 1) {
       const RelSet set = (RelSet{w} << 6) | static_cast<RelSet>(std::countr_zero(bits));
       if (sliced && !constraints.Admissible(set)) {
@@ -60,7 +61,7 @@ absl::Status RunConnectedSubsets(const SliceConstraints& constraints, Policy& po
         }
         if (++tested == kCheckEvery) {
           tested = 0;
-          if (control.Tick(SearchControl::kTickWork)) return control.status();
+          if (control.Tick(SearchControl::kTickWork)) return false;
         }
       }
       if (pairs == 0) {
@@ -69,11 +70,51 @@ absl::Status RunConnectedSubsets(const SliceConstraints& constraints, Policy& po
       }
       policy.Finish(s, set, acc);
       const uint64_t work = Policy::kSymmetric ? pairs : 2 * pairs;
-      stats.splits += work;
-      if (control.Tick(work + 1)) return control.status();
+      splits += work;
+      if (control.Tick(work + 1)) return false;
     }
   }
-  return absl::OkStatus();
+  return true;
+}
+
+}  // namespace connected_subsets_internal
+
+// Runs the search into `policy` (sized to memo.slot_count()). `memo` holds
+// exactly the connected sets on entry; on return it holds those with a plan
+// in this slice (inadmissible sets and sets with no admissible split are
+// taken out as they are met). Errors: CANCELLED / DEADLINE_EXCEEDED.
+template <SearchPolicy Policy>
+absl::Status RunConnectedSubsets(const SliceConstraints& constraints, Policy& policy,
+                                 DirectMemo& memo, SearchControl& control, SearchStats& stats) {
+  const bool done = connected_subsets_internal::SolveWords(constraints, policy, memo, control,
+                                                           stats.splits, 0, memo.words().size());
+  return done ? absl::OkStatus() : control.status();
+}
+
+// The same on `threads` threads sharing the memo, as RunDenseBushyThreaded
+// does it: an item is the sets with one value of the top h relation bits
+// (whole 64-set words, so no two threads write one word), items of the
+// same prefix size run at once, each in mask order. REQUIRES: n >= 7, a
+// policy with kParallelDense.
+template <SearchPolicy Policy>
+absl::Status RunConnectedSubsetsThreaded(int n, const SliceConstraints& constraints, Policy& policy,
+                                         DirectMemo& memo, const SearchControl& control,
+                                         SearchStats& stats, int threads) {
+  static_assert(Policy::kParallelDense);
+  int h = 0;  // prefix bits per item
+  while (h < n - 6 && (uint64_t{1} << h) < 256 * static_cast<uint64_t>(threads)) ++h;
+  const int word_bits = n - h - 6;  // log2 of an item's words
+  std::vector<uint64_t> splits(threads, 0);
+  const auto status = RunLevels(
+      0, h, threads, control, [&](int) { return uint64_t{1} << h; },
+      [&](int level, uint64_t prefix, int t, SearchControl& ctl) {
+        if (Size(prefix) != level) return true;
+        return connected_subsets_internal::SolveWords(constraints, policy, memo, ctl, splits[t],
+                                                      prefix << word_bits,
+                                                      (prefix + 1) << word_bits);
+      });
+  for (uint64_t s : splits) stats.splits += s;
+  return status;
 }
 
 }  // namespace sliceplan

@@ -18,6 +18,9 @@ namespace sliceplan {
 class CountPolicy {
  public:
   static constexpr bool kSymmetric = false;
+  // Dense enumeration may run on several threads at once (Offer reads finished slots, Finish writes
+  // its own).
+  static constexpr bool kParallelDense = true;
   static constexpr size_t kBytesPerSlot = sizeof(uint64_t);
   using Acc = uint64_t;
 

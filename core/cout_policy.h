@@ -27,6 +27,9 @@ inline double CoutJoin(double card, double left_cost, double right_cost) {
 class CoutPolicy {
  public:
   static constexpr bool kSymmetric = true;
+  // Dense enumeration may run on several threads at once (Offer reads finished slots, Finish writes
+  // its own).
+  static constexpr bool kParallelDense = true;
   static constexpr size_t kBytesPerSlot = sizeof(double) + sizeof(Slot);
   static constexpr double kInf = std::numeric_limits<double>::infinity();
 

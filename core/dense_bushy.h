@@ -10,10 +10,12 @@
 #ifndef SLICEPLAN_CORE_DENSE_BUSHY_H_
 #define SLICEPLAN_CORE_DENSE_BUSHY_H_
 
+#include <algorithm>
 #include <vector>
 
 #include "absl/status/status.h"
 #include "core/dense_layout.h"
+#include "core/level_threads.h"
 #include "core/search_control.h"
 #include "core/search_policy.h"
 #include "core/search_stats.h"
@@ -101,6 +103,60 @@ template <SearchPolicy Policy>
   return a;
 }
 
+// A block's splits into block pairs: those with an empty high part, and
+// the slot bases of those with both high parts non-empty.
+struct BlockPairs {
+  std::vector<BlockSplit> splits;  // scratch
+  std::vector<BlockSplit> edge;
+  std::vector<std::pair<Slot, Slot>> inner;
+  int f = 0;
+
+  void Load(const DenseLayout& layout, uint64_t b, bool symmetric) {
+    f = layout.free_bits();
+    layout.BlockSplits(b, symmetric, splits);
+    edge.clear();
+    inner.clear();
+    for (const BlockSplit& bs : splits) {
+      if (bs.left == 0 || bs.right == 0) {
+        edge.push_back(bs);
+      } else {
+        inner.emplace_back(static_cast<Slot>(bs.left << f), static_cast<Slot>(bs.right << f));
+      }
+    }
+  }
+};
+
+// Solves the set (high | low) at slot base + low: a leaf is initialised,
+// a larger set gets every split of its block pairs. Returns the splits.
+template <SearchPolicy Policy>
+[[gnu::always_inline]] inline uint64_t SolveSet(Policy& policy, const BlockPairs& pairs, Slot base,
+                                                RelSet high, RelSet low) {
+  const Slot s = base + static_cast<Slot>(low);
+  const RelSet set = high | low;
+  if (Size(set) <= 1) {
+    if (set != 0) policy.InitLeaf(s, Lowest(set));
+    return 0;
+  }
+  const int f = pairs.f;
+  auto acc = policy.Begin(s, set);
+  uint64_t work = 0;
+  for (const BlockSplit& bs : pairs.edge) {
+    acc = OfferBlockPair(policy, acc, static_cast<Slot>(bs.left << f),
+                         static_cast<Slot>(bs.right << f), bs.left == 0, bs.right == 0, low, work);
+  }
+  const uint64_t subsets = uint64_t{1} << Size(low);
+  if (pairs.inner.size() > subsets) {
+    acc = OfferInnerPairsByLow(policy, acc, pairs.inner, low);
+    work += pairs.inner.size() * subsets;
+  } else {
+    for (const auto& [lb, rb] : pairs.inner) {
+      acc = OfferBlockPair(policy, acc, lb, rb, false, false, low, work);
+    }
+  }
+  policy.Finish(s, set, acc);
+  return work;
+}
+
 }  // namespace dense_bushy_internal
 
 // Runs the bushy DP over `layout` into `policy` (already Resize()d to
@@ -113,55 +169,78 @@ absl::Status RunDenseBushyNoFreeBits(const DenseLayout& layout, Policy& policy,
 template <SearchPolicy Policy>
 absl::Status RunDenseBushy(const DenseLayout& layout, Policy& policy, SearchControl& control,
                            SearchStats& stats) {
-  using dense_bushy_internal::OfferBlockPair;
+  using dense_bushy_internal::SolveSet;
   const int f = layout.free_bits();
   if (f == 0) return RunDenseBushyNoFreeBits(layout, policy, control, stats);
   const uint64_t low_sets = uint64_t{1} << f;
-  std::vector<BlockSplit> splits;
-  std::vector<BlockSplit> edge;              // a high part is empty
-  std::vector<std::pair<Slot, Slot>> inner;  // slot bases, both non-empty
+  dense_bushy_internal::BlockPairs pairs;
   for (uint64_t b = 0; b < layout.block_count(); ++b) {
-    layout.BlockSplits(b, Policy::kSymmetric, splits);
-    edge.clear();
-    inner.clear();
-    for (const BlockSplit& bs : splits) {
-      if (bs.left == 0 || bs.right == 0) {
-        edge.push_back(bs);
-      } else {
-        inner.emplace_back(static_cast<Slot>(bs.left << f), static_cast<Slot>(bs.right << f));
-      }
-    }
+    pairs.Load(layout, b, Policy::kSymmetric);
     const RelSet high = layout.BlockPattern(b) << f;
     const Slot base = static_cast<Slot>(b << f);
     for (RelSet low = 0; low < low_sets; ++low) {
-      const Slot s = base + static_cast<Slot>(low);
-      const RelSet set = high | low;
-      if (Size(set) <= 1) {
-        if (set != 0) policy.InitLeaf(s, Lowest(set));
-        continue;
-      }
-      auto acc = policy.Begin(s, set);
-      uint64_t work = 0;
-      for (const BlockSplit& bs : edge) {
-        acc = OfferBlockPair(policy, acc, static_cast<Slot>(bs.left << f),
-                             static_cast<Slot>(bs.right << f), bs.left == 0, bs.right == 0, low,
-                             work);
-      }
-      const uint64_t subsets = uint64_t{1} << Size(low);
-      if (inner.size() > subsets) {
-        acc = dense_bushy_internal::OfferInnerPairsByLow(policy, acc, inner, low);
-        work += inner.size() * subsets;
-      } else {
-        for (const auto& [lb, rb] : inner) {
-          acc = OfferBlockPair(policy, acc, lb, rb, false, false, low, work);
-        }
-      }
-      policy.Finish(s, set, acc);
+      const uint64_t work = SolveSet(policy, pairs, base, high, low);
       stats.splits += work;
       if (control.Tick(work + 1)) return control.status();
     }
   }
   return absl::OkStatus();
+}
+
+// The same search on `threads` threads sharing the memo. An item is one
+// block and one value c of the free relations' top h bits: its sets are
+// the block's slots with that prefix, solved in slot order as above. A
+// set's subsets lie in its own item (earlier in it) or in an item of a
+// sub-pattern and a sub-prefix, so items of the same size (pattern plus
+// prefix relations) are independent and run level by level
+// (level_threads.h) while each keeps the serial loop's memory order. h is
+// chosen for at least 256 items a thread; the largest item is then a small
+// share of the work ((2/3)^h unsliced). The policy must allow Offer/Finish
+// on different slots at once (kParallelDense). Same memo, splits and
+// optimum as RunDenseBushy.
+template <SearchPolicy Policy>
+absl::Status RunDenseBushyThreaded(const DenseLayout& layout, Policy& policy,
+                                   const SearchControl& control, SearchStats& stats, int threads) {
+  static_assert(Policy::kParallelDense);
+  using dense_bushy_internal::SolveSet;
+  const int f = layout.free_bits();
+  const uint64_t blocks = layout.block_count();
+  int h = 0;  // prefix bits per item
+  while (h < f && (blocks << h) < 256 * static_cast<uint64_t>(threads)) ++h;
+  const int g = f - h;  // bits walked inside an item
+  int top_level = h;
+  for (uint64_t b = 0; b < blocks; ++b) {
+    top_level = std::max(top_level, Size(layout.BlockPattern(b)) + h);
+  }
+  struct Local {
+    uint64_t block = ~uint64_t{0};
+    dense_bushy_internal::BlockPairs pairs;
+    uint64_t splits = 0;
+  };
+  std::vector<Local> locals(threads);
+  const auto status = RunLevels(
+      0, top_level, threads, control, [&](int) { return blocks << h; },
+      [&](int level, uint64_t item, int t, SearchControl& ctl) {
+        const uint64_t b = item >> h;
+        const RelSet prefix = item & ((uint64_t{1} << h) - 1);
+        if (Size(layout.BlockPattern(b)) + Size(prefix) != level) return true;
+        Local& local = locals[t];
+        if (local.block != b) {
+          local.pairs.Load(layout, b, Policy::kSymmetric);
+          local.block = b;
+        }
+        const RelSet high = layout.BlockPattern(b) << f;
+        const Slot base = static_cast<Slot>(b << f);
+        const RelSet first = prefix << g, end = (prefix + 1) << g;
+        for (RelSet low = first; low < end; ++low) {
+          const uint64_t work = SolveSet(policy, local.pairs, base, high, low);
+          local.splits += work;
+          if (ctl.Tick(work + 1)) return false;
+        }
+        return true;
+      });
+  for (const Local& local : locals) stats.splits += local.splits;
+  return status;
 }
 
 // With no free relations every block holds one set, so its block splits

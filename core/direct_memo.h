@@ -5,6 +5,7 @@
 #ifndef SLICEPLAN_CORE_DIRECT_MEMO_H_
 #define SLICEPLAN_CORE_DIRECT_MEMO_H_
 
+#include <bit>
 #include <cstdint>
 #include <optional>
 #include <vector>
@@ -36,20 +37,19 @@ class DirectMemo {
   // The slot of `s` (= s), adding it if new (`added` says which).
   Slot Insert(RelSet s, bool& added) {
     added = !Contains(s);
-    if (added) {
-      present_[s >> 6] |= uint64_t{1} << (s & 63);
-      ++size_;
-    }
+    present_[s >> 6] |= uint64_t{1} << (s & 63);
     return static_cast<Slot>(s);
   }
-  // Takes `s` out again (a set found to have no admissible split).
-  void Erase(RelSet s) {
-    if (!Contains(s)) return;
-    present_[s >> 6] &= ~(uint64_t{1} << (s & 63));
-    --size_;
-  }
+  // Takes `s` out again (a set found to have no admissible split). Threads
+  // may erase sets of different 64-set words at once.
+  void Erase(RelSet s) { present_[s >> 6] &= ~(uint64_t{1} << (s & 63)); }
   RelSet SetOf(Slot slot) const { return slot; }
-  size_t size() const { return size_; }
+  // The sets held, counted: O(2^n / 64).
+  size_t size() const {
+    size_t count = 0;
+    for (uint64_t w : present_) count += static_cast<size_t>(std::popcount(w));
+    return count;
+  }
   uint64_t slot_count() const { return uint64_t{1} << n_; }
   size_t bytes() const { return present_.size() * sizeof(uint64_t); }
   // The presence words, for callers that walk the sets in order.
@@ -58,7 +58,6 @@ class DirectMemo {
  private:
   int n_;
   std::vector<uint64_t> present_;
-  size_t size_ = 0;
 };
 
 }  // namespace sliceplan

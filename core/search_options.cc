@@ -18,6 +18,10 @@ std::string MetricName(CostModelKind model) {
 }
 
 absl::Status ValidateSearchOptions(const SearchOptions& options) {
+  if (options.threads < 1 || options.threads > kMaxSearchThreads) {
+    return absl::InvalidArgumentError(
+        absl::StrCat("threads: must be 1 to ", kMaxSearchThreads, ", got ", options.threads));
+  }
   if (options.cost != CostModelKind::kCluster) {
     if (options.cluster.alpha != 1) {
       return absl::InvalidArgumentError(

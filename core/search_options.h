@@ -31,6 +31,8 @@ enum class CostModelKind { kCout, kCluster };
 std::string MetricName(CostModelKind model);
 
 inline constexpr uint64_t kDefaultMemoLimitBytes = uint64_t{8} << 30;
+// The most threads one slice's search takes.
+inline constexpr int kMaxSearchThreads = 256;
 
 struct SearchOptions {
   PlanShape shape = PlanShape::kBushy;
@@ -38,10 +40,14 @@ struct SearchOptions {
   CostModelKind cost = CostModelKind::kCout;
   uint64_t memo_limit_bytes = kDefaultMemoLimitBytes;  // per slice
   ClusterSearchConfig cluster;                         // for CostModelKind::kCluster
+  // Threads solving one slice, sharing its memo: the solving process's own
+  // setting (a worker's --threads), never sent over the wire.
+  int threads = 1;
 };
 
 // INVALID_ARGUMENT naming the field for bad cluster parameters, alpha < 1,
-// or an alpha other than 1 with a model that has no Pareto search.
+// an alpha other than 1 with a model that has no Pareto search, or threads
+// outside [1, kMaxSearchThreads].
 absl::Status ValidateSearchOptions(const SearchOptions& options);
 
 // RESOURCE_EXHAUSTED naming the limit: more node counts or sample rates

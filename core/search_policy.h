@@ -10,6 +10,8 @@
 //   static constexpr bool kSymmetric;   // cost(L, R) == cost(R, L): the
 //                                       // enumerator offers one order only
 //   static constexpr size_t kBytesPerSlot;  // memo bytes per entry
+//   static constexpr bool kParallelDense;   // Begin/Offer/Finish may run on
+//                                       // different slots on several threads
 //   void Resize(size_t slots);          // memo holds slots [0, slots)
 //   void InitLeaf(Slot s, RelationId r);
 // Dense enumeration, all splits of one set in a row:
@@ -26,7 +28,8 @@
 // Both:
 //   bool HasPlan(Slot s) const;   // leaf, or some split was offered
 // Sets are in the enumerator's numbering; slots of the operands were
-// finished before they are offered. Policies are single-threaded.
+// finished before they are offered. Policies are single-threaded except
+// as kParallelDense allows.
 #ifndef SLICEPLAN_CORE_SEARCH_POLICY_H_
 #define SLICEPLAN_CORE_SEARCH_POLICY_H_
 
@@ -43,6 +46,7 @@ concept SearchPolicy = requires(P p, const P cp, typename P::Acc acc, Slot s, Re
                                 RelationId r) {
   { P::kSymmetric } -> std::convertible_to<bool>;
   { P::kBytesPerSlot } -> std::convertible_to<size_t>;
+  { P::kParallelDense } -> std::convertible_to<bool>;
   p.Resize(size_t{1});
   p.InitLeaf(s, r);
   { p.Begin(s, set) } -> std::same_as<typename P::Acc>;

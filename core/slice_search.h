@@ -163,9 +163,22 @@ class SliceSearch {
     stats_.subsets = slots;
     stats_.memo_bytes = slots * Policy::kBytesPerSlot;
     // The enumerators see the renumbered constraints through the layout.
-    return options_.shape == PlanShape::kBushy
-               ? RunDenseBushy(*layout_, policy_, control, stats_)
-               : RunDenseLeftDeep(*layout_, policy_, control, stats_);
+    if (options_.shape == PlanShape::kLeftDeep) {
+      return RunDenseLeftDeep(*layout_, policy_, control, stats_);
+    }
+    if constexpr (Policy::kParallelDense) {
+      if (Threaded(slots)) {
+        return RunDenseBushyThreaded(*layout_, policy_, control, stats_, options_.threads);
+      }
+    }
+    return RunDenseBushy(*layout_, policy_, control, stats_);
+  }
+
+  // Threads pay for their start and the level barriers from this many sets.
+  static constexpr uint64_t kThreadedFromSets = uint64_t{1} << 14;
+  bool Threaded(uint64_t sets) const {
+    return options_.threads > 1 && sets >= kThreadedFromSets &&
+           (!layout_ || layout_->free_bits() > 0);
   }
 
   absl::Status RunConnected(SearchControl& control) {
@@ -188,7 +201,7 @@ class SliceSearch {
       if constexpr (!Memo::kGrows) policy_.Resize(memo.slot_count());
       if constexpr (std::is_same_v<Memo, DirectMemo>) {
         if (strategy.method == ConnectedMethod::kDirectSubsets) {
-          status = RunConnectedSubsets(constraints_, policy_, memo, control, stats_);
+          status = RunSubsets(memo, control);
           return;
         }
       }
@@ -205,6 +218,16 @@ class SliceSearch {
                                                        kHashBytesPerSet, " bytes per entry)"));
     }
     return status;
+  }
+
+  absl::Status RunSubsets(DirectMemo& memo, SearchControl& control) {
+    if constexpr (Policy::kParallelDense) {
+      if (working_.size() >= 7 && Threaded(memo.slot_count())) {
+        return RunConnectedSubsetsThreaded(working_.size(), constraints_, policy_, memo, control,
+                                           stats_, options_.threads);
+      }
+    }
+    return RunConnectedSubsets(constraints_, policy_, memo, control, stats_);
   }
 
   template <class Memo>
