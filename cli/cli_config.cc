@@ -99,7 +99,7 @@ absl::Status SetCapacityFlag(CapacityConfig& config, const std::string& flag,
   } else if (flag == "deadline-seconds") {
     ASSIGN_OR_RETURN(config.deadline_seconds, ParsePositiveSeconds(flag, value, 1e6));
   } else if (flag == "threads-per-worker") {
-    ASSIGN_OR_RETURN(config.threads_per_worker, ParseCount(flag, value, 1024));
+    ASSIGN_OR_RETURN(config.threads_per_worker, ParseCount(flag, value, kMaxSearchThreads));
   } else if (flag == "format") {
     if (value == "text")
       config.json = false;
@@ -177,6 +177,8 @@ absl::Status SetFlag(OptimizeConfig& config, const std::string& flag, const std:
     config.slices = static_cast<uint32_t>(p);
   } else if (flag == "workers") {
     ASSIGN_OR_RETURN(config.workers, ParseCount(flag, value, 1024));
+  } else if (flag == "threads-per-worker") {
+    ASSIGN_OR_RETURN(config.threads_per_worker, ParseCount(flag, value, kMaxSearchThreads));
   } else if (flag == "coordinator") {
     if (value.empty()) return BadFlag(flag, value, "HOST:PORT");
     config.coordinator = value;
@@ -256,10 +258,9 @@ absl::StatusOr<uint64_t> ParseBytes(const std::string& text) {
   return absl::InvalidArgumentError(absl::StrCat("bad byte count: ", text));
 }
 
-absl::StatusOr<OptimizeConfig> ParseOptimizeArgs(const std::vector<std::string>& args,
-                                                 int default_workers) {
+absl::StatusOr<OptimizeConfig> ParseOptimizeArgs(const std::vector<std::string>& args, int cores) {
   OptimizeConfig config;
-  config.workers = default_workers;
+  config.workers = cores;
   RETURN_IF_ERROR(ParseQueryAndFlags(
       args, config.query_path,
       [&](const std::string& flag, const std::string& value) {
@@ -270,6 +271,11 @@ absl::StatusOr<OptimizeConfig> ParseOptimizeArgs(const std::vector<std::string>&
         config.quiet = true;
         return true;
       }));
+  if (config.threads_per_worker && config.coordinator) {
+    return absl::InvalidArgumentError(
+        "--threads-per-worker: in-process workers only (a worker's --threads sets its own)");
+  }
+  config.search.threads = config.threads_per_worker.value_or(std::max(1, cores / config.workers));
   if ((config.tls.any() || !config.token_file.empty()) && !config.coordinator) {
     return absl::InvalidArgumentError(
         "--tls-ca, --tls-cert, --tls-key and --token-file: need --coordinator");
@@ -326,6 +332,9 @@ space on workers and merging their optima.
   --slices=P                     slice count, a power of two (default: chosen
                                  from the query and the worker count)
   --workers=N                    in-process workers (default: the cores)
+  --threads-per-worker=T         threads solving one slice together in each
+                                 in-process worker (default: the cores over
+                                 the workers)
   --coordinator=HOST:PORT        solve on a running coordinator
   --format=text|json|dot         output (default text)
   --tier=auto|exact|idp|linear|greedy
@@ -362,7 +371,8 @@ Predicts the exact search's wall time on pools of 1, 2, 4, ... 1,024
 workers and marks the smallest that meets the deadline.
 
   --shape, --cross-products, --memo-limit   as for optimize
-  --threads-per-worker=T         slices each worker runs at once (default 1)
+  --threads-per-worker=T         threads solving one slice together in each
+                                 worker (default 1)
   --format=text|json             output (default text)
   --plot=FILE.svg                predicted seconds against workers, log-log
   --seconds-per-split=S          the dense kernel's rate (default: measured

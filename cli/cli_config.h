@@ -23,6 +23,9 @@ struct OptimizeConfig {
   SearchOptions search;
   std::optional<uint32_t> slices;  // --slices=P; else the planner's choice
   int workers = 1;                 // --workers=N; default: the machine's cores
+  // --threads-per-worker=T, into search.threads; default: the cores over
+  // the workers (ParseOptimizeArgs).
+  std::optional<int> threads_per_worker;
   std::optional<std::string> coordinator;
   OutputFormat format = OutputFormat::kText;
   SearchTier tier = SearchTier::kAuto;  // --tier
@@ -40,10 +43,10 @@ struct CapacityConfig {
   std::string query_path;
   SearchOptions search;
   double deadline_seconds = 0;  // required
-  int threads_per_worker = 1;
-  bool json = false;      // --format=json
-  std::string plot_path;  // --plot=FILE.svg
-  MachineRates rates;     // --seconds-per-split, --seconds-per-connected-set
+  int threads_per_worker = 1;   // threads solving one slice in each worker
+  bool json = false;            // --format=json
+  std::string plot_path;        // --plot=FILE.svg
+  MachineRates rates;           // --seconds-per-split, --seconds-per-connected-set
   bool split_rate_given = false;
   bool set_rate_given = false;
   // The search's own rate was given, so nothing is measured.
@@ -60,10 +63,11 @@ struct WorkersConfig {
 };
 absl::StatusOr<WorkersConfig> ParseWorkersArgs(const std::vector<std::string>& args);
 
-// Parses the arguments after "optimize". Errors (INVALID_ARGUMENT) name the
-// flag: an unknown flag, a bad value, a missing or second query file.
-absl::StatusOr<OptimizeConfig> ParseOptimizeArgs(const std::vector<std::string>& args,
-                                                 int default_workers);
+// Parses the arguments after "optimize"; `cores` (the machine's) is the
+// default worker count, and the cores over the workers the default threads
+// per worker. Errors (INVALID_ARGUMENT) name the flag: an unknown flag, a
+// bad value, a missing or second query file.
+absl::StatusOr<OptimizeConfig> ParseOptimizeArgs(const std::vector<std::string>& args, int cores);
 
 // Parses a byte count: a number with an optional KiB, MiB or GiB suffix.
 absl::StatusOr<uint64_t> ParseBytes(const std::string& text);

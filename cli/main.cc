@@ -189,14 +189,15 @@ int Workers(const std::vector<std::string>& args) {
   if (!config.ok()) return Fail(config.status());
   auto pool = ListWorkersRemote(config->coordinator, config->tls, config->token_file);
   if (!pool.ok()) return Fail(pool.status());
-  std::cout << absl::StrFormat("%-28s %-9s %7s %8s %8s  %s\n", "worker", "health", "threads",
-                               "solved", "failed", "last error");
+  std::cout << absl::StrFormat("%-28s %-9s %6s %7s %8s %8s  %s\n", "worker", "health", "slices",
+                               "threads", "solved", "failed", "last error");
   int healthy = 0;
   for (const auto& w : pool->workers()) {
     healthy += w.healthy();
-    std::cout << absl::StrFormat("%-28s %-9s %7u %8u %8u  %s\n", w.address(),
-                                 w.healthy() ? "healthy" : "down", w.threads(), w.slices_solved(),
-                                 w.failures(), w.last_error());
+    std::cout << absl::StrFormat("%-28s %-9s %6u %7u %8u %8u  %s\n", w.address(),
+                                 w.healthy() ? "healthy" : "down", w.concurrent_slices(),
+                                 w.threads_per_slice(), w.slices_solved(), w.failures(),
+                                 w.last_error());
   }
   std::cout << healthy << " of " << pool->workers_size() << " workers healthy\n";
   return kExitOk;

@@ -181,7 +181,8 @@ grpc::Status CoordinatorService::ListWorkers(grpc::ServerContext* context,
     const WorkerCounters c = w->counters();
     s->set_address(w->Name());
     s->set_healthy(w->Healthy());
-    s->set_threads(static_cast<uint32_t>(w->Slots()));
+    s->set_concurrent_slices(static_cast<uint32_t>(w->Slots()));
+    s->set_threads_per_slice(static_cast<uint32_t>(w->ThreadsPerSlice()));
     s->set_slices_solved(c.solved);
     s->set_failures(c.failures);
     s->set_last_error(c.last_error);

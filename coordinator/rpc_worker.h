@@ -34,6 +34,7 @@ class RpcWorker : public SliceWorker {
 
   std::string Name() const override { return address_; }
   int Slots() const override { return slots_.load(); }
+  int ThreadsPerSlice() const override { return threads_per_slice_.load(); }
   bool Healthy() const override { return healthy_.load(); }
   std::unique_ptr<SliceCall> Start(const SliceTask& task, SliceDone done) override;
 
@@ -51,6 +52,7 @@ class RpcWorker : public SliceWorker {
   std::unique_ptr<grpc::health::v1::Health::Stub> health_;
   std::atomic<bool> healthy_{true};
   std::atomic<int> slots_{1};
+  std::atomic<int> threads_per_slice_{1};
   mutable absl::Mutex mu_;
   WorkerCounters counters_ ABSL_GUARDED_BY(mu_);
 };

@@ -21,6 +21,11 @@ ExactWork MeasureExactWork(const Query& query, const SearchOptions& options) {
   return work;
 }
 
+double ThreadSpeedup(const SearchOptions& options) {
+  if (!options.cross_products || options.threads <= 1) return 1;
+  return 1 + kThreadEfficiency * (options.threads - 1);
+}
+
 ExactForecast ForecastExact(const Query& query, const SearchOptions& options, int slots,
                             const MachineRates& rates, uint32_t slices) {
   return ForecastExact(query, options, MeasureExactWork(query, options), slots, rates, slices);
@@ -49,7 +54,8 @@ ExactForecast ForecastExact(const Query& query, const SearchOptions& options, co
     out.estimated = work.estimated;
     unit_seconds = rates.connected_set_seconds;
   }
-  out.seconds = rounds * (out.work_units * unit_seconds + rates.slice_overhead_seconds);
+  out.seconds = rounds * (out.work_units * unit_seconds / ThreadSpeedup(options) +
+                          rates.slice_overhead_seconds);
   return out;
 }
 

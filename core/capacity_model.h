@@ -50,8 +50,16 @@ struct ExactForecast {
   bool estimated = false;  // the work comes from sampled connected sets
 };
 
-// The exact search of `query` on `slots` slice slots at once, P chosen by
-// ChooseSliceCount unless `slices` (a power of two) is given.
+// What each thread past the first adds to one slice's speed when
+// options.threads share its memo (0.75: 2 threads measured 1.5-1.8x on
+// 20-relation slices, docs/benchmarks.md). Only the dense kernel is
+// counted: the connected-only pair search runs on one thread.
+inline constexpr double kThreadEfficiency = 0.75;
+double ThreadSpeedup(const SearchOptions& options);
+
+// The exact search of `query` on `slots` slice slots at once (each slice
+// on options.threads threads), P chosen by ChooseSliceCount unless
+// `slices` (a power of two) is given.
 ExactForecast ForecastExact(const Query& query, const SearchOptions& options, int slots,
                             const MachineRates& rates = {}, uint32_t slices = 0);
 // The same from work measured once (MeasureExactWork of the same query

@@ -9,15 +9,15 @@
 namespace sliceplan {
 namespace {
 
+// A worker solves one slice at a time on `options.threads` threads.
 CapacityRow Row(const Query& query, const SearchOptions& options, const ExactWork& work,
-                int workers, int threads, const MachineRates& rates) {
-  const ExactForecast f = ForecastExact(query, options, work, workers * threads, rates);
+                int workers, const MachineRates& rates) {
+  const ExactForecast f = ForecastExact(query, options, work, workers, rates);
   CapacityRow row;
   row.workers = workers;
   row.slices = f.slices;
   row.seconds = f.seconds;
-  const double per_worker = std::ceil(static_cast<double>(f.slices) / workers);
-  row.memo_bytes = f.memo_bytes * std::min<double>(threads, per_worker);
+  row.memo_bytes = f.memo_bytes;
   row.fits_memo = f.memo_bytes <= static_cast<double>(options.memo_limit_bytes);
   return row;
 }
@@ -65,10 +65,12 @@ absl::StatusOr<CapacityTable> PlanCapacity(const Query& query, const SearchOptio
   t.deadline_seconds = deadline_seconds;
   t.threads_per_worker = threads_per_worker;
   t.rates = rates;
+  SearchOptions threaded = options;
+  threaded.threads = threads_per_worker;
   const ExactWork work = MeasureExactWork(query, options);
   t.estimated = work.estimated;
   for (int w = 1; w <= kCapacityMaxWorkers; w *= 2) {
-    const CapacityRow row = Row(query, options, work, w, threads_per_worker, rates);
+    const CapacityRow row = Row(query, threaded, work, w, rates);
     if (row.fits_memo && row.seconds <= deadline_seconds && !t.enough_workers) {
       t.enough_workers = w;
     }

@@ -19,7 +19,7 @@
 namespace sliceplan {
 
 inline constexpr int kCapacityMaxWorkers = 1024;
-inline constexpr int kCapacityMaxThreads = 1024;
+inline constexpr int kCapacityMaxThreads = kMaxSearchThreads;
 // The largest query the linear tier (tiers/linear_dp.h) takes; core does
 // not see the tiers, so the summary's number is kept here and checked
 // equal there.
@@ -46,7 +46,8 @@ struct CapacityTable {
   std::string summary;     // one or two sentences: the answer in words
 };
 
-// Each worker runs `threads_per_worker` slices at once. Errors:
+// Each worker solves one slice at a time on `threads_per_worker` threads
+// sharing its memo (ThreadSpeedup, capacity_model.h). Errors:
 // INVALID_ARGUMENT for a deadline not finite and > 0 or threads outside
 // 1..kCapacityMaxThreads.
 absl::StatusOr<CapacityTable> PlanCapacity(const Query& query, const SearchOptions& options,

@@ -42,6 +42,8 @@ class SliceWorker {
   virtual std::string Name() const = 0;
   // Slices it solves at once.
   virtual int Slots() const { return 1; }
+  // Threads the worker puts on one slice (sharing its memo).
+  virtual int ThreadsPerSlice() const { return 1; }
   // False while health checks fail; the scheduler skips it.
   virtual bool Healthy() const { return true; }
   // Starts solving `task`; `done` runs exactly once, on any thread. The

@@ -24,6 +24,20 @@ double SecondsBetween(Clock::time_point a, Clock::time_point b) {
   return std::chrono::duration<double>(b - a).count();
 }
 
+// The options the capacity model forecasts with: a slice runs on the
+// threads the caller asked for, or on those the slowest healthy worker
+// puts on one, whichever is more (remote workers set their own).
+SearchOptions ForecastOptions(const SearchOptions& options, std::span<SliceWorker* const> workers) {
+  SearchOptions out = options;
+  int fewest = 0;
+  for (SliceWorker* w : workers) {
+    if (!w->Healthy()) continue;
+    fewest = fewest == 0 ? w->ThreadsPerSlice() : std::min(fewest, w->ThreadsPerSlice());
+  }
+  out.threads = std::max(options.threads, fewest);
+  return out;
+}
+
 int PoolSlots(std::span<SliceWorker* const> workers) {
   int slots = 0;
   for (SliceWorker* w : workers) {
@@ -164,8 +178,8 @@ class TierRun {
   absl::StatusOr<bool> TryExact() {
     ASSIGN_OR_RETURN(const Query exact, ToExactQuery(query_));
     const double remaining = Remaining();
-    const ExactForecast f =
-        ForecastExact(exact, options_, slots_, request_.rates, request_.slice_count);
+    const ExactForecast f = ForecastExact(exact, ForecastOptions(options_, workers_), slots_,
+                                          request_.rates, request_.slice_count);
     out_.forecast = f;
     if (!(f.seconds <= kExactShare * remaining)) {
       reason_ = absl::StrFormat(

@@ -1,12 +1,15 @@
 // sliceplan-worker: a stateless slice solver behind gRPC.
 //
-//   sliceplan-worker --listen=HOST:PORT [--threads=N] [--memo_limit_gib=G]
+//   sliceplan-worker --listen=HOST:PORT [--threads=T] [--concurrent-slices=C]
+//                    [--memo_limit_gib=G]
 #include <iostream>
 #include <string>
 #include <thread>
 #include <vector>
 
 #include "absl/flags/flag.h"
+#include "absl/strings/str_cat.h"
+#include "core/search_options.h"
 #include "rpc/serve.h"
 #include "rpc/server_setup.h"
 #include "rpc/tls.h"
@@ -20,7 +23,9 @@ ABSL_FLAG(std::string, tls_cert, "", "PEM certificate to serve TLS with (with --
 ABSL_FLAG(std::string, tls_key, "", "PEM private key of --tls-cert");
 ABSL_FLAG(std::string, tls_ca, "",
           "PEM CA: clients must present a certificate it signed (mutual TLS)");
-ABSL_FLAG(int, threads, 0, "slices solved at once (0: the machine's cores)");
+ABSL_FLAG(int, threads, 0,
+          "threads solving one slice together (0: the machine's cores over --concurrent-slices)");
+ABSL_FLAG(int, concurrent_slices, 1, "slices solved at once");
 ABSL_FLAG(double, memo_limit_gib, 8.0, "per-slice memo limit in GiB");
 ABSL_FLAG(int64_t, max_request_bytes, int64_t{16} << 20, "largest request accepted, in bytes");
 ABSL_FLAG(int64_t, max_relations, 10000, "most relations per query");
@@ -47,8 +52,9 @@ int Refuse(const std::string& message) {
 
 int main(int argc, char** argv) {
   sliceplan::BlockStopSignals();
-  sliceplan::ParseServerCommandLine(argc, argv, "sliceplan-worker --listen=HOST:PORT [--threads=N]",
-                                    "worker/main.cc");
+  sliceplan::ParseServerCommandLine(
+      argc, argv, "sliceplan-worker --listen=HOST:PORT [--threads=T] [--concurrent-slices=C]",
+      "worker/main.cc");
   // Logs go to stderr: stdout carries only the listening line.
   spdlog::set_default_logger(spdlog::stderr_color_mt("sliceplan"));
   const std::string listen = absl::GetFlag(FLAGS_listen);
@@ -61,9 +67,18 @@ int main(int argc, char** argv) {
     return Refuse(std::string(s.message()));
   }
   sliceplan::WorkerConfig config;
-  config.threads = absl::GetFlag(FLAGS_threads);
-  if (config.threads <= 0) {
-    config.threads = static_cast<int>(std::max(1u, std::thread::hardware_concurrency()));
+  config.concurrent_slices = absl::GetFlag(FLAGS_concurrent_slices);
+  if (config.concurrent_slices < 1 || config.concurrent_slices > 4096) {
+    return Refuse("--concurrent-slices: must be in 1..4096");
+  }
+  config.threads_per_slice = absl::GetFlag(FLAGS_threads);
+  if (config.threads_per_slice < 0 || config.threads_per_slice > sliceplan::kMaxSearchThreads) {
+    return Refuse(absl::StrCat("--threads: must be in 0..", sliceplan::kMaxSearchThreads,
+                               " (0: the cores over --concurrent-slices)"));
+  }
+  if (config.threads_per_slice == 0) {
+    const int cores = static_cast<int>(std::max(1u, std::thread::hardware_concurrency()));
+    config.threads_per_slice = std::max(1, cores / config.concurrent_slices);
   }
   const double gib = absl::GetFlag(FLAGS_memo_limit_gib);
   if (!(gib > 0 && gib < 1e6)) return Refuse("--memo_limit_gib must be in (0, 1e6)");
@@ -83,7 +98,9 @@ int main(int argc, char** argv) {
   config.test_hang_seconds = absl::GetFlag(FLAGS_test_only_hang_seconds);
   config.test_crash_slice = absl::GetFlag(FLAGS_test_only_crash_on_slice);
   sliceplan::WorkerService service(config);
-  spdlog::info("worker: {} threads, memo limit {:.1f} GiB{}", config.threads, gib,
+  spdlog::info("worker: {} slice{} at once on {} thread{} each, memo limit {:.1f} GiB{}",
+               config.concurrent_slices, config.concurrent_slices == 1 ? "" : "s",
+               config.threads_per_slice, config.threads_per_slice == 1 ? "" : "s", gib,
                config.test_hang_seconds > 0 ? " (test fault: hanging)" : "");
   serve.max_request_bytes = config.limits.max_query_bytes;
   serve.shutdown_grace = std::chrono::milliseconds(static_cast<int64_t>(grace * 1000));

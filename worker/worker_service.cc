@@ -35,6 +35,7 @@ absl::StatusOr<Parsed> Parse(const v1::SolveSliceRequest& request, const WorkerC
     return absl::Status(s.code(), absl::StrCat("options.cluster.", s.message()));
   }
   options.memo_limit_bytes = std::min(options.memo_limit_bytes, config.memo_limit_bytes);
+  options.threads = config.threads_per_slice;  // the worker's own setting
   const SliceSpec slice{request.slice_index(), request.slice_count()};
   RETURN_IF_ERROR(ValidateSlice(slice, query->size(), options.shape, kRpcSliceFields));
   return Parsed{*std::move(query), options, slice};
@@ -44,8 +45,9 @@ absl::StatusOr<Parsed> Parse(const v1::SolveSliceRequest& request, const WorkerC
 
 bool WorkerService::Acquire(grpc::ServerContext* context) {
   absl::MutexLock lock(&mu_);
-  const auto free = [this]()
-                        ABSL_EXCLUSIVE_LOCKS_REQUIRED(mu_) { return running_ < config_.threads; };
+  const auto free = [this]() ABSL_EXCLUSIVE_LOCKS_REQUIRED(mu_) {
+    return running_ < config_.concurrent_slices;
+  };
   // Polls the call's cancel while it waits (gRPC has no wake-up for it).
   while (!mu_.AwaitWithTimeout(absl::Condition(&free), absl::Milliseconds(10))) {
     if (context->IsCancelled()) return false;
@@ -87,7 +89,8 @@ grpc::Status WorkerService::SolveSlice(grpc::ServerContext* context,
 
 grpc::Status WorkerService::DescribeWorker(grpc::ServerContext*, const v1::DescribeWorkerRequest*,
                                            v1::DescribeWorkerResponse* response) {
-  response->set_threads(static_cast<uint32_t>(config_.threads));
+  response->set_concurrent_slices(static_cast<uint32_t>(config_.concurrent_slices));
+  response->set_threads_per_slice(static_cast<uint32_t>(config_.threads_per_slice));
   response->set_memo_limit_bytes(config_.memo_limit_bytes);
   response->set_version("sliceplan 0.1.0");
   return grpc::Status::OK;

@@ -1,8 +1,9 @@
 // The worker's gRPC service: solves one slice per call with the core
 // engine and keeps no state between calls. Honours the call's deadline and
 // cancellation inside the DP loop; refuses a slice over its memo limit with
-// RESOURCE_EXHAUSTED. At most `threads` slices run at once; further calls
-// wait for a slot (while their deadline allows). Thread-safe.
+// RESOURCE_EXHAUSTED. At most `concurrent_slices` slices run at once, each
+// on `threads_per_slice` threads; further calls wait for a slot (while
+// their deadline allows). Thread-safe.
 #ifndef SLICEPLAN_WORKER_WORKER_SERVICE_H_
 #define SLICEPLAN_WORKER_WORKER_SERVICE_H_
 
@@ -16,7 +17,8 @@
 namespace sliceplan {
 
 struct WorkerConfig {
-  int threads = 1;
+  int concurrent_slices = 1;  // slices solved at once
+  int threads_per_slice = 1;  // threads sharing one slice's memo
   uint64_t memo_limit_bytes = uint64_t{8} << 30;
   InputLimits limits;
   // Test-only fault: every call first sleeps this long (cancellable), so

@@ -23,6 +23,29 @@ TEST(CliConfigTest, DefaultsAndTheQueryPath) {
   EXPECT_EQ(c->format, OutputFormat::kText);
 }
 
+TEST(CliConfigTest, ThreadsPerWorkerDefaultToTheCoresOverTheWorkers) {
+  auto c = Parse({"q.json"});  // 3 cores, 3 workers
+  ASSERT_TRUE(c.ok());
+  EXPECT_EQ(c->search.threads, 1);
+  c = Parse({"q.json", "--workers=1"});
+  ASSERT_TRUE(c.ok());
+  EXPECT_EQ(c->search.threads, 3);
+  c = Parse({"q.json", "--workers=8"});
+  ASSERT_TRUE(c.ok());
+  EXPECT_EQ(c->search.threads, 1);
+  c = Parse({"q.json", "--workers=1", "--threads-per-worker=2"});
+  ASSERT_TRUE(c.ok());
+  EXPECT_EQ(c->search.threads, 2);
+  for (const char* bad : {"--threads-per-worker=0", "--threads-per-worker=257"}) {
+    c = Parse({"q.json", bad});
+    ASSERT_FALSE(c.ok()) << bad;
+    EXPECT_NE(c.status().message().find("--threads-per-worker"), std::string::npos);
+  }
+  c = Parse({"q.json", "--coordinator=127.0.0.1:1", "--threads-per-worker=2"});
+  ASSERT_FALSE(c.ok());
+  EXPECT_NE(c.status().message().find("in-process workers only"), std::string::npos) << c.status();
+}
+
 TEST(CliConfigTest, EveryFlagLandsInItsField) {
   auto c = Parse({"--shape=left-deep",
                   "--cross-products=false",

@@ -205,7 +205,7 @@ then passed=$((passed + 1)); else failed=$((failed + 1)); echo "FAIL formats_agr
 # enough_workers is the first row within the deadline.
 check capacity_no_deadline 2 "--deadline-seconds=S: missing" capacity "$examples/port_logistics.json"
 check capacity_bad_deadline 2 "--deadline-seconds=-1: expected seconds" capacity "$examples/port_logistics.json" --deadline-seconds=-1
-check capacity_bad_threads 2 "--threads-per-worker=0: expected a number in 1..1024" capacity "$examples/port_logistics.json" --deadline-seconds=1 --threads-per-worker=0
+check capacity_bad_threads 2 "--threads-per-worker=0: expected a number in 1..256" capacity "$examples/port_logistics.json" --deadline-seconds=1 --threads-per-worker=0
 check capacity_bad_format 2 "--format=dot: expected text or json" capacity "$examples/port_logistics.json" --deadline-seconds=1 --format=dot
 check capacity_bad_file 2 "relations[0] (berths).rows" capacity "$bad/rows_negative.json" --deadline-seconds=1
 echo '{"relations": [{"name": "berths", "rows": 9}, {"name": "cranes", "rows": 4}], "predicates": []}' >"$tmp/apart.json"

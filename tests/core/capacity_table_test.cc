@@ -55,16 +55,27 @@ TEST(CapacityTableTest, TwentyRelationsWorkedByHand) {
       << t->summary;
 }
 
-TEST(CapacityTableTest, ThreadsPerWorkerAreSliceSlots) {
-  // Two threads per worker: W workers are 2W slots, so four workers run
-  // the eight slices of k = 3 in one round, two at a time each.
+TEST(CapacityTableTest, ThreadsPerWorkerSpeedUpEachSlice) {
+  // Two threads per worker: each slice runs 1 + 0.75 = 1.75 times faster
+  // (kThreadEfficiency) and a worker still holds one slice at a time, so
+  // four workers get P = 4 (k = 2, f = 14): (3^14 21^2 - 2 2^14 7^2 + 1) / 2
+  // = 1,053,841,849 splits at 1 ns over 1.75 = 0.602195342 s. One worker
+  // runs the unsliced 1,742,343,625 splits in 0.9956 s: within 1 s.
   const Query q = MakeQuery(GraphShape::kRandom, 20, 3);
   auto t = PlanCapacity(q, SearchOptions{}, 1.0, 2, OneNanosecond());
   ASSERT_TRUE(t.ok()) << t.status();
-  EXPECT_EQ(t->rows[2].slices, 8u);
-  EXPECT_NEAR(t->rows[2].seconds, 0.819576720, 1e-12);
-  EXPECT_EQ(t->enough_workers, 4);
-  EXPECT_DOUBLE_EQ(t->rows[2].memo_bytes, 2 * 343.0 * 2048 * CoutPolicy::kBytesPerSlot);
+  EXPECT_EQ(t->rows[2].slices, 4u);
+  EXPECT_NEAR(t->rows[2].seconds, 1.053841849 / 1.75, 1e-12);
+  EXPECT_NEAR(t->rows[0].seconds, 1.742343625 / 1.75, 1e-12);
+  EXPECT_EQ(t->enough_workers, 1);
+  EXPECT_DOUBLE_EQ(t->rows[2].memo_bytes, 49.0 * 16384 * CoutPolicy::kBytesPerSlot);
+  // Without cross products the pair search runs on one thread: no speed-up.
+  SearchOptions connected;
+  connected.cross_products = false;
+  EXPECT_EQ(ThreadSpeedup(connected), 1.0);
+  connected.cross_products = true;
+  connected.threads = 5;
+  EXPECT_EQ(ThreadSpeedup(connected), 4.0);
 }
 
 TEST(CapacityTableTest, EveryRowIsTheForecastOfItsPool) {

@@ -192,6 +192,34 @@ TEST(ServiceTest, MaxWorkersAndThePoolListing) {
   EXPECT_NE(line.find(" 8 "), std::string::npos) << line;
 }
 
+TEST(ServiceTest, WorkersReportThreadsPerSliceAndConcurrentSlices) {
+  std::vector<std::unique_ptr<ServerProcess>> workers;
+  workers.push_back(StartWorker({"--threads=3", "--concurrent-slices=2"}));
+  workers.push_back(StartWorker());
+  auto coordinator = StartCoordinator(workers);
+  ASSERT_TRUE(coordinator);
+  auto worker_stub = v1::SliceWorker::NewStub(
+      grpc::CreateChannel(workers[0]->address(), grpc::InsecureChannelCredentials()));
+  grpc::ClientContext context;
+  v1::DescribeWorkerResponse info;
+  ASSERT_TRUE(worker_stub->DescribeWorker(&context, {}, &info).ok());
+  EXPECT_EQ(info.threads_per_slice(), 3u);
+  EXPECT_EQ(info.concurrent_slices(), 2u);
+  // A 16-relation search on three threads a slice (more than this
+  // machine's cores) still returns the optimum.
+  const Query q = testing::MakeQuery(GraphShape::kRandom, 16, 4);
+  auto remote = Remote(coordinator->address(), q, {}, 2);
+  ASSERT_TRUE(remote.ok()) << remote.status();
+  EXPECT_NEAR(remote->result.plan.root().cost, Optimum(q), 1e-9 * Optimum(q));
+  const testing::CommandResult run = testing::RunCommand(
+      std::string(SLICEPLAN_CLI_BIN) + " workers --coordinator=" + coordinator->address());
+  const size_t row = run.output.find(workers[0]->address());
+  ASSERT_NE(row, std::string::npos) << run.output;
+  const std::string line = run.output.substr(row, run.output.find('\n', row) - row);
+  EXPECT_NE(line.find("healthy        2       3"), std::string::npos) << run.output;
+  EXPECT_NE(run.output.find("slices threads"), std::string::npos) << run.output;
+}
+
 TEST(ServiceTest, AllWorkersDownIsUnavailableNotAHang) {
   auto w = StartWorker();
   ASSERT_TRUE(w);
