@@ -25,10 +25,12 @@ namespace sliceplan {
 inline constexpr double kExactShare = 0.6;
 
 struct MachineRates {
-  // One split of the dense kernel (1.2-1.3 ns measured, RelWithDebInfo).
-  double dense_split_seconds = 1.3e-9;
+  // One split of the dense kernel (0.9 ns unsliced, 1.2 ns in a slice of
+  // P = 8 to 16 measured, RelWithDebInfo, two accumulators).
+  double dense_split_seconds = 1.1e-9;
   // One connected set of the connected-only search, its pairs included
-  // (1-14 us measured over stars, cycles, cliques and random graphs).
+  // (1-14 us measured over stars, cycles, cliques and random graphs
+  // before the direct memo; now measured per query, rate_calibration.h).
   double connected_set_seconds = 8e-6;
   // A round trip of one slice call (scheduling, the call, the merge).
   double slice_overhead_seconds = 0.2e-3;

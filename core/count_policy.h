@@ -31,6 +31,8 @@ class CountPolicy {
 
   Acc Begin(Slot, RelSet) const { return 0; }
   Acc Offer(Acc a, Slot left, Slot right) const { return a + count_[left] * count_[right]; }
+  Acc Empty() const { return 0; }
+  Acc Merge(Acc a, Acc b) const { return a + b; }
   Acc OfferLeafRight(Acc a, Slot left, RelationId) const { return a + count_[left]; }
   void Finish(Slot s, RelSet, const Acc& a) { count_[s] = a; }
 

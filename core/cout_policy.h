@@ -67,6 +67,10 @@ class CoutPolicy {
     if (__builtin_expect(v < a.best, 0)) a = {v, left};
     return a;
   }
+  // The accumulator no split has touched, and two accumulators joined (the
+  // first kept on a tie): a loop may keep two to break its dependency chain.
+  Acc Empty() const { return {kInf, kNoSlot}; }
+  Acc Merge(Acc a, Acc b) const { return b.best < a.best ? b : a; }
   Acc OfferLeafRight(Acc a, Slot left, RelationId) const {
     const double v = cost_[left] + 0.0;
     if (__builtin_expect(v < a.best, 0)) a = {v, left};

@@ -11,6 +11,7 @@
 #define SLICEPLAN_CORE_DENSE_BUSHY_H_
 
 #include <algorithm>
+#include <concepts>
 #include <vector>
 
 #include "absl/status/status.h"
@@ -26,6 +27,46 @@ namespace dense_bushy_internal {
 // Offers the split (l, low ^ l) of the low bits into blocks (lb, rb).
 #define SLICEPLAN_OFFER_(l) \
   a = policy.Offer(a, lb + static_cast<Slot>(l), rb + static_cast<Slot>(low ^ (l)))
+
+// Policies whose accumulators can be joined (Empty, Merge): their loops
+// keep two accumulators, so one split's min does not wait for the last
+// one's (the loop is bound by that chain's latency otherwise: 1.5 against
+// 0.9 ns per split at 18 relations, docs/benchmarks.md).
+template <class Policy>
+concept TwoChains = requires(const Policy& p, typename Policy::Acc a) {
+  { p.Empty() } -> std::same_as<typename Policy::Acc>;
+  { p.Merge(a, a) } -> std::same_as<typename Policy::Acc>;
+};
+
+// Offers (lb + l, rb + (low ^ l)) for every l within `low` (not empty), in
+// increasing order, without l = 0 when skip_empty and without l = low when
+// skip_full: the subsets without low's lowest relation go to one
+// accumulator and those with it to another.
+template <SearchPolicy Policy>
+requires TwoChains<Policy>
+[[gnu::always_inline]] inline typename Policy::Acc OfferSubsetsTwoChains(
+    const Policy& policy, typename Policy::Acc a, Slot lb, Slot rb, RelSet low, bool skip_empty,
+    bool skip_full) {
+  const RelSet bit = LowestBit(low), half = low ^ bit;
+  auto b = policy.Empty();
+  const auto offer = [&](typename Policy::Acc acc, RelSet l) {
+    return policy.Offer(acc, lb + static_cast<Slot>(l), rb + static_cast<Slot>(low ^ l));
+  };
+  if (!skip_empty) a = offer(a, 0);
+  if (half == 0) {  // low is one relation: the splits are l = 0 and l = low
+    if (!skip_full) b = offer(b, low);
+    return policy.Merge(a, b);
+  }
+  b = offer(b, bit);
+  RelSet sub = (0 - half) & half;
+  for (; sub != half; sub = (sub - half) & half) {
+    a = offer(a, sub);
+    b = offer(b, sub | bit);
+  }
+  a = offer(a, half);
+  if (!skip_full) b = offer(b, low);
+  return policy.Merge(a, b);
+}
 
 // Offers every split of a set whose low bits are `low` into the block pair
 // (lb, rb), given as slot bases; returns how many it offered. The
@@ -44,13 +85,36 @@ template <SearchPolicy Policy>
       // The left part holds the lowest relation: each unordered split once.
       const RelSet lowest = LowestBit(low);
       const RelSet rest = low ^ lowest;
-      for (RelSet sub = 0; sub != rest; sub = (sub - rest) & rest) {
-        SLICEPLAN_OFFER_(sub | lowest);
+      if constexpr (TwoChains<Policy>) {
+        // Two accumulators, one for the subsets without rest's lowest
+        // relation and one for those with it, so the min of one split does
+        // not wait for the previous split's.
+        if (rest != 0) {
+          const RelSet bit = LowestBit(rest);
+          const RelSet half = rest ^ bit;
+          auto b = policy.Empty();
+          RelSet sub = 0;
+          for (; sub != half; sub = (sub - half) & half) {
+            SLICEPLAN_OFFER_(sub | lowest);
+            b = policy.Offer(b, lb + static_cast<Slot>(sub | bit | lowest),
+                             rb + static_cast<Slot>(low ^ (sub | bit | lowest)));
+          }
+          SLICEPLAN_OFFER_(sub | lowest);  // sub = half; half | bit = rest is no split
+          a = policy.Merge(a, b);
+        }
+      } else {
+        for (RelSet sub = 0; sub != rest; sub = (sub - rest) & rest) {
+          SLICEPLAN_OFFER_(sub | lowest);
+        }
       }
       work += subsets / 2 - 1;
     } else {
-      for (RelSet l = (0 - low) & low; l != low; l = (l - low) & low) {
-        SLICEPLAN_OFFER_(l);
+      if constexpr (TwoChains<Policy>) {
+        if (low != 0) a = OfferSubsetsTwoChains(policy, a, lb, rb, low, true, true);
+      } else {
+        for (RelSet l = (0 - low) & low; l != low; l = (l - low) & low) {
+          SLICEPLAN_OFFER_(l);
+        }
       }
       work += subsets - 2;
     }
@@ -61,6 +125,12 @@ template <SearchPolicy Policy>
       SLICEPLAN_OFFER_(RelSet{0});
       work += 1;
     }
+    return a;
+  }
+  if constexpr (TwoChains<Policy>) {
+    // left part non-empty: l != 0; right part non-empty: l != low
+    a = OfferSubsetsTwoChains(policy, a, lb, rb, low, left_empty, right_empty);
+    work += subsets - (left_empty ? 1 : 0) - (right_empty ? 1 : 0);
     return a;
   }
   if (left_empty) {  // left part non-empty: l != 0
@@ -95,12 +165,28 @@ template <SearchPolicy Policy>
     const Policy& policy, typename Policy::Acc a, const std::vector<std::pair<Slot, Slot>>& inner,
     RelSet low) {
   RelSet l = 0;
-  do {
-    const Slot left = static_cast<Slot>(l), right = static_cast<Slot>(low ^ l);
-    for (const auto& [lb, rb] : inner) a = policy.Offer(a, lb + left, rb + right);
-    l = (l - low) & low;
-  } while (l != 0);
-  return a;
+  if constexpr (TwoChains<Policy>) {
+    auto b = policy.Empty();
+    const size_t even = inner.size() & ~size_t{1};
+    do {
+      const Slot left = static_cast<Slot>(l), right = static_cast<Slot>(low ^ l);
+      for (size_t i = 0; i < even; i += 2) {
+        a = policy.Offer(a, inner[i].first + left, inner[i].second + right);
+        b = policy.Offer(b, inner[i + 1].first + left, inner[i + 1].second + right);
+      }
+      if (even != inner.size())
+        a = policy.Offer(a, inner[even].first + left, inner[even].second + right);
+      l = (l - low) & low;
+    } while (l != 0);
+    return policy.Merge(a, b);
+  } else {
+    do {
+      const Slot left = static_cast<Slot>(l), right = static_cast<Slot>(low ^ l);
+      for (const auto& [lb, rb] : inner) a = policy.Offer(a, lb + left, rb + right);
+      l = (l - low) & low;
+    } while (l != 0);
+    return a;
+  }
 }
 
 // A block's splits into block pairs: those with an empty high part, and
