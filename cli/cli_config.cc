@@ -100,6 +100,12 @@ absl::Status SetCapacityFlag(CapacityConfig& config, const std::string& flag,
     ASSIGN_OR_RETURN(config.deadline_seconds, ParsePositiveSeconds(flag, value, 1e6));
   } else if (flag == "threads-per-worker") {
     ASSIGN_OR_RETURN(config.threads_per_worker, ParseCount(flag, value, kMaxSearchThreads));
+  } else if (flag == "coordinator") {
+    if (value.empty()) return BadFlag(flag, value, "HOST:PORT");
+    config.coordinator = value;
+  } else if (flag == "tls-ca" || flag == "tls-cert" || flag == "tls-key" || flag == "token-file") {
+    if (value.empty()) return BadFlag(flag, value, "a file name");
+    SetConnectionFlag(flag, value, config.tls, config.token_file);
   } else if (flag == "format") {
     if (value == "text")
       config.json = false;
@@ -294,6 +300,10 @@ absl::StatusOr<CapacityConfig> ParseCapacityArgs(const std::vector<std::string>&
   if (!(config.deadline_seconds > 0)) {
     return absl::InvalidArgumentError("--deadline-seconds=S: missing (the time to plan for)");
   }
+  if ((config.tls.any() || !config.token_file.empty()) && !config.coordinator) {
+    return absl::InvalidArgumentError(
+        "--tls-ca, --tls-cert, --tls-key and --token-file: need --coordinator");
+  }
   return config;
 }
 
@@ -372,7 +382,11 @@ workers and marks the smallest that meets the deadline.
 
   --shape, --cross-products, --memo-limit   as for optimize
   --threads-per-worker=T         threads solving one slice together in each
-                                 worker (default 1)
+                                 worker (default 1; with --coordinator, the
+                                 pool's)
+  --coordinator=HOST:PORT        the table from a running coordinator: its
+                                 pool's threads, its rates (with --tls-ca,
+                                 --tls-cert, --tls-key, --token-file)
   --format=text|json             output (default text)
   --plot=FILE.svg                predicted seconds against workers, log-log
   --seconds-per-split=S          the dense kernel's rate (default: measured

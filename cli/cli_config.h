@@ -43,10 +43,15 @@ struct CapacityConfig {
   std::string query_path;
   SearchOptions search;
   double deadline_seconds = 0;  // required
-  int threads_per_worker = 1;   // threads solving one slice in each worker
-  bool json = false;            // --format=json
-  std::string plot_path;        // --plot=FILE.svg
-  MachineRates rates;           // --seconds-per-split, --seconds-per-connected-set
+  // Threads solving one slice in each worker; unset: 1, or with
+  // --coordinator the pool's.
+  std::optional<int> threads_per_worker;
+  std::optional<std::string> coordinator;  // --coordinator: the table from there
+  TlsFiles tls;
+  std::string token_file;
+  bool json = false;      // --format=json
+  std::string plot_path;  // --plot=FILE.svg
+  MachineRates rates;     // --seconds-per-split, --seconds-per-connected-set
   bool split_rate_given = false;
   bool set_rate_given = false;
   // The search's own rate was given, so nothing is measured.

@@ -148,8 +148,8 @@ absl::StatusOr<CapacityTable> PlanFor(const CapacityConfig& config, const Query&
       rates.connected_set_seconds = measured.connected_set_seconds;
     }
   }
-  return PlanCapacity(query, config.search, config.deadline_seconds, config.threads_per_worker,
-                      rates);
+  return PlanCapacity(query, config.search, config.deadline_seconds,
+                      config.threads_per_worker.value_or(1), rates);
 }
 
 int Capacity(const std::vector<std::string>& args) {
@@ -165,9 +165,22 @@ int Capacity(const std::vector<std::string>& args) {
   }
   CapacityInfo info{query->size(), config->search, !config->RateGiven()};
   absl::StatusOr<CapacityTable> table;
-  if (query->size() > kMaxRelations) {
+  if (config->coordinator) {
+    RemoteCapacity request{*config->coordinator,     config->tls,
+                           config->token_file,       config->search,
+                           config->deadline_seconds, config->threads_per_worker.value_or(0)};
+    if (config->split_rate_given) request.seconds_per_split = config->rates.dense_split_seconds;
+    if (config->set_rate_given) {
+      request.seconds_per_connected_set = config->rates.connected_set_seconds;
+    }
+    auto remote = CapacityRemote(request, *query);
+    if (!remote.ok()) return Fail(remote.status());
+    table = std::move(remote->first);
+    if (query->size() > kMaxRelations) info.calibrated = false;
+  } else if (query->size() > kMaxRelations) {
     info.calibrated = false;
-    table = CapacityPastExact(query->size(), config->deadline_seconds, config->threads_per_worker);
+    table = CapacityPastExact(query->size(), config->deadline_seconds,
+                              config->threads_per_worker.value_or(1));
   } else {
     table = PlanFor(*config, *ToExactQuery(*query));
   }

@@ -8,6 +8,7 @@
 #include "rpc/bearer_tokens.h"
 #include "rpc/rpc_status.h"
 #include "sliceplan.grpc.pb.h"
+#include "wire/capacity_proto.h"
 #include "wire/query_proto.h"
 #include "wire/service_proto.h"
 #include "wire/tier_proto.h"
@@ -89,6 +90,30 @@ absl::StatusOr<ScheduleOutcome> OptimizeRemote(
   ASSIGN_OR_RETURN(TieredOutcome out,
                    OptimizeRemote(exact, WideQuery::FromExact(query), on_progress));
   return std::move(out.schedule);
+}
+
+absl::StatusOr<std::pair<CapacityTable, int>> CapacityRemote(const RemoteCapacity& request,
+                                                             const WideQuery& query) {
+  ASSIGN_OR_RETURN(auto stub, Connect(request.coordinator, request.tls));
+  grpc::ClientContext context;
+  RETURN_IF_ERROR(Authorize(context, request.token_file));
+  context.set_deadline(std::chrono::system_clock::now() + std::chrono::seconds(60));
+  v1::CapacityRequest m;
+  *m.mutable_query() = WideQueryToProto(query);
+  *m.mutable_options() = SearchOptionsToProto(request.options);
+  m.set_deadline_seconds(request.deadline_seconds);
+  m.set_threads_per_worker(static_cast<uint32_t>(request.threads_per_worker));
+  m.set_seconds_per_split(request.seconds_per_split);
+  m.set_seconds_per_connected_set(request.seconds_per_connected_set);
+  v1::CapacityResponse response;
+  const grpc::Status status = stub->PlanCapacity(&context, m, &response);
+  if (!status.ok()) {
+    return absl::Status(
+        static_cast<absl::StatusCode>(status.error_code()),
+        absl::StrCat("coordinator ", request.coordinator, ": ", status.error_message()));
+  }
+  ASSIGN_OR_RETURN(CapacityTable table, CapacityFromProto(response));
+  return std::pair{std::move(table), static_cast<int>(response.pool_workers())};
 }
 
 absl::StatusOr<v1::ListWorkersResponse> ListWorkersRemote(const std::string& coordinator,

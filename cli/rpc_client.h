@@ -7,6 +7,7 @@
 #include <string>
 
 #include "absl/status/statusor.h"
+#include "core/capacity_table.h"
 #include "core/query.h"
 #include "rpc/tls.h"
 #include "schedule/slice_scheduler.h"
@@ -39,6 +40,23 @@ absl::StatusOr<TieredOutcome> OptimizeRemote(
 absl::StatusOr<ScheduleOutcome> OptimizeRemote(
     const RemoteRequest& request, const Query& query,
     const std::function<void(const ScheduleProgress&)>& on_progress);
+
+// The coordinator's capacity table for `query`: threads per worker and
+// rates as given (0: the coordinator's pool and measurement).
+struct RemoteCapacity {
+  std::string coordinator;  // HOST:PORT
+  TlsFiles tls;
+  std::string token_file;
+  SearchOptions options;
+  double deadline_seconds = 0;
+  int threads_per_worker = 0;
+  double seconds_per_split = 0;
+  double seconds_per_connected_set = 0;
+};
+// The table, checked (wire/capacity_proto.h), and the coordinator's
+// healthy workers. Errors: the coordinator's status as it came.
+absl::StatusOr<std::pair<CapacityTable, int>> CapacityRemote(const RemoteCapacity& request,
+                                                             const WideQuery& query);
 
 absl::StatusOr<v1::ListWorkersResponse> ListWorkersRemote(const std::string& coordinator,
                                                           const TlsFiles& tls = {},

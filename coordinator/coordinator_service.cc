@@ -1,13 +1,20 @@
 #include "coordinator/coordinator_service.h"
 
+#include <cmath>
+#include <tuple>
+
 #include "absl/strings/str_cat.h"
 #include "absl/synchronization/mutex.h"
+#include "core/capacity_table.h"
+#include "core/rate_calibration.h"
 #include "core/slice_planner.h"
 #include "core/status_macros.h"
 #include "rpc/call_deadline.h"
 #include "rpc/rpc_status.h"
 #include "schedule/tiered_search.h"
 #include "spdlog/spdlog.h"
+#include "tiers/join_forest.h"
+#include "wire/capacity_proto.h"
 #include "wire/query_proto.h"
 #include "wire/service_proto.h"
 #include "wire/tier_proto.h"
@@ -169,6 +176,80 @@ grpc::Status CoordinatorService::OptimizeStream(grpc::ServerContext* context,
   *event.mutable_result() = *std::move(result);
   absl::MutexLock lock(&write_mu);
   writer->Write(event);
+  return grpc::Status::OK;
+}
+
+absl::StatusOr<v1::CapacityResponse> CoordinatorService::Capacity(
+    const v1::CapacityRequest& request) {
+  if (!request.has_query()) return absl::InvalidArgumentError("query: missing");
+  auto query = WideQueryFromProto(request.query(), config_.limits);
+  if (!query.ok()) {
+    return absl::Status(query.status().code(), absl::StrCat("query.", query.status().message()));
+  }
+  ASSIGN_OR_RETURN(SearchOptions options, SearchOptionsFromProto(request.options()));
+  RETURN_IF_ERROR(ValidateSearchOptions(options));
+  int healthy = 0, threads = 0;
+  for (const auto& w : pool_.Workers()) {
+    if (!w->Healthy()) continue;
+    ++healthy;
+    threads = threads == 0 ? w->ThreadsPerSlice() : std::min(threads, w->ThreadsPerSlice());
+  }
+  if (request.threads_per_worker() > static_cast<uint32_t>(kCapacityMaxThreads)) {
+    return absl::InvalidArgumentError(absl::StrCat("threads_per_worker: at most ",
+                                                   kCapacityMaxThreads, ", got ",
+                                                   request.threads_per_worker()));
+  }
+  if (request.threads_per_worker() != 0) threads = static_cast<int>(request.threads_per_worker());
+  threads = std::max(threads, 1);
+  MachineRates rates;
+  for (const auto& [given, rate, name] :
+       {std::tuple{request.seconds_per_split(), &rates.dense_split_seconds, "seconds_per_split"},
+        std::tuple{request.seconds_per_connected_set(), &rates.connected_set_seconds,
+                   "seconds_per_connected_set"}}) {
+    if (given == 0) continue;
+    if (!(std::isfinite(given) && given > 0 && given < 1)) {
+      return absl::InvalidArgumentError(
+          absl::StrCat(name, ": a number of seconds in (0, 1), got ", given));
+    }
+    *rate = given;
+  }
+  if (!options.cross_products && !IsConnected(*query)) {
+    return absl::InvalidArgumentError(
+        "the join graph is not connected, so every plan has a cross product; ask with "
+        "cross products allowed");
+  }
+  CapacityTable table;
+  if (query->size() > kMaxRelations) {
+    if (!(std::isfinite(request.deadline_seconds()) && request.deadline_seconds() > 0)) {
+      return absl::InvalidArgumentError("deadline_seconds: must be a finite number > 0");
+    }
+    table = CapacityPastExact(query->size(), request.deadline_seconds(), threads);
+  } else {
+    const Query exact = *ToExactQuery(*query);
+    const bool given =
+        options.cross_products ? request.seconds_per_split() : request.seconds_per_connected_set();
+    if (given == 0) {
+      ASSIGN_OR_RETURN(const MachineRates measured, CalibrateRates(exact, options));
+      rates.dense_split_seconds = measured.dense_split_seconds;
+      rates.connected_set_seconds = measured.connected_set_seconds;
+    }
+    ASSIGN_OR_RETURN(
+        table, sliceplan::PlanCapacity(exact, options, request.deadline_seconds(), threads, rates));
+  }
+  v1::CapacityResponse out = CapacityToProto(table);
+  out.set_pool_workers(static_cast<uint32_t>(healthy));
+  spdlog::info("capacity: {} relations, deadline {:.3g} s, {} threads per worker: {}",
+               query->size(), request.deadline_seconds(), threads, table.summary);
+  return out;
+}
+
+grpc::Status CoordinatorService::PlanCapacity(grpc::ServerContext* context,
+                                              const v1::CapacityRequest* request,
+                                              v1::CapacityResponse* response) {
+  if (auto s = Authenticate(*context); !s.ok()) return ToGrpc(s);
+  auto out = Capacity(*request);
+  if (!out.ok()) return ToGrpc(out.status());
+  *response = *std::move(out);
   return grpc::Status::OK;
 }
 

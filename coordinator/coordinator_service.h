@@ -53,11 +53,17 @@ class CoordinatorService final : public v1::Coordinator::Service {
                         v1::OptimizeResponse* response) override;
   grpc::Status OptimizeStream(grpc::ServerContext* context, const v1::OptimizeRequest* request,
                               grpc::ServerWriter<v1::OptimizeEvent>* writer) override;
+  // The capacity planner's table for the request's query, with the pool's
+  // threads per worker and rates measured here unless the request gives
+  // them.
+  grpc::Status PlanCapacity(grpc::ServerContext* context, const v1::CapacityRequest* request,
+                            v1::CapacityResponse* response) override;
   grpc::Status ListWorkers(grpc::ServerContext* context, const v1::ListWorkersRequest* request,
                            v1::ListWorkersResponse* response) override;
 
  private:
   // UNAUTHENTICATED when tokens are configured and the call has none of them.
+  absl::StatusOr<v1::CapacityResponse> Capacity(const v1::CapacityRequest& request);
   absl::Status Authenticate(const grpc::ServerContext& context) const
       ABSL_LOCKS_EXCLUDED(tokens_mu_);
   absl::StatusOr<v1::OptimizeResponse> Run(

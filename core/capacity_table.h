@@ -29,7 +29,7 @@ struct CapacityRow {
   int workers = 1;
   uint32_t slices = 1;
   double seconds = 0;     // predicted wall time: rounds x the slowest slice
-  double memo_bytes = 0;  // per worker: its concurrent slices' memos
+  double memo_bytes = 0;  // per worker: the memo of the one slice it solves at a time
   bool fits_memo = true;  // each slice's memo within the memo limit
 };
 

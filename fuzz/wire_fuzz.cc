@@ -7,6 +7,7 @@
 
 #include "google/protobuf/stubs/logging.h"
 #include "sliceplan.pb.h"
+#include "wire/capacity_proto.h"
 #include "wire/query_proto.h"
 #include "wire/service_proto.h"
 
@@ -31,7 +32,7 @@ extern "C" int LLVMFuzzerTestOneInput(const uint8_t* data, size_t size) {
   if (size == 0) return 0;
   const std::string bytes(reinterpret_cast<const char*>(data) + 1, size - 1);
   using namespace sliceplan;
-  switch (data[0] % 5) {
+  switch (data[0] % 6) {
     case 0: {
       v1::OptimizeRequest m;
       if (!m.ParseFromString(bytes)) return 0;
@@ -60,6 +61,13 @@ extern "C" int LLVMFuzzerTestOneInput(const uint8_t* data, size_t size) {
       if (!m.ParseFromString(bytes)) return 0;
       auto options = SearchOptionsFromProto(m);
       if (options.ok()) (void)SearchOptionsFromProto(SearchOptionsToProto(*options));
+      break;
+    }
+    case 4: {
+      v1::CapacityResponse m;
+      if (!m.ParseFromString(bytes)) return 0;
+      auto table = CapacityFromProto(m);
+      if (table.ok()) (void)CapacityFromProto(CapacityToProto(*table));
       break;
     }
     default: {

@@ -220,6 +220,43 @@ TEST(ServiceTest, WorkersReportThreadsPerSliceAndConcurrentSlices) {
   EXPECT_NE(run.output.find("slices threads"), std::string::npos) << run.output;
 }
 
+TEST(ServiceTest, CapacityTableOverRpcEqualsTheLocalOne) {
+  std::vector<std::unique_ptr<ServerProcess>> workers;
+  workers.push_back(StartWorker({"--threads=2"}));
+  workers.push_back(StartWorker({"--threads=3"}));
+  auto coordinator = StartCoordinator(workers);
+  ASSERT_TRUE(coordinator);
+  const std::string query = std::string(SLICEPLAN_SOURCE_DIR) + "/examples/port_logistics.json";
+  const std::string common = std::string(SLICEPLAN_CLI_BIN) + " capacity " + query +
+                             " --deadline-seconds=0.3 --seconds-per-split=1e-9 --format=json";
+  // The pool's threads per worker: its slowest worker's, 2.
+  const testing::CommandResult remote =
+      testing::RunCommand(common + " --coordinator=" + coordinator->address());
+  const testing::CommandResult local = testing::RunCommand(common + " --threads-per-worker=2");
+  ASSERT_EQ(remote.exit_status, 0) << remote.output;
+  ASSERT_EQ(local.exit_status, 0) << local.output;
+  EXPECT_EQ(remote.output, local.output);
+  EXPECT_NE(remote.output.find("\"threads_per_worker\": 2"), std::string::npos) << remote.output;
+  EXPECT_EQ(remote.output.find("\"enough_workers\": null"), std::string::npos) << remote.output;
+
+  auto stub = v1::Coordinator::NewStub(
+      grpc::CreateChannel(coordinator->address(), grpc::InsecureChannelCredentials()));
+  v1::CapacityRequest r;
+  *r.mutable_query() = QueryToProto(testing::MakeQuery(GraphShape::kChain, 12, 1));
+  r.set_deadline_seconds(0);
+  grpc::ClientContext context;
+  v1::CapacityResponse out;
+  const grpc::Status bad = stub->PlanCapacity(&context, r, &out);
+  EXPECT_EQ(bad.error_code(), grpc::StatusCode::INVALID_ARGUMENT);
+  EXPECT_NE(bad.error_message().find("deadline"), std::string::npos) << bad.error_message();
+  r.set_deadline_seconds(1);
+  r.set_seconds_per_split(-1);
+  grpc::ClientContext context2;
+  const grpc::Status bad_rate = stub->PlanCapacity(&context2, r, &out);
+  EXPECT_EQ(bad_rate.error_code(), grpc::StatusCode::INVALID_ARGUMENT);
+  EXPECT_NE(bad_rate.error_message().find("seconds_per_split"), std::string::npos);
+}
+
 TEST(ServiceTest, AllWorkersDownIsUnavailableNotAHang) {
   auto w = StartWorker();
   ASSERT_TRUE(w);
