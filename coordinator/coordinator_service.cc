@@ -226,7 +226,7 @@ absl::StatusOr<v1::CapacityResponse> CoordinatorService::Capacity(
     table = CapacityPastExact(query->size(), request.deadline_seconds(), threads);
   } else {
     const Query exact = *ToExactQuery(*query);
-    const bool given =
+    const double given =
         options.cross_products ? request.seconds_per_split() : request.seconds_per_connected_set();
     if (given == 0) {
       ASSIGN_OR_RETURN(const MachineRates measured, CalibrateRates(exact, options));
