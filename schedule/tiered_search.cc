@@ -227,10 +227,17 @@ class TierRun {
   // The block size for the time left: the largest k whose predicted block
   // time, extrapolated from the last block (x3 per unit with cross
   // products, the growth of 3^k; x2 without, a tree block's 2^k bound),
-  // fits the blocks still to come.
+  // fits the blocks still to come. The largest block grows with the pool:
+  // 14 relations with cross products and 16 without on one slot (where a
+  // larger block cost 20x the time for little gain, docs/benchmarks.md),
+  // one more for every factor of the growth in slots, since a block's
+  // slices spread over them.
   int NextBlock(int last, double seconds) {
     const double growth = options_.cross_products ? 3.0 : 2.0;
-    const int most = std::min({query_.size(), options_.cross_products ? 14 : 16, kMaxRelations});
+    const int pool_extra =
+        static_cast<int>(std::floor(std::log(static_cast<double>(slots_)) / std::log(growth)));
+    const int most = std::min(
+        {query_.size(), (options_.cross_products ? 14 : 16) + pool_extra, kMaxRelations});
     const double remaining = 0.8 * Remaining();
     int best = 3;
     for (int k = 3; k <= std::min(most, last + 2); ++k) {
