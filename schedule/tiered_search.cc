@@ -236,8 +236,8 @@ class TierRun {
     const double growth = options_.cross_products ? 3.0 : 2.0;
     const int pool_extra =
         static_cast<int>(std::floor(std::log(static_cast<double>(slots_)) / std::log(growth)));
-    const int most = std::min(
-        {query_.size(), (options_.cross_products ? 14 : 16) + pool_extra, kMaxRelations});
+    const int most =
+        std::min({query_.size(), (options_.cross_products ? 14 : 16) + pool_extra, kMaxRelations});
     const double remaining = 0.8 * Remaining();
     int best = 3;
     for (int k = 3; k <= std::min(most, last + 2); ++k) {
