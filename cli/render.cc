@@ -29,6 +29,43 @@ std::string PhysicalLabel(const PlanNode& node, const Query& query) {
   return absl::StrFormat("%s join, %d nodes", StrategyName(node.strategy), node.nodes);
 }
 
+// A join strategy in a few letters, for one-line plans.
+std::string StrategyShort(JoinStrategy s) {
+  switch (s) {
+    case JoinStrategy::kShuffle:
+      return "shuffle";
+    case JoinStrategy::kBroadcastRight:
+      return "bcast-r";
+    case JoinStrategy::kBroadcastLeft:
+      return "bcast-l";
+  }
+  return "?";
+}
+
+void AppendPhysical(const Plan& plan, int i, const Query& query, std::string& out) {
+  const PlanNode& node = plan.nodes[i];
+  if (node.is_leaf()) {
+    out += NodeLabel(node, query);
+    if (node.sample_rate < 1) absl::StrAppendFormat(&out, "@%g", node.sample_rate);
+    return;
+  }
+  out += "(";
+  AppendPhysical(plan, node.left, query, out);
+  absl::StrAppendFormat(&out, " [%s %d] ", StrategyShort(node.strategy), node.nodes);
+  AppendPhysical(plan, node.right, query, out);
+  out += ")";
+}
+
+}  // namespace
+
+std::string PhysicalTreeString(const Plan& plan, const Query& query) {
+  std::string out;
+  AppendPhysical(plan, static_cast<int>(plan.nodes.size()) - 1, query, out);
+  return out;
+}
+
+namespace {
+
 struct TextLine {
   std::string head;  // indentation and label
   const PlanNode* node;
@@ -164,8 +201,12 @@ std::string RenderText(const TieredOutcome& outcome, const RunInfo& info) {
       const ClusterCosts& m = result.frontier[i].root().metrics;
       absl::StrAppendFormat(&out, "%s %4d  %12.4g  %14.4g  %12.4g  %s\n",
                             result.chosen == i ? "*" : " ", static_cast<int>(i), m.latency_s,
-                            m.node_seconds, m.completeness, TreeString(result.frontier[i], query));
+                            m.node_seconds, m.completeness,
+                            PhysicalTreeString(result.frontier[i], query));
     }
+    out +=
+        "\n  (name@r: a leaf sampled at rate r; [strategy n]: a join's strategy, shuffle or\n"
+        "  broadcast of the right or left side, on n rented nodes)\n";
     if (result.chosen) {
       absl::StrAppendFormat(&out, "\nchosen: plan %d (* above)\n\n",
                             static_cast<int>(*result.chosen));
@@ -238,6 +279,7 @@ std::string RenderJson(const TieredOutcome& outcome, const RunInfo& info) {
     for (size_t i = 0; i < result.frontier.size(); ++i) {
       const ClusterCosts& m = result.frontier[i].root().metrics;
       absl::StrAppend(&out, "    {\"tree\": ", JsonString(TreeString(result.frontier[i], query)),
+                      ", \"physical\": ", JsonString(PhysicalTreeString(result.frontier[i], query)),
                       ", \"costs\": {\"latency_s\": ", JsonNumber(m.latency_s),
                       ", \"node_seconds\": ", JsonNumber(m.node_seconds),
                       ", \"completeness\": ", JsonNumber(m.completeness), "}}",

@@ -28,6 +28,11 @@ std::string RenderText(const TieredOutcome& outcome, const RunInfo& info);
 std::string RenderJson(const TieredOutcome& outcome, const RunInfo& info);
 std::string RenderDot(const TieredOutcome& outcome, const RunInfo& info);
 
+// A cluster plan on one line with what tells frontier neighbours apart:
+// each sampled leaf as name@rate, each join as [strategy nodes], e.g.
+// "((berths@0.1 [shuffle 4] cranes) [bcast-r 16] moves)".
+std::string PhysicalTreeString(const Plan& plan, const Query& query);
+
 // Summary figures of the slices: the slowest slice and max/mean splits.
 struct SliceBalance {
   uint32_t slowest = 0;

@@ -96,6 +96,16 @@ ok = [p["costs"] for p in plans if p["costs"]["completeness"] >= 0.5]
 assert chosen["node_seconds"] == min(c["node_seconds"] for c in ok), (chosen, ok)
 svg = open(sys.argv[2]).read()
 assert svg.startswith("<svg") and svg.count("<title>") == len(plans), svg[:200]
+# Each plan's physical choices: one leaf per relation, one [strategy nodes]
+# per join, and no two frontier plans written alike.
+import re
+physical = [p["physical"] for p in plans]
+assert len(set(physical)) == len(physical), physical
+for p in plans:
+    joins = re.findall(r"\[(shuffle|bcast-r|bcast-l) (\d+)\]", p["physical"])
+    assert len(joins) == p["tree"].count("("), (p["physical"], p["tree"])
+    assert all(int(n) >= 1 for _, n in joins), p["physical"]
+assert any("@0.1" in p for p in physical), physical
 PY
 then passed=$((passed + 1)); else failed=$((failed + 1)); echo "FAIL cluster_json"; fi
 
