@@ -50,18 +50,41 @@ bool SolveWords(const SliceConstraints& constraints, Policy& policy, DirectMemo&
       const RelSet rest = set ^ lowest;
       auto acc = policy.Begin(s, set);
       uint64_t pairs = 0, tested = 0;
-      for (RelSet sub = 0; sub != rest; sub = (sub - rest) & rest) {
-        const RelSet left = sub | lowest, right = set ^ left;
+      // Offers the split with left part x | lowest if both parts are sets.
+      const auto test = [&](typename Policy::Acc a, RelSet x) {
+        const RelSet left = x | lowest, right = set ^ left;
         if (memo.Contains(left) && memo.Contains(right)) {
-          acc = policy.Offer(acc, static_cast<Slot>(left), static_cast<Slot>(right));
+          a = policy.Offer(a, static_cast<Slot>(left), static_cast<Slot>(right));
           if constexpr (!Policy::kSymmetric) {
-            acc = policy.Offer(acc, static_cast<Slot>(right), static_cast<Slot>(left));
+            a = policy.Offer(a, static_cast<Slot>(right), static_cast<Slot>(left));
           }
           ++pairs;
         }
-        if (++tested == kCheckEvery) {
-          tested = 0;
-          if (control.Tick(SearchControl::kTickWork)) return false;
+        return a;
+      };
+      if constexpr (TwoChains<Policy>) {
+        // The subsets of rest without its lowest relation to one
+        // accumulator, with it to another (dense_bushy.h); rest itself is
+        // no split.
+        const RelSet bit = LowestBit(rest), half = rest ^ bit;
+        auto other = policy.Empty();
+        for (RelSet sub = 0;; sub = (sub - half) & half) {
+          acc = test(acc, sub);
+          if (sub == half) break;
+          other = test(other, sub | bit);
+          if ((tested += 2) >= kCheckEvery) {
+            tested = 0;
+            if (control.Tick(SearchControl::kTickWork)) return false;
+          }
+        }
+        acc = policy.Merge(acc, other);
+      } else {
+        for (RelSet sub = 0; sub != rest; sub = (sub - rest) & rest) {
+          acc = test(acc, sub);
+          if (++tested == kCheckEvery) {
+            tested = 0;
+            if (control.Tick(SearchControl::kTickWork)) return false;
+          }
         }
       }
       if (pairs == 0) {

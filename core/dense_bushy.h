@@ -28,16 +28,6 @@ namespace dense_bushy_internal {
 #define SLICEPLAN_OFFER_(l) \
   a = policy.Offer(a, lb + static_cast<Slot>(l), rb + static_cast<Slot>(low ^ (l)))
 
-// Policies whose accumulators can be joined (Empty, Merge): their loops
-// keep two accumulators, so one split's min does not wait for the last
-// one's (the loop is bound by that chain's latency otherwise: 1.5 against
-// 0.9 ns per split at 18 relations, docs/benchmarks.md).
-template <class Policy>
-concept TwoChains = requires(const Policy& p, typename Policy::Acc a) {
-  { p.Empty() } -> std::same_as<typename Policy::Acc>;
-  { p.Merge(a, a) } -> std::same_as<typename Policy::Acc>;
-};
-
 // Offers (lb + l, rb + (low ^ l)) for every l within `low` (not empty), in
 // increasing order, without l = 0 when skip_empty and without l = low when
 // skip_full: the subsets without low's lowest relation go to one
