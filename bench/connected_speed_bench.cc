@@ -43,17 +43,6 @@ Run Best(const Query& q, bool cross_products) {
   return best;
 }
 
-bool ParseShape(const std::string& name, GraphShape& shape) {
-  for (GraphShape s : {GraphShape::kChain, GraphShape::kCycle, GraphShape::kStar,
-                       GraphShape::kClique, GraphShape::kRandom, GraphShape::kHyper}) {
-    if (testing::ShapeName(s) == name) {
-      shape = s;
-      return true;
-    }
-  }
-  return false;
-}
-
 // Set by --connected-only (profiling the connected search alone).
 bool connected_only = false;
 
@@ -93,7 +82,7 @@ int main(int argc, char** argv) {
     const std::vector<std::string> parts = absl::StrSplit(spec, ':');
     sliceplan::testing::GraphShape shape;
     int n = 0;
-    if (parts.size() != 2 || !sliceplan::ParseShape(parts[0], shape) ||
+    if (parts.size() != 2 || !sliceplan::testing::ShapeFromName(parts[0], shape) ||
         !absl::SimpleAtoi(parts[1], &n) || n < 2 || n > 64) {
       std::fprintf(stderr,
                    "bad spec %s: want SHAPE:N (chain, cycle, star, clique, random, hyper)\n",

@@ -42,17 +42,6 @@ Run Best(const Query& q, bool cross, uint32_t p, int threads) {
   return best;
 }
 
-bool ParseShape(const std::string& name, GraphShape& shape) {
-  for (GraphShape s : {GraphShape::kChain, GraphShape::kCycle, GraphShape::kStar,
-                       GraphShape::kClique, GraphShape::kRandom, GraphShape::kHyper}) {
-    if (testing::ShapeName(s) == name) {
-      shape = s;
-      return true;
-    }
-  }
-  return false;
-}
-
 }  // namespace
 }  // namespace sliceplan
 
@@ -68,9 +57,9 @@ int main(int argc, char** argv) {
     const std::vector<std::string> parts = absl::StrSplit(spec, ':');
     GraphShape shape;
     int n = 0, cross = 0, p = 0;
-    if (parts.size() != 4 || !ParseShape(parts[0], shape) || !absl::SimpleAtoi(parts[1], &n) ||
-        !absl::SimpleAtoi(parts[2], &cross) || !absl::SimpleAtoi(parts[3], &p) || n < 2 || n > 64 ||
-        p < 1) {
+    if (parts.size() != 4 || !testing::ShapeFromName(parts[0], shape) ||
+        !absl::SimpleAtoi(parts[1], &n) || !absl::SimpleAtoi(parts[2], &cross) ||
+        !absl::SimpleAtoi(parts[3], &p) || n < 2 || n > 64 || p < 1) {
       std::fprintf(stderr, "bad spec %s: want SHAPE:N:CROSS(0|1):P\n", spec.c_str());
       return 2;
     }

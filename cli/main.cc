@@ -17,7 +17,6 @@
 #include "cli/rpc_client.h"
 #include "core/capacity_table.h"
 #include "core/input_limits.h"
-#include "core/rate_calibration.h"
 #include "core/slice_planner.h"
 #include "core/status_macros.h"
 #include "core/wide_query.h"
@@ -138,20 +137,6 @@ int Optimize(const std::vector<std::string>& args) {
   return std::cout ? kExitOk : kExitFailure;
 }
 
-absl::StatusOr<CapacityTable> PlanFor(const CapacityConfig& config, const Query& query) {
-  MachineRates rates = config.rates;
-  if (!config.RateGiven()) {
-    ASSIGN_OR_RETURN(const MachineRates measured, CalibrateRates(query, config.search));
-    if (config.search.cross_products) {
-      rates.dense_split_seconds = measured.dense_split_seconds;
-    } else {
-      rates.connected_set_seconds = measured.connected_set_seconds;
-    }
-  }
-  return PlanCapacity(query, config.search, config.deadline_seconds,
-                      config.threads_per_worker.value_or(1), rates);
-}
-
 int Capacity(const std::vector<std::string>& args) {
   auto config = ParseCapacityArgs(args);
   if (!config.ok()) return Fail(config.status());
@@ -176,14 +161,12 @@ int Capacity(const std::vector<std::string>& args) {
     auto remote = CapacityRemote(request, *query);
     if (!remote.ok()) return Fail(remote.status());
     table = std::move(remote->first);
-    if (query->size() > kMaxRelations) info.calibrated = false;
-  } else if (query->size() > kMaxRelations) {
-    info.calibrated = false;
-    table = CapacityPastExact(query->size(), config->deadline_seconds,
-                              config->threads_per_worker.value_or(1));
   } else {
-    table = PlanFor(*config, *ToExactQuery(*query));
+    table =
+        PlanCapacityFor(*query, config->search, config->deadline_seconds,
+                        config->threads_per_worker.value_or(1), config->rates, config->RateGiven());
   }
+  if (query->size() > kMaxRelations) info.calibrated = false;
   if (!table.ok()) return Fail(table.status());
   if (!config->plot_path.empty()) {
     std::ofstream plot(config->plot_path);

@@ -6,7 +6,6 @@
 #include "absl/strings/str_cat.h"
 #include "absl/synchronization/mutex.h"
 #include "core/capacity_table.h"
-#include "core/rate_calibration.h"
 #include "core/slice_planner.h"
 #include "core/status_macros.h"
 #include "rpc/call_deadline.h"
@@ -188,12 +187,10 @@ absl::StatusOr<v1::CapacityResponse> CoordinatorService::Capacity(
   }
   ASSIGN_OR_RETURN(SearchOptions options, SearchOptionsFromProto(request.options()));
   RETURN_IF_ERROR(ValidateSearchOptions(options));
-  int healthy = 0, threads = 0;
-  for (const auto& w : pool_.Workers()) {
-    if (!w->Healthy()) continue;
-    ++healthy;
-    threads = threads == 0 ? w->ThreadsPerSlice() : std::min(threads, w->ThreadsPerSlice());
-  }
+  const auto pool = pool_.Workers();
+  const auto healthy =
+      std::count_if(pool.begin(), pool.end(), [](const auto& w) { return w->Healthy(); });
+  int threads = FewestThreadsPerSlice(pool);
   if (request.threads_per_worker() > static_cast<uint32_t>(kCapacityMaxThreads)) {
     return absl::InvalidArgumentError(absl::StrCat("threads_per_worker: at most ",
                                                    kCapacityMaxThreads, ", got ",
@@ -218,24 +215,11 @@ absl::StatusOr<v1::CapacityResponse> CoordinatorService::Capacity(
         "the join graph is not connected, so every plan has a cross product; ask with "
         "cross products allowed");
   }
-  CapacityTable table;
-  if (query->size() > kMaxRelations) {
-    if (!(std::isfinite(request.deadline_seconds()) && request.deadline_seconds() > 0)) {
-      return absl::InvalidArgumentError("deadline_seconds: must be a finite number > 0");
-    }
-    table = CapacityPastExact(query->size(), request.deadline_seconds(), threads);
-  } else {
-    const Query exact = *ToExactQuery(*query);
-    const double given =
-        options.cross_products ? request.seconds_per_split() : request.seconds_per_connected_set();
-    if (given == 0) {
-      ASSIGN_OR_RETURN(const MachineRates measured, CalibrateRates(exact, options));
-      rates.dense_split_seconds = measured.dense_split_seconds;
-      rates.connected_set_seconds = measured.connected_set_seconds;
-    }
-    ASSIGN_OR_RETURN(
-        table, sliceplan::PlanCapacity(exact, options, request.deadline_seconds(), threads, rates));
-  }
+  const double own_rate =
+      options.cross_products ? request.seconds_per_split() : request.seconds_per_connected_set();
+  ASSIGN_OR_RETURN(
+      const CapacityTable table,
+      PlanCapacityFor(*query, options, request.deadline_seconds(), threads, rates, own_rate != 0));
   v1::CapacityResponse out = CapacityToProto(table);
   out.set_pool_workers(static_cast<uint32_t>(healthy));
   spdlog::info("capacity: {} relations, deadline {:.3g} s, {} threads per worker: {}",

@@ -5,6 +5,8 @@
 
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_format.h"
+#include "core/rate_calibration.h"
+#include "core/status_macros.h"
 
 namespace sliceplan {
 namespace {
@@ -92,6 +94,28 @@ CapacityTable CapacityPastExact(int relations, double deadline_seconds, int thre
       "greedy%s, improved by idp (blocks searched exactly over the pool) until the deadline.",
       relations, kMaxRelations, relations <= kMaxLinearTierRelations ? " and linear" : "");
   return t;
+}
+
+absl::StatusOr<CapacityTable> PlanCapacityFor(const WideQuery& query, const SearchOptions& options,
+                                              double deadline_seconds, int threads_per_worker,
+                                              MachineRates rates, bool own_rate_given) {
+  if (query.size() > kMaxRelations) {
+    if (!std::isfinite(deadline_seconds) || !(deadline_seconds > 0)) {
+      return absl::InvalidArgumentError(
+          absl::StrCat("deadline: must be a finite number of seconds > 0, got ", deadline_seconds));
+    }
+    return CapacityPastExact(query.size(), deadline_seconds, threads_per_worker);
+  }
+  ASSIGN_OR_RETURN(const Query exact, ToExactQuery(query));
+  if (!own_rate_given) {
+    ASSIGN_OR_RETURN(const MachineRates measured, CalibrateRates(exact, options));
+    if (options.cross_products) {
+      rates.dense_split_seconds = measured.dense_split_seconds;
+    } else {
+      rates.connected_set_seconds = measured.connected_set_seconds;
+    }
+  }
+  return PlanCapacity(exact, options, deadline_seconds, threads_per_worker, rates);
 }
 
 }  // namespace sliceplan

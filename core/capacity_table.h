@@ -15,6 +15,7 @@
 #include "core/capacity_model.h"
 #include "core/query.h"
 #include "core/search_options.h"
+#include "core/wide_query.h"
 
 namespace sliceplan {
 
@@ -57,6 +58,15 @@ absl::StatusOr<CapacityTable> PlanCapacity(const Query& query, const SearchOptio
 // The answer for a query past the exact search's reach (more than
 // kMaxRelations relations): no rows, and a summary naming what auto does.
 CapacityTable CapacityPastExact(int relations, double deadline_seconds, int threads_per_worker);
+
+// The table for a query of any size, as the CLI and the coordinator answer
+// it: past kMaxRelations the rowless CapacityPastExact; else PlanCapacity
+// with the search's own rate (dense splits with cross products, connected
+// sets without) measured here by CalibrateRates unless `own_rate_given`.
+// Errors as PlanCapacity and CalibrateRates.
+absl::StatusOr<CapacityTable> PlanCapacityFor(const WideQuery& query, const SearchOptions& options,
+                                              double deadline_seconds, int threads_per_worker,
+                                              MachineRates rates, bool own_rate_given);
 
 }  // namespace sliceplan
 

@@ -5,6 +5,7 @@
 #ifndef SLICEPLAN_SCHEDULE_SLICE_WORKER_H_
 #define SLICEPLAN_SCHEDULE_SLICE_WORKER_H_
 
+#include <algorithm>
 #include <chrono>
 #include <functional>
 #include <memory>
@@ -50,6 +51,18 @@ class SliceWorker {
   // returned call must not be destroyed from inside `done`.
   virtual std::unique_ptr<SliceCall> Start(const SliceTask& task, SliceDone done) = 0;
 };
+
+// The threads per slice of the pool's slowest healthy worker (the fewest);
+// 0 when no worker is healthy. Works on any range of worker pointers.
+template <class Workers>
+int FewestThreadsPerSlice(const Workers& workers) {
+  int fewest = 0;
+  for (const auto& w : workers) {
+    if (!w->Healthy()) continue;
+    fewest = fewest == 0 ? w->ThreadsPerSlice() : std::min(fewest, w->ThreadsPerSlice());
+  }
+  return fewest;
+}
 
 }  // namespace sliceplan
 

@@ -29,12 +29,7 @@ double SecondsBetween(Clock::time_point a, Clock::time_point b) {
 // puts on one, whichever is more (remote workers set their own).
 SearchOptions ForecastOptions(const SearchOptions& options, std::span<SliceWorker* const> workers) {
   SearchOptions out = options;
-  int fewest = 0;
-  for (SliceWorker* w : workers) {
-    if (!w->Healthy()) continue;
-    fewest = fewest == 0 ? w->ThreadsPerSlice() : std::min(fewest, w->ThreadsPerSlice());
-  }
-  out.threads = std::max(options.threads, fewest);
+  out.threads = std::max(options.threads, FewestThreadsPerSlice(workers));
   return out;
 }
 

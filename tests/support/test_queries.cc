@@ -27,6 +27,17 @@ std::string ShapeName(GraphShape shape) {
   return "?";
 }
 
+bool ShapeFromName(const std::string& name, GraphShape& shape) {
+  for (GraphShape s : {GraphShape::kChain, GraphShape::kCycle, GraphShape::kStar,
+                       GraphShape::kClique, GraphShape::kRandom, GraphShape::kHyper}) {
+    if (ShapeName(s) == name) {
+      shape = s;
+      return true;
+    }
+  }
+  return false;
+}
+
 std::vector<std::vector<int>> ShapeEdges(GraphShape shape, int n, uint64_t seed) {
   std::vector<std::vector<int>> edges;
   switch (shape) {

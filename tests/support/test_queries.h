@@ -16,6 +16,8 @@ namespace sliceplan::testing {
 enum class GraphShape { kChain, kCycle, kStar, kClique, kRandom, kHyper };
 
 std::string ShapeName(GraphShape shape);
+// The shape ShapeName calls `name`; false for any other name.
+bool ShapeFromName(const std::string& name, GraphShape& shape);
 
 // The edges of a shape over n relations (kRandom: a random spanning tree
 // plus extra edges; kHyper: a chain plus one predicate over three relations).
