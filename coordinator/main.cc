@@ -20,6 +20,9 @@ ABSL_FLAG(std::string, tls_cert, "", "PEM certificate to serve TLS with (with --
 ABSL_FLAG(std::string, tls_key, "", "PEM private key of --tls-cert");
 ABSL_FLAG(std::string, tls_ca, "",
           "PEM CA: clients must present a certificate it signed (mutual TLS)");
+ABSL_FLAG(int, tls_reload_seconds, 10,
+          "re-read the TLS files this often, in seconds, so rotated certificates need no restart "
+          "(0: read once)");
 ABSL_FLAG(std::string, workers, "",
           "worker addresses HOST:PORT,... (a name with many addresses gives many workers)");
 ABSL_FLAG(double, hedge_after_seconds, 2.0,
@@ -99,7 +102,8 @@ int main(int argc, char** argv) {
   const std::string listen = absl::GetFlag(FLAGS_listen);
   const bool insecure = absl::GetFlag(FLAGS_insecure);
   const sliceplan::TlsFiles tls{absl::GetFlag(FLAGS_tls_cert), absl::GetFlag(FLAGS_tls_key),
-                                absl::GetFlag(FLAGS_tls_ca)};
+                                absl::GetFlag(FLAGS_tls_ca),
+                                absl::GetFlag(FLAGS_tls_reload_seconds)};
   sliceplan::ServeOptions serve;
   if (auto s = sliceplan::PrepareListener(listen, tls, insecure, "coordinator", serve); !s.ok()) {
     return Refuse(s);

@@ -7,6 +7,9 @@
 #include "core/input_limits.h"
 #include "core/status_macros.h"
 #include "core/user_text.h"
+#include "grpcpp/security/tls_certificate_provider.h"
+#include "grpcpp/security/tls_certificate_verifier.h"
+#include "grpcpp/security/tls_credentials_options.h"
 
 namespace sliceplan {
 namespace {
@@ -34,7 +37,46 @@ absl::Status CheckPair(const TlsFiles& files) {
     return absl::InvalidArgumentError(
         "--tls-cert and --tls-key: give both (a certificate and its private key) or neither");
   }
+  if (files.reload_seconds < 0 || files.reload_seconds > kMaxTlsReloadSeconds) {
+    return absl::InvalidArgumentError(absl::StrCat("--tls-reload-seconds: ", files.reload_seconds,
+                                                   " is outside 0..", kMaxTlsReloadSeconds));
+  }
   return absl::OkStatus();
+}
+
+using grpc::experimental::FileWatcherCertificateProvider;
+
+// A provider watching whichever of the identity pair and the CA are given
+// (at least one is).
+std::shared_ptr<grpc::experimental::CertificateProviderInterface> WatchFiles(
+    const TlsFiles& files) {
+  const auto seconds = static_cast<unsigned>(files.reload_seconds);
+  if (files.cert.empty())
+    return std::make_shared<FileWatcherCertificateProvider>(files.ca, seconds);
+  if (files.ca.empty()) {
+    return std::make_shared<FileWatcherCertificateProvider>(files.key, files.cert, seconds);
+  }
+  return std::make_shared<FileWatcherCertificateProvider>(files.key, files.cert, files.ca, seconds);
+}
+
+std::shared_ptr<grpc::ServerCredentials> WatchedServerCredentials(const TlsFiles& files) {
+  grpc::experimental::TlsServerCredentialsOptions options(WatchFiles(files));
+  options.watch_identity_key_cert_pairs();
+  if (!files.ca.empty()) {
+    options.watch_root_certs();
+    options.set_cert_request_type(GRPC_SSL_REQUEST_AND_REQUIRE_CLIENT_CERTIFICATE_AND_VERIFY);
+  }
+  return grpc::experimental::TlsServerCredentials(options);
+}
+
+std::shared_ptr<grpc::ChannelCredentials> WatchedChannelCredentials(const TlsFiles& files) {
+  grpc::experimental::TlsChannelCredentialsOptions options;
+  options.set_certificate_provider(WatchFiles(files));
+  if (!files.ca.empty()) options.watch_root_certs();  // else the system's roots
+  if (!files.cert.empty()) options.watch_identity_key_cert_pairs();
+  options.set_certificate_verifier(
+      std::make_shared<grpc::experimental::HostNameCertificateVerifier>());
+  return grpc::experimental::TlsCredentials(options);
 }
 
 }  // namespace
@@ -51,6 +93,7 @@ absl::StatusOr<std::shared_ptr<grpc::ServerCredentials>> ServerCredentialsFor(
   ASSIGN_OR_RETURN(const std::string cert, ReadPem(files.cert, "--tls-cert"));
   ASSIGN_OR_RETURN(const std::string key, ReadPem(files.key, "--tls-key"));
   ASSIGN_OR_RETURN(const std::string ca, ReadPem(files.ca, "--tls-ca"));
+  if (files.reload_seconds > 0) return WatchedServerCredentials(files);
   grpc::SslServerCredentialsOptions options(
       ca.empty() ? GRPC_SSL_DONT_REQUEST_CLIENT_CERTIFICATE
                  : GRPC_SSL_REQUEST_AND_REQUIRE_CLIENT_CERTIFICATE_AND_VERIFY);
@@ -67,6 +110,7 @@ absl::StatusOr<std::shared_ptr<grpc::ChannelCredentials>> ChannelCredentialsFor(
   ASSIGN_OR_RETURN(options.pem_root_certs, ReadPem(files.ca, "--tls-ca"));
   ASSIGN_OR_RETURN(options.pem_cert_chain, ReadPem(files.cert, "--tls-cert"));
   ASSIGN_OR_RETURN(options.pem_private_key, ReadPem(files.key, "--tls-key"));
+  if (files.reload_seconds > 0) return WatchedChannelCredentials(files);
   return grpc::SslCredentials(options);
 }
 

@@ -23,6 +23,9 @@ ABSL_FLAG(std::string, tls_cert, "", "PEM certificate to serve TLS with (with --
 ABSL_FLAG(std::string, tls_key, "", "PEM private key of --tls-cert");
 ABSL_FLAG(std::string, tls_ca, "",
           "PEM CA: clients must present a certificate it signed (mutual TLS)");
+ABSL_FLAG(int, tls_reload_seconds, 10,
+          "re-read the TLS files this often, in seconds, so rotated certificates need no restart "
+          "(0: read once)");
 ABSL_FLAG(int, threads, 0,
           "threads solving one slice together (0: the machine's cores over --concurrent-slices)");
 ABSL_FLAG(int, concurrent_slices, 1, "slices solved at once");
@@ -59,7 +62,8 @@ int main(int argc, char** argv) {
   spdlog::set_default_logger(spdlog::stderr_color_mt("sliceplan"));
   const std::string listen = absl::GetFlag(FLAGS_listen);
   const sliceplan::TlsFiles tls{absl::GetFlag(FLAGS_tls_cert), absl::GetFlag(FLAGS_tls_key),
-                                absl::GetFlag(FLAGS_tls_ca)};
+                                absl::GetFlag(FLAGS_tls_ca),
+                                absl::GetFlag(FLAGS_tls_reload_seconds)};
   sliceplan::ServeOptions serve;
   if (auto s =
           sliceplan::PrepareListener(listen, tls, absl::GetFlag(FLAGS_insecure), "worker", serve);

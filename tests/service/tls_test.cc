@@ -108,6 +108,51 @@ TEST_F(TlsTest, SighupReReadsTheTokenFile) {
   EXPECT_TRUE(Optimize(ClientTls(), tokens).ok());
 }
 
+// Certificates rotated on disk (a new CA, new server and client
+// certificates, swapped in by rename as a secret store does) are picked up
+// by the file watcher with no restart: clients of the new CA get a plan
+// through both servers, clients of the old one are turned away.
+TEST_F(TlsTest, RotatedCertificatesAreUsedWithoutARestart) {
+  const std::string root = *dir_ + "/rotation";
+  const std::string make = std::string(SLICEPLAN_SOURCE_DIR) + "/deploy/make-certs ";
+  ASSERT_EQ(std::system(
+                (make + root + "/old > /dev/null && " + make + root + "/new > /dev/null").c_str()),
+            0);
+  const std::string live = root + "/live/";
+  auto install = [&](const std::string& from) {  // copy aside, then rename into place
+    const std::string cmd = "mkdir -p " + live + " && for f in server.pem server.key ca.pem; do " +
+                            "cp " + root + "/" + from + "/$f " + live + "$f.next && mv " + live +
+                            "$f.next " + live + "$f; done";
+    ASSERT_EQ(std::system(cmd.c_str()), 0);
+  };
+  install("old");
+  const std::vector<std::string> tls = {"--tls-cert=" + live + "server.pem",
+                                        "--tls-key=" + live + "server.key",
+                                        "--tls-ca=" + live + "ca.pem", "--tls-reload-seconds=1"};
+  workers_.push_back(testing::StartWorker(tls));
+  ASSERT_TRUE(workers_.back());
+  std::vector<std::string> flags = tls;
+  flags.push_back("--token-file=" + File("tokens"));
+  coordinator_ = testing::StartCoordinator(workers_, flags);
+  ASSERT_TRUE(coordinator_);
+  auto client = [&](const char* set) {
+    const std::string d = root + "/" + set + "/";
+    return TlsFiles{d + "client.pem", d + "client.key", d + "ca.pem"};
+  };
+  ASSERT_TRUE(Optimize(client("old"), File("tokens")).ok());
+  EXPECT_FALSE(Optimize(client("new"), File("tokens")).ok());
+  install("new");
+  absl::Status fresh;
+  for (int i = 0; i < 100; ++i) {  // the watcher looks once a second: poll
+    fresh = Optimize(client("new"), File("tokens")).status();
+    if (fresh.ok()) break;
+    std::this_thread::sleep_for(std::chrono::milliseconds(100));
+  }
+  EXPECT_TRUE(fresh.ok()) << fresh;
+  EXPECT_EQ(Optimize(client("old"), File("tokens")).status().code(),
+            absl::StatusCode::kUnavailable);
+}
+
 TEST_F(TlsTest, PlaintextClientCannotTalkToATlsServer) {
   StartSecureCluster();
   EXPECT_EQ(Optimize({}, File("tokens")).status().code(), absl::StatusCode::kUnavailable);
@@ -132,8 +177,10 @@ TEST_F(TlsTest, TlsListenerMayBeOffHostAndBadFilesAreRefused) {
   for (const auto& [args, part] : std::vector<std::pair<std::string, std::string>>{
            {" --tls-cert=" + File("server.pem"), "give both"},
            {" --tls-cert=/nonexistent.pem --tls-key=" + File("server.key"), "cannot read"},
-           {" --tls-cert=" + File("tokens") + " --tls-key=" + File("server.key"),
-            "no PEM block"}}) {
+           {" --tls-cert=" + File("tokens") + " --tls-key=" + File("server.key"), "no PEM block"},
+           {" --tls-cert=" + File("server.pem") + " --tls-key=" + File("server.key") +
+                " --tls-reload-seconds=-1",
+            "--tls-reload-seconds: -1 is outside"}}) {
     const testing::CommandResult r = testing::RunCommand(bin + args + " 2>&1");
     EXPECT_EQ(r.exit_status, 2) << args;
     EXPECT_NE(r.output.find(part), std::string::npos) << r.output;
