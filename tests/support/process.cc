@@ -93,6 +93,14 @@ absl::StatusOr<int> ServerProcess::WaitExit(std::chrono::milliseconds timeout) {
   return absl::FailedPreconditionError("already reaped");
 }
 
+int64_t ServerProcess::RssBytes() const {
+  std::ifstream in(absl::StrCat("/proc/", pid_, "/status"));
+  for (std::string line; std::getline(in, line);) {
+    if (line.rfind("VmRSS:", 0) == 0) return std::stoll(line.substr(6)) * 1024;  // in kB
+  }
+  return 0;
+}
+
 double ServerProcess::CpuSeconds() const {
   std::ifstream in(absl::StrCat("/proc/", pid_, "/stat"));
   std::string text((std::istreambuf_iterator<char>(in)), std::istreambuf_iterator<char>());

@@ -8,6 +8,7 @@
 #include <sys/types.h>
 
 #include <chrono>
+#include <cstdint>
 #include <memory>
 #include <string>
 #include <vector>
@@ -42,6 +43,8 @@ class ServerProcess {
   absl::StatusOr<int> WaitExit(std::chrono::milliseconds timeout);
   // User plus system CPU time so far, from /proc/PID/stat.
   double CpuSeconds() const;
+  // Resident set size in bytes (VmRSS of /proc/PID/status); 0 once gone.
+  int64_t RssBytes() const;
   // The TCP ports it listens on, from /proc (its socket inodes matched
   // against the kernel's listening sockets, IPv4 and IPv6).
   std::vector<int> ListeningPorts() const;
