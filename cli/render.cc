@@ -303,7 +303,9 @@ std::string RenderJson(const TieredOutcome& outcome, const RunInfo& info) {
                   ",\n  \"tier_reason\": ", JsonString(outcome.reason), ",\n");
   absl::StrAppend(&out, "  \"stats\": {\n    \"slice_count\": ", result.slice_count,
                   ",\n    \"workers\": ", info.workers,
-                  ",\n    \"wall_seconds\": ", JsonNumber(outcome.wall_seconds));
+                  ",\n    \"wall_seconds\": ", JsonNumber(outcome.wall_seconds),
+                  ",\n    \"retries\": ", outcome.schedule.retries,
+                  ",\n    \"hedges\": ", outcome.schedule.hedges);
   if (outcome.idp.blocks > 0) {
     absl::StrAppend(&out, ",\n    \"idp\": {\"blocks\": ", outcome.idp.blocks,
                     ", \"improved\": ", outcome.idp.improved,
