@@ -88,11 +88,27 @@ class UnparsedRequestInterceptorFactory
   }
 };
 
+// The health-only plaintext server on `listen` (its port in `port`), or
+// null when it cannot be bound.
+std::unique_ptr<grpc::Server> StartHealthServer(const std::string& listen, int& port) {
+  grpc::ServerBuilder builder;
+  builder.AddListeningPort(listen, grpc::InsecureServerCredentials(), &port);
+  builder.AddChannelArgument(GRPC_ARG_ALLOW_REUSEPORT, 0);
+  builder.SetMaxReceiveMessageSize(4096);  // a health request is a service name
+  std::unique_ptr<grpc::Server> server = builder.BuildAndStart();
+  return port == 0 ? nullptr : std::move(server);
+}
+
 }  // namespace
 
 absl::Status Serve(const std::string& listen, const std::vector<grpc::Service*>& services,
                    const ServeOptions& options) {
   if (auto s = ValidateListenAddress(listen); !s.ok()) return s;
+  if (!options.health_listen.empty()) {
+    if (auto s = ValidateListenAddress(options.health_listen, "--health-listen"); !s.ok()) {
+      return s;
+    }
+  }
   const bool tls = options.credentials != nullptr;
   if (auto s = CheckPlaintextAllowed(listen, tls || options.allow_plaintext_off_host); !s.ok()) {
     return s;
@@ -118,8 +134,21 @@ absl::Status Serve(const std::string& listen, const std::vector<grpc::Service*>&
   if (!server || port == 0) {
     return absl::UnavailableError(absl::StrCat("cannot listen on ", listen));
   }
+  std::unique_ptr<grpc::Server> health;
+  int health_port = 0;
+  if (!options.health_listen.empty()) {
+    health = StartHealthServer(options.health_listen, health_port);
+    if (!health) {
+      server->Shutdown();
+      return absl::UnavailableError(absl::StrCat("cannot listen on ", options.health_listen));
+    }
+  }
   const std::string host = listen.substr(0, listen.rfind(':'));
   std::cout << "listening on " << host << ":" << port << std::endl;
+  if (health) {
+    const std::string& h = options.health_listen;
+    std::cout << "health on " << h.substr(0, h.rfind(':')) << ":" << health_port << std::endl;
+  }
 
   std::thread stopper([&] {
     sigset_t set;
@@ -135,6 +164,7 @@ absl::Status Serve(const std::string& listen, const std::vector<grpc::Service*>&
     // Refuses new calls at once; running ones finish (and answer) until
     // the grace period ends, when gRPC cancels them and every search sees
     // the cancel within its polling interval.
+    if (health) health->Shutdown(std::chrono::system_clock::now());  // probes fail from now on
     server->Shutdown(std::chrono::system_clock::now() + options.shutdown_grace);
   });
   server->Wait();

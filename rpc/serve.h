@@ -54,12 +54,18 @@ struct ServeOptions {
   std::function<void()> on_stop;
   // Runs on each SIGHUP (e.g. to re-read the token file); serving goes on.
   std::function<void()> on_reload;
+  // HOST:PORT of a second, plaintext listener serving grpc.health.v1 only
+  // (empty: none), for probes that cannot speak TLS (Kubernetes' built-in
+  // gRPC probe). It tells whether the server is up and nothing else, so it
+  // may listen off-host; it is announced as "health on HOST:PORT" after
+  // the listening line and stops with the server.
+  std::string health_listen;
 };
 
 // Serves `services` on `listen` until a stop signal. Errors:
 // INVALID_ARGUMENT for a malformed address or port, FAILED_PRECONDITION for
 // an off-host address without allow_plaintext_off_host, UNAVAILABLE when
-// the address cannot be bound.
+// an address cannot be bound.
 absl::Status Serve(const std::string& listen, const std::vector<grpc::Service*>& services,
                    const ServeOptions& options = {});
 

@@ -27,6 +27,9 @@ void ParseServerCommandLine(int argc, char** argv, const char* usage, const char
 absl::Status PrepareListener(const std::string& listen, const TlsFiles& tls, bool insecure,
                              const char* server, ServeOptions& serve) {
   RETURN_IF_ERROR(ValidateListenAddress(listen));
+  if (!serve.health_listen.empty()) {
+    RETURN_IF_ERROR(ValidateListenAddress(serve.health_listen, "--health-listen"));
+  }
   ASSIGN_OR_RETURN(std::shared_ptr<grpc::ServerCredentials> credentials, ServerCredentialsFor(tls));
   RETURN_IF_ERROR(CheckPlaintextAllowed(listen, tls.any() || insecure));
   if (tls.any()) serve.credentials = std::move(credentials);

@@ -19,6 +19,8 @@
 
 ABSL_FLAG(std::string, listen, "127.0.0.1:0", "address to serve on (port 0: any free port)");
 ABSL_FLAG(bool, insecure, false, "allow a plaintext listener on an address other than loopback");
+ABSL_FLAG(std::string, health_listen, "",
+          "also serve grpc.health.v1 alone, in plaintext, on HOST:PORT (for probes without TLS)");
 ABSL_FLAG(std::string, tls_cert, "", "PEM certificate to serve TLS with (with --tls-key)");
 ABSL_FLAG(std::string, tls_key, "", "PEM private key of --tls-cert");
 ABSL_FLAG(std::string, tls_ca, "",
@@ -65,6 +67,7 @@ int main(int argc, char** argv) {
                                 absl::GetFlag(FLAGS_tls_ca),
                                 absl::GetFlag(FLAGS_tls_reload_seconds)};
   sliceplan::ServeOptions serve;
+  serve.health_listen = absl::GetFlag(FLAGS_health_listen);
   if (auto s =
           sliceplan::PrepareListener(listen, tls, absl::GetFlag(FLAGS_insecure), "worker", serve);
       !s.ok()) {

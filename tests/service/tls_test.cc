@@ -12,7 +12,10 @@
 #include <thread>
 
 #include "cli/rpc_client.h"
+#include "grpc/health/v1/health.grpc.pb.h"
+#include "grpcpp/grpcpp.h"
 #include "gtest/gtest.h"
+#include "sliceplan.grpc.pb.h"
 #include "tests/support/process.h"
 #include "tests/support/servers.h"
 #include "tests/support/test_queries.h"
@@ -153,6 +156,40 @@ TEST_F(TlsTest, RotatedCertificatesAreUsedWithoutARestart) {
             absl::StatusCode::kUnavailable);
 }
 
+// A probe without TLS (Kubernetes' gRPC probe) reads the health of a TLS
+// server on its plaintext health port, which serves nothing else; the
+// health port goes with the server.
+TEST_F(TlsTest, HealthPortAnswersProbesInPlaintextAndNothingElse) {
+  std::vector<std::string> flags = ServerTls();
+  flags.push_back("--health-listen=127.0.0.1:0");
+  auto worker = testing::StartWorker(flags);
+  ASSERT_TRUE(worker);
+  auto health_address = worker->WaitForLine("health on ", std::chrono::seconds(5));
+  ASSERT_TRUE(health_address.ok()) << health_address.status();
+  auto channel = grpc::CreateChannel(*health_address, grpc::InsecureChannelCredentials());
+  auto probe = [&] {
+    grpc::health::v1::HealthCheckRequest request;
+    grpc::health::v1::HealthCheckResponse response;
+    grpc::ClientContext context;
+    context.set_deadline(std::chrono::system_clock::now() + std::chrono::seconds(2));
+    const grpc::Status s =
+        grpc::health::v1::Health::NewStub(channel)->Check(&context, request, &response);
+    return s.ok() ? response.status() : grpc::health::v1::HealthCheckResponse::UNKNOWN;
+  };
+  EXPECT_EQ(probe(), grpc::health::v1::HealthCheckResponse::SERVING);
+  // The worker's own service is not there.
+  v1::DescribeWorkerRequest describe;
+  v1::DescribeWorkerResponse described;
+  grpc::ClientContext context;
+  EXPECT_EQ(v1::SliceWorker::NewStub(channel)
+                ->DescribeWorker(&context, describe, &described)
+                .error_code(),
+            grpc::StatusCode::UNIMPLEMENTED);
+  worker->Signal(SIGTERM);
+  ASSERT_TRUE(worker->WaitExit(std::chrono::seconds(10)).ok());
+  EXPECT_NE(probe(), grpc::health::v1::HealthCheckResponse::SERVING);
+}
+
 TEST_F(TlsTest, PlaintextClientCannotTalkToATlsServer) {
   StartSecureCluster();
   EXPECT_EQ(Optimize({}, File("tokens")).status().code(), absl::StatusCode::kUnavailable);
@@ -180,7 +217,8 @@ TEST_F(TlsTest, TlsListenerMayBeOffHostAndBadFilesAreRefused) {
            {" --tls-cert=" + File("tokens") + " --tls-key=" + File("server.key"), "no PEM block"},
            {" --tls-cert=" + File("server.pem") + " --tls-key=" + File("server.key") +
                 " --tls-reload-seconds=-1",
-            "--tls-reload-seconds: -1 is outside"}}) {
+            "--tls-reload-seconds: -1 is outside"},
+           {" --health-listen=nowhere", "--health-listen: \"nowhere\" is not HOST:PORT"}}) {
     const testing::CommandResult r = testing::RunCommand(bin + args + " 2>&1");
     EXPECT_EQ(r.exit_status, 2) << args;
     EXPECT_NE(r.output.find(part), std::string::npos) << r.output;

@@ -48,24 +48,35 @@ absl::StatusOr<std::unique_ptr<ServerProcess>> ServerProcess::Start(
   }
   close(pipe_fds[1]);
   std::unique_ptr<ServerProcess> proc(new ServerProcess(pid, pipe_fds[0]));
+  auto address = proc->WaitForLine("listening on ", timeout);
+  if (!address.ok()) {
+    return absl::DeadlineExceededError(absl::StrCat(argv[0], " ", address.status().message()));
+  }
+  proc->address_ = *address;
+  return proc;
+}
+
+absl::StatusOr<std::string> ServerProcess::WaitForLine(const std::string& prefix,
+                                                       std::chrono::milliseconds timeout) {
   const auto end = std::chrono::steady_clock::now() + timeout;
-  std::string seen;
-  while (std::chrono::steady_clock::now() < end) {
-    pollfd p{proc->out_, POLLIN, 0};
+  for (;;) {
+    const size_t at = unread_.find(prefix);
+    const size_t nl = at == std::string::npos ? at : unread_.find('\n', at);
+    if (nl != std::string::npos) {
+      std::string rest = unread_.substr(at + prefix.size(), nl - at - prefix.size());
+      unread_.erase(0, nl + 1);
+      return rest;
+    }
+    if (std::chrono::steady_clock::now() >= end) break;
+    pollfd p{out_, POLLIN, 0};
     if (poll(&p, 1, 50) <= 0) continue;
     char buf[256];
-    const ssize_t n = read(proc->out_, buf, sizeof buf);
+    const ssize_t n = read(out_, buf, sizeof buf);
     if (n <= 0) break;
-    seen.append(buf, static_cast<size_t>(n));
-    const size_t at = seen.find("listening on ");
-    const size_t nl = at == std::string::npos ? at : seen.find('\n', at);
-    if (nl != std::string::npos) {
-      proc->address_ = seen.substr(at + 13, nl - at - 13);
-      return proc;
-    }
+    unread_.append(buf, static_cast<size_t>(n));
   }
   return absl::DeadlineExceededError(
-      absl::StrCat(argv[0], " printed no listening line; it said: ", seen));
+      absl::StrCat("printed no \"", prefix, "\" line; it said: ", unread_));
 }
 
 void ServerProcess::Signal(int sig) {

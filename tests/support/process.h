@@ -36,6 +36,10 @@ class ServerProcess {
   ~ServerProcess();
 
   const std::string& address() const { return address_; }
+  // The rest of the next stdout line starting with `prefix` (e.g. "health
+  // on "), waiting up to `timeout`; DEADLINE_EXCEEDED naming what it said.
+  absl::StatusOr<std::string> WaitForLine(const std::string& prefix,
+                                          std::chrono::milliseconds timeout);
   // Sends `sig` (e.g. SIGKILL) and, for SIGKILL, waits for the exit.
   void Signal(int sig);
   // Waits up to `timeout` for the process to exit; its exit status (or
@@ -56,6 +60,7 @@ class ServerProcess {
   int out_;
   bool reaped_ = false;
   std::string address_;
+  std::string unread_;  // stdout read but not yet matched
 };
 
 }  // namespace sliceplan::testing
