@@ -1,8 +1,11 @@
 # SLICEPLAN_SANITIZE=ON builds everything with AddressSanitizer and
-# UndefinedBehaviorSanitizer (the `debug` preset).
+# UndefinedBehaviorSanitizer (the `debug` preset). Undefined behaviour
+# aborts (no recovery), so a finding fails its test instead of scrolling
+# past in a passing test's output.
 option(SLICEPLAN_SANITIZE "Build with ASan and UBSan" OFF)
 if(SLICEPLAN_SANITIZE)
-  add_compile_options(-fsanitize=address,undefined -fno-omit-frame-pointer)
+  add_compile_options(-fsanitize=address,undefined -fno-sanitize-recover=undefined
+                      -fno-omit-frame-pointer)
   add_link_options(-fsanitize=address,undefined)
 endif()
 

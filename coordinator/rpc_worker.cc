@@ -63,7 +63,8 @@ class RpcCall : public SliceCall {
 
 }  // namespace
 
-RpcWorker::RpcWorker(std::string address, std::shared_ptr<grpc::ChannelCredentials> credentials)
+RpcWorker::RpcWorker(std::string address, std::shared_ptr<grpc::ChannelCredentials> credentials,
+                     const std::string& tls_name)
     : address_(std::move(address)) {
   grpc::ChannelArguments args;
   args.SetMaxReceiveMessageSize(64 << 20);
@@ -71,7 +72,9 @@ RpcWorker::RpcWorker(std::string address, std::shared_ptr<grpc::ChannelCredentia
   // Reconnect quickly after a worker restarts.
   args.SetInt(GRPC_ARG_INITIAL_RECONNECT_BACKOFF_MS, 100);
   args.SetInt(GRPC_ARG_MAX_RECONNECT_BACKOFF_MS, 1000);
-  // Workers are dialled by IP: TLS verifies the certificate's IP names.
+  // Workers are dialled by IP: TLS verifies the certificate's IP names,
+  // or the DNS name they were found through.
+  if (credentials && !tls_name.empty()) args.SetSslTargetNameOverride(tls_name);
   channel_ = grpc::CreateCustomChannel(
       address_, credentials ? credentials : grpc::InsecureChannelCredentials(), args);
   stub_ = v1::SliceWorker::NewStub(channel_);

@@ -29,8 +29,12 @@ struct WorkerCounters {
 class RpcWorker : public SliceWorker {
  public:
   // `credentials`: how to reach the worker (rpc/tls.h); null: plaintext.
+  // `tls_name`: the name its certificate must carry when it is not the
+  // address (a worker found through a DNS name is dialled by IP but
+  // verified against that name); empty: the address.
   explicit RpcWorker(std::string address,
-                     std::shared_ptr<grpc::ChannelCredentials> credentials = nullptr);
+                     std::shared_ptr<grpc::ChannelCredentials> credentials = nullptr,
+                     const std::string& tls_name = "");
 
   std::string Name() const override { return address_; }
   int Slots() const override { return slots_.load(); }

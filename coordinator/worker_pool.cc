@@ -9,6 +9,7 @@
 
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_split.h"
+#include "spdlog/spdlog.h"
 
 namespace sliceplan {
 
@@ -27,18 +28,34 @@ absl::StatusOr<std::vector<std::string>> ParseWorkerList(const std::string& list
   return out;
 }
 
-std::vector<std::string> ResolveEntry(const std::string& entry) {
-  const size_t colon = entry.rfind(':');
-  std::string host = entry.substr(0, colon);
-  const std::string port = entry.substr(colon + 1);
+namespace {
+
+std::string HostOf(const std::string& entry) {
+  std::string host = entry.substr(0, entry.rfind(':'));
   if (host.size() > 2 && host.front() == '[' && host.back() == ']') {
     host = host.substr(1, host.size() - 2);
   }
+  return host;
+}
+
+}  // namespace
+
+std::string EntryHostName(const std::string& entry) {
+  const std::string host = HostOf(entry);
+  in6_addr ip{};
+  const bool literal =
+      inet_pton(AF_INET, host.c_str(), &ip) == 1 || inet_pton(AF_INET6, host.c_str(), &ip) == 1;
+  return literal ? "" : host;
+}
+
+std::optional<std::vector<std::string>> ResolveEntry(const std::string& entry) {
+  const std::string host = HostOf(entry);
+  const std::string port = entry.substr(entry.rfind(':') + 1);
   addrinfo hints{};
   hints.ai_family = AF_UNSPEC;
   hints.ai_socktype = SOCK_STREAM;
   addrinfo* found = nullptr;
-  if (getaddrinfo(host.c_str(), port.c_str(), &hints, &found) != 0) return {entry};
+  if (getaddrinfo(host.c_str(), port.c_str(), &hints, &found) != 0) return std::nullopt;
   std::set<std::string> out;
   for (addrinfo* a = found; a != nullptr; a = a->ai_next) {
     char text[INET6_ADDRSTRLEN] = {};
@@ -52,13 +69,18 @@ std::vector<std::string> ResolveEntry(const std::string& entry) {
     }
   }
   freeaddrinfo(found);
-  if (out.empty()) return {entry};
-  return {out.begin(), out.end()};
+  if (out.empty()) return std::nullopt;
+  return std::vector<std::string>(out.begin(), out.end());
 }
 
 WorkerPool::WorkerPool(std::vector<std::string> entries, std::chrono::milliseconds interval,
-                       std::shared_ptr<grpc::ChannelCredentials> credentials)
-    : entries_(std::move(entries)), interval_(interval), credentials_(std::move(credentials)) {
+                       std::shared_ptr<grpc::ChannelCredentials> credentials, Resolver resolve)
+    : entries_(std::move(entries)),
+      interval_(interval),
+      credentials_(std::move(credentials)),
+      resolve_(std::move(resolve)) {
+  // Until a name resolves, the entry itself (gRPC keeps trying it).
+  for (const std::string& e : entries_) resolved_.push_back({e});
   Refresh();
   thread_ = std::thread([this] { Loop(); });
 }
@@ -77,16 +99,32 @@ std::vector<std::shared_ptr<RpcWorker>> WorkerPool::Workers() const {
 }
 
 void WorkerPool::Refresh() {
-  std::vector<std::string> addresses;
-  for (const std::string& e : entries_) {
-    for (std::string& a : ResolveEntry(e)) addresses.push_back(std::move(a));
+  std::vector<std::pair<std::string, std::string>> wanted;  // address, TLS name
+  for (size_t i = 0; i < entries_.size(); ++i) {
+    if (auto now = resolve_(entries_[i])) resolved_[i] = *std::move(now);
+    for (const std::string& a : resolved_[i]) wanted.emplace_back(a, EntryHostName(entries_[i]));
   }
+  const auto is_wanted = [&](const std::string& address) {
+    return std::any_of(wanted.begin(), wanted.end(),
+                       [&](const auto& w) { return w.first == address; });
+  };
   absl::MutexLock lock(&mu_);
-  for (const std::string& a : addresses) {
-    const bool known = std::any_of(workers_.begin(), workers_.end(),
-                                   [&](const auto& w) { return w->Name() == a; });
-    if (!known) workers_.push_back(std::make_shared<RpcWorker>(a, credentials_));
+  for (auto it = workers_.begin(); it != workers_.end();) {
+    if (is_wanted((*it)->Name())) {
+      ++it;
+      continue;
+    }
+    spdlog::info("pool: {} left (no longer resolved); no new slices go to it", (*it)->Name());
+    it = workers_.erase(it);
   }
+  for (const auto& [address, tls_name] : wanted) {
+    const bool known = std::any_of(workers_.begin(), workers_.end(),
+                                   [&](const auto& w) { return w->Name() == address; });
+    if (known) continue;
+    if (!first_refresh_) spdlog::info("pool: {} joined", address);
+    workers_.push_back(std::make_shared<RpcWorker>(address, credentials_, tls_name));
+  }
+  first_refresh_ = false;
 }
 
 void WorkerPool::CheckNow() {

@@ -190,6 +190,37 @@ TEST_F(TlsTest, HealthPortAnswersProbesInPlaintextAndNothingElse) {
   EXPECT_NE(probe(), grpc::health::v1::HealthCheckResponse::SERVING);
 }
 
+// A worker found through a name (a headless service's DNS name, here
+// localhost) is dialled by IP but checked against the name: certificates
+// naming only DNS:localhost work through "localhost:PORT", and the same
+// worker given by IP is refused (its certificate has no IP name).
+TEST_F(TlsTest, WorkersFoundByNameAreCheckedAgainstTheName) {
+  const std::string dir = *dir_ + "/by-name";
+  const std::string cmd = "SLICEPLAN_CERT_NAMES=DNS:localhost " +
+                          std::string(SLICEPLAN_SOURCE_DIR) + "/deploy/make-certs " + dir +
+                          " > /dev/null";
+  ASSERT_EQ(std::system(cmd.c_str()), 0);
+  const std::vector<std::string> tls = {"--tls-cert=" + dir + "/server.pem",
+                                        "--tls-key=" + dir + "/server.key",
+                                        "--tls-ca=" + dir + "/ca.pem"};
+  workers_.push_back(testing::StartWorker(tls));
+  ASSERT_TRUE(workers_.back());
+  const std::string port = workers_[0]->address().substr(workers_[0]->address().rfind(':'));
+  const TlsFiles client{dir + "/client.pem", dir + "/client.key", dir + "/ca.pem"};
+  auto optimize_through = [&](const std::string& worker_entry) {
+    auto coordinator = testing::StartCoordinator({}, tls, worker_entry);
+    EXPECT_TRUE(coordinator);
+    if (!coordinator) return absl::InternalError("no coordinator");
+    const std::string name =
+        "localhost" + coordinator->address().substr(coordinator->address().rfind(':'));
+    cli::RemoteRequest r{name, {}, 2, 20, false, client, ""};
+    return cli::OptimizeRemote(r, testing::MakeQuery(testing::GraphShape::kChain, 8, 1), {})
+        .status();
+  };
+  EXPECT_TRUE(optimize_through("localhost" + port).ok());
+  EXPECT_EQ(optimize_through("127.0.0.1" + port).code(), absl::StatusCode::kUnavailable);
+}
+
 TEST_F(TlsTest, PlaintextClientCannotTalkToATlsServer) {
   StartSecureCluster();
   EXPECT_EQ(Optimize({}, File("tokens")).status().code(), absl::StatusCode::kUnavailable);
