@@ -117,12 +117,13 @@ void WorkerPool::Refresh() {
     spdlog::info("pool: {} left (no longer resolved); no new slices go to it", (*it)->Name());
     it = workers_.erase(it);
   }
-  for (const auto& [address, tls_name] : wanted) {
+  for (const auto& want : wanted) {  // no structured binding: clang 14 cannot capture one
+    const std::string& address = want.first;
     const bool known = std::any_of(workers_.begin(), workers_.end(),
                                    [&](const auto& w) { return w->Name() == address; });
     if (known) continue;
     if (!first_refresh_) spdlog::info("pool: {} joined", address);
-    workers_.push_back(std::make_shared<RpcWorker>(address, credentials_, tls_name));
+    workers_.push_back(std::make_shared<RpcWorker>(address, credentials_, want.second));
   }
   first_refresh_ = false;
 }
