@@ -130,41 +130,6 @@ constexpr int kMaxTextTableRelations = 64;
 
 }  // namespace
 
-std::string JsonNumber(double x) {
-  if (!(x == x) || x == 1.0 / 0.0 || x == -1.0 / 0.0) return "null";
-  return absl::StrFormat("%.17g", x);
-}
-
-std::string JsonString(const std::string& s) {
-  std::string out = "\"";
-  for (const char c : s) {
-    switch (c) {
-      case '"':
-        out += "\\\"";
-        break;
-      case '\\':
-        out += "\\\\";
-        break;
-      case '\n':
-        out += "\\n";
-        break;
-      case '\t':
-        out += "\\t";
-        break;
-      case '\r':
-        out += "\\r";
-        break;
-      default:
-        if (static_cast<unsigned char>(c) < 0x20) {
-          absl::StrAppendFormat(&out, "\\u%04x", c);
-        } else {
-          out += c;
-        }
-    }
-  }
-  return out + "\"";
-}
-
 SliceBalance Balance(const OptimizeResult& result) {
   SliceBalance b;
   double total = 0, most = 0;

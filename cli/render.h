@@ -6,6 +6,7 @@
 #include <string>
 
 #include "cli/cli_config.h"
+#include "core/json_text.h"
 #include "core/merge.h"
 #include "core/query.h"
 #include "core/wide_query.h"
@@ -40,12 +41,6 @@ struct SliceBalance {
   double max_over_mean_splits = 1;
 };
 SliceBalance Balance(const OptimizeResult& result);
-
-// A JSON string literal with the escapes of RFC 8259.
-std::string JsonString(const std::string& s);
-// A JSON number: %.17g round-trips a double; JSON has no inf or nan, so
-// those become null.
-std::string JsonNumber(double x);
 
 }  // namespace sliceplan::cli
 
