@@ -13,7 +13,13 @@
 #   cut       worker 1's link reset at 1 s and refused for 3 s;
 #   kill      worker 2 killed (SIGKILL);
 #   freeze    worker 3 stopped (SIGSTOP), resumed 5 s later (slices are
-#             hedged after 3 s).
+#             hedged after 3 s);
+#   discovery the coordinator knows the workers only by a DNS name (the
+#             namespace's own hosts file, which ip-netns binds over
+#             /etc/hosts), first workers 1 and 2; at 1 s the name moves to
+#             workers 2 and 3. The pool listing must then show worker 3
+#             healthy and worker 1 gone (worker 1 finishes the slices it
+#             runs: a drained worker is not cut off).
 #
 # Every run must return the embedded optimum (same cost, same tree), within
 # its deadline; every server must then stop on SIGTERM by itself, and no
@@ -37,12 +43,20 @@ pids=()
 cleanup() {
   for p in "${pids[@]}"; do kill -CONT "$p" 2>/dev/null; kill -KILL "$p" 2>/dev/null; done
   for n in "${namespaces[@]}"; do ip netns del "$n" 2>/dev/null; done
-  rm -rf "$state"
+  rm -rf "$state" "/etc/netns/$tag-c"
 }
 trap cleanup EXIT
 ip netns add "$tag-c" 2>/dev/null || skip "cannot make a network namespace here"
 namespaces+=("$tag-c")
 ip -n "$tag-c" link set lo up
+# The coordinator's own name service: ip-netns binds these over /etc.
+mkdir -p "/etc/netns/$tag-c"
+echo "multi on" >"/etc/netns/$tag-c/host.conf"
+name_workers() {  # name_workers K...: workers.sliceplan.test -> 10.213.K.2, in place
+  { echo "127.0.0.1 localhost"; for k in "$@"; do echo "10.213.$k.2 workers.sliceplan.test"; done; } \
+    >"/etc/netns/$tag-c/hosts"
+}
+name_workers 1 2
 for k in 1 2 3; do
   ip netns add "$tag-w$k" && namespaces+=("$tag-w$k") || skip "cannot make namespace $k"
   ip -n "$tag-w$k" link set lo up
@@ -106,10 +120,18 @@ run() {  # run NAME [PROXY FLAGS...]: one optimization under one fault
     --workers="$(address_in "$state/proxy.out" "proxy on"),10.213.2.2:7000,10.213.3.2:7000" ||
     return 1
   local coordinator=$started
+  if [ "$name" = discovery ]; then  # the same servers, reached by name only
+    kill -TERM "$coordinator"
+    start "$state/c.out" "listening on" ip netns exec "$tag-c" \
+      "$build/coordinator/sliceplan-coordinator" --listen=127.0.0.1:0 --health_interval_ms=200 \
+      --hedge_after_seconds=3 --workers=workers.sliceplan.test:7000 || return 1
+    coordinator=$started
+  fi
   local fault=""
   case $name in
     kill) (sleep 1 && kill -KILL "${w[1]}") & fault=$! ;;
     freeze) (sleep 1 && kill -STOP "${w[2]}" && sleep 5 && kill -CONT "${w[2]}") & fault=$! ;;
+    discovery) (sleep 1 && name_workers 2 3) & fault=$! ;;
   esac
   local t0 got t1
   t0=$(date +%s.%N)
@@ -121,6 +143,11 @@ run() {  # run NAME [PROXY FLAGS...]: one optimization under one fault
   got=${got%$'\n'*}
   read -r retries hedges <<<"$faults"
   [ -z "$fault" ] || wait "$fault"
+  local pool=""
+  if [ "$name" = discovery ]; then
+    pool=$(ip netns exec "$tag-c" "$build/cli/sliceplan" workers \
+      --coordinator="$(address_in "$state/c.out" "listening on")")
+  fi
   local wall
   wall=$(awk -v a="$t0" -v b="$t1" 'BEGIN { printf "%.2f", b - a }')
   # Clean stop: SIGTERM, and each server gone within its grace period.
@@ -141,6 +168,11 @@ run() {  # run NAME [PROXY FLAGS...]: one optimization under one fault
     none) [ "${retries:-1}" = 0 ] && [ "${hedges:-1}" = 0 ] || hit=0 ;;
     cut | kill) [ "${retries:-0}" -gt 0 ] || hit=0 ;;
     freeze) [ "${hedges:-0}" -gt 0 ] || [ "${retries:-0}" -gt 0 ] || hit=0 ;;
+    discovery)
+      # Worker 3 joined (healthy, for the next request: a running request
+      # keeps the workers it started with); worker 1 left the pool.
+      grep -Eq '^10\.213\.3\.2:7000 +healthy ' <<<"$pool" || hit=0
+      ! grep -q '10\.213\.1\.2' <<<"$pool" || hit=0 ;;
   esac
   if [ "$got" = "$want" ] && [ $hit = 1 ] && awk -v w="$wall" -v d=$deadline 'BEGIN { exit !(w < d) }' && [ $left = 0 ]; then
     passed=$((passed + 1))
@@ -150,6 +182,7 @@ run() {  # run NAME [PROXY FLAGS...]: one optimization under one fault
     failed=$((failed + 1))
     printf 'FAIL  %-7s %5s s, %d processes left, fault hit: %d; got "%s", want "%s"\n' \
       "$name" "$wall" "$left" "$hit" "$got" "$want"
+    [ -z "$pool" ] || echo "$pool"
     cat "$state/c.out.err" | tail -5
   fi
 }
@@ -159,5 +192,6 @@ run delay --delay-ms=40 --stall-prob=0.05 --stall-ms=200
 run cut --cut-at=1 --cut-for=3
 run kill
 run freeze
+run discovery
 echo "$passed passed, $failed failed"
 [ $failed = 0 ]
