@@ -44,7 +44,13 @@ class Admission {
                      const std::function<bool()>& cancelled, std::optional<Ticket>& ticket)
       ABSL_LOCKS_EXCLUDED(mu_);
 
-  // Requests waiting now (tests, logs).
+  // Requests running now (metrics).
+  int running() const ABSL_LOCKS_EXCLUDED(mu_) {
+    absl::MutexLock lock(&mu_);
+    return running_;
+  }
+
+  // Requests waiting now (tests, logs, metrics).
   int queued() const ABSL_LOCKS_EXCLUDED(mu_) {
     absl::MutexLock lock(&mu_);
     return queued_;

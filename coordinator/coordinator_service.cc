@@ -9,7 +9,10 @@
 #include "core/slice_planner.h"
 #include "core/status_macros.h"
 #include "rpc/call_deadline.h"
+#include "rpc/outcome_label.h"
+#include "rpc/request_id.h"
 #include "rpc/rpc_status.h"
+#include "rpc/server_log.h"
 #include "schedule/tiered_search.h"
 #include "spdlog/spdlog.h"
 #include "tiers/join_forest.h"
@@ -42,19 +45,45 @@ absl::Status ValidateRequest(const v1::OptimizeRequest& request) {
   return absl::OkStatus();
 }
 
+// The request's one log line: who asked what, which tier answered, how.
+void LogRequest(const std::string& request_id, const RequestFacts& facts,
+                const absl::StatusOr<TieredOutcome>& outcome, double wall) {
+  LogEvent line("optimize");
+  line.Add("request_id", request_id)
+      .Add("outcome", OutcomeLabel(outcome.status()))
+      .Add("relations", facts.relations)
+      .Add("tier", TierName(outcome.ok() ? outcome->tier : facts.asked))
+      .Add("workers", facts.workers)
+      .Add("slots", facts.slots);
+  if (outcome.ok()) {
+    line.Add("proven_optimal", outcome->proven_optimal)
+        .Add("slices", outcome->schedule.result.slices.size())
+        .Add("retries", outcome->schedule.retries)
+        .Add("hedges", outcome->schedule.hedges)
+        .Add("cost", outcome->plan.cost());
+  } else {
+    line.Add("error", std::string(outcome.status().message()));
+  }
+  line.Add("search_seconds", facts.search_seconds).Add("wall_seconds", wall);
+  line.Log(outcome.ok() || OutcomeLabel(outcome.status()) != "error" ? spdlog::level::info
+                                                                     : spdlog::level::warn);
+}
+
 }  // namespace
 
-absl::StatusOr<v1::OptimizeResponse> CoordinatorService::Run(
-    grpc::ServerContext* context, const v1::OptimizeRequest& request,
-    const std::function<void(const ScheduleProgress&)>& on_progress) {
+absl::StatusOr<TieredOutcome> CoordinatorService::Search(
+    grpc::ServerContext* context, const v1::OptimizeRequest& request, const std::string& request_id,
+    const std::function<void(const ScheduleProgress&)>& on_progress, RequestFacts& facts) {
   RETURN_IF_ERROR(ValidateRequest(request));
   ASSIGN_OR_RETURN(const Clock::time_point deadline, RunDeadline(context, request, config_));
   auto query = WideQueryFromProto(request.query(), config_.limits);
   if (!query.ok()) {
     return absl::Status(query.status().code(), absl::StrCat("query.", query.status().message()));
   }
+  facts.relations = query->size();
   ASSIGN_OR_RETURN(const SearchOptions options, SearchOptionsFromProto(request.options()));
-  ASSIGN_OR_RETURN(const SearchTier tier, TierFromProto(request.tier()));
+  facts.cost = options.cost;
+  ASSIGN_OR_RETURN(facts.asked, TierFromProto(request.tier()));
   ASSIGN_OR_RETURN(const double budget,
                    AllowedSeconds(request.budget_seconds(), config_.limits.max_deadline_seconds,
                                   "budget_seconds"));
@@ -62,22 +91,19 @@ absl::StatusOr<v1::OptimizeResponse> CoordinatorService::Run(
     return absl::Status(s.code(), absl::StrCat("options.cluster.", s.message()));
   }
   std::optional<Admission::Ticket> ticket;
-  if (auto s = admission_.Enter(
-          deadline, [context] { return context->IsCancelled(); }, ticket);
-      !s.ok()) {
-    spdlog::warn("optimize: refused: {}", std::string(s.message()));
-    return s;
-  }
+  RETURN_IF_ERROR(admission_.Enter(
+      deadline, [context] { return context->IsCancelled(); }, ticket));
+  const auto start = Clock::now();  // admitted: the search's own time from here
 
   std::vector<std::shared_ptr<RpcWorker>> pool = pool_.Workers();
   std::vector<SliceWorker*> workers;
-  int slots = 0;
   for (const auto& w : pool) {
     if (request.max_workers() != 0 && workers.size() >= request.max_workers()) break;
     if (!w->Healthy()) continue;
     workers.push_back(w.get());
-    slots += w->Slots();
+    facts.slots += w->Slots();
   }
+  facts.workers = workers.size();
   // The unhealthy ones too, after the healthy: the scheduler skips them
   // (and uses them if they recover), and names them if nothing is left.
   for (const auto& w : pool) {
@@ -93,7 +119,7 @@ absl::StatusOr<v1::OptimizeResponse> CoordinatorService::Run(
         ValidateSlice({0, request.slice_count()}, query->size(), options.shape, kRpcSliceFields));
   }
   TierRequest tiers;
-  tiers.tier = tier;
+  tiers.tier = facts.asked;
   tiers.slice_count = request.slice_count();
   // The time auto plans for: the request's deadline, else its budget,
   // else the server's default; the call's deadline still bounds it.
@@ -107,18 +133,10 @@ absl::StatusOr<v1::OptimizeResponse> CoordinatorService::Run(
   schedule.on_progress = on_progress;
   // A caller that cancels or goes away cancels every slice it started.
   schedule.cancelled = [context] { return context->IsCancelled(); };
-  const auto start = Clock::now();
+  schedule.request_id = request_id;
   auto outcome = RunTiers(*query, options, tiers, workers, schedule);
-  const double wall = std::chrono::duration<double>(Clock::now() - start).count();
-  spdlog::info(
-      "optimize: {} relations, tier {}, {} workers ({} slots), retries={}, hedges={}, "
-      "wall {:.3f} s, {}",
-      query->size(), outcome.ok() ? TierName(outcome->tier) : TierName(tier), workers.size(), slots,
-      outcome.ok() ? outcome->schedule.retries : 0, outcome.ok() ? outcome->schedule.hedges : 0,
-      wall,
-      outcome.ok() ? (outcome->proven_optimal ? "optimal" : "not proven optimal")
-                   : std::string(outcome.status().message()));
-  if (!outcome.ok()) return outcome.status();
+  facts.search_seconds = std::chrono::duration<double>(Clock::now() - start).count();
+  if (!outcome.ok()) return outcome;
   const auto plans = static_cast<int64_t>(outcome->schedule.result.frontier.size());
   if (plans > config_.limits.max_frontier_plans) {
     return absl::ResourceExhaustedError(
@@ -126,7 +144,25 @@ absl::StatusOr<v1::OptimizeResponse> CoordinatorService::Run(
                      config_.limits.max_frontier_plans,
                      " (--max_frontier_plans); ask for a precision alpha > 1 or fewer objectives"));
   }
-  return TieredToProto(*outcome, options.cost);
+  return outcome;
+}
+
+absl::StatusOr<v1::OptimizeResponse> CoordinatorService::Run(
+    grpc::ServerContext* context, const v1::OptimizeRequest& request,
+    const std::function<void(const ScheduleProgress&)>& on_progress) {
+  const auto start = Clock::now();
+  const std::string request_id = RequestIdOf(*context);
+  context->AddInitialMetadata(kRequestIdKey, request_id);
+  RequestFacts facts;
+  const absl::Status allowed = Authenticate(*context);
+  absl::StatusOr<TieredOutcome> outcome =
+      allowed.ok() ? Search(context, request, request_id, on_progress, facts)
+                   : absl::StatusOr<TieredOutcome>(allowed);
+  const double wall = std::chrono::duration<double>(Clock::now() - start).count();
+  metrics_.Request(outcome, facts.asked, wall);
+  LogRequest(request_id, facts, outcome, wall);
+  if (!outcome.ok()) return outcome.status();
+  return TieredToProto(*outcome, facts.cost);
 }
 
 absl::Status CoordinatorService::Authenticate(const grpc::ServerContext& context) const {
@@ -148,7 +184,6 @@ void CoordinatorService::SetTokens(BearerTokens tokens) {
 grpc::Status CoordinatorService::Optimize(grpc::ServerContext* context,
                                           const v1::OptimizeRequest* request,
                                           v1::OptimizeResponse* response) {
-  if (auto s = Authenticate(*context); !s.ok()) return ToGrpc(s);
   auto result = Run(context, *request, {});
   if (!result.ok()) return ToGrpc(result.status());
   *response = *std::move(result);
@@ -158,7 +193,6 @@ grpc::Status CoordinatorService::Optimize(grpc::ServerContext* context,
 grpc::Status CoordinatorService::OptimizeStream(grpc::ServerContext* context,
                                                 const v1::OptimizeRequest* request,
                                                 grpc::ServerWriter<v1::OptimizeEvent>* writer) {
-  if (auto s = Authenticate(*context); !s.ok()) return ToGrpc(s);
   absl::Mutex write_mu;  // progress comes from the scheduler's threads
   auto result = Run(context, *request, [&](const ScheduleProgress& p) {
     v1::OptimizeEvent event;

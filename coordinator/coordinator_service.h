@@ -1,6 +1,7 @@
 // The coordinator's gRPC service: turns an OptimizeRequest into slices,
 // runs them on the pool with the shared scheduler (core/slice_scheduler.h)
-// and returns the merged plan; one log line per request. Thread-safe.
+// and returns the merged plan; one log line and one metrics record per
+// request. Thread-safe.
 #ifndef SLICEPLAN_COORDINATOR_COORDINATOR_SERVICE_H_
 #define SLICEPLAN_COORDINATOR_COORDINATOR_SERVICE_H_
 
@@ -13,6 +14,7 @@
 #include "absl/status/statusor.h"
 #include "absl/synchronization/mutex.h"
 #include "coordinator/admission.h"
+#include "coordinator/coordinator_metrics.h"
 #include "coordinator/worker_pool.h"
 #include "core/input_limits.h"
 #include "rpc/bearer_tokens.h"
@@ -36,18 +38,34 @@ struct CoordinatorConfig {
   double default_budget_seconds = 10;
 };
 
+// What one request's log line says beside its outcome.
+struct RequestFacts {
+  size_t relations = 0;
+  SearchTier asked = SearchTier::kAuto;
+  CostModelKind cost = CostModelKind::kCout;
+  size_t workers = 0;         // healthy workers used
+  int slots = 0;              // their slices at once
+  double search_seconds = 0;  // from admission to the answer
+};
+
 class CoordinatorService final : public v1::Coordinator::Service {
  public:
   CoordinatorService(WorkerPool& pool, const CoordinatorConfig& config)
       : pool_(pool),
         config_(config),
-        admission_(config.max_concurrent_requests, config.max_queued_requests) {
+        admission_(config.max_concurrent_requests, config.max_queued_requests),
+        metrics_(pool, admission_) {
     if (config.tokens) tokens_ = std::make_shared<const BearerTokens>(*config.tokens);
   }
 
   // Replaces the bearer tokens (a re-read token file); calls already
   // admitted are not affected.
   void SetTokens(BearerTokens tokens) ABSL_LOCKS_EXCLUDED(tokens_mu_);
+
+  // What the metrics endpoint serves (coordinator_metrics.h).
+  std::vector<std::weak_ptr<prometheus::Collectable>> MetricsCollectables() const {
+    return metrics_.Collectables();
+  }
 
   grpc::Status Optimize(grpc::ServerContext* context, const v1::OptimizeRequest* request,
                         v1::OptimizeResponse* response) override;
@@ -66,13 +84,23 @@ class CoordinatorService final : public v1::Coordinator::Service {
   absl::StatusOr<v1::CapacityResponse> Capacity(const v1::CapacityRequest& request);
   absl::Status Authenticate(const grpc::ServerContext& context) const
       ABSL_LOCKS_EXCLUDED(tokens_mu_);
+  // Authenticates, searches, counts and logs one Optimize call (its id
+  // from the caller's x-request-id or new, sent back in the metadata).
   absl::StatusOr<v1::OptimizeResponse> Run(
       grpc::ServerContext* context, const v1::OptimizeRequest& request,
       const std::function<void(const ScheduleProgress&)>& on_progress);
 
+  // Validates, waits for admission and runs the tiers; fills `facts` as it
+  // learns them, for the log line.
+  absl::StatusOr<TieredOutcome> Search(
+      grpc::ServerContext* context, const v1::OptimizeRequest& request,
+      const std::string& request_id,
+      const std::function<void(const ScheduleProgress&)>& on_progress, RequestFacts& facts);
+
   WorkerPool& pool_;
   const CoordinatorConfig config_;
   Admission admission_;
+  CoordinatorMetrics metrics_;
   mutable absl::Mutex tokens_mu_;
   std::shared_ptr<const BearerTokens> tokens_ ABSL_GUARDED_BY(tokens_mu_);
 };

@@ -9,15 +9,19 @@
 #include "coordinator/coordinator_service.h"
 #include "coordinator/worker_pool.h"
 #include "rpc/serve.h"
+#include "rpc/server_log.h"
 #include "rpc/server_setup.h"
 #include "rpc/tls.h"
-#include "spdlog/sinks/stdout_color_sinks.h"
 #include "spdlog/spdlog.h"
 
 ABSL_FLAG(std::string, listen, "127.0.0.1:0", "address to serve on (port 0: any free port)");
 ABSL_FLAG(bool, insecure, false, "allow a plaintext listener on an address other than loopback");
 ABSL_FLAG(std::string, health_listen, "",
           "also serve grpc.health.v1 alone, in plaintext, on HOST:PORT (for probes without TLS)");
+ABSL_FLAG(std::string, metrics_listen, "",
+          "serve Prometheus metrics as plaintext HTTP at http://HOST:PORT/metrics (empty: none)");
+ABSL_FLAG(std::string, log_format, "text",
+          "log lines on stderr as text, or json (one object per line, for log collectors)");
 ABSL_FLAG(std::string, tls_cert, "", "PEM certificate to serve TLS with (with --tls-key)");
 ABSL_FLAG(std::string, tls_key, "", "PEM private key of --tls-cert");
 ABSL_FLAG(std::string, tls_ca, "",
@@ -99,8 +103,10 @@ int main(int argc, char** argv) {
   sliceplan::ParseServerCommandLine(
       argc, argv, "sliceplan-coordinator --listen=HOST:PORT --workers=HOST:PORT,...",
       "coordinator/main.cc");
-  // Logs go to stderr: stdout carries only the listening line.
-  spdlog::set_default_logger(spdlog::stderr_color_mt("sliceplan"));
+  // Logs go to stderr: stdout carries only the announced addresses.
+  const auto format = sliceplan::ParseLogFormat(absl::GetFlag(FLAGS_log_format));
+  if (!format.ok()) return Refuse(format.status());
+  sliceplan::SetUpServerLog(*format, "coordinator");
   const std::string listen = absl::GetFlag(FLAGS_listen);
   const bool insecure = absl::GetFlag(FLAGS_insecure);
   const sliceplan::TlsFiles tls{absl::GetFlag(FLAGS_tls_cert), absl::GetFlag(FLAGS_tls_key),
@@ -108,6 +114,7 @@ int main(int argc, char** argv) {
                                 absl::GetFlag(FLAGS_tls_reload_seconds)};
   sliceplan::ServeOptions serve;
   serve.health_listen = absl::GetFlag(FLAGS_health_listen);
+  serve.metrics_listen = absl::GetFlag(FLAGS_metrics_listen);
   if (auto s = sliceplan::PrepareListener(listen, tls, insecure, "coordinator", serve); !s.ok()) {
     return Refuse(s);
   }
@@ -135,6 +142,7 @@ int main(int argc, char** argv) {
   spdlog::info("coordinator: {} worker entries, hedge after {:.1f} s", entries->size(),
                absl::GetFlag(FLAGS_hedge_after_seconds));
   serve.max_request_bytes = config->limits.max_query_bytes;
+  serve.metrics = service.MetricsCollectables();
   if (const std::string path = absl::GetFlag(FLAGS_token_file); !path.empty()) {
     serve.on_reload = [&service, path] {  // SIGHUP: re-read the token file
       auto tokens = sliceplan::BearerTokens::Load(path);

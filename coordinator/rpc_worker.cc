@@ -1,6 +1,7 @@
 #include "coordinator/rpc_worker.h"
 
 #include "absl/strings/str_cat.h"
+#include "rpc/request_id.h"
 #include "rpc/rpc_status.h"
 #include "schedule/slice_scheduler.h"
 #include "wire/query_proto.h"
@@ -25,6 +26,7 @@ class RpcCall : public SliceCall {
     request_.set_slice_index(task.slice.index);
     request_.set_slice_count(task.slice.count);
     if (task.deadline) context_.set_deadline(ToSystem(*task.deadline));
+    if (!task.request_id.empty()) context_.AddMetadata(kRequestIdKey, task.request_id);
     stub->async()->SolveSlice(&context_, &request_, &response_,
                               [this](grpc::Status s) { OnDone(s); });
   }

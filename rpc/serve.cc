@@ -12,6 +12,8 @@
 #include "grpcpp/ext/proto_server_reflection_plugin.h"
 #include "grpcpp/health_check_service_interface.h"
 #include "grpcpp/support/server_interceptor.h"
+#include "prometheus/exposer.h"
+#include "spdlog/spdlog.h"
 
 namespace sliceplan {
 
@@ -99,6 +101,27 @@ std::unique_ptr<grpc::Server> StartHealthServer(const std::string& listen, int& 
   return port == 0 ? nullptr : std::move(server);
 }
 
+// The metrics endpoint on `listen` (its port in `port`), or null when it
+// cannot be bound (civetweb throws then).
+std::unique_ptr<prometheus::Exposer> StartMetricsEndpoint(
+    const std::string& listen, const std::vector<std::weak_ptr<prometheus::Collectable>>& metrics,
+    int& port) {
+  std::unique_ptr<prometheus::Exposer> exposer;
+  try {
+    exposer = std::make_unique<prometheus::Exposer>(listen, 2);
+  } catch (const std::exception& e) {
+    spdlog::error("metrics: cannot listen on {}: {}", listen, e.what());
+    return nullptr;
+  }
+  const std::vector<int> ports = exposer->GetListeningPorts();
+  if (ports.empty() || ports.front() == 0) return nullptr;
+  port = ports.front();
+  for (const auto& m : metrics) exposer->RegisterCollectable(m);
+  return exposer;
+}
+
+std::string HostOf(const std::string& address) { return address.substr(0, address.rfind(':')); }
+
 }  // namespace
 
 absl::Status Serve(const std::string& listen, const std::vector<grpc::Service*>& services,
@@ -106,6 +129,11 @@ absl::Status Serve(const std::string& listen, const std::vector<grpc::Service*>&
   if (auto s = ValidateListenAddress(listen); !s.ok()) return s;
   if (!options.health_listen.empty()) {
     if (auto s = ValidateListenAddress(options.health_listen, "--health-listen"); !s.ok()) {
+      return s;
+    }
+  }
+  if (!options.metrics_listen.empty()) {
+    if (auto s = ValidateListenAddress(options.metrics_listen, "--metrics-listen"); !s.ok()) {
       return s;
     }
   }
@@ -143,11 +171,22 @@ absl::Status Serve(const std::string& listen, const std::vector<grpc::Service*>&
       return absl::UnavailableError(absl::StrCat("cannot listen on ", options.health_listen));
     }
   }
-  const std::string host = listen.substr(0, listen.rfind(':'));
-  std::cout << "listening on " << host << ":" << port << std::endl;
-  if (health) {
-    const std::string& h = options.health_listen;
-    std::cout << "health on " << h.substr(0, h.rfind(':')) << ":" << health_port << std::endl;
+  std::unique_ptr<prometheus::Exposer> metrics;
+  int metrics_port = 0;
+  if (!options.metrics_listen.empty()) {
+    metrics = StartMetricsEndpoint(options.metrics_listen, options.metrics, metrics_port);
+    if (!metrics) {
+      if (health) health->Shutdown();
+      server->Shutdown();
+      return absl::UnavailableError(absl::StrCat("cannot listen on ", options.metrics_listen));
+    }
+  }
+  std::cout << "listening on " << HostOf(listen) << ":" << port << std::endl;
+  if (health)
+    std::cout << "health on " << HostOf(options.health_listen) << ":" << health_port << std::endl;
+  if (metrics) {
+    std::cout << "metrics on " << HostOf(options.metrics_listen) << ":" << metrics_port
+              << std::endl;
   }
 
   std::thread stopper([&] {

@@ -15,6 +15,7 @@
 
 #include "absl/status/status.h"
 #include "grpcpp/grpcpp.h"
+#include "prometheus/collectable.h"
 
 namespace sliceplan {
 
@@ -60,12 +61,20 @@ struct ServeOptions {
   // may listen off-host; it is announced as "health on HOST:PORT" after
   // the listening line and stops with the server.
   std::string health_listen;
+  // HOST:PORT of a plaintext HTTP listener serving `metrics` as
+  // Prometheus text at /metrics (empty: none). Announced as "metrics on
+  // HOST:PORT" after the listening (and health) line; stops with the
+  // server. Like the health port it carries no query and takes no call,
+  // and the flag that sets it is the operator's say-so for where it
+  // listens; a listener off loopback is logged as a warning.
+  std::string metrics_listen;
+  std::vector<std::weak_ptr<prometheus::Collectable>> metrics;
 };
 
 // Serves `services` on `listen` until a stop signal. Errors:
 // INVALID_ARGUMENT for a malformed address or port, FAILED_PRECONDITION for
 // an off-host address without allow_plaintext_off_host, UNAVAILABLE when
-// an address cannot be bound.
+// an address (the gRPC, health or metrics one) cannot be bound.
 absl::Status Serve(const std::string& listen, const std::vector<grpc::Service*>& services,
                    const ServeOptions& options = {});
 

@@ -30,6 +30,13 @@ absl::Status PrepareListener(const std::string& listen, const TlsFiles& tls, boo
   if (!serve.health_listen.empty()) {
     RETURN_IF_ERROR(ValidateListenAddress(serve.health_listen, "--health-listen"));
   }
+  if (!serve.metrics_listen.empty()) {
+    RETURN_IF_ERROR(ValidateListenAddress(serve.metrics_listen, "--metrics-listen"));
+    if (!IsLoopbackAddress(serve.metrics_listen)) {
+      spdlog::warn("{}: metrics served as plaintext HTTP on {}, reachable from other hosts", server,
+                   serve.metrics_listen);
+    }
+  }
   ASSIGN_OR_RETURN(std::shared_ptr<grpc::ServerCredentials> credentials, ServerCredentialsFor(tls));
   RETURN_IF_ERROR(CheckPlaintextAllowed(listen, tls.any() || insecure));
   if (tls.any()) serve.credentials = std::move(credentials);

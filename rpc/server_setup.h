@@ -17,8 +17,9 @@ namespace sliceplan {
 // defined in `main_file` (e.g. "worker/main.cc"), not Abseil's or gRPC's.
 void ParseServerCommandLine(int argc, char** argv, const char* usage, const char* main_file);
 
-// Checks `listen` and serve.health_listen when set (ValidateListenAddress), builds the server
-// credentials of `tls` (rpc/tls.h), and refuses plaintext off loopback unless `insecure`
+// Checks `listen`, serve.health_listen and serve.metrics_listen when set
+// (ValidateListenAddress; a metrics listener off loopback is logged as a warning), builds the
+// server credentials of `tls` (rpc/tls.h), and refuses plaintext off loopback unless `insecure`
 // (CheckPlaintextAllowed); fills serve.credentials and serve.allow_plaintext_off_host. Logs a
 // warning, naming `server`, for a plaintext listener reachable from other hosts. Errors as those
 // three.

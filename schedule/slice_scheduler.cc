@@ -202,7 +202,8 @@ class Run {
   // only grows until Execute ends) and their slice and worker never change.
   void StartCalls(const std::vector<Attempt*>& picked) ABSL_LOCKS_EXCLUDED(mu_) {
     for (Attempt* a : picked) {
-      SliceTask task{&query_, options_, {a->slice, count_}, schedule_.deadline};
+      SliceTask task{
+          &query_, options_, {a->slice, count_}, schedule_.deadline, schedule_.request_id};
       auto call = workers_[a->worker]->Start(
           task, [this, a](absl::StatusOr<SliceResult> r) { Finish(a, std::move(r)); });
       absl::MutexLock lock(&mu_);

@@ -54,6 +54,9 @@ struct ScheduleOptions {
   // Polled every kCancelPoll; true ends the run with CANCELLED (the
   // caller went away or cancelled). Empty: never cancelled.
   std::function<bool()> cancelled;
+  // Carried to every slice call (SliceTask::request_id) for the workers'
+  // log lines; empty: none.
+  std::string request_id;
 };
 
 inline constexpr int kPoisonWorkers = 2;

@@ -23,6 +23,7 @@ struct SliceTask {
   SearchOptions options;
   SliceSpec slice;
   std::optional<std::chrono::steady_clock::time_point> deadline;
+  std::string request_id;  // the request's, for log lines; may be empty
 };
 
 // One running slice. Destroying it waits for the work to end.

@@ -11,9 +11,9 @@
 #include "absl/strings/str_cat.h"
 #include "core/search_options.h"
 #include "rpc/serve.h"
+#include "rpc/server_log.h"
 #include "rpc/server_setup.h"
 #include "rpc/tls.h"
-#include "spdlog/sinks/stdout_color_sinks.h"
 #include "spdlog/spdlog.h"
 #include "worker/worker_service.h"
 
@@ -21,6 +21,10 @@ ABSL_FLAG(std::string, listen, "127.0.0.1:0", "address to serve on (port 0: any 
 ABSL_FLAG(bool, insecure, false, "allow a plaintext listener on an address other than loopback");
 ABSL_FLAG(std::string, health_listen, "",
           "also serve grpc.health.v1 alone, in plaintext, on HOST:PORT (for probes without TLS)");
+ABSL_FLAG(std::string, metrics_listen, "",
+          "serve Prometheus metrics as plaintext HTTP at http://HOST:PORT/metrics (empty: none)");
+ABSL_FLAG(std::string, log_format, "text",
+          "log lines on stderr as text, or json (one object per line, for log collectors)");
 ABSL_FLAG(std::string, tls_cert, "", "PEM certificate to serve TLS with (with --tls-key)");
 ABSL_FLAG(std::string, tls_key, "", "PEM private key of --tls-cert");
 ABSL_FLAG(std::string, tls_ca, "",
@@ -60,14 +64,17 @@ int main(int argc, char** argv) {
   sliceplan::ParseServerCommandLine(
       argc, argv, "sliceplan-worker --listen=HOST:PORT [--threads=T] [--concurrent-slices=C]",
       "worker/main.cc");
-  // Logs go to stderr: stdout carries only the listening line.
-  spdlog::set_default_logger(spdlog::stderr_color_mt("sliceplan"));
+  // Logs go to stderr: stdout carries only the announced addresses.
+  const auto format = sliceplan::ParseLogFormat(absl::GetFlag(FLAGS_log_format));
+  if (!format.ok()) return Refuse(std::string(format.status().message()));
+  sliceplan::SetUpServerLog(*format, "worker");
   const std::string listen = absl::GetFlag(FLAGS_listen);
   const sliceplan::TlsFiles tls{absl::GetFlag(FLAGS_tls_cert), absl::GetFlag(FLAGS_tls_key),
                                 absl::GetFlag(FLAGS_tls_ca),
                                 absl::GetFlag(FLAGS_tls_reload_seconds)};
   sliceplan::ServeOptions serve;
   serve.health_listen = absl::GetFlag(FLAGS_health_listen);
+  serve.metrics_listen = absl::GetFlag(FLAGS_metrics_listen);
   if (auto s =
           sliceplan::PrepareListener(listen, tls, absl::GetFlag(FLAGS_insecure), "worker", serve);
       !s.ok()) {
@@ -110,6 +117,7 @@ int main(int argc, char** argv) {
                config.threads_per_slice, config.threads_per_slice == 1 ? "" : "s", gib,
                config.test_hang_seconds > 0 ? " (test fault: hanging)" : "");
   serve.max_request_bytes = config.limits.max_query_bytes;
+  serve.metrics = service.MetricsCollectables();
   serve.shutdown_grace = std::chrono::milliseconds(static_cast<int64_t>(grace * 1000));
   const auto status = sliceplan::Serve(listen, {&service}, serve);
   if (!status.ok()) {

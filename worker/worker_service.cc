@@ -9,7 +9,10 @@
 #include "core/slice_solver.h"
 #include "core/status_macros.h"
 #include "rpc/call_deadline.h"
+#include "rpc/outcome_label.h"
+#include "rpc/request_id.h"
 #include "rpc/rpc_status.h"
+#include "rpc/server_log.h"
 #include "wire/query_proto.h"
 #include "wire/service_proto.h"
 
@@ -43,15 +46,32 @@ absl::StatusOr<Parsed> Parse(const v1::SolveSliceRequest& request, const WorkerC
 
 }  // namespace
 
+WorkerService::WorkerService(const WorkerConfig& config)
+    : config_(config),
+      metrics_(
+          [this] {
+            absl::MutexLock lock(&mu_);
+            return running_;
+          },
+          [this] {
+            absl::MutexLock lock(&mu_);
+            return waiting_;
+          }) {}
+
 bool WorkerService::Acquire(grpc::ServerContext* context) {
   absl::MutexLock lock(&mu_);
   const auto free = [this]() ABSL_EXCLUSIVE_LOCKS_REQUIRED(mu_) {
     return running_ < config_.concurrent_slices;
   };
+  ++waiting_;
   // Polls the call's cancel while it waits (gRPC has no wake-up for it).
   while (!mu_.AwaitWithTimeout(absl::Condition(&free), absl::Milliseconds(10))) {
-    if (context->IsCancelled()) return false;
+    if (context->IsCancelled()) {
+      --waiting_;
+      return false;
+    }
   }
+  --waiting_;
   ++running_;
   return true;
 }
@@ -61,13 +81,13 @@ void WorkerService::Release() {
   --running_;
 }
 
-grpc::Status WorkerService::SolveSlice(grpc::ServerContext* context,
-                                       const v1::SolveSliceRequest* request,
-                                       v1::SolveSliceResponse* response) {
-  auto parsed = Parse(*request, config_);
-  if (!parsed.ok()) return ToGrpc(parsed.status());
-  if (parsed->slice.index == config_.test_crash_slice) std::abort();
-  if (!Acquire(context)) return grpc::Status(grpc::StatusCode::CANCELLED, "call ended");
+absl::StatusOr<SliceResult> WorkerService::Solve(grpc::ServerContext* context,
+                                                 const v1::SolveSliceRequest& request,
+                                                 SearchOptions& options) {
+  ASSIGN_OR_RETURN(Parsed parsed, Parse(request, config_));
+  options = parsed.options;
+  if (parsed.slice.index == config_.test_crash_slice) std::abort();
+  if (!Acquire(context)) return absl::CancelledError("call ended");
   const auto hang_until =
       Clock::now() + std::chrono::duration_cast<Clock::duration>(
                          std::chrono::duration<double>(config_.test_hang_seconds));
@@ -80,10 +100,35 @@ grpc::Status WorkerService::SolveSlice(grpc::ServerContext* context,
   if (const auto call = CallDeadline(context); call && *call < deadline) deadline = *call;
   SearchControl control(nullptr, deadline);
   control.set_cancel_check([context] { return context->IsCancelled(); });
-  auto result = sliceplan::SolveSlice(parsed->query, parsed->options, parsed->slice, control);
+  auto result = sliceplan::SolveSlice(parsed.query, parsed.options, parsed.slice, control);
   Release();
+  return result;
+}
+
+grpc::Status WorkerService::SolveSlice(grpc::ServerContext* context,
+                                       const v1::SolveSliceRequest* request,
+                                       v1::SolveSliceResponse* response) {
+  const auto start = Clock::now();
+  SearchOptions options;
+  const absl::StatusOr<SliceResult> result = Solve(context, *request, options);
+  const double wall = std::chrono::duration<double>(Clock::now() - start).count();
+  metrics_.Call(result.status(), result.ok() ? &result->stats : nullptr);
+  LogEvent line("slice");
+  line.Add("request_id", RequestIdOf(*context))
+      .Add("outcome", OutcomeLabel(result.status()))
+      .Add("index", request->slice_index())
+      .Add("count", request->slice_count())
+      .Add("relations", request->query().relations_size());
+  if (result.ok()) {
+    line.Add("splits", result->stats.splits)
+        .Add("memo_bytes", result->stats.memo_bytes)
+        .Add("search_seconds", result->stats.seconds);
+  } else {
+    line.Add("error", std::string(result.status().message()));
+  }
+  line.Add("wall_seconds", wall).Log();
   if (!result.ok()) return ToGrpc(result.status());
-  *response = SliceResultToProto(*result, parsed->options.cost);
+  *response = SliceResultToProto(*result, options.cost);
   return grpc::Status::OK;
 }
 

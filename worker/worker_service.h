@@ -3,16 +3,21 @@
 // cancellation inside the DP loop; refuses a slice over its memo limit with
 // RESOURCE_EXHAUSTED. At most `concurrent_slices` slices run at once, each
 // on `threads_per_slice` threads; further calls wait for a slot (while
-// their deadline allows). Thread-safe.
+// their deadline allows). One log line and one metrics record per call,
+// with the coordinator's request id (x-request-id). Thread-safe.
 #ifndef SLICEPLAN_WORKER_WORKER_SERVICE_H_
 #define SLICEPLAN_WORKER_WORKER_SERVICE_H_
 
 #include <cstdint>
+#include <memory>
+#include <vector>
 
 #include "absl/base/thread_annotations.h"
 #include "absl/synchronization/mutex.h"
 #include "core/input_limits.h"
+#include "core/slice_solver.h"
 #include "sliceplan.grpc.pb.h"
+#include "worker/worker_metrics.h"
 
 namespace sliceplan {
 
@@ -31,7 +36,12 @@ struct WorkerConfig {
 
 class WorkerService final : public v1::SliceWorker::Service {
  public:
-  explicit WorkerService(const WorkerConfig& config) : config_(config) {}
+  explicit WorkerService(const WorkerConfig& config);
+
+  // What the metrics endpoint serves (worker_metrics.h).
+  std::vector<std::weak_ptr<prometheus::Collectable>> MetricsCollectables() const {
+    return metrics_.Collectables();
+  }
 
   grpc::Status SolveSlice(grpc::ServerContext* context, const v1::SolveSliceRequest* request,
                           v1::SolveSliceResponse* response) override;
@@ -40,6 +50,9 @@ class WorkerService final : public v1::SliceWorker::Service {
                               v1::DescribeWorkerResponse* response) override;
 
  private:
+  // Parses, waits for a slot and solves; the call's outcome.
+  absl::StatusOr<SliceResult> Solve(grpc::ServerContext* context,
+                                    const v1::SolveSliceRequest& request, SearchOptions& options);
   // Waits for a free slot; false when the call ended first.
   bool Acquire(grpc::ServerContext* context) ABSL_LOCKS_EXCLUDED(mu_);
   void Release() ABSL_LOCKS_EXCLUDED(mu_);
@@ -47,6 +60,8 @@ class WorkerService final : public v1::SliceWorker::Service {
   const WorkerConfig config_;
   absl::Mutex mu_;
   int running_ ABSL_GUARDED_BY(mu_) = 0;
+  int waiting_ ABSL_GUARDED_BY(mu_) = 0;
+  WorkerMetrics metrics_;
 };
 
 }  // namespace sliceplan

@@ -1,0 +1,70 @@
+#include "coordinator/coordinator_metrics.h"
+
+#include <algorithm>
+#include <string>
+
+#include "rpc/outcome_label.h"
+
+namespace sliceplan {
+namespace {
+
+prometheus::Counter& PlainCounter(prometheus::Registry& registry, const char* name,
+                                  const char* help) {
+  return prometheus::BuildCounter().Name(name).Help(help).Register(registry).Add({});
+}
+
+}  // namespace
+
+CoordinatorMetrics::CoordinatorMetrics(const WorkerPool& pool, const Admission& admission)
+    : registry_(std::make_shared<prometheus::Registry>()),
+      gauges_(std::make_shared<CallbackGauges>()),
+      requests_(prometheus::BuildCounter()
+                    .Name("sliceplan_requests_total")
+                    .Help("Optimize calls ended, by outcome and by the tier that answered")
+                    .Register(*registry_)),
+      request_seconds_(prometheus::BuildHistogram()
+                           .Name("sliceplan_request_seconds")
+                           .Help("Wall time of an Optimize call, admission wait excluded")
+                           .Register(*registry_)
+                           .Add({}, SecondsBuckets())),
+      retries_(PlainCounter(*registry_, "sliceplan_slice_retries_total",
+                            "Slices re-dispatched after a failed worker call")),
+      hedges_(PlainCounter(*registry_, "sliceplan_slice_hedges_total",
+                           "Second copies of a slow slice started")),
+      deadline_misses_(PlainCounter(*registry_, "sliceplan_deadline_misses_total",
+                                    "Requests whose deadline came before their search ended")),
+      slices_(*registry_) {
+  gauges_->Add("sliceplan_pool_workers", "Workers in the pool, healthy or not",
+               [&pool] { return static_cast<double>(pool.Workers().size()); });
+  gauges_->Add("sliceplan_pool_healthy_workers", "Workers passing their health checks", [&pool] {
+    const auto workers = pool.Workers();
+    return static_cast<double>(
+        std::count_if(workers.begin(), workers.end(), [](const auto& w) { return w->Healthy(); }));
+  });
+  gauges_->Add("sliceplan_requests_running", "Optimize calls running now",
+               [&admission] { return static_cast<double>(admission.running()); });
+  gauges_->Add("sliceplan_queue_depth", "Optimize calls waiting for a place",
+               [&admission] { return static_cast<double>(admission.queued()); });
+}
+
+void CoordinatorMetrics::Request(const absl::StatusOr<TieredOutcome>& outcome, SearchTier asked,
+                                 double seconds) {
+  const std::string tier(TierName(outcome.ok() ? outcome->tier : asked));
+  requests_.Add({{"outcome", std::string(OutcomeLabel(outcome.status()))}, {"tier", tier}})
+      .Increment();
+  request_seconds_.Observe(seconds);
+  const bool cut_short = outcome.ok() && outcome->exact_ran && outcome->coverage < 1;
+  if (outcome.status().code() == absl::StatusCode::kDeadlineExceeded || cut_short) {
+    deadline_misses_.Increment();
+  }
+  if (!outcome.ok()) return;
+  retries_.Increment(outcome->schedule.retries);
+  hedges_.Increment(outcome->schedule.hedges);
+  for (const auto& slice : outcome->schedule.result.slices) slices_.Solved(slice.stats);
+}
+
+std::vector<std::weak_ptr<prometheus::Collectable>> CoordinatorMetrics::Collectables() const {
+  return {registry_, gauges_};
+}
+
+}  // namespace sliceplan
