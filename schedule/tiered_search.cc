@@ -278,10 +278,10 @@ class TierRun {
     Offer(std::move(r.plan), SearchTier::kIdp);
     absl::StrAppendFormat(
         &reason_,
-        "%sidp from the %s plan: %d blocks of up to %d relations searched exactly, %d "
-        "improved, %d passes; cost %.4g -> %.4g",
+        "%sidp from the %s plan: %d blocks of up to %d relations searched exactly (%d more "
+        "met again), %d improved, %d passes; cost %.4g -> %.4g",
         reason_.empty() ? "" : "; ", TierName(seed), r.stats.blocks, r.stats.largest_block,
-        r.stats.improved, r.stats.passes, before, out_.plan.cost());
+        r.stats.reused, r.stats.improved, r.stats.passes, before, out_.plan.cost());
   }
 
   const WideQuery& query_;

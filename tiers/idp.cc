@@ -1,6 +1,7 @@
 #include "tiers/idp.h"
 
 #include <algorithm>
+#include <bit>
 #include <chrono>
 #include <deque>
 #include <optional>
@@ -9,6 +10,7 @@
 #include <utility>
 #include <vector>
 
+#include "absl/container/flat_hash_map.h"
 #include "absl/strings/str_cat.h"
 #include "core/value_range.h"
 
@@ -18,6 +20,23 @@ namespace {
 // A cheaper block answer must beat the old one by more than rounding (the
 // block's cardinalities are the same products taken in another order).
 constexpr double kImprovement = 1e-9;
+
+// A block query as numbers: its relations' rows, then each predicate's
+// relations and selectivity, bit for bit. The exact search's answer is a
+// function of these alone.
+using BlockKey = std::vector<uint64_t>;
+
+BlockKey KeyOf(const Query& block) {
+  BlockKey key;
+  key.reserve(1 + block.size() + 2 * block.predicates().size());
+  key.push_back(static_cast<uint64_t>(block.size()));
+  for (const Relation& r : block.relations()) key.push_back(std::bit_cast<uint64_t>(r.rows));
+  for (const Predicate& p : block.predicates()) {
+    key.push_back(p.relations);
+    key.push_back(std::bit_cast<uint64_t>(p.selectivity));
+  }
+  return key;
+}
 
 std::vector<int32_t> SubtreeSizes(const WidePlan& plan) {
   std::vector<int32_t> size(plan.nodes.size(), 1);
@@ -89,6 +108,7 @@ class BlockImprover {
 
   IdpResult Run(WidePlan plan) {
     IdpResult result;
+    answers_.clear();
     result.stats.start_cost = CostWidePlan(plan, query_);
     int k = std::clamp(config_.block, 3, kMaxRelations);
     int idle_passes = 0;
@@ -117,7 +137,8 @@ class BlockImprover {
       std::vector<int32_t> units = Cut(plan, size, v, pass_k);
       if (units.size() >= 3) {
         const auto start = std::chrono::steady_clock::now();
-        std::optional<std::vector<int32_t>> mapping = TryBlock(plan, v, units, stats);
+        bool searched = false;
+        std::optional<std::vector<int32_t>> mapping = TryBlock(plan, v, units, stats, searched);
         const double seconds =
             std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
         if (mapping) {
@@ -125,7 +146,8 @@ class BlockImprover {
           for (int32_t& u : units) u = (*mapping)[u];
           size = SubtreeSizes(plan);
         }
-        if (config_.next_block) {
+        // A reused answer took no search time: it says nothing of k.
+        if (config_.next_block && searched) {
           const int next = std::clamp(config_.next_block(static_cast<int>(units.size()), seconds),
                                       3, kMaxRelations);
           pass_k = pass_k == k ? next : std::max(3, 2 * next / 3);
@@ -139,16 +161,29 @@ class BlockImprover {
     return k;
   }
 
-  // Searches the block at v; on a cheaper answer splices it in, re-costs
-  // the plan and returns the renumbering.
+  // Searches the block at v (or reuses the answer to the same block met
+  // before; `searched` says which); on a cheaper answer splices it in,
+  // re-costs the plan and returns the renumbering.
   std::optional<std::vector<int32_t>> TryBlock(WidePlan& plan, int32_t v,
-                                               const std::vector<int32_t>& units, IdpStats& stats) {
+                                               const std::vector<int32_t>& units, IdpStats& stats,
+                                               bool& searched) {
     std::optional<Query> block = BlockQuery(plan, units);
     if (!block) return std::nullopt;
-    ++stats.blocks;
-    stats.largest_block = std::max(stats.largest_block, static_cast<int>(units.size()));
-    absl::StatusOr<Plan> answer = search_(*block);
-    if (!answer.ok() || answer->nodes.empty()) return std::nullopt;
+    BlockKey key = KeyOf(*block);
+    auto known = config_.reuse_answers ? answers_.find(key) : answers_.end();
+    if (known == answers_.end()) {
+      ++stats.blocks;
+      stats.largest_block = std::max(stats.largest_block, static_cast<int>(units.size()));
+      searched = true;
+      absl::StatusOr<Plan> found = search_(*block);
+      // An error (a deadline) is not an answer: the block may be tried again.
+      if (!found.ok()) return std::nullopt;
+      known = answers_.insert_or_assign(std::move(key), *std::move(found)).first;
+    } else {
+      ++stats.reused;
+    }
+    const Plan* answer = &known->second;
+    if (answer->nodes.empty()) return std::nullopt;
     double old_top = plan.nodes[v].cost;
     for (const int32_t u : units) old_top -= plan.nodes[u].cost;
     if (!(answer->root().cost < old_top * (1 - kImprovement))) return std::nullopt;
@@ -241,6 +276,8 @@ class BlockImprover {
   const IdpConfig& config_;
   const BlockSearch& search_;
   std::vector<int32_t> unit_of_;
+  // Every block query searched in this run and its answer.
+  absl::flat_hash_map<BlockKey, Plan> answers_;
 };
 
 }  // namespace

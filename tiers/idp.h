@@ -19,6 +19,12 @@
 // and about 2k/3, so block boundaries move; it stops when two passes in a
 // row improve nothing, when the caller's time is out, or after max_passes.
 //
+// The exact search's answer is a function of the block query alone, so a
+// block query met again (a later pass over a part of the plan that did not
+// change, or another part with the same figures) reuses its first answer
+// instead of searching again; the outcome is the same as searching it
+// again. A block whose search failed (a deadline) is not kept.
+//
 // Single-threaded: the exact searches run wherever the callback sends them.
 #ifndef SLICEPLAN_TIERS_IDP_H_
 #define SLICEPLAN_TIERS_IDP_H_
@@ -48,11 +54,15 @@ struct IdpConfig {
   // After each block: its size and the seconds its search took; returns
   // the k for the next (the caller's capacity model). Empty: k stays.
   std::function<int(int block, double seconds)> next_block;
+  // Answer a block met again from its first search (the outcome is the
+  // same; false searches it again, for the tests that show so).
+  bool reuse_answers = true;
 };
 
 struct IdpStats {
   int blocks = 0;    // exact block searches run
-  int improved = 0;  // of them, those that lowered the cost
+  int reused = 0;    // block queries met again, answered from an earlier search
+  int improved = 0;  // blocks (searched or reused) that lowered the cost
   int passes = 0;
   int largest_block = 0;  // units in the largest block searched
   double start_cost = 0;

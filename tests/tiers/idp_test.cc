@@ -6,7 +6,11 @@
 #include <gtest/gtest.h>
 
 #include <chrono>
+#include <set>
+#include <string>
 
+#include "absl/strings/str_cat.h"
+#include "absl/strings/str_format.h"
 #include "schedule/embedded_pool.h"
 #include "tests/support/reference_dp.h"
 #include "tests/support/test_queries.h"
@@ -86,6 +90,55 @@ TEST(IdpTest, ImprovesAPoorStartOnAChain) {
   ASSERT_GT(start.cost(), best * 1.01);  // the start is poor
   EXPECT_LT(r.plan.cost(), start.cost());
   EXPECT_GT(r.stats.improved, 0);
+}
+
+// A block met again is answered from its first search: the same plan as
+// searching it again, with fewer searches, and no block query searched
+// twice.
+TEST(IdpTest, BlocksMetAgainReuseTheirAnswerWithTheSameOutcome) {
+  int total_reused = 0;
+  for (const auto shape : {testing::WideShape::kTree, testing::WideShape::kSnowflake,
+                           testing::WideShape::kTreeWithHyperedges}) {
+    for (const bool cross : {false, true}) {
+      const WideQuery w = testing::MakeWideQuery(shape, 60, 7);
+      const WidePlan start = GreedyPlan(w, PlanShape::kBushy);
+      IdpResult runs[2];
+      int searches[2] = {0, 0};
+      std::set<std::string> seen;
+      bool repeated = false;
+      for (const bool reuse : {false, true}) {
+        IdpConfig config;
+        config.block = 7;
+        config.cross_products = cross;
+        config.reuse_answers = reuse;
+        const BlockSearch exact = InProcess(cross);
+        runs[reuse] = ImproveByBlocks(w, start, config, [&](const Query& block) {
+          ++searches[reuse];
+          if (reuse) {
+            std::string key;
+            for (const Relation& r : block.relations()) absl::StrAppendFormat(&key, "%a,", r.rows);
+            for (const Predicate& p : block.predicates()) {
+              absl::StrAppendFormat(&key, "%x:%a;", p.relations, p.selectivity);
+            }
+            repeated |= !seen.insert(key).second;
+          }
+          return exact(block);
+        });
+      }
+      const std::string what = absl::StrCat(static_cast<int>(shape), cross ? " cross" : "");
+      EXPECT_EQ(WideTreeString(runs[1].plan, w), WideTreeString(runs[0].plan, w)) << what;
+      EXPECT_EQ(runs[1].plan.cost(), runs[0].plan.cost()) << what;
+      EXPECT_EQ(runs[1].stats.passes, runs[0].stats.passes) << what;
+      EXPECT_EQ(runs[1].stats.improved, runs[0].stats.improved) << what;
+      EXPECT_EQ(searches[0], runs[0].stats.blocks) << what;
+      EXPECT_EQ(searches[1], runs[1].stats.blocks) << what;
+      EXPECT_EQ(runs[0].stats.reused, 0) << what;
+      EXPECT_EQ(runs[1].stats.blocks + runs[1].stats.reused, runs[0].stats.blocks) << what;
+      EXPECT_FALSE(repeated) << what;
+      total_reused += runs[1].stats.reused;
+    }
+  }
+  EXPECT_GT(total_reused, 0);  // passes over unchanged parts do meet blocks again
 }
 
 TEST(IdpTest, LargeQueriesStopWhenTimeIsOut) {
