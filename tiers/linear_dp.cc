@@ -18,6 +18,26 @@ namespace {
 constexpr double kInf = std::numeric_limits<double>::infinity();
 constexpr int32_t kNever = std::numeric_limits<int32_t>::max();
 
+// The least left[k] + right[k + 1] over k in [i, j) with joinable(k).
+// Four minima, k taken round-robin: with one, each split's min waits for
+// the last one's (its latency, several cycles), not for its own loads.
+// The least of the four is the same value (min is exact), so the split the
+// caller finds by scanning for it is the same too.
+template <class Joinable>
+double LeastSplit(const double* left, const double* right, int i, int j, Joinable joinable) {
+  const auto at = [&](int k) { return joinable(k) ? left[k] + right[k + 1] : kInf; };
+  double m0 = kInf, m1 = kInf, m2 = kInf, m3 = kInf;
+  int k = i;
+  for (; k + 4 <= j; k += 4) {
+    m0 = std::min(m0, at(k));
+    m1 = std::min(m1, at(k + 1));
+    m2 = std::min(m2, at(k + 2));
+    m3 = std::min(m3, at(k + 3));
+  }
+  for (; k < j; ++k) m0 = std::min(m0, at(k));
+  return std::min(std::min(m0, m1), std::min(m2, m3));
+}
+
 class RunTable {
  public:
   RunTable(const WideQuery& query, const std::vector<int32_t>& order)
@@ -146,15 +166,9 @@ class RunTable {
     const double* left = &cost_[At(i, 0)];
     const double* right = &cost_by_end_[AtByEnd(0, j)];
     const int32_t* reach = &reach_[At(i, 0)];
-    double best = kInf;
-    if (cross_products) {
-      for (int k = i; k < j; ++k) best = std::min(best, left[k] + right[k + 1]);
-    } else {
-      for (int k = i; k < j; ++k) {
-        const double v = reach[k] <= j ? left[k] + right[k + 1] : kInf;
-        best = std::min(best, v);
-      }
-    }
+    const double best =
+        cross_products ? LeastSplit(left, right, i, j, [](int) { return true; })
+                       : LeastSplit(left, right, i, j, [reach, j](int k) { return reach[k] <= j; });
     if (!(best < kInf)) return;
     int32_t at = i;
     while (!(left[at] + right[at + 1] == best && (cross_products || reach[at] <= j))) ++at;
