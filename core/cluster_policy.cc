@@ -90,68 +90,147 @@ void ClusterPolicy::SetInfo(Slot s, RelSet set) {
 // latency, and the entries a candidate dominates are one run right after
 // its own position: O(log F) per candidate instead of a scan.
 void ClusterPolicy::Insert(std::vector<ClusterEntry>& out, const ClusterEntry& e) const {
-  const Objectives o = config_.objectives;
-  const auto lat = [&](const ClusterEntry& x) {
-    return o.has(Objectives::kLatency) ? x.costs.latency_s : 0.0;
-  };
-  const auto ns = [&](const ClusterEntry& x) {
-    return o.has(Objectives::kNodeSeconds) ? x.costs.node_seconds : 0.0;
-  };
   const auto level_begin =
       std::lower_bound(out.begin(), out.end(), e.level,
                        [](const ClusterEntry& x, int64_t level) { return x.level < level; });
   const auto level_end =
       std::upper_bound(level_begin, out.end(), e.level,
                        [](int64_t level, const ClusterEntry& x) { return level < x.level; });
-  const double lat_e = lat(e), ns_e = ns(e);
+  const double lat_e = Lat(e), ns_e = Ns(e);
   // Last entry of the level with latency <= alpha * lat_e: the least
   // node-seconds among those that could cover e.
   auto cover = std::upper_bound(level_begin, level_end, level_alpha_ * lat_e,
-                                [&](double v, const ClusterEntry& x) { return v < lat(x); });
-  if (cover != level_begin && ns(*(cover - 1)) <= level_alpha_ * ns_e) return;
+                                [&](double v, const ClusterEntry& x) { return v < Lat(x); });
+  if (cover != level_begin && Ns(*(cover - 1)) <= level_alpha_ * ns_e) return;
   // Entries e dominates exactly: latency >= lat_e and node-seconds >= ns_e.
   const auto first = std::lower_bound(level_begin, level_end, lat_e,
-                                      [&](const ClusterEntry& x, double v) { return lat(x) < v; });
+                                      [&](const ClusterEntry& x, double v) { return Lat(x) < v; });
   auto last = first;
-  while (last != level_end && ns(*last) >= ns_e) ++last;
+  while (last != level_end && Ns(*last) >= ns_e) ++last;
   const auto at = out.erase(first, last);
   out.insert(at, e);
 }
 
+namespace {
+
+// Level runs of a frontier sorted by (level, latency): [begin, end) each.
+void LevelRuns(std::span<const ClusterEntry> plans,
+               std::vector<std::pair<uint32_t, uint32_t>>& runs) {
+  runs.clear();
+  for (uint32_t i = 0; i < plans.size();) {
+    uint32_t j = i + 1;
+    while (j < plans.size() && plans[j].level == plans[i].level) ++j;
+    runs.emplace_back(i, j);
+    i = j;
+  }
+}
+
+}  // namespace
+
+bool ClusterPolicy::Covered(const std::vector<ClusterEntry>& out, int64_t level, double lat_e,
+                            double ns_e) const {
+  const auto level_begin = std::lower_bound(
+      out.begin(), out.end(), level, [](const ClusterEntry& x, int64_t l) { return x.level < l; });
+  const auto level_end = std::upper_bound(
+      level_begin, out.end(), level, [](int64_t l, const ClusterEntry& x) { return l < x.level; });
+  auto cover = std::upper_bound(level_begin, level_end, level_alpha_ * lat_e,
+                                [&](double v, const ClusterEntry& x) { return v < Lat(x); });
+  return cover != level_begin && Ns(*(cover - 1)) <= level_alpha_ * ns_e;
+}
+
+bool ClusterPolicy::PairCovered(const std::vector<ClusterEntry>& out,
+                                std::span<const ClusterEntry> left, uint32_t a0, uint32_t a1,
+                                double left_width, bool left_leaf,
+                                std::span<const ClusterEntry> right, uint32_t b0, uint32_t b1,
+                                double right_width, bool right_leaf, double card,
+                                JoinStrategy strategy, size_t m) const {
+  const ClusterParams& p = config_.params;
+  const ClusterEntry& l = left[a0];
+  const ClusterEntry& r = right[b0];
+  const double rows =
+      IsSaturated(card) ? kValueCeiling : card * (l.costs.completeness * r.costs.completeness);
+  const double t = StageSeconds(p, strategy, p.node_counts[m], {l.rows, left_width, left_leaf},
+                                {r.rows, right_width, right_leaf}, rows);
+  // Each side's least latency (its first entry) and least node-seconds
+  // (its last), a hair lower so that the last-bit spread of t within a
+  // level cannot make the test unsafe.
+  const bool has_lat = config_.objectives.has(Objectives::kLatency);
+  const bool has_ns = config_.objectives.has(Objectives::kNodeSeconds);
+  const double lat = std::max(Lat(l), Lat(r)) + (has_lat ? t : 0.0);
+  const double ns = Ns(left[a1 - 1]) + Ns(right[b1 - 1]) + (has_ns ? p.node_counts[m] * t : 0.0);
+  return Covered(out, l.level + r.level, lat * (1 - 1e-12), ns * (1 - 1e-12));
+}
+
+// Within one completeness level every entry has the same completeness (up
+// to rounding in the last bit of its product), so for one level pair and
+// one (strategy, node count) every combination has the same stage time t:
+// latency max(L, R) + t, node-seconds L + R + m t. Of the combinations of
+// one left entry l with the right entries of latency <= l's, the one with
+// the least node-seconds (the last of them on the right staircase) is as
+// fast and at least as cheap as the others; the same for a right entry and
+// the left entries of smaller latency. So those |A| + |B| combinations
+// hold every combination not dominated by another, and only they are made.
+// And a level pair whose best conceivable combination (each side's least
+// latency and least node-seconds, with that t) is already covered is
+// skipped whole.
 void ClusterPolicy::Combine(std::vector<ClusterEntry>& out, double card,
                             std::span<const ClusterEntry> left, Slot left_slot, bool left_leaf,
                             double left_width, std::span<const ClusterEntry> right, Slot right_slot,
                             bool right_leaf, double right_width) const {
   const ClusterParams& p = config_.params;
-  for (uint32_t i = 0; i < left.size(); ++i) {
+  LevelRuns(left, left_runs_);
+  LevelRuns(right, right_runs_);
+  const auto make = [&](uint32_t i, uint32_t j, JoinStrategy strategy, size_t m) {
     const ClusterEntry& l = left[i];
-    const StageInput in_l{l.rows, left_width, left_leaf};
-    for (uint32_t j = 0; j < right.size(); ++j) {
-      const ClusterEntry& r = right[j];
-      const StageInput in_r{r.rows, right_width, right_leaf};
-      ClusterEntry e;
-      // Sampling shrinks a saturated count only on paper: it stays saturated.
-      e.rows =
-          IsSaturated(card) ? kValueCeiling : card * (l.costs.completeness * r.costs.completeness);
-      e.level = l.level + r.level;
-      e.left_slot = left_slot;
-      e.left_index = i;
-      e.right_slot = right_slot;
-      e.right_index = j;
+    const ClusterEntry& r = right[j];
+    ClusterEntry e;
+    // Sampling shrinks a saturated count only on paper: it stays saturated.
+    e.rows =
+        IsSaturated(card) ? kValueCeiling : card * (l.costs.completeness * r.costs.completeness);
+    e.level = l.level + r.level;
+    e.left_slot = left_slot;
+    e.left_index = i;
+    e.right_slot = right_slot;
+    e.right_index = j;
+    const int nodes = p.node_counts[m];
+    const double t = StageSeconds(p, strategy, nodes, {l.rows, left_width, left_leaf},
+                                  {r.rows, right_width, right_leaf}, e.rows);
+    e.costs = JoinCosts(l.costs, r.costs, nodes, t);
+    e.strategy = strategy;
+    e.nodes_index = static_cast<uint16_t>(m);
+    return e;
+  };
+  for (const auto& [a0, a1] : left_runs_) {
+    for (const auto& [b0, b1] : right_runs_) {
+      uint64_t made = 0;
       for (JoinStrategy strategy : kAllStrategies) {
         for (size_t m = 0; m < p.node_counts.size(); ++m) {
-          const int nodes = p.node_counts[m];
-          const double t = StageSeconds(p, strategy, nodes, in_l, in_r, e.rows);
-          e.costs = JoinCosts(l.costs, r.costs, nodes, t);
-          e.strategy = strategy;
-          e.nodes_index = static_cast<uint16_t>(m);
-          Insert(out, e);
+          if (PairCovered(out, left, a0, a1, left_width, left_leaf, right, b0, b1, right_width,
+                          right_leaf, card, strategy, m)) {
+            continue;
+          }
+          // Right entries of latency <= each left entry's: the last of them.
+          uint32_t j = b0;
+          for (uint32_t i = a0; i < a1; ++i) {
+            while (j + 1 < b1 && Lat(right[j + 1]) <= Lat(left[i])) ++j;
+            if (Lat(right[j]) <= Lat(left[i])) {
+              Insert(out, make(i, j, strategy, m));
+              ++made;
+            }
+          }
+          // Left entries of latency < each right entry's: the last of them.
+          uint32_t i = a0;
+          for (j = b0; j < b1; ++j) {
+            while (i + 1 < a1 && Lat(left[i + 1]) < Lat(right[j])) ++i;
+            if (Lat(left[i]) < Lat(right[j])) {
+              Insert(out, make(i, j, strategy, m));
+              ++made;
+            }
+          }
         }
       }
       // A stopped control stays stopped: the enumerator sees it next.
-      if (control_ != nullptr && control_->Tick(kAllStrategiesCount * p.node_counts.size())) {
-        return;
-      }
+      if (control_ != nullptr && control_->Tick(std::max<uint64_t>(made, 1))) return;
     }
   }
 }

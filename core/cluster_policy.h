@@ -94,12 +94,32 @@ class ClusterPolicy {
   void set_control(SearchControl* control) { control_ = control; }
 
  private:
-  // Joins every pair of entries with every strategy and node count into out.
+  // Joins the two frontiers with every strategy and node count into out:
+  // of each level pair, only the combinations no other one can dominate
+  // (see the .cc), and none for a pair out can already cover.
   void Combine(std::vector<ClusterEntry>& out, double card, std::span<const ClusterEntry> left,
                Slot left_slot, bool left_leaf, double left_width,
                std::span<const ClusterEntry> right, Slot right_slot, bool right_leaf,
                double right_width) const;
   void SetInfo(Slot s, RelSet set);
+  // The objectives' latency and node-seconds of x (0 for one not asked for).
+  double Lat(const ClusterEntry& x) const {
+    return config_.objectives.has(Objectives::kLatency) ? x.costs.latency_s : 0.0;
+  }
+  double Ns(const ClusterEntry& x) const {
+    return config_.objectives.has(Objectives::kNodeSeconds) ? x.costs.node_seconds : 0.0;
+  }
+  // True when an entry of `level` in out alpha-covers (lat_e, ns_e).
+  bool Covered(const std::vector<ClusterEntry>& out, int64_t level, double lat_e,
+               double ns_e) const;
+  // True when out already covers the best conceivable combination of the
+  // level runs left[a0, a1) and right[b0, b1) with this strategy and node
+  // count: then it covers every one of them.
+  bool PairCovered(const std::vector<ClusterEntry>& out, std::span<const ClusterEntry> left,
+                   uint32_t a0, uint32_t a1, double left_width, bool left_leaf,
+                   std::span<const ClusterEntry> right, uint32_t b0, uint32_t b1,
+                   double right_width, bool right_leaf, double card, JoinStrategy strategy,
+                   size_t m) const;
   // Adds `e` to `out` (sorted by level, then latency) unless an entry of
   // its level alpha-covers it, dropping the entries it dominates exactly.
   void Insert(std::vector<ClusterEntry>& out, const ClusterEntry& e) const;
@@ -124,6 +144,7 @@ class ClusterPolicy {
   std::vector<double> width_of_;
   std::vector<uint8_t> leaf_;
   mutable std::vector<ClusterEntry> scratch_;
+  mutable std::vector<std::pair<uint32_t, uint32_t>> left_runs_, right_runs_;  // Combine's
   size_t largest_ = 0;
   uint64_t entries_ = 0;
   bool exhausted_ = false;
