@@ -23,6 +23,7 @@ ClusterPolicy::ClusterPolicy(const Query& query, const Cardinality& card,
       card_(card),
       config_(config),
       level_alpha_(std::pow(config.alpha, 1.0 / std::max(1, query.size()))),
+      rule_(config.objectives, level_alpha_),
       max_entries_(memo_limit_bytes / sizeof(ClusterEntry)) {
   for (double rate : config_.params.sample_rates) rate_codes_.push_back(RateCode(rate));
   leaves_.resize(query.size());
@@ -63,7 +64,7 @@ void ClusterPolicy::InitLeaf(Slot s, RelationId r) {
 
 ClusterPolicy::Acc ClusterPolicy::Begin(Slot s, RelSet set) {
   SetInfo(s, set);
-  scratch_.clear();
+  scratch_.Clear();
   return {&scratch_, card_of_[s]};
 }
 
@@ -83,34 +84,6 @@ void ClusterPolicy::SetInfo(Slot s, RelSet set) {
   leaf_[s] = 0;
 }
 
-// A set's entries are kept sorted by (level, latency); within a level they
-// form a staircase (latency rising, node-seconds falling), because no entry
-// dominates another exactly. So the entry that could alpha-cover a
-// candidate is the last one of its level with latency <= alpha * its
-// latency, and the entries a candidate dominates are one run right after
-// its own position: O(log F) per candidate instead of a scan.
-void ClusterPolicy::Insert(std::vector<ClusterEntry>& out, const ClusterEntry& e) const {
-  const auto level_begin =
-      std::lower_bound(out.begin(), out.end(), e.level,
-                       [](const ClusterEntry& x, int64_t level) { return x.level < level; });
-  const auto level_end =
-      std::upper_bound(level_begin, out.end(), e.level,
-                       [](int64_t level, const ClusterEntry& x) { return level < x.level; });
-  const double lat_e = Lat(e), ns_e = Ns(e);
-  // Last entry of the level with latency <= alpha * lat_e: the least
-  // node-seconds among those that could cover e.
-  auto cover = std::upper_bound(level_begin, level_end, level_alpha_ * lat_e,
-                                [&](double v, const ClusterEntry& x) { return v < Lat(x); });
-  if (cover != level_begin && Ns(*(cover - 1)) <= level_alpha_ * ns_e) return;
-  // Entries e dominates exactly: latency >= lat_e and node-seconds >= ns_e.
-  const auto first = std::lower_bound(level_begin, level_end, lat_e,
-                                      [&](const ClusterEntry& x, double v) { return Lat(x) < v; });
-  auto last = first;
-  while (last != level_end && Ns(*last) >= ns_e) ++last;
-  const auto at = out.erase(first, last);
-  out.insert(at, e);
-}
-
 namespace {
 
 // Level runs of a frontier sorted by (level, latency): [begin, end) each.
@@ -127,20 +100,9 @@ void LevelRuns(std::span<const ClusterEntry> plans,
 
 }  // namespace
 
-bool ClusterPolicy::Covered(const std::vector<ClusterEntry>& out, int64_t level, double lat_e,
-                            double ns_e) const {
-  const auto level_begin = std::lower_bound(
-      out.begin(), out.end(), level, [](const ClusterEntry& x, int64_t l) { return x.level < l; });
-  const auto level_end = std::upper_bound(
-      level_begin, out.end(), level, [](int64_t l, const ClusterEntry& x) { return l < x.level; });
-  auto cover = std::upper_bound(level_begin, level_end, level_alpha_ * lat_e,
-                                [&](double v, const ClusterEntry& x) { return v < Lat(x); });
-  return cover != level_begin && Ns(*(cover - 1)) <= level_alpha_ * ns_e;
-}
-
-bool ClusterPolicy::PairCovered(const std::vector<ClusterEntry>& out,
-                                std::span<const ClusterEntry> left, uint32_t a0, uint32_t a1,
-                                double left_width, bool left_leaf,
+template <class Out>
+bool ClusterPolicy::PairCovered(const Out& out, std::span<const ClusterEntry> left, uint32_t a0,
+                                uint32_t a1, double left_width, bool left_leaf,
                                 std::span<const ClusterEntry> right, uint32_t b0, uint32_t b1,
                                 double right_width, bool right_leaf, double card,
                                 JoinStrategy strategy, size_t m) const {
@@ -154,11 +116,10 @@ bool ClusterPolicy::PairCovered(const std::vector<ClusterEntry>& out,
   // Each side's least latency (its first entry) and least node-seconds
   // (its last), a hair lower so that the last-bit spread of t within a
   // level cannot make the test unsafe.
-  const bool has_lat = config_.objectives.has(Objectives::kLatency);
-  const bool has_ns = config_.objectives.has(Objectives::kNodeSeconds);
-  const double lat = std::max(Lat(l), Lat(r)) + (has_lat ? t : 0.0);
-  const double ns = Ns(left[a1 - 1]) + Ns(right[b1 - 1]) + (has_ns ? p.node_counts[m] * t : 0.0);
-  return Covered(out, l.level + r.level, lat * (1 - 1e-12), ns * (1 - 1e-12));
+  const double lat = std::max(rule_.Lat(l), rule_.Lat(r)) + (rule_.has_latency() ? t : 0.0);
+  const double ns = rule_.Ns(left[a1 - 1]) + rule_.Ns(right[b1 - 1]) +
+                    (rule_.has_node_seconds() ? p.node_counts[m] * t : 0.0);
+  return out.Covers(rule_, l.level + r.level, lat * (1 - 1e-12), ns * (1 - 1e-12));
 }
 
 // Within one completeness level every entry has the same completeness (up
@@ -173,10 +134,11 @@ bool ClusterPolicy::PairCovered(const std::vector<ClusterEntry>& out,
 // And a level pair whose best conceivable combination (each side's least
 // latency and least node-seconds, with that t) is already covered is
 // skipped whole.
-void ClusterPolicy::Combine(std::vector<ClusterEntry>& out, double card,
-                            std::span<const ClusterEntry> left, Slot left_slot, bool left_leaf,
-                            double left_width, std::span<const ClusterEntry> right, Slot right_slot,
-                            bool right_leaf, double right_width) const {
+template <class Out>
+void ClusterPolicy::Combine(Out& out, double card, std::span<const ClusterEntry> left,
+                            Slot left_slot, bool left_leaf, double left_width,
+                            std::span<const ClusterEntry> right, Slot right_slot, bool right_leaf,
+                            double right_width) const {
   const ClusterParams& p = config_.params;
   LevelRuns(left, left_runs_);
   LevelRuns(right, right_runs_);
@@ -212,18 +174,18 @@ void ClusterPolicy::Combine(std::vector<ClusterEntry>& out, double card,
           // Right entries of latency <= each left entry's: the last of them.
           uint32_t j = b0;
           for (uint32_t i = a0; i < a1; ++i) {
-            while (j + 1 < b1 && Lat(right[j + 1]) <= Lat(left[i])) ++j;
-            if (Lat(right[j]) <= Lat(left[i])) {
-              Insert(out, make(i, j, strategy, m));
+            while (j + 1 < b1 && rule_.Lat(right[j + 1]) <= rule_.Lat(left[i])) ++j;
+            if (rule_.Lat(right[j]) <= rule_.Lat(left[i])) {
+              out.Insert(rule_, make(i, j, strategy, m));
               ++made;
             }
           }
           // Left entries of latency < each right entry's: the last of them.
           uint32_t i = a0;
           for (j = b0; j < b1; ++j) {
-            while (i + 1 < a1 && Lat(left[i + 1]) < Lat(right[j])) ++i;
-            if (Lat(left[i]) < Lat(right[j])) {
-              Insert(out, make(i, j, strategy, m));
+            while (i + 1 < a1 && rule_.Lat(left[i + 1]) < rule_.Lat(right[j])) ++i;
+            if (rule_.Lat(left[i]) < rule_.Lat(right[j])) {
+              out.Insert(rule_, make(i, j, strategy, m));
               ++made;
             }
           }
@@ -256,6 +218,16 @@ void ClusterPolicy::Store(Slot s, std::span<const ClusterEntry> plans) {
   if (!exhausted_) arena_.insert(arena_.end(), plans.begin(), plans.end());
 }
 
+void ClusterPolicy::Store(Slot s, const LevelFrontier& plans) {
+  const size_t count = plans.size();
+  largest_ = std::max(largest_, count);
+  entries_ += count;
+  if (entries_ > max_entries_) exhausted_ = true;
+  first_[s] = arena_.size();
+  size_[s] = exhausted_ ? 0 : static_cast<uint32_t>(count);
+  if (!exhausted_) plans.AppendTo(arena_);
+}
+
 void ClusterPolicy::Finish(Slot s, RelSet, const Acc& a) { Store(s, *a.out); }
 
 void ClusterPolicy::Grown(Slot s, size_t before) {
@@ -269,15 +241,17 @@ void ClusterPolicy::Grown(Slot s, size_t before) {
 
 void ClusterPolicy::Relax(Slot s, Slot left, Slot right) {
   const size_t before = per_set_[s].size();
-  Combine(per_set_[s], card_of_[s], Plans(left), left, leaf_[left], width_of_[left], Plans(right),
-          right, leaf_[right], width_of_[right]);
+  FlatFrontier out(per_set_[s]);
+  Combine(out, card_of_[s], Plans(left), left, leaf_[left], width_of_[left], Plans(right), right,
+          leaf_[right], width_of_[right]);
   Grown(s, before);
 }
 
 void ClusterPolicy::RelaxLeafRight(Slot s, Slot left, RelationId right) {
   const size_t before = per_set_[s].size();
-  Combine(per_set_[s], card_of_[s], Plans(left), left, leaf_[left], width_of_[left],
-          leaves_[right.value], kNoSlot, true, query_.relation(right).row_bytes);
+  FlatFrontier out(per_set_[s]);
+  Combine(out, card_of_[s], Plans(left), left, leaf_[left], width_of_[left], leaves_[right.value],
+          kNoSlot, true, query_.relation(right).row_bytes);
   Grown(s, before);
 }
 

@@ -20,6 +20,7 @@
 #include <vector>
 
 #include "core/cardinality.h"
+#include "core/cluster_frontier.h"
 #include "core/cluster_model.h"
 #include "core/dense_layout.h"
 #include "core/pareto.h"
@@ -30,19 +31,6 @@
 #include "core/search_policy.h"
 
 namespace sliceplan {
-
-// One physical sub-plan in the memo.
-struct ClusterEntry {
-  ClusterCosts costs;
-  double rows = 0;            // card x completeness
-  int64_t level = 0;          // completeness level key (sum of the leaves' rate codes)
-  Slot left_slot = kNoSlot;   // kNoSlot: a leaf
-  uint32_t left_index = 0;    // entry in the left slot, or the leaf's rate index
-  Slot right_slot = kNoSlot;  // kNoSlot with a join: a base-relation right input
-  uint32_t right_index = 0;   // entry in the right slot, or the right leaf's rate index
-  JoinStrategy strategy = JoinStrategy::kShuffle;
-  uint16_t nodes_index = 0;
-};
 
 class ClusterPolicy {
  public:
@@ -55,7 +43,7 @@ class ClusterPolicy {
   static constexpr size_t kBytesPerSlot = 3 * sizeof(double) + sizeof(uint32_t) + 1;
 
   struct Acc {
-    std::vector<ClusterEntry>* out;
+    LevelFrontier* out;
     double card;
   };
 
@@ -94,37 +82,26 @@ class ClusterPolicy {
   void set_control(SearchControl* control) { control_ = control; }
 
  private:
-  // Joins the two frontiers with every strategy and node count into out:
-  // of each level pair, only the combinations no other one can dominate
-  // (see the .cc), and none for a pair out can already cover.
-  void Combine(std::vector<ClusterEntry>& out, double card, std::span<const ClusterEntry> left,
-               Slot left_slot, bool left_leaf, double left_width,
-               std::span<const ClusterEntry> right, Slot right_slot, bool right_leaf,
-               double right_width) const;
-  void SetInfo(Slot s, RelSet set);
-  // The objectives' latency and node-seconds of x (0 for one not asked for).
-  double Lat(const ClusterEntry& x) const {
-    return config_.objectives.has(Objectives::kLatency) ? x.costs.latency_s : 0.0;
-  }
-  double Ns(const ClusterEntry& x) const {
-    return config_.objectives.has(Objectives::kNodeSeconds) ? x.costs.node_seconds : 0.0;
-  }
-  // True when an entry of `level` in out alpha-covers (lat_e, ns_e).
-  bool Covered(const std::vector<ClusterEntry>& out, int64_t level, double lat_e,
-               double ns_e) const;
+  // Joins the two frontiers with every strategy and node count into out
+  // (a LevelFrontier or a FlatFrontier): of each level pair, only the
+  // combinations no other one can dominate (see the .cc), and none for a
+  // pair out can already cover.
+  template <class Out>
+  void Combine(Out& out, double card, std::span<const ClusterEntry> left, Slot left_slot,
+               bool left_leaf, double left_width, std::span<const ClusterEntry> right,
+               Slot right_slot, bool right_leaf, double right_width) const;
   // True when out already covers the best conceivable combination of the
   // level runs left[a0, a1) and right[b0, b1) with this strategy and node
   // count: then it covers every one of them.
-  bool PairCovered(const std::vector<ClusterEntry>& out, std::span<const ClusterEntry> left,
-                   uint32_t a0, uint32_t a1, double left_width, bool left_leaf,
-                   std::span<const ClusterEntry> right, uint32_t b0, uint32_t b1,
-                   double right_width, bool right_leaf, double card, JoinStrategy strategy,
-                   size_t m) const;
-  // Adds `e` to `out` (sorted by level, then latency) unless an entry of
-  // its level alpha-covers it, dropping the entries it dominates exactly.
-  void Insert(std::vector<ClusterEntry>& out, const ClusterEntry& e) const;
+  template <class Out>
+  bool PairCovered(const Out& out, std::span<const ClusterEntry> left, uint32_t a0, uint32_t a1,
+                   double left_width, bool left_leaf, std::span<const ClusterEntry> right,
+                   uint32_t b0, uint32_t b1, double right_width, bool right_leaf, double card,
+                   JoinStrategy strategy, size_t m) const;
+  void SetInfo(Slot s, RelSet set);
   // Appends a finished set's entries to the arena.
   void Store(Slot s, std::span<const ClusterEntry> plans);
+  void Store(Slot s, const LevelFrontier& plans);
   // Accounts for slot s having grown in place from `before` entries.
   void Grown(Slot s, size_t before);
 
@@ -132,6 +109,7 @@ class ClusterPolicy {
   const Cardinality& card_;
   const ClusterSearchConfig config_;
   const double level_alpha_;
+  const StaircaseRule rule_;
   const uint64_t max_entries_;
   std::vector<std::vector<ClusterEntry>> leaves_;  // relation -> one per rate
   std::vector<int64_t> rate_codes_;
@@ -143,7 +121,7 @@ class ClusterPolicy {
   std::vector<double> card_of_;
   std::vector<double> width_of_;
   std::vector<uint8_t> leaf_;
-  mutable std::vector<ClusterEntry> scratch_;
+  mutable LevelFrontier scratch_;
   mutable std::vector<std::pair<uint32_t, uint32_t>> left_runs_, right_runs_;  // Combine's
   size_t largest_ = 0;
   uint64_t entries_ = 0;
