@@ -142,6 +142,12 @@ void ClusterPolicy::Combine(Out& out, double card, std::span<const ClusterEntry>
   const ClusterParams& p = config_.params;
   LevelRuns(left, left_runs_);
   LevelRuns(right, right_runs_);
+  // The last stage time made, with its inputs: the entries of one level
+  // pair almost always share their row counts, and the same inputs give
+  // the same time.
+  struct LastStage {
+    double left_rows = -1, right_rows = -1, out_rows = -1, seconds = 0;
+  } last;
   const auto make = [&](uint32_t i, uint32_t j, JoinStrategy strategy, size_t m) {
     const ClusterEntry& l = left[i];
     const ClusterEntry& r = right[j];
@@ -155,9 +161,12 @@ void ClusterPolicy::Combine(Out& out, double card, std::span<const ClusterEntry>
     e.right_slot = right_slot;
     e.right_index = j;
     const int nodes = p.node_counts[m];
-    const double t = StageSeconds(p, strategy, nodes, {l.rows, left_width, left_leaf},
-                                  {r.rows, right_width, right_leaf}, e.rows);
-    e.costs = JoinCosts(l.costs, r.costs, nodes, t);
+    if (l.rows != last.left_rows || r.rows != last.right_rows || e.rows != last.out_rows) {
+      last = {l.rows, r.rows, e.rows,
+              StageSeconds(p, strategy, nodes, {l.rows, left_width, left_leaf},
+                           {r.rows, right_width, right_leaf}, e.rows)};
+    }
+    e.costs = JoinCosts(l.costs, r.costs, nodes, last.seconds);
     e.strategy = strategy;
     e.nodes_index = static_cast<uint16_t>(m);
     return e;
@@ -171,6 +180,7 @@ void ClusterPolicy::Combine(Out& out, double card, std::span<const ClusterEntry>
                           right_leaf, card, strategy, m)) {
             continue;
           }
+          last.left_rows = -1;  // another strategy or node count: another time
           // Right entries of latency <= each left entry's: the last of them.
           uint32_t j = b0;
           for (uint32_t i = a0; i < a1; ++i) {
