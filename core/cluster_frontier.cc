@@ -73,18 +73,21 @@ bool LevelFrontier::Covers(const StaircaseRule& rule, int64_t level, double lat,
   return run != nullptr && rule.Covers(run->data(), run->data() + run->size(), lat, ns);
 }
 
-void LevelFrontier::Insert(const StaircaseRule& rule, const ClusterEntry& e) {
-  const auto it = std::lower_bound(keys_.begin(), keys_.end(), e.level);
+LevelFrontier::Level LevelFrontier::At(int64_t level) {
+  const auto it = std::lower_bound(keys_.begin(), keys_.end(), level);
   const auto at = static_cast<size_t>(it - keys_.begin());
-  if (it == keys_.end() || *it != e.level) {
+  if (it == keys_.end() || *it != level) {
     // A new level takes the next spare vector (kept from earlier sets).
     const auto r = static_cast<uint32_t>(keys_.size());
     if (runs_.size() <= r) runs_.emplace_back();
-    keys_.insert(it, e.level);
+    keys_.insert(it, level);
     run_.insert(run_.begin() + static_cast<std::ptrdiff_t>(at), r);
   }
-  std::vector<ClusterEntry>& run = runs_[run_[at]];
-  rule.Insert(run, 0, run.size(), e);
+  return Level(runs_[run_[at]]);
+}
+
+void LevelFrontier::Insert(const StaircaseRule& rule, const ClusterEntry& e) {
+  At(e.level).Insert(rule, e);
 }
 
 size_t LevelFrontier::size() const {

@@ -71,6 +71,21 @@ class FlatFrontier {
   bool Covers(const StaircaseRule& rule, int64_t level, double lat, double ns) const;
   void Insert(const StaircaseRule& rule, const ClusterEntry& e);
 
+  // One level of it (entries inserted through it must be of that level).
+  class Level {
+   public:
+    Level(FlatFrontier& f, int64_t level) : f_(f), level_(level) {}
+    bool Covers(const StaircaseRule& rule, double lat, double ns) const {
+      return f_.Covers(rule, level_, lat, ns);
+    }
+    void Insert(const StaircaseRule& rule, const ClusterEntry& e) { f_.Insert(rule, e); }
+
+   private:
+    FlatFrontier& f_;
+    int64_t level_;
+  };
+  Level At(int64_t level) { return Level(*this, level); }
+
  private:
   std::vector<ClusterEntry>& v_;
 };
@@ -85,6 +100,23 @@ class LevelFrontier {
   size_t size() const;
   // Appends the entries to out in the flat form's order.
   void AppendTo(std::vector<ClusterEntry>& out) const;
+
+  // One level's staircase (made empty when new), looked up once for many
+  // insertions; valid until the next Clear or At.
+  class Level {
+   public:
+    explicit Level(std::vector<ClusterEntry>& run) : run_(run) {}
+    bool Covers(const StaircaseRule& rule, double lat, double ns) const {
+      return rule.Covers(run_.data(), run_.data() + run_.size(), lat, ns);
+    }
+    void Insert(const StaircaseRule& rule, const ClusterEntry& e) {
+      rule.Insert(run_, 0, run_.size(), e);
+    }
+
+   private:
+    std::vector<ClusterEntry>& run_;
+  };
+  Level At(int64_t level);
 
  private:
   // The run of `level`, or null.

@@ -100,26 +100,18 @@ void LevelRuns(std::span<const ClusterEntry> plans,
 
 }  // namespace
 
-template <class Out>
-bool ClusterPolicy::PairCovered(const Out& out, std::span<const ClusterEntry> left, uint32_t a0,
-                                uint32_t a1, double left_width, bool left_leaf,
-                                std::span<const ClusterEntry> right, uint32_t b0, uint32_t b1,
-                                double right_width, bool right_leaf, double card,
-                                JoinStrategy strategy, size_t m) const {
-  const ClusterParams& p = config_.params;
-  const ClusterEntry& l = left[a0];
-  const ClusterEntry& r = right[b0];
-  const double rows =
-      IsSaturated(card) ? kValueCeiling : card * (l.costs.completeness * r.costs.completeness);
-  const double t = StageSeconds(p, strategy, p.node_counts[m], {l.rows, left_width, left_leaf},
-                                {r.rows, right_width, right_leaf}, rows);
+template <class Level>
+bool ClusterPolicy::PairCovered(const Level& out, std::span<const ClusterEntry> left, uint32_t a0,
+                                uint32_t a1, std::span<const ClusterEntry> right, uint32_t b0,
+                                uint32_t b1, int nodes, double t) const {
   // Each side's least latency (its first entry) and least node-seconds
   // (its last), a hair lower so that the last-bit spread of t within a
   // level cannot make the test unsafe.
-  const double lat = std::max(rule_.Lat(l), rule_.Lat(r)) + (rule_.has_latency() ? t : 0.0);
+  const double lat =
+      std::max(rule_.Lat(left[a0]), rule_.Lat(right[b0])) + (rule_.has_latency() ? t : 0.0);
   const double ns = rule_.Ns(left[a1 - 1]) + rule_.Ns(right[b1 - 1]) +
-                    (rule_.has_node_seconds() ? p.node_counts[m] * t : 0.0);
-  return out.Covers(rule_, l.level + r.level, lat * (1 - 1e-12), ns * (1 - 1e-12));
+                    (rule_.has_node_seconds() ? nodes * t : 0.0);
+  return out.Covers(rule_, lat * (1 - 1e-12), ns * (1 - 1e-12));
 }
 
 // Within one completeness level every entry has the same completeness (up
@@ -148,25 +140,31 @@ void ClusterPolicy::Combine(Out& out, double card, std::span<const ClusterEntry>
   struct LastStage {
     double left_rows = -1, right_rows = -1, out_rows = -1, seconds = 0;
   } last;
+  const auto stage = [&](const ClusterEntry& l, const ClusterEntry& r, double out_rows,
+                         JoinStrategy strategy, int nodes) {
+    if (l.rows != last.left_rows || r.rows != last.right_rows || out_rows != last.out_rows) {
+      last = {l.rows, r.rows, out_rows,
+              StageSeconds(p, strategy, nodes, {l.rows, left_width, left_leaf},
+                           {r.rows, right_width, right_leaf}, out_rows)};
+    }
+    return last.seconds;
+  };
+  // Sampling shrinks a saturated count only on paper: it stays saturated.
+  const auto out_rows = [&](const ClusterEntry& l, const ClusterEntry& r) {
+    return IsSaturated(card) ? kValueCeiling : card * (l.costs.completeness * r.costs.completeness);
+  };
   const auto make = [&](uint32_t i, uint32_t j, JoinStrategy strategy, size_t m) {
     const ClusterEntry& l = left[i];
     const ClusterEntry& r = right[j];
     ClusterEntry e;
-    // Sampling shrinks a saturated count only on paper: it stays saturated.
-    e.rows =
-        IsSaturated(card) ? kValueCeiling : card * (l.costs.completeness * r.costs.completeness);
+    e.rows = out_rows(l, r);
     e.level = l.level + r.level;
     e.left_slot = left_slot;
     e.left_index = i;
     e.right_slot = right_slot;
     e.right_index = j;
     const int nodes = p.node_counts[m];
-    if (l.rows != last.left_rows || r.rows != last.right_rows || e.rows != last.out_rows) {
-      last = {l.rows, r.rows, e.rows,
-              StageSeconds(p, strategy, nodes, {l.rows, left_width, left_leaf},
-                           {r.rows, right_width, right_leaf}, e.rows)};
-    }
-    e.costs = JoinCosts(l.costs, r.costs, nodes, last.seconds);
+    e.costs = JoinCosts(l.costs, r.costs, nodes, stage(l, r, e.rows, strategy, nodes));
     e.strategy = strategy;
     e.nodes_index = static_cast<uint16_t>(m);
     return e;
@@ -174,19 +172,20 @@ void ClusterPolicy::Combine(Out& out, double card, std::span<const ClusterEntry>
   for (const auto& [a0, a1] : left_runs_) {
     for (const auto& [b0, b1] : right_runs_) {
       uint64_t made = 0;
+      auto level = out.At(left[a0].level + right[b0].level);
       for (JoinStrategy strategy : kAllStrategies) {
         for (size_t m = 0; m < p.node_counts.size(); ++m) {
-          if (PairCovered(out, left, a0, a1, left_width, left_leaf, right, b0, b1, right_width,
-                          right_leaf, card, strategy, m)) {
-            continue;
-          }
+          const int nodes = p.node_counts[m];
           last.left_rows = -1;  // another strategy or node count: another time
+          const double t =
+              stage(left[a0], right[b0], out_rows(left[a0], right[b0]), strategy, nodes);
+          if (PairCovered(level, left, a0, a1, right, b0, b1, nodes, t)) continue;
           // Right entries of latency <= each left entry's: the last of them.
           uint32_t j = b0;
           for (uint32_t i = a0; i < a1; ++i) {
             while (j + 1 < b1 && rule_.Lat(right[j + 1]) <= rule_.Lat(left[i])) ++j;
             if (rule_.Lat(right[j]) <= rule_.Lat(left[i])) {
-              out.Insert(rule_, make(i, j, strategy, m));
+              level.Insert(rule_, make(i, j, strategy, m));
               ++made;
             }
           }
@@ -195,7 +194,7 @@ void ClusterPolicy::Combine(Out& out, double card, std::span<const ClusterEntry>
           for (j = b0; j < b1; ++j) {
             while (i + 1 < a1 && rule_.Lat(left[i + 1]) < rule_.Lat(right[j])) ++i;
             if (rule_.Lat(left[i]) < rule_.Lat(right[j])) {
-              out.Insert(rule_, make(i, j, strategy, m));
+              level.Insert(rule_, make(i, j, strategy, m));
               ++made;
             }
           }

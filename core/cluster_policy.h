@@ -90,14 +90,13 @@ class ClusterPolicy {
   void Combine(Out& out, double card, std::span<const ClusterEntry> left, Slot left_slot,
                bool left_leaf, double left_width, std::span<const ClusterEntry> right,
                Slot right_slot, bool right_leaf, double right_width) const;
-  // True when out already covers the best conceivable combination of the
-  // level runs left[a0, a1) and right[b0, b1) with this strategy and node
-  // count: then it covers every one of them.
-  template <class Out>
-  bool PairCovered(const Out& out, std::span<const ClusterEntry> left, uint32_t a0, uint32_t a1,
-                   double left_width, bool left_leaf, std::span<const ClusterEntry> right,
-                   uint32_t b0, uint32_t b1, double right_width, bool right_leaf, double card,
-                   JoinStrategy strategy, size_t m) const;
+  // True when `level` (the out level of the level runs left[a0, a1) and
+  // right[b0, b1)) already covers their best conceivable combination with
+  // stage time t on `nodes` nodes: then it covers every one of them.
+  template <class Level>
+  bool PairCovered(const Level& level, std::span<const ClusterEntry> left, uint32_t a0, uint32_t a1,
+                   std::span<const ClusterEntry> right, uint32_t b0, uint32_t b1, int nodes,
+                   double t) const;
   void SetInfo(Slot s, RelSet set);
   // Appends a finished set's entries to the arena.
   void Store(Slot s, std::span<const ClusterEntry> plans);
