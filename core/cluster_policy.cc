@@ -11,8 +11,6 @@ namespace {
 // keyed by the sum of integer codes -log(rate) * 2^40. Equal multisets get
 // equal keys exactly; distinct rates whose products merely coincide may
 // get distinct keys, which only prunes less (always safe).
-constexpr size_t kAllStrategiesCount = std::size(kAllStrategies);
-
 int64_t RateCode(double rate) { return std::llround(-std::log(rate) * 1099511627776.0); }
 
 }  // namespace
