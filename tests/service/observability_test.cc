@@ -6,6 +6,7 @@
 // and on each of the worker's slice lines.
 #include <unistd.h>
 
+#include <cstdio>
 #include <fstream>
 #include <set>
 
@@ -24,6 +25,12 @@ using testing::GraphShape;
 using testing::ServerProcess;
 
 struct Server {
+  Server() = default;
+  Server(Server&&) = default;
+  Server& operator=(Server&&) = default;
+  ~Server() {
+    if (!log.empty()) std::remove(log.c_str());
+  }
   std::unique_ptr<ServerProcess> process;
   std::string metrics;  // HOST:PORT
   std::string log;      // its stderr
@@ -187,6 +194,26 @@ TEST_F(ObservabilityTest, CountersMoveByWhatTheAnswersSayAndTheIdTravels) {
         s->log + " 2>&1");
     EXPECT_EQ(check.exit_status, 0) << check.output;
   }
+}
+
+// A metrics listener other hosts can reach is served (the flag is the
+// operator's say-so) and said so in the log.
+TEST(ObservabilityFlagsTest, OffHostMetricsAreLoggedAsAWarning) {
+  Server w = StartServer(SLICEPLAN_WORKER_BIN, {"--metrics-listen=0.0.0.0:0"}, "offhost");
+  ASSERT_TRUE(w.process);
+  ASSERT_EQ(w.metrics.rfind("0.0.0.0:", 0), 0u) << w.metrics;
+  bool warned = false;
+  for (const std::string& line : Lines(w.log)) {
+    warned |= Field(line, "level") == "warning" &&
+              line.find(
+                  "metrics served as plaintext HTTP on 0.0.0.0:0, reachable from other "
+                  "hosts") != std::string::npos;
+  }
+  EXPECT_TRUE(warned);
+  const std::string port = w.metrics.substr(w.metrics.rfind(':') + 1);
+  auto body = testing::HttpGet("127.0.0.1:" + port, "/metrics");
+  ASSERT_TRUE(body.ok()) << body.status();
+  EXPECT_NE(body->find("sliceplan_slices_solved_total 0"), std::string::npos) << *body;
 }
 
 TEST(ObservabilityFlagsTest, BadFlagsAreRefusedByName) {
