@@ -8,6 +8,7 @@
 #include "absl/strings/match.h"
 #include "core/status_macros.h"
 #include "rpc/flag_names.h"
+#include "rpc/server_flags.h"
 #include "spdlog/spdlog.h"
 
 namespace sliceplan {
@@ -16,7 +17,10 @@ void ParseServerCommandLine(int argc, char** argv, const char* usage, const char
   absl::SetProgramUsageMessage(usage);
   absl::FlagsUsageConfig config;
   const std::string file = main_file;
-  config.contains_help_flags = [file](absl::string_view f) { return absl::StrContains(f, file); };
+  // The server's own flags and those both servers share (server_flags.cc).
+  config.contains_help_flags = [file](absl::string_view f) {
+    return absl::StrContains(f, file) || absl::StrContains(f, kServerFlagsFile);
+  };
   config.contains_helpshort_flags = config.contains_help_flags;
   absl::SetFlagsUsageConfig(config);
   std::vector<std::string> storage;  // flag values are copied by the parse

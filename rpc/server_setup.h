@@ -14,7 +14,8 @@ namespace sliceplan {
 
 // Parses argv with Abseil: dashed flag names accepted (flag_names.h),
 // `usage` as the program's usage line, and --help listing only the flags
-// defined in `main_file` (e.g. "worker/main.cc"), not Abseil's or gRPC's.
+// defined in `main_file` (e.g. "worker/main.cc") and the shared ones
+// (server_flags.h), not Abseil's or gRPC's.
 void ParseServerCommandLine(int argc, char** argv, const char* usage, const char* main_file);
 
 // Checks `listen`, serve.health_listen and serve.metrics_listen when set
