@@ -4,11 +4,13 @@
 // 1, 1.05, 1.2; and the slowest slice over the unsliced time for P = 4, 16.
 // Not a test; see docs/benchmarks.md.
 //
-//   build/bench/pareto_bench [n ...]     (default 8 10 12 14)
+//   build/bench/pareto_bench [--budget=SECONDS] [--alphas=A,...] [n ...]
+//       (default: 60 s a run, alphas 1,1.05,1.2, n = 8 10 12 14)
 #include <algorithm>
 #include <chrono>
 #include <cstdio>
 #include <cstdlib>
+#include <string>
 #include <vector>
 
 #include "core/slice_solver.h"
@@ -32,15 +34,15 @@ struct Run {
   bool ok = false;
 };
 
-// Each run gets at most a minute; slower ones are reported as such.
-constexpr int kBudgetSeconds = 60;
+// Each run gets at most this long (--budget); slower ones are reported as such.
+int budget_seconds = 60;
 
 Run Solve(const Query& q, const SearchOptions& o, SliceSpec slice) {
   SearchControl control(nullptr,
-                        std::chrono::steady_clock::now() + std::chrono::seconds(kBudgetSeconds));
+                        std::chrono::steady_clock::now() + std::chrono::seconds(budget_seconds));
   auto r = SolveSlice(q, o, slice, control);
   if (!r.ok()) {
-    std::printf("%3d %6.2f  over %d s (%s)\n", q.size(), o.cluster.alpha, kBudgetSeconds,
+    std::printf("%3d %6.2f  over %d s (%s)\n", q.size(), o.cluster.alpha, budget_seconds,
                 std::string(r.status().message()).c_str());
     return {};
   }
@@ -53,13 +55,28 @@ Run Solve(const Query& q, const SearchOptions& o, SliceSpec slice) {
 int main(int argc, char** argv) {
   using namespace sliceplan;
   std::vector<int> sizes;
-  for (int i = 1; i < argc; ++i) sizes.push_back(std::atoi(argv[i]));
+  std::vector<double> alphas = {1.0, 1.05, 1.2};
+  for (int i = 1; i < argc; ++i) {
+    const std::string arg = argv[i];
+    if (arg.rfind("--budget=", 0) == 0) {
+      budget_seconds = std::atoi(arg.c_str() + 9);
+    } else if (arg.rfind("--alphas=", 0) == 0) {
+      alphas.clear();
+      for (const char* p = arg.c_str() + 9; *p != 0;) {
+        char* end = nullptr;
+        alphas.push_back(std::strtod(p, &end));
+        p = *end == ',' ? end + 1 : end;
+      }
+    } else {
+      sizes.push_back(std::atoi(arg.c_str()));
+    }
+  }
   if (sizes.empty()) sizes = {8, 10, 12, 14};
   std::printf("%3s %6s %10s %9s %12s %16s %16s\n", "n", "alpha", "seconds", "frontier",
               "largest_set", "P=4 slowest/all", "P=16 slowest/all");
   for (int n : sizes) {
     const Query q = testing::MakeQuery(testing::GraphShape::kRandom, n, 1);
-    for (double alpha : {1.0, 1.05, 1.2}) {
+    for (double alpha : alphas) {
       const SearchOptions o = Options(alpha);
       const Run whole = Solve(q, o, {0, 1});
       if (!whole.ok) continue;
