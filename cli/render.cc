@@ -205,11 +205,12 @@ std::string RenderText(const TieredOutcome& outcome, const RunInfo& info) {
   }
   if (outcome.tier == SearchTier::kIdp || (!outcome.exact_ran && !result.slices.empty())) {
     absl::StrAppendFormat(&out,
-                          "\nidp: %d blocks searched exactly (largest %d relations), %d improved "
-                          "the plan, %d passes, %u slices solved; wall time %.3f s\n",
-                          outcome.idp.blocks, outcome.idp.largest_block, outcome.idp.improved,
-                          outcome.idp.passes, static_cast<unsigned>(result.slices.size()),
-                          outcome.wall_seconds);
+                          "\nidp: %d blocks searched exactly (largest %d relations), %d met "
+                          "again, %d improved the plan, %d passes, %u slices solved; wall time "
+                          "%.3f s\n",
+                          outcome.idp.blocks, outcome.idp.largest_block, outcome.idp.reused,
+                          outcome.idp.improved, outcome.idp.passes,
+                          static_cast<unsigned>(result.slices.size()), outcome.wall_seconds);
     return out;
   }
   if (!outcome.exact_ran) {
@@ -273,7 +274,7 @@ std::string RenderJson(const TieredOutcome& outcome, const RunInfo& info) {
                   ",\n    \"hedges\": ", outcome.schedule.hedges);
   if (outcome.idp.blocks > 0) {
     absl::StrAppend(&out, ",\n    \"idp\": {\"blocks\": ", outcome.idp.blocks,
-                    ", \"improved\": ", outcome.idp.improved,
+                    ", \"reused\": ", outcome.idp.reused, ", \"improved\": ", outcome.idp.improved,
                     ", \"largest_block\": ", outcome.idp.largest_block,
                     ", \"passes\": ", outcome.idp.passes,
                     ", \"start_cost\": ", JsonNumber(outcome.idp.start_cost), "}");
