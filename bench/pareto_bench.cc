@@ -4,8 +4,9 @@
 // 1, 1.05, 1.2; and the slowest slice over the unsliced time for P = 4, 16.
 // Not a test; see docs/benchmarks.md.
 //
-//   build/bench/pareto_bench [--budget=SECONDS] [--alphas=A,...] [n ...]
-//       (default: 60 s a run, alphas 1,1.05,1.2, n = 8 10 12 14)
+//   build/bench/pareto_bench [--budget=SECONDS] [--alphas=A,...] [--no-slices] [n ...]
+//       (default: 60 s a run, alphas 1,1.05,1.2, n = 8 10 12 14; --no-slices: the
+//       unsliced search only)
 #include <algorithm>
 #include <chrono>
 #include <cstdio>
@@ -56,9 +57,12 @@ int main(int argc, char** argv) {
   using namespace sliceplan;
   std::vector<int> sizes;
   std::vector<double> alphas = {1.0, 1.05, 1.2};
+  bool slices = true;
   for (int i = 1; i < argc; ++i) {
     const std::string arg = argv[i];
-    if (arg.rfind("--budget=", 0) == 0) {
+    if (arg == "--no-slices") {
+      slices = false;
+    } else if (arg.rfind("--budget=", 0) == 0) {
       budget_seconds = std::atoi(arg.c_str() + 9);
     } else if (arg.rfind("--alphas=", 0) == 0) {
       alphas.clear();
@@ -83,7 +87,7 @@ int main(int argc, char** argv) {
       double ratio[2] = {0, 0};
       int k = 0;
       for (uint32_t p : {4u, 16u}) {
-        if (std::countr_zero(p) > MaxSliceBits(n, PlanShape::kBushy)) {
+        if (!slices || std::countr_zero(p) > MaxSliceBits(n, PlanShape::kBushy)) {
           ratio[k++] = -1;
           continue;
         }
