@@ -112,6 +112,45 @@ bool ClusterPolicy::PairCovered(const Level& out, std::span<const ClusterEntry> 
   return out.Covers(rule_, lat * (1 - 1e-12), ns * (1 - 1e-12));
 }
 
+void ClusterPolicy::Options(const ClusterEntry& l, double left_width, bool left_leaf,
+                            const ClusterEntry& r, double right_width, bool right_leaf,
+                            double out_rows) const {
+  const ClusterParams& p = config_.params;
+  options_.clear();
+  for (JoinStrategy strategy : kAllStrategies) {
+    for (size_t m = 0; m < p.node_counts.size(); ++m) {
+      const int nodes = p.node_counts[m];
+      options_.push_back({strategy, m, nodes,
+                          StageSeconds(p, strategy, nodes, {l.rows, left_width, left_leaf},
+                                       {r.rows, right_width, right_leaf}, out_rows)});
+    }
+  }
+  // With t the same for every combination of the pair, option a gives
+  // each (l, r) latency max + t_a and node-seconds sum + m_a t_a: no worse
+  // than option b on the objectives asked for means every combination
+  // under b is dominated by the same one under a. Ties keep the first.
+  // Only for the exact frontier: with alpha > 1 the dominated options'
+  // combinations, offered first, often cover several better ones at once,
+  // and the sets came out larger and slower without them (8 and 10
+  // relations, alpha 1.05: 30% slower, docs/benchmarks.md).
+  if (config_.alpha > 1) return;
+  const auto no_worse = [&](const StageOption& a, const StageOption& b) {
+    return (!rule_.has_latency() || a.seconds <= b.seconds) &&
+           (!rule_.has_node_seconds() || a.nodes * a.seconds <= b.nodes * b.seconds);
+  };
+  size_t kept = 0;
+  for (size_t b = 0; b < options_.size(); ++b) {
+    bool dominated = false;
+    for (size_t a = 0; a < options_.size() && !dominated; ++a) {
+      if (a == b || !no_worse(options_[a], options_[b])) continue;
+      // a equal to b on both: the earlier one stays.
+      dominated = !no_worse(options_[b], options_[a]) || a < b;
+    }
+    if (!dominated) options_[kept++] = options_[b];
+  }
+  options_.resize(kept);
+}
+
 // Within one completeness level every entry has the same completeness (up
 // to rounding in the last bit of its product), so for one level pair and
 // one (strategy, node count) every combination has the same stage time t:
@@ -171,30 +210,29 @@ void ClusterPolicy::Combine(Out& out, double card, std::span<const ClusterEntry>
     for (const auto& [b0, b1] : right_runs_) {
       uint64_t made = 0;
       auto level = out.At(left[a0].level + right[b0].level);
-      for (JoinStrategy strategy : kAllStrategies) {
-        for (size_t m = 0; m < p.node_counts.size(); ++m) {
-          const int nodes = p.node_counts[m];
-          last.left_rows = -1;  // another strategy or node count: another time
-          const double t =
-              stage(left[a0], right[b0], out_rows(left[a0], right[b0]), strategy, nodes);
-          if (PairCovered(level, left, a0, a1, right, b0, b1, nodes, t)) continue;
-          // Right entries of latency <= each left entry's: the last of them.
-          uint32_t j = b0;
-          for (uint32_t i = a0; i < a1; ++i) {
-            while (j + 1 < b1 && rule_.Lat(right[j + 1]) <= rule_.Lat(left[i])) ++j;
-            if (rule_.Lat(right[j]) <= rule_.Lat(left[i])) {
-              level.Insert(rule_, make(i, j, strategy, m));
-              ++made;
-            }
+      const double rows0 = out_rows(left[a0], right[b0]);
+      Options(left[a0], left_width, left_leaf, right[b0], right_width, right_leaf, rows0);
+      for (const StageOption& o : options_) {
+        const JoinStrategy strategy = o.strategy;
+        const size_t m = o.nodes_index;
+        last = {left[a0].rows, right[b0].rows, rows0, o.seconds};
+        if (PairCovered(level, left, a0, a1, right, b0, b1, o.nodes, o.seconds)) continue;
+        // Right entries of latency <= each left entry's: the last of them.
+        uint32_t j = b0;
+        for (uint32_t i = a0; i < a1; ++i) {
+          while (j + 1 < b1 && rule_.Lat(right[j + 1]) <= rule_.Lat(left[i])) ++j;
+          if (rule_.Lat(right[j]) <= rule_.Lat(left[i])) {
+            level.Insert(rule_, make(i, j, strategy, m));
+            ++made;
           }
-          // Left entries of latency < each right entry's: the last of them.
-          uint32_t i = a0;
-          for (j = b0; j < b1; ++j) {
-            while (i + 1 < a1 && rule_.Lat(left[i + 1]) < rule_.Lat(right[j])) ++i;
-            if (rule_.Lat(left[i]) < rule_.Lat(right[j])) {
-              level.Insert(rule_, make(i, j, strategy, m));
-              ++made;
-            }
+        }
+        // Left entries of latency < each right entry's: the last of them.
+        uint32_t i = a0;
+        for (j = b0; j < b1; ++j) {
+          while (i + 1 < a1 && rule_.Lat(left[i + 1]) < rule_.Lat(right[j])) ++i;
+          if (rule_.Lat(left[i]) < rule_.Lat(right[j])) {
+            level.Insert(rule_, make(i, j, strategy, m));
+            ++made;
           }
         }
       }

@@ -97,6 +97,19 @@ class ClusterPolicy {
   bool PairCovered(const Level& level, std::span<const ClusterEntry> left, uint32_t a0, uint32_t a1,
                    std::span<const ClusterEntry> right, uint32_t b0, uint32_t b1, int nodes,
                    double t) const;
+  // A strategy and node count for one level pair, with its stage time.
+  struct StageOption {
+    JoinStrategy strategy;
+    size_t nodes_index;
+    int nodes;
+    double seconds;
+  };
+  // Fills options_ with the strategies and node counts worth trying for a
+  // level pair whose first entries are l and r: for the exact frontier,
+  // those no other one beats on both the stage time and its node-seconds
+  // (see the .cc); with alpha > 1, all of them.
+  void Options(const ClusterEntry& l, double left_width, bool left_leaf, const ClusterEntry& r,
+               double right_width, bool right_leaf, double out_rows) const;
   void SetInfo(Slot s, RelSet set);
   // Appends a finished set's entries to the arena.
   void Store(Slot s, std::span<const ClusterEntry> plans);
@@ -122,6 +135,7 @@ class ClusterPolicy {
   std::vector<uint8_t> leaf_;
   mutable LevelFrontier scratch_;
   mutable std::vector<std::pair<uint32_t, uint32_t>> left_runs_, right_runs_;  // Combine's
+  mutable std::vector<StageOption> options_;                                   // Combine's
   size_t largest_ = 0;
   uint64_t entries_ = 0;
   bool exhausted_ = false;
