@@ -206,10 +206,16 @@ void ClusterPolicy::Combine(Out& out, double card, std::span<const ClusterEntry>
     e.nodes_index = static_cast<uint16_t>(m);
     return e;
   };
+  const int fewest_nodes = *std::min_element(p.node_counts.begin(), p.node_counts.end());
   for (const auto& [a0, a1] : left_runs_) {
     for (const auto& [b0, b1] : right_runs_) {
       uint64_t made = 0;
       auto level = out.At(left[a0].level + right[b0].level);
+      // Every stage pays its start-up, on at least the fewest nodes: if the
+      // pair's best point at that floor is covered, all its options are.
+      if (PairCovered(level, left, a0, a1, right, b0, b1, fewest_nodes, p.stage_startup_s)) {
+        continue;
+      }
       const double rows0 = out_rows(left[a0], right[b0]);
       Options(left[a0], left_width, left_leaf, right[b0], right_width, right_leaf, rows0);
       for (const StageOption& o : options_) {
