@@ -45,6 +45,18 @@ absl::Status ValidateRequest(const v1::OptimizeRequest& request) {
   return absl::OkStatus();
 }
 
+// The answer, or RESOURCE_EXHAUSTED when it is larger than `limit` bytes.
+absl::StatusOr<v1::OptimizeResponse> CheckResponseSize(v1::OptimizeResponse response,
+                                                       int64_t limit) {
+  const auto bytes = static_cast<int64_t>(response.ByteSizeLong());
+  if (bytes <= limit) return response;
+  return absl::ResourceExhaustedError(absl::StrCat(
+      "the answer is ", bytes, " bytes (", response.frontier_size(), " plans), over the limit of ",
+      limit,
+      " (--max_response_bytes); ask for a precision alpha > 1, fewer objectives, sample rates "
+      "or node counts, or raise the limit together with the client's receive limit"));
+}
+
 // The request's one log line: who asked what, which tier answered, how.
 void LogRequest(const std::string& request_id, const RequestFacts& facts,
                 const absl::StatusOr<TieredOutcome>& outcome, double wall) {
@@ -162,7 +174,8 @@ absl::StatusOr<v1::OptimizeResponse> CoordinatorService::Run(
   metrics_.Request(outcome, facts.asked, wall);
   LogRequest(request_id, facts, outcome, wall);
   if (!outcome.ok()) return outcome.status();
-  return TieredToProto(*outcome, facts.cost);
+  v1::OptimizeResponse response = TieredToProto(*outcome, facts.cost);
+  return CheckResponseSize(std::move(response), config_.max_response_bytes);
 }
 
 absl::Status CoordinatorService::Authenticate(const grpc::ServerContext& context) const {

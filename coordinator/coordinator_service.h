@@ -36,6 +36,10 @@ struct CoordinatorConfig {
   int max_queued_requests = 64;      // wait for a place; more are refused
   // The time auto and idp plan for when a request names none.
   double default_budget_seconds = 10;
+  // Largest answer sent: gRPC clients refuse a message past their receive
+  // limit (4 MiB unless raised) with an error of their own library, so a
+  // larger answer is refused here, by name, instead.
+  int64_t max_response_bytes = int64_t{4} << 20;
 };
 
 // What one request's log line says beside its outcome.

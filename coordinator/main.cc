@@ -20,6 +20,8 @@ ABSL_FLAG(double, hedge_after_seconds, 2.0,
           "start a second copy of a slice running this long (0: never hedge)");
 ABSL_FLAG(int, health_interval_ms, 1000, "how often to check the workers' health");
 ABSL_FLAG(int64_t, max_frontier_plans, 10000, "most plans of a Pareto set an answer returns");
+ABSL_FLAG(int64_t, max_response_bytes, int64_t{4} << 20,
+          "largest answer sent, in bytes (gRPC clients receive 4 MiB unless raised)");
 ABSL_FLAG(double, default_budget_seconds, 10,
           "the time the auto and idp tiers plan for when a request gives no deadline");
 ABSL_FLAG(int, max_concurrent_requests, 16, "requests run at once");
@@ -50,6 +52,10 @@ absl::StatusOr<sliceplan::CoordinatorConfig> ConfigFromFlags(
   sliceplan::InputLimits& limits = config.limits;
   limits = shared_limits;
   limits.max_frontier_plans = absl::GetFlag(FLAGS_max_frontier_plans);
+  config.max_response_bytes = absl::GetFlag(FLAGS_max_response_bytes);
+  if (config.max_response_bytes < 1024 || config.max_response_bytes > (int64_t{64} << 20)) {
+    return absl::InvalidArgumentError("--max_response_bytes: must be in 1024..67108864");
+  }
   config.default_budget_seconds = absl::GetFlag(FLAGS_default_budget_seconds);
   if (!(config.default_budget_seconds > 0 &&
         config.default_budget_seconds <= limits.max_deadline_seconds)) {

@@ -231,6 +231,34 @@ TEST(HostileClientTest, ParetoSetsPastTheLimitAreRefused) {
       << s.error_message();
 }
 
+// An answer larger than a default gRPC client receives (4 MiB) used to
+// reach it as that library's own "message larger than max": the
+// coordinator now refuses it by name. Here with the limit lowered to 2,000
+// bytes and a Pareto set of many plans.
+TEST(HostileClientTest, AnswersPastTheSizeLimitAreRefusedByName) {
+  Cluster c = StartCluster(1, {}, {"--max_response_bytes=2000"});
+  ASSERT_TRUE(c.coordinator);
+  auto query = ReadQueryFile(std::string(SLICEPLAN_SOURCE_DIR) + "/examples/port_calls_small.json");
+  ASSERT_TRUE(query.ok());
+  v1::OptimizeRequest r = Request(*query, 1);
+  r.mutable_options()->set_cost(v1::COST_MODEL_CLUSTER);
+  r.mutable_options()->mutable_cluster()->add_sample_rates(1.0);
+  r.mutable_options()->mutable_cluster()->add_sample_rates(0.1);
+  const grpc::Status s = Optimize(c, r);
+  EXPECT_EQ(s.error_code(), grpc::StatusCode::RESOURCE_EXHAUSTED) << s.error_message();
+  EXPECT_NE(s.error_message().find("over the limit of 2000 (--max_response_bytes)"),
+            std::string::npos)
+      << s.error_message();
+  // A single-plan answer fits.
+  EXPECT_TRUE(Optimize(c, Request(testing::MakeQuery(GraphShape::kChain, 6, 1))).ok());
+  const testing::CommandResult bad = testing::RunCommand(
+      std::string(SLICEPLAN_COORDINATOR_BIN) +
+      " --listen=127.0.0.1:0 --workers=127.0.0.1:1 --max_response_bytes=10 2>&1");
+  EXPECT_EQ(bad.exit_status, 2) << bad.output;
+  EXPECT_NE(bad.output.find("--max_response_bytes: must be in 1024..67108864"), std::string::npos)
+      << bad.output;
+}
+
 TEST(HostileClientTest, DeadlineValuesAreCheckedOrCut) {
   Cluster c = StartCluster(1);
   ASSERT_TRUE(c.coordinator);
