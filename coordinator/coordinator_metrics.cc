@@ -6,15 +6,6 @@
 #include "rpc/outcome_label.h"
 
 namespace sliceplan {
-namespace {
-
-prometheus::Counter& PlainCounter(prometheus::Registry& registry, const char* name,
-                                  const char* help) {
-  return prometheus::BuildCounter().Name(name).Help(help).Register(registry).Add({});
-}
-
-}  // namespace
-
 CoordinatorMetrics::CoordinatorMetrics(const WorkerPool& pool, const Admission& admission)
     : registry_(std::make_shared<prometheus::Registry>()),
       gauges_(std::make_shared<CallbackGauges>()),

@@ -8,32 +8,28 @@ prometheus::Histogram::BucketBoundaries SecondsBuckets() {
   return out;
 }
 
+prometheus::Counter& PlainCounter(prometheus::Registry& registry, const char* name,
+                                  const char* help) {
+  return prometheus::BuildCounter().Name(name).Help(help).Register(registry).Add({});
+}
+
+prometheus::Gauge& PlainGauge(prometheus::Registry& registry, const char* name, const char* help) {
+  return prometheus::BuildGauge().Name(name).Help(help).Register(registry).Add({});
+}
+
 SliceMetrics::SliceMetrics(prometheus::Registry& registry)
-    : solved_(prometheus::BuildCounter()
-                  .Name("sliceplan_slices_solved_total")
-                  .Help("Slices solved")
-                  .Register(registry)
-                  .Add({})),
-      splits_(prometheus::BuildCounter()
-                  .Name("sliceplan_splits_total")
-                  .Help("Joins costed: (left, right) pairs evaluated in solved slices")
-                  .Register(registry)
-                  .Add({})),
+    : solved_(PlainCounter(registry, "sliceplan_slices_solved_total", "Slices solved")),
+      splits_(PlainCounter(registry, "sliceplan_splits_total",
+                           "Joins costed: (left, right) pairs evaluated in solved slices")),
       seconds_(prometheus::BuildHistogram()
                    .Name("sliceplan_slice_solve_seconds")
                    .Help("Wall time of one slice's search")
                    .Register(registry)
                    .Add({}, SecondsBuckets())),
-      splits_per_second_(prometheus::BuildGauge()
-                             .Name("sliceplan_splits_per_second")
-                             .Help("Splits per second of the last slice solved")
-                             .Register(registry)
-                             .Add({})),
-      memo_bytes_(prometheus::BuildGauge()
-                      .Name("sliceplan_memo_bytes")
-                      .Help("Peak memo bytes of the last slice solved")
-                      .Register(registry)
-                      .Add({})) {}
+      splits_per_second_(PlainGauge(registry, "sliceplan_splits_per_second",
+                                    "Splits per second of the last slice solved")),
+      memo_bytes_(PlainGauge(registry, "sliceplan_memo_bytes",
+                             "Peak memo bytes of the last slice solved")) {}
 
 void SliceMetrics::Solved(const SearchStats& stats) {
   solved_.Increment();

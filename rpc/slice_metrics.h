@@ -36,6 +36,11 @@ class SliceMetrics {
   prometheus::Gauge& memo_bytes_;
 };
 
+// A counter and a gauge without labels, made in `registry`.
+prometheus::Counter& PlainCounter(prometheus::Registry& registry, const char* name,
+                                  const char* help);
+prometheus::Gauge& PlainGauge(prometheus::Registry& registry, const char* name, const char* help);
+
 // Buckets for seconds from 1 ms to about 17 minutes, a factor 4 apart.
 prometheus::Histogram::BucketBoundaries SecondsBuckets();
 

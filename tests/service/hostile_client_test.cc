@@ -216,16 +216,23 @@ TEST(HostileClientTest, ManyObjectiveSearchStopsAtItsDeadline) {
       << refused.error_message();
 }
 
-TEST(HostileClientTest, ParetoSetsPastTheLimitAreRefused) {
-  Cluster c = StartCluster(1, {}, {"--max_frontier_plans=2"});
-  ASSERT_TRUE(c.coordinator);
+// The port-calls example under the cluster model with sample rates 1 and
+// 0.1, one slice: a Pareto set of many plans.
+v1::OptimizeRequest PortCallsFrontierRequest() {
   auto query = ReadQueryFile(std::string(SLICEPLAN_SOURCE_DIR) + "/examples/port_calls_small.json");
-  ASSERT_TRUE(query.ok());
-  v1::OptimizeRequest r = Request(*query, 1);
+  EXPECT_TRUE(query.ok()) << query.status();
+  v1::OptimizeRequest r =
+      Request(query.ok() ? *query : testing::MakeQuery(GraphShape::kChain, 6, 1), 1);
   r.mutable_options()->set_cost(v1::COST_MODEL_CLUSTER);
   r.mutable_options()->mutable_cluster()->add_sample_rates(1.0);
   r.mutable_options()->mutable_cluster()->add_sample_rates(0.1);
-  const grpc::Status s = Optimize(c, r);
+  return r;
+}
+
+TEST(HostileClientTest, ParetoSetsPastTheLimitAreRefused) {
+  Cluster c = StartCluster(1, {}, {"--max_frontier_plans=2"});
+  ASSERT_TRUE(c.coordinator);
+  const grpc::Status s = Optimize(c, PortCallsFrontierRequest());
   EXPECT_EQ(s.error_code(), grpc::StatusCode::RESOURCE_EXHAUSTED) << s.error_message();
   EXPECT_NE(s.error_message().find("over the limit of 2 (--max_frontier_plans)"), std::string::npos)
       << s.error_message();
@@ -238,13 +245,7 @@ TEST(HostileClientTest, ParetoSetsPastTheLimitAreRefused) {
 TEST(HostileClientTest, AnswersPastTheSizeLimitAreRefusedByName) {
   Cluster c = StartCluster(1, {}, {"--max_response_bytes=2000"});
   ASSERT_TRUE(c.coordinator);
-  auto query = ReadQueryFile(std::string(SLICEPLAN_SOURCE_DIR) + "/examples/port_calls_small.json");
-  ASSERT_TRUE(query.ok());
-  v1::OptimizeRequest r = Request(*query, 1);
-  r.mutable_options()->set_cost(v1::COST_MODEL_CLUSTER);
-  r.mutable_options()->mutable_cluster()->add_sample_rates(1.0);
-  r.mutable_options()->mutable_cluster()->add_sample_rates(0.1);
-  const grpc::Status s = Optimize(c, r);
+  const grpc::Status s = Optimize(c, PortCallsFrontierRequest());
   EXPECT_EQ(s.error_code(), grpc::StatusCode::RESOURCE_EXHAUSTED) << s.error_message();
   EXPECT_NE(s.error_message().find("over the limit of 2000 (--max_response_bytes)"),
             std::string::npos)
