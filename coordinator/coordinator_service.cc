@@ -170,12 +170,18 @@ absl::StatusOr<v1::OptimizeResponse> CoordinatorService::Run(
   absl::StatusOr<TieredOutcome> outcome =
       allowed.ok() ? Search(context, request, request_id, on_progress, facts)
                    : absl::StatusOr<TieredOutcome>(allowed);
+  // An answer too large to send is the request's outcome too (counted and
+  // logged as refused), not a success the caller never receives.
+  absl::StatusOr<v1::OptimizeResponse> answer = absl::UnknownError("no answer");
+  if (outcome.ok()) {
+    answer = CheckResponseSize(TieredToProto(*outcome, facts.cost), config_.max_response_bytes);
+    if (!answer.ok()) outcome = answer.status();
+  }
   const double wall = std::chrono::duration<double>(Clock::now() - start).count();
   metrics_.Request(outcome, facts.asked, wall);
   LogRequest(request_id, facts, outcome, wall);
   if (!outcome.ok()) return outcome.status();
-  v1::OptimizeResponse response = TieredToProto(*outcome, facts.cost);
-  return CheckResponseSize(std::move(response), config_.max_response_bytes);
+  return answer;
 }
 
 absl::Status CoordinatorService::Authenticate(const grpc::ServerContext& context) const {
