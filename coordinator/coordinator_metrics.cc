@@ -7,35 +7,33 @@
 
 namespace sliceplan {
 CoordinatorMetrics::CoordinatorMetrics(const WorkerPool& pool, const Admission& admission)
-    : registry_(std::make_shared<prometheus::Registry>()),
-      gauges_(std::make_shared<CallbackGauges>()),
-      requests_(prometheus::BuildCounter()
+    : requests_(prometheus::BuildCounter()
                     .Name("sliceplan_requests_total")
                     .Help("Optimize calls ended, by outcome and by the tier that answered")
-                    .Register(*registry_)),
+                    .Register(set_.registry())),
       request_seconds_(prometheus::BuildHistogram()
                            .Name("sliceplan_request_seconds")
                            .Help("Wall time of an Optimize call, admission wait excluded")
-                           .Register(*registry_)
+                           .Register(set_.registry())
                            .Add({}, SecondsBuckets())),
-      retries_(PlainCounter(*registry_, "sliceplan_slice_retries_total",
+      retries_(PlainCounter(set_.registry(), "sliceplan_slice_retries_total",
                             "Slices re-dispatched after a failed worker call")),
-      hedges_(PlainCounter(*registry_, "sliceplan_slice_hedges_total",
+      hedges_(PlainCounter(set_.registry(), "sliceplan_slice_hedges_total",
                            "Second copies of a slow slice started")),
-      deadline_misses_(PlainCounter(*registry_, "sliceplan_deadline_misses_total",
-                                    "Requests whose deadline came before their search ended")),
-      slices_(*registry_) {
-  gauges_->Add("sliceplan_pool_workers", "Workers in the pool, healthy or not",
-               [&pool] { return static_cast<double>(pool.Workers().size()); });
-  gauges_->Add("sliceplan_pool_healthy_workers", "Workers passing their health checks", [&pool] {
-    const auto workers = pool.Workers();
-    return static_cast<double>(
-        std::count_if(workers.begin(), workers.end(), [](const auto& w) { return w->Healthy(); }));
-  });
-  gauges_->Add("sliceplan_requests_running", "Optimize calls running now",
-               [&admission] { return static_cast<double>(admission.running()); });
-  gauges_->Add("sliceplan_queue_depth", "Optimize calls waiting for a place",
-               [&admission] { return static_cast<double>(admission.queued()); });
+      deadline_misses_(PlainCounter(set_.registry(), "sliceplan_deadline_misses_total",
+                                    "Requests whose deadline came before their search ended")) {
+  set_.gauges().Add("sliceplan_pool_workers", "Workers in the pool, healthy or not",
+                    [&pool] { return static_cast<double>(pool.Workers().size()); });
+  set_.gauges().Add(
+      "sliceplan_pool_healthy_workers", "Workers passing their health checks", [&pool] {
+        const auto workers = pool.Workers();
+        return static_cast<double>(std::count_if(workers.begin(), workers.end(),
+                                                 [](const auto& w) { return w->Healthy(); }));
+      });
+  set_.gauges().Add("sliceplan_requests_running", "Optimize calls running now",
+                    [&admission] { return static_cast<double>(admission.running()); });
+  set_.gauges().Add("sliceplan_queue_depth", "Optimize calls waiting for a place",
+                    [&admission] { return static_cast<double>(admission.queued()); });
 }
 
 void CoordinatorMetrics::Request(const absl::StatusOr<TieredOutcome>& outcome, SearchTier asked,
@@ -51,11 +49,7 @@ void CoordinatorMetrics::Request(const absl::StatusOr<TieredOutcome>& outcome, S
   if (!outcome.ok()) return;
   retries_.Increment(outcome->schedule.retries);
   hedges_.Increment(outcome->schedule.hedges);
-  for (const auto& slice : outcome->schedule.result.slices) slices_.Solved(slice.stats);
-}
-
-std::vector<std::weak_ptr<prometheus::Collectable>> CoordinatorMetrics::Collectables() const {
-  return {registry_, gauges_};
+  for (const auto& slice : outcome->schedule.result.slices) set_.slices().Solved(slice.stats);
 }
 
 }  // namespace sliceplan

@@ -26,8 +26,7 @@
 #include "prometheus/counter.h"
 #include "prometheus/histogram.h"
 #include "prometheus/registry.h"
-#include "rpc/callback_gauges.h"
-#include "rpc/slice_metrics.h"
+#include "rpc/metric_set.h"
 #include "schedule/tiered_search.h"
 
 namespace sliceplan {
@@ -42,17 +41,17 @@ class CoordinatorMetrics {
   void Request(const absl::StatusOr<TieredOutcome>& outcome, SearchTier asked, double seconds);
 
   // For ServeOptions::metrics.
-  std::vector<std::weak_ptr<prometheus::Collectable>> Collectables() const;
+  std::vector<std::weak_ptr<prometheus::Collectable>> Collectables() const {
+    return set_.Collectables();
+  }
 
  private:
-  std::shared_ptr<prometheus::Registry> registry_;
-  std::shared_ptr<CallbackGauges> gauges_;
+  MetricSet set_;
   prometheus::Family<prometheus::Counter>& requests_;
   prometheus::Histogram& request_seconds_;
   prometheus::Counter& retries_;
   prometheus::Counter& hedges_;
   prometheus::Counter& deadline_misses_;
-  SliceMetrics slices_;
 };
 
 }  // namespace sliceplan

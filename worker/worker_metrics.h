@@ -17,8 +17,7 @@
 #include "core/search_stats.h"
 #include "prometheus/counter.h"
 #include "prometheus/registry.h"
-#include "rpc/callback_gauges.h"
-#include "rpc/slice_metrics.h"
+#include "rpc/metric_set.h"
 
 namespace sliceplan {
 
@@ -32,13 +31,13 @@ class WorkerMetrics {
   void Call(const absl::Status& status, const SearchStats* stats);
 
   // For ServeOptions::metrics.
-  std::vector<std::weak_ptr<prometheus::Collectable>> Collectables() const;
+  std::vector<std::weak_ptr<prometheus::Collectable>> Collectables() const {
+    return set_.Collectables();
+  }
 
  private:
-  std::shared_ptr<prometheus::Registry> registry_;
-  std::shared_ptr<CallbackGauges> gauges_;
+  MetricSet set_;
   prometheus::Family<prometheus::Counter>& calls_;
-  SliceMetrics slices_;
 };
 
 }  // namespace sliceplan
