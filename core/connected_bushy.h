@@ -6,17 +6,17 @@
 // connected sets. A slice keeps the pairs whose S1, S2 and S1 u S2 are all
 // admissible; the others are skipped (and not counted as splits).
 //
-// Kept tight (docs/benchmarks.md, "Connected-only search"): each side's
-// slot is looked up once (S1 once for all its complements), neighbourhoods
-// grow from the binary-adjacency mask of the set already known, a
-// recursion whose neighbourhood cannot grow is not entered, and on a graph
-// without hyperedges no pair is tested for a connecting predicate (a
-// complement grows from a neighbour of S1, so one always exists).
+// The walk itself is CcpWalk (ccp_walk.h). Kept tight (docs/benchmarks.md,
+// "Connected-only search"): each side's slot is looked up once (S1 once
+// for all its complements), and on a graph without hyperedges no pair is
+// tested for a connecting predicate (a complement grows from a neighbour
+// of S1, so one always exists).
 #ifndef SLICEPLAN_CORE_CONNECTED_BUSHY_H_
 #define SLICEPLAN_CORE_CONNECTED_BUSHY_H_
 
 #include "absl/status/status.h"
 #include "core/cardinality.h"
+#include "core/ccp_walk.h"
 #include "core/connected_memo.h"
 #include "core/join_graph.h"
 #include "core/search_control.h"
@@ -35,7 +35,7 @@ class ConnectedBushy {
                  const SliceConstraints& constraints, Policy& policy, Memo& memo,
                  SearchControl& control, SearchStats& stats)
       : n_(n),
-        graph_(graph),
+        walk_(n, graph),
         card_(card),
         constraints_(constraints),
         policy_(policy),
@@ -54,35 +54,43 @@ class ConnectedBushy {
       const Slot s = Add(leaf);
       if (s != kNoSlot) policy_.InitLeaf(s, Lowest(leaf));
     }
-    for (int v = n_ - 1; v >= 0 && status_.ok(); --v) {
-      const RelSet start = RelSet{1} << v;
-      const auto slot = memo_.Find(start);
-      if (!slot) continue;
-      const RelSet adjacent = graph_.Adjacent(start);
-      EmitCsg(start, *slot, adjacent);
-      EnumerateCsgRec(start, adjacent, FullSet(v + 1));
-    }
+    walk_.Csgs(*this);
     Flush();
     return status_;
   }
 
  private:
+  friend class CcpWalk;
+
   // Every `kFlushPairs` pairs the control is ticked: often enough to stop
   // within microseconds, rarely enough to cost nothing per pair.
   static constexpr uint64_t kFlushPairs = 1024;
 
-  bool Stopped() const { return !status_.ok(); }
+  // The complements of one set S1 found in the memo (CcpWalk::Cmps).
+  struct Complements {
+    ConnectedBushy& search;
+    RelSet s1;
+    Slot slot1;
 
-  RelSet Neighbours(RelSet s, RelSet adjacent, RelSet x) const {
-    RelSet out = adjacent & ~(s | x);
-    if (hyper_) out |= graph_.HyperNeighbourhood(s, x);
-    return out;
-  }
-  // True when no set grown from `s` by relations of `nb` can have a
-  // neighbour outside x u nb: the recursion would find nothing.
-  bool Closed(RelSet s, RelSet adjacent, RelSet nb, RelSet x) const {
-    if (hyper_) return false;
-    return ((adjacent | graph_.Adjacent(nb)) & ~(s | nb | x)) == 0;
+    bool Stopped() const { return search.Stopped(); }
+    void Pair(RelSet s2) {
+      if (const auto slot2 = search.memo_.Find(s2); slot2 && search.Joinable(s1, s2)) {
+        search.EmitPair(s1, slot1, s2, *slot2);
+      }
+    }
+    void Singles(RelSet nb) const { search.PrefetchEach(s1, nb); }
+    void Grown(RelSet s2, RelSet nb) const { search.Prefetch(s1, s2, nb); }
+  };
+
+  // CcpWalk::Csgs: a start is a leaf in the memo; a connected set's
+  // complements are walked when it is in the memo.
+  bool Stopped() const { return !status_.ok(); }
+  bool Start(RelSet leaf) const { return memo_.Find(leaf).has_value(); }
+  void Csg(RelSet s1, RelSet adjacent1) {
+    if (const auto slot = memo_.Find(s1)) {
+      Complements cmps{*this, s1, *slot};
+      walk_.Cmps(cmps, s1, adjacent1);
+    }
   }
 
   // The slot of a new or known set; kNoSlot (and a status) at the limit.
@@ -104,56 +112,6 @@ class ConnectedBushy {
       status_ = AddConnectedSet(memo_, policy_, s).status();  // the limit's message
     }
     return slot;
-  }
-
-  void EnumerateCsgRec(RelSet s1, RelSet adjacent, RelSet x) {
-    const RelSet nb = Neighbours(s1, adjacent, x);
-    if (nb == 0) return;
-    for (RelSet sub = nb & (0 - nb); !Stopped(); sub = (sub - nb) & nb) {
-      const RelSet grown = s1 | sub;
-      if (const auto slot = memo_.Find(grown)) {
-        EmitCsg(grown, *slot, adjacent | graph_.Adjacent(sub));
-      }
-      if (sub == nb) break;
-    }
-    if (Closed(s1, adjacent, nb, x)) return;
-    for (RelSet sub = nb & (0 - nb); !Stopped(); sub = (sub - nb) & nb) {
-      EnumerateCsgRec(s1 | sub, adjacent | graph_.Adjacent(sub), x | nb);
-      if (sub == nb) break;
-    }
-  }
-
-  void EmitCsg(RelSet s1, Slot slot1, RelSet adjacent1) {
-    const RelSet x = s1 | FullSet(Lowest(s1).value + 1);
-    const RelSet nb = Neighbours(s1, adjacent1, x);
-    PrefetchEach(s1, nb);
-    for (RelSet rest = nb; rest != 0 && !Stopped();) {
-      const int v = 63 - std::countl_zero(rest);  // descending order
-      const RelSet s2 = RelSet{1} << v;
-      rest &= ~s2;
-      if (const auto slot2 = memo_.Find(s2); slot2 && Joinable(s1, s2)) {
-        EmitPair(s1, slot1, s2, *slot2);
-      }
-      EnumerateCmpRec(s1, slot1, s2, graph_.Adjacent(s2), x | (nb & FullSet(v + 1)));
-    }
-  }
-
-  void EnumerateCmpRec(RelSet s1, Slot slot1, RelSet s2, RelSet adjacent2, RelSet x) {
-    const RelSet nb = Neighbours(s2, adjacent2, x);
-    if (nb == 0) return;
-    Prefetch(s1, s2, nb);
-    for (RelSet sub = nb & (0 - nb); !Stopped(); sub = (sub - nb) & nb) {
-      const RelSet grown = s2 | sub;
-      if (const auto slot2 = memo_.Find(grown); slot2 && Joinable(s1, grown)) {
-        EmitPair(s1, slot1, grown, *slot2);
-      }
-      if (sub == nb) break;
-    }
-    if (Closed(s2, adjacent2, nb, x)) return;
-    for (RelSet sub = nb & (0 - nb); !Stopped(); sub = (sub - nb) & nb) {
-      EnumerateCmpRec(s1, slot1, s2 | sub, adjacent2 | graph_.Adjacent(sub), x | nb);
-      if (sub == nb) break;
-    }
   }
 
   // With a direct memo (slot = set) the entries of the pairs (s1, s2 u sub)
@@ -202,7 +160,7 @@ class ConnectedBushy {
   }
 
   const int n_;
-  const JoinGraph& graph_;
+  const CcpWalk walk_;
   const Cardinality& card_;
   const SliceConstraints& constraints_;
   Policy& policy_;
