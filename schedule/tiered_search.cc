@@ -222,12 +222,13 @@ class TierRun {
   // The block size for the time left: the largest k whose predicted block
   // time, extrapolated from the last block (x3 per unit with cross
   // products, the growth of 3^k; x2 without, a tree block's 2^k bound),
-  // fits the blocks still to come. The largest block grows with the pool:
+  // fits the blocks still to come (about two passes' worth, less those
+  // `searched` so far). The largest block grows with the pool:
   // 14 relations with cross products and 16 without on one slot (where a
   // larger block cost 20x the time for little gain, docs/benchmarks.md),
   // one more for every factor of the growth in slots, since a block's
   // slices spread over them.
-  int NextBlock(int last, double seconds) {
+  int NextBlock(int last, double seconds, int searched) {
     const double growth = options_.cross_products ? 3.0 : 2.0;
     const int pool_extra =
         static_cast<int>(std::floor(std::log(static_cast<double>(slots_)) / std::log(growth)));
@@ -236,7 +237,7 @@ class TierRun {
     const double remaining = 0.8 * Remaining();
     int best = 3;
     for (int k = 3; k <= std::min(most, last + 2); ++k) {
-      const double blocks = std::max(1.0, 2.0 * (query_.size() - 1) / (k - 1) - out_.idp.blocks);
+      const double blocks = std::max(1.0, 2.0 * (query_.size() - 1) / (k - 1) - searched);
       const double predicted = std::max(seconds, 1e-5) * std::pow(growth, k - last);
       if (predicted * blocks <= remaining) best = k;
     }
@@ -248,7 +249,9 @@ class TierRun {
     config.cross_products = options_.cross_products;
     config.block = std::min(query_.size(), 10);
     config.out_of_time = [this] { return Cancelled() || Clock::now() >= deadline_; };
-    config.next_block = [this](int k, double seconds) { return NextBlock(k, seconds); };
+    config.next_block = [this](int k, double seconds, int searched) {
+      return NextBlock(k, seconds, searched);
+    };
     SearchOptions block_options = options_;
     block_options.shape = PlanShape::kBushy;
     const BlockSearch search = [&](const Query& block) -> absl::StatusOr<Plan> {

@@ -148,8 +148,9 @@ class BlockImprover {
         }
         // A reused answer took no search time: it says nothing of k.
         if (config_.next_block && searched) {
-          const int next = std::clamp(config_.next_block(static_cast<int>(units.size()), seconds),
-                                      3, kMaxRelations);
+          const int next =
+              std::clamp(config_.next_block(static_cast<int>(units.size()), seconds, stats.blocks),
+                         3, kMaxRelations);
           pass_k = pass_k == k ? next : std::max(3, 2 * next / 3);
           k = next;
         }

@@ -51,9 +51,10 @@ struct IdpConfig {
   int max_passes = 8;
   // Polled before every block; true ends the run with the plan so far.
   std::function<bool()> out_of_time;
-  // After each block: its size and the seconds its search took; returns
-  // the k for the next (the caller's capacity model). Empty: k stays.
-  std::function<int(int block, double seconds)> next_block;
+  // After each block searched: its size, the seconds its search took and
+  // the blocks searched so far in this run (it included); returns the k for
+  // the next (the caller's capacity model). Empty: k stays.
+  std::function<int(int block, double seconds, int searched)> next_block;
   // Answer a block met again from its first search (the outcome is the
   // same; false searches it again, for the tests that show so).
   bool reuse_answers = true;

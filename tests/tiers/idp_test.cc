@@ -5,9 +5,11 @@
 
 #include <gtest/gtest.h>
 
+#include <algorithm>
 #include <chrono>
 #include <set>
 #include <string>
+#include <vector>
 
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_format.h"
@@ -139,6 +141,31 @@ TEST(IdpTest, BlocksMetAgainReuseTheirAnswerWithTheSameOutcome) {
     }
   }
   EXPECT_GT(total_reused, 0);  // passes over unchanged parts do meet blocks again
+}
+
+// The capacity model hears of every searched block, with the count so far
+// (1, 2, 3, ...: what it subtracts from the blocks still to come), and the
+// block size it answers is the next block's.
+TEST(IdpTest, TheCapacityModelHearsEachSearchedBlockInTurn) {
+  const WideQuery w = testing::MakeWideQuery(testing::WideShape::kTree, 60, 5);
+  IdpConfig config;
+  config.block = 5;
+  config.cross_products = false;
+  std::vector<int> heard, sizes;
+  config.next_block = [&](int block, double seconds, int searched) {
+    EXPECT_GE(seconds, 0);
+    heard.push_back(searched);
+    sizes.push_back(block);
+    return 6;
+  };
+  const IdpResult r =
+      ImproveByBlocks(w, GreedyPlan(w, PlanShape::kBushy), config, InProcess(false));
+  ASSERT_EQ(static_cast<int>(heard.size()), r.stats.blocks);
+  for (size_t i = 0; i < heard.size(); ++i) EXPECT_EQ(heard[i], static_cast<int>(i) + 1);
+  ASSERT_GE(sizes.size(), 2u);
+  EXPECT_LE(sizes[0], 5);
+  EXPECT_EQ(r.stats.largest_block, *std::max_element(sizes.begin(), sizes.end()));
+  EXPECT_GT(r.stats.largest_block, 5);  // the answered 6 was used
 }
 
 TEST(IdpTest, LargeQueriesStopWhenTimeIsOut) {
