@@ -2,7 +2,8 @@
 //   C_out(leaf) = 0;  C_out(L join R) = card(L u R) + C_out(L) + C_out(R).
 // One metric, symmetric in L and R, so enumerators offer each unordered
 // split once. Memo: 8 bytes of cost and 4 of best left operand per slot
-// (24 of cost, cardinality and best left in one entry in scattered mode). Single-threaded.
+// (and 8 of cached cardinality in scattered mode). Single-threaded except as
+// kParallelDense allows.
 #ifndef SLICEPLAN_CORE_COUT_POLICY_H_
 #define SLICEPLAN_CORE_COUT_POLICY_H_
 
@@ -42,9 +43,9 @@ class CoutPolicy {
   explicit CoutPolicy(const Cardinality& card) : card_(card) {}
 
   // Called before Resize by a search that relaxes sets in scattered order
-  // (connected pairs): each set's cost, cardinality and best split then
-  // share one entry, so relaxing a pair touches one line of the result's
-  // memo instead of three arrays.
+  // (connected pairs): each set's cardinality is then cached beside its
+  // cost (set_card_), so relaxing a pair reads it without a pass over the
+  // predicates, and the arrays are left uninitialised until a set is met.
   void UseScatteredLayout() { scattered_ = true; }
 
   void Resize(size_t slots) {
