@@ -33,8 +33,7 @@ namespace sliceplan {
 class CcpWalk {
  public:
   // `graph` must outlive the walk.
-  CcpWalk(int n, const JoinGraph& graph)
-      : n_(n), graph_(graph), hyper_(graph.has_hyperedges()) {}
+  CcpWalk(int n, const JoinGraph& graph) : n_(n), graph_(graph), hyper_(graph.has_hyperedges()) {}
 
   // Every connected set grown from a started relation, highest start first,
   // each after the sets its pairs' complements are drawn from.
