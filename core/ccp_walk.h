@@ -3,8 +3,8 @@
 // memo or cost: the connected sets in an order where each is met after its
 // connected subsets' pairs could be, and for one connected set S1 every
 // complement S2 (connected, disjoint, adjacent, lowest relation above S1's)
-// once. The search that owns a memo decides what a set found means
-// (connected_bushy.h on one thread, connected_bushy_threaded.h on several).
+// once. The search that owns a memo (connected_bushy.h) decides what a set
+// found means.
 //
 // Kept tight (docs/benchmarks.md, "Connected-only search"): neighbourhoods
 // grow from the binary-adjacency mask of the set already known, and a
