@@ -7,6 +7,7 @@
 #include "core/connected_set_estimate.h"
 #include "core/connected_strategy.h"
 #include "core/cout_policy.h"
+#include "core/join_graph.h"
 #include "core/search_estimate.h"
 #include "core/slice_planner.h"
 
@@ -50,7 +51,8 @@ ExactForecast ForecastExact(const Query& query, const SearchOptions& options, co
     // The policy's entry and cached cardinality per set, in the memo the
     // search would choose (direct or hashed, connected_strategy.h).
     out.memo_bytes = ConnectedMemoBytes(
-        n, out.work_units, CoutPolicy::kBytesPerSlot + sizeof(double), options.memo_limit_bytes);
+        n, out.work_units, CoutPolicy::kBytesPerSlot + sizeof(double), options.memo_limit_bytes,
+        DirectSparsity(options.shape, JoinGraph(query).has_hyperedges()));
     out.estimated = work.estimated;
     unit_seconds = rates.connected_set_seconds;
   }

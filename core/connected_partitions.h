@@ -54,11 +54,11 @@ class ConnectedPartitions {
   }
 
   // Calls fn(c, rest) for every split of `set` into connected c (holding
-  // the lowest relation) and connected rest = set \ c, each once.
-  // REQUIRES: `set` connected.
+  // the lowest relation) and connected rest = set \ c, each once, until fn
+  // returns false. Returns false if fn did. REQUIRES: `set` connected.
   template <class Fn>
-  void ForEach(RelSet set, Fn&& fn) const {
-    Walk walk{*this, set};
+  bool ForEach(RelSet set, Fn&& fn) const {
+    Walk walk(*this, set);
     walk.Enter(LowestBit(set), 0, adjacent_[std::countr_zero(set)] & set & ~LowestBit(set), fn);
     while (walk.top > 0) {
       Frame& f = walk.stack[walk.top - 1];
@@ -73,6 +73,7 @@ class ConnectedPartitions {
       const RelSet c = f.part | v;
       walk.Enter(c, x, (f.boundary | adjacent_[std::countr_zero(v)]) & set & ~c, fn);
     }
+    return !walk.stopped;
   }
 
  private:
@@ -84,17 +85,21 @@ class ConnectedPartitions {
   };
 
   struct Walk {
+    // Leaves the stack uninitialised (4 KiB cleared per set otherwise).
+    Walk(const ConnectedPartitions& owner, RelSet whole) : self(owner), set(whole) {}
+
     const ConnectedPartitions& self;
     const RelSet set;
     // The remainders of the live states are distinct and pairwise nested
     // or disjoint subsets of S, so there are fewer than 2 |S| of them.
     std::array<Frame, 2 * kMaxRelations> stack;
     int top = 0;
+    bool stopped = false;  // fn said so: the walk ends (top is 0)
 
     // Settles and enters the child part c (excluding x, with `boundary`
     // its neighbours in S outside it).
     template <class Fn>
-    void Enter(RelSet c, RelSet x, RelSet boundary, Fn& fn) {
+    [[gnu::always_inline]] void Enter(RelSet c, RelSet x, RelSet boundary, Fn& fn) {
       const RelSet rest = set ^ c;
       if (rest == 0) return;
       if (self.connected_.Contains(rest)) {
@@ -103,20 +108,36 @@ class ConnectedPartitions {
       }
       if (x != 0) {
         const RelSet k = self.Component(rest, LowestBit(x));
-        if ((x & ~k) == 0) Push(set ^ k, x, self.Boundary(k, set ^ k), fn);
+        if ((x & ~k) == 0) Absorb(k, x, fn);
         return;
       }
       for (RelSet left = rest; left != 0;) {
         const RelSet k = self.Component(left, LowestBit(left));
         left ^= k;
-        Push(set ^ k, 0, self.Boundary(k, set ^ k), fn);
+        Absorb(k, 0, fn);
       }
     }
 
+    // Enters S \ k, k a component of the remainder.
     template <class Fn>
-    void Push(RelSet c, RelSet x, RelSet boundary, Fn& fn) {
-      fn(c, set ^ c);
-      stack[top++] = {c, x, boundary & ~x, boundary};
+    [[gnu::always_inline]] void Absorb(RelSet k, RelSet x, Fn& fn) {
+      const RelSet c = set ^ k;
+      // A one-relation remainder has no child: its boundary is not needed.
+      Push(c, x, (k & (k - 1)) != 0 ? self.Boundary(k, c) : k, fn);
+    }
+
+    // Reports c and enters its state, unless its remainder is one
+    // relation (whose only child would be S itself).
+    template <class Fn>
+    [[gnu::always_inline]] void Push(RelSet c, RelSet x, RelSet boundary, Fn& fn) {
+      if (stopped) return;
+      const RelSet rest = set ^ c;
+      if (!fn(c, rest)) {
+        stopped = true;
+        top = 0;
+        return;
+      }
+      if ((rest & (rest - 1)) != 0) stack[top++] = {c, x, boundary & ~x, boundary};
     }
   };
 

@@ -42,10 +42,15 @@ double DirectMemoBytes(int n, uint64_t bytes_per_slot) {
          static_cast<double>(DirectMemo::BitmapBytes(n));
 }
 
-double ConnectedMemoBytes(int n, double sets, uint64_t bytes_per_slot, uint64_t limit) {
+uint64_t DirectSparsity(PlanShape shape, bool hyperedges) {
+  return shape == PlanShape::kBushy && !hyperedges ? kPulledSparsity : kDirectSparsity;
+}
+
+double ConnectedMemoBytes(int n, double sets, uint64_t bytes_per_slot, uint64_t limit,
+                          uint64_t sparsity) {
   const double direct = DirectMemoBytes(n, bytes_per_slot);
   if (n <= kMaxDirectRelations && direct <= static_cast<double>(limit) &&
-      sets * kDirectSparsity >= std::ldexp(1.0, n)) {
+      sets * static_cast<double>(sparsity) >= std::ldexp(1.0, n)) {
     return direct;
   }
   return sets * static_cast<double>(bytes_per_slot + HashMemo::kBytesPerSet);
@@ -83,7 +88,8 @@ ConnectedStrategy ChooseConnectedStrategy(const Query& query, const JoinGraph& g
       wanted == ConnectedMethod::kHashPairs) {
     return out;
   }
-  const uint64_t enough = std::max<uint64_t>(1, (uint64_t{1} << n) / kDirectSparsity);
+  const uint64_t sparsity = DirectSparsity(shape, graph.has_hyperedges());
+  const uint64_t enough = std::max<uint64_t>(1, (uint64_t{1} << n) / sparsity);
   if (!wanted && CountConnectedSets(query, enough) < enough) return out;
   out.method = ConnectedMethod::kDirectPairs;
   if (shape != PlanShape::kBushy || graph.has_hyperedges() ||
@@ -92,11 +98,13 @@ ConnectedStrategy ChooseConnectedStrategy(const Query& query, const JoinGraph& g
   }
   DirectMemo connected(n);
   MarkConnectedSets(query, connected);
-  out.hit_rate = SubsetHitRate(connected, kHitRateSamples);
-  if (out.hit_rate >= kSubsetsMinHitRate || wanted == ConnectedMethod::kDirectSubsets) {
-    out.method = ConnectedMethod::kDirectSubsets;
-    out.connected.emplace(std::move(connected));
+  if (wanted != ConnectedMethod::kDirectPartitions) {
+    out.hit_rate = SubsetHitRate(connected, kHitRateSamples);
   }
+  const bool subsets =
+      wanted ? wanted == ConnectedMethod::kDirectSubsets : out.hit_rate >= kSubsetsMinHitRate;
+  out.method = subsets ? ConnectedMethod::kDirectSubsets : ConnectedMethod::kDirectPartitions;
+  out.connected.emplace(std::move(connected));
   return out;
 }
 

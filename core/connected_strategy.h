@@ -2,10 +2,14 @@
 // enumerator (docs/benchmarks.md, "Connected-only search").
 //   hash pairs:     DPhyp over a hash memo, when 2^n sets do not fit the
 //                   memo limit or few of them are connected;
-//   direct pairs:   DPhyp over a direct memo (slot = set);
+//   direct pairs:   DPhyp over a direct memo (slot = set), for left-deep
+//                   plans and hyperedges;
 //   direct subsets: every split of every connected set tested by two bits
 //                   (connected_subsets.h), when most splits are csg-cmp
-//                   pairs (dense graphs) and the graph has no hyperedge.
+//                   pairs (dense graphs) and the graph has no hyperedge;
+//   direct partitions: each connected set's csg-cmp pairs walked from the
+//                   set (connected_partitions.h), the other bushy searches
+//                   over binary predicates.
 // Pure functions of the query and the limits; thread-safe.
 #ifndef SLICEPLAN_CORE_CONNECTED_STRATEGY_H_
 #define SLICEPLAN_CORE_CONNECTED_STRATEGY_H_
@@ -20,11 +24,19 @@
 
 namespace sliceplan {
 
-enum class ConnectedMethod { kHashPairs, kDirectPairs, kDirectSubsets };
+enum class ConnectedMethod { kHashPairs, kDirectPairs, kDirectSubsets, kDirectPartitions };
 
 // A direct memo is used only when at least one set in this many is
-// connected: below that its 2^n entries cost more to clear than hashing.
+// connected: below that its 2^n entries cost more to clear than hashing
+// (DPhyp: direct and hashed memos cost alike near one set in 20).
 inline constexpr uint64_t kDirectSparsity = 16;
+// The same for the pulled searches (subsets, partitions), which take their
+// pairs at half the hashed DPhyp's time or less down to one set in 20 and
+// pay about a nanosecond per slot of the 2^n (docs/benchmarks.md).
+inline constexpr uint64_t kPulledSparsity = 64;
+// The density rule's sparsity for a search of `shape` plans over a graph
+// with or without hyperedges.
+uint64_t DirectSparsity(PlanShape shape, bool hyperedges);
 // The subsets enumerator is chosen when at least this share of the splits
 // it tests are csg-cmp pairs: it tests a split in about the time DPhyp
 // spends per pair times this share (measured, docs/benchmarks.md).
@@ -32,7 +44,8 @@ inline constexpr double kSubsetsMinHitRate = 0.25;
 
 struct ConnectedStrategy {
   ConnectedMethod method = ConnectedMethod::kHashPairs;
-  // kDirectSubsets: the connected sets, marked. Otherwise empty.
+  // kDirectSubsets and kDirectPartitions: the connected sets, marked.
+  // Otherwise empty.
   std::optional<DirectMemo> connected;
   double hit_rate = 0;  // the sampled share (0 when not sampled)
 };
@@ -40,8 +53,8 @@ struct ConnectedStrategy {
 // The strategy for `query` (in the search's numbering) with a policy of
 // `bytes_per_slot` memo bytes per set and a memo limit of `limit` bytes.
 // `wanted` (tests) skips the density and hit-rate rules, not the limits:
-// a direct memo still needs 2^n sets within the limit, and the subsets
-// enumerator bushy plans over binary predicates.
+// a direct memo still needs 2^n sets within the limit, and the subsets and
+// partitions enumerators bushy plans over binary predicates.
 ConnectedStrategy ChooseConnectedStrategy(const Query& query, const JoinGraph& graph,
                                           PlanShape shape, uint64_t bytes_per_slot, uint64_t limit,
                                           std::optional<ConnectedMethod> wanted = std::nullopt);
@@ -50,8 +63,9 @@ ConnectedStrategy ChooseConnectedStrategy(const Query& query, const JoinGraph& g
 double DirectMemoBytes(int n, uint64_t bytes_per_slot);
 // Bytes of the memo a search over `sets` connected sets of n relations
 // would use: direct where ChooseConnectedStrategy would take it by the
-// density rule, else hashed.
-double ConnectedMemoBytes(int n, double sets, uint64_t bytes_per_slot, uint64_t limit);
+// density rule (`sparsity`: DirectSparsity), else hashed.
+double ConnectedMemoBytes(int n, double sets, uint64_t bytes_per_slot, uint64_t limit,
+                          uint64_t sparsity);
 
 // The share of the splits the subsets enumerator would test (S1 holding
 // S's lowest relation, S1 != S, over every connected S of two or more

@@ -14,6 +14,7 @@
 #define SLICEPLAN_CORE_CONNECTED_SUBSETS_H_
 
 #include "absl/status/status.h"
+#include "core/connected_partitions.h"
 #include "core/direct_memo.h"
 #include "core/level_threads.h"
 #include "core/search_control.h"
@@ -25,15 +26,119 @@ namespace sliceplan {
 
 namespace connected_subsets_internal {
 
-// Solves the sets of memo words [first, last) in increasing order, adding
-// their splits to `splits`. False once `control` stopped.
+// Splits tested between two looks at the control inside one large set.
+inline constexpr uint64_t kCheckEvery = uint64_t{1} << 20;
+
+// Offers left x right (and right x left for an asymmetric policy).
 template <SearchPolicy Policy>
+typename Policy::Acc OfferBoth(const Policy& policy, typename Policy::Acc a, RelSet left,
+                               RelSet right) {
+  a = policy.Offer(a, static_cast<Slot>(left), static_cast<Slot>(right));
+  if constexpr (!Policy::kSymmetric) {
+    a = policy.Offer(a, static_cast<Slot>(right), static_cast<Slot>(left));
+  }
+  return a;
+}
+
+// The split source of the subsets enumerator: every split of the set
+// tested by two memo bits.
+struct EverySplit {
+  static constexpr bool kScattered = false;
+  // Offers `set`'s splits whose parts are both in `memo` into acc,
+  // counting them in `pairs`. False once `control` stopped.
+  template <SearchPolicy Policy>
+  bool operator()(const Policy& policy, const DirectMemo& memo, SearchControl& control, RelSet set,
+                  typename Policy::Acc& acc, uint64_t& pairs) const {
+    const RelSet lowest = LowestBit(set);
+    const RelSet rest = set ^ lowest;
+    uint64_t tested = 0;
+    // Offers the split with left part x | lowest if both parts are sets.
+    const auto test = [&](typename Policy::Acc a, RelSet x) {
+      const RelSet left = x | lowest, right = set ^ left;
+      if (memo.Contains(left) && memo.Contains(right)) {
+        a = OfferBoth(policy, a, left, right);
+        ++pairs;
+      }
+      return a;
+    };
+    if constexpr (TwoChains<Policy>) {
+      // The subsets of rest without its lowest relation to one
+      // accumulator, with it to another (dense_bushy.h); rest itself is
+      // no split.
+      const RelSet bit = LowestBit(rest), half = rest ^ bit;
+      auto other = policy.Empty();
+      for (RelSet sub = 0;; sub = (sub - half) & half) {
+        acc = test(acc, sub);
+        if (sub == half) break;
+        other = test(other, sub | bit);
+        if ((tested += 2) >= kCheckEvery) {
+          tested = 0;
+          if (control.Tick(SearchControl::kTickWork)) return false;
+        }
+      }
+      acc = policy.Merge(acc, other);
+    } else {
+      for (RelSet sub = 0; sub != rest; sub = (sub - rest) & rest) {
+        acc = test(acc, sub);
+        if (++tested == kCheckEvery) {
+          tested = 0;
+          if (control.Tick(SearchControl::kTickWork)) return false;
+        }
+      }
+    }
+    return true;
+  }
+};
+
+// The split source of the partitions enumerator: the set's csg-cmp pairs
+// walked from the set (connected_partitions.h), offered when both parts
+// have a plan in this slice. (Costing the pairs in batches of 256, so that
+// their scattered loads overlap, measured slower: docs/benchmarks.md.)
+struct WalkedSplits {
+  // A scattered policy caches each set's cardinality (search_policy.h).
+  static constexpr bool kScattered = true;
+  const ConnectedPartitions& walk;
+  bool sliced;  // the memo may lack connected sets (no plan in this slice)
+
+  template <SearchPolicy Policy>
+  bool operator()(const Policy& policy, const DirectMemo& memo, SearchControl& control, RelSet set,
+                  typename Policy::Acc& acc, uint64_t& pairs) const {
+    auto a = acc;
+    uint64_t offered = 0, walked = 0;
+    const bool done = walk.ForEach(set, [&](RelSet left, RelSet right) {
+      // Unsliced, every connected set has a plan: no bit to test.
+      if (!sliced || (memo.Contains(left) && memo.Contains(right))) {
+        a = OfferBoth(policy, a, left, right);
+        ++offered;
+      }
+      if (++walked == kCheckEvery) {
+        walked = 0;
+        if (control.Tick(SearchControl::kTickWork)) return false;
+      }
+      return true;
+    });
+    acc = a;
+    pairs += offered;
+    return done;
+  }
+};
+
+// Solves the sets of memo words [first, last) in increasing order from the
+// splits `source` offers, adding them to `splits`. False once `control`
+// stopped.
+template <SearchPolicy Policy, class Source>
 bool SolveWords(const SliceConstraints& constraints, Policy& policy, DirectMemo& memo,
-                SearchControl& control, uint64_t& splits, size_t first, size_t last) {
-  // Splits tested between two looks at the control inside one large set.
-  constexpr uint64_t kCheckEvery = uint64_t{1} << 20;
+                SearchControl& control, uint64_t& splits, size_t first, size_t last,
+                const Source& source) {
+  constexpr bool kScattered = Source::kScattered && ScatteredLayout<Policy>;
   const bool sliced = !constraints.constraints().empty();
   const std::vector<uint64_t>& words = memo.words();
+  // Counted here and added once: threads' totals share a cache line.
+  uint64_t work_done = 0;
+  const auto stop = [&] {
+    splits += work_done;
+    return false;
+  };
   for (size_t w = first; w < last; ++w) {
     for (uint64_t bits = words[w]; bits != 0; bits &= bits - 1) {
       const RelSet set = (RelSet{w} << 6) | static_cast<RelSet>(std::countr_zero(bits));
@@ -42,61 +147,29 @@ bool SolveWords(const SliceConstraints& constraints, Policy& policy, DirectMemo&
         continue;
       }
       const Slot s = static_cast<Slot>(set);
-      if (Size(set) == 1) {
+      if ((set & (set - 1)) == 0) {  // one relation
+        if constexpr (kScattered) policy.InitSet(s, set);
         policy.InitLeaf(s, Lowest(set));
         continue;
       }
-      const RelSet lowest = LowestBit(set);
-      const RelSet rest = set ^ lowest;
       auto acc = policy.Begin(s, set);
-      uint64_t pairs = 0, tested = 0;
-      // Offers the split with left part x | lowest if both parts are sets.
-      const auto test = [&](typename Policy::Acc a, RelSet x) {
-        const RelSet left = x | lowest, right = set ^ left;
-        if (memo.Contains(left) && memo.Contains(right)) {
-          a = policy.Offer(a, static_cast<Slot>(left), static_cast<Slot>(right));
-          if constexpr (!Policy::kSymmetric) {
-            a = policy.Offer(a, static_cast<Slot>(right), static_cast<Slot>(left));
-          }
-          ++pairs;
-        }
-        return a;
-      };
-      if constexpr (TwoChains<Policy>) {
-        // The subsets of rest without its lowest relation to one
-        // accumulator, with it to another (dense_bushy.h); rest itself is
-        // no split.
-        const RelSet bit = LowestBit(rest), half = rest ^ bit;
-        auto other = policy.Empty();
-        for (RelSet sub = 0;; sub = (sub - half) & half) {
-          acc = test(acc, sub);
-          if (sub == half) break;
-          other = test(other, sub | bit);
-          if ((tested += 2) >= kCheckEvery) {
-            tested = 0;
-            if (control.Tick(SearchControl::kTickWork)) return false;
-          }
-        }
-        acc = policy.Merge(acc, other);
-      } else {
-        for (RelSet sub = 0; sub != rest; sub = (sub - rest) & rest) {
-          acc = test(acc, sub);
-          if (++tested == kCheckEvery) {
-            tested = 0;
-            if (control.Tick(SearchControl::kTickWork)) return false;
-          }
-        }
-      }
+      uint64_t pairs = 0;
+      if (!source(policy, memo, control, set, acc, pairs)) return stop();
       if (pairs == 0) {
         memo.Erase(set);
         continue;
       }
-      policy.Finish(s, set, acc);
+      if constexpr (kScattered) {
+        policy.FinishJoin(s, set, acc);
+      } else {
+        policy.Finish(s, set, acc);
+      }
       const uint64_t work = Policy::kSymmetric ? pairs : 2 * pairs;
-      splits += work;
-      if (control.Tick(work + 1)) return false;
+      work_done += work;
+      if (control.Tick(work + 1)) return stop();
     }
   }
+  splits += work_done;
   return true;
 }
 
@@ -106,11 +179,20 @@ bool SolveWords(const SliceConstraints& constraints, Policy& policy, DirectMemo&
 // exactly the connected sets on entry; on return it holds those with a plan
 // in this slice (inadmissible sets and sets with no admissible split are
 // taken out as they are met). Errors: CANCELLED / DEADLINE_EXCEEDED.
+// `walk`, when given, offers each set's csg-cmp pairs instead of testing
+// every split (the partitions enumerator; binary predicates only).
 template <SearchPolicy Policy>
 absl::Status RunConnectedSubsets(const SliceConstraints& constraints, Policy& policy,
-                                 DirectMemo& memo, SearchControl& control, SearchStats& stats) {
-  const bool done = connected_subsets_internal::SolveWords(constraints, policy, memo, control,
-                                                           stats.splits, 0, memo.words().size());
+                                 DirectMemo& memo, SearchControl& control, SearchStats& stats,
+                                 const ConnectedPartitions* walk = nullptr) {
+  namespace internal = connected_subsets_internal;
+  const size_t words = memo.words().size();
+  const bool done =
+      walk != nullptr
+          ? internal::SolveWords(constraints, policy, memo, control, stats.splits, 0, words,
+                                 internal::WalkedSplits{*walk, !constraints.constraints().empty()})
+          : internal::SolveWords(constraints, policy, memo, control, stats.splits, 0, words,
+                                 internal::EverySplit{});
   return done ? absl::OkStatus() : control.status();
 }
 
@@ -122,7 +204,9 @@ absl::Status RunConnectedSubsets(const SliceConstraints& constraints, Policy& po
 template <SearchPolicy Policy>
 absl::Status RunConnectedSubsetsThreaded(int n, const SliceConstraints& constraints, Policy& policy,
                                          DirectMemo& memo, const SearchControl& control,
-                                         SearchStats& stats, int threads) {
+                                         SearchStats& stats, int threads,
+                                         const ConnectedPartitions* walk = nullptr) {
+  namespace internal = connected_subsets_internal;
   static_assert(Policy::kParallelDense);
   int h = 0;  // prefix bits per item
   while (h < n - 6 && (uint64_t{1} << h) < 256 * static_cast<uint64_t>(threads)) ++h;
@@ -132,9 +216,13 @@ absl::Status RunConnectedSubsetsThreaded(int n, const SliceConstraints& constrai
       0, h, threads, control, [&](int) { return uint64_t{1} << h; },
       [&](int level, uint64_t prefix, int t, SearchControl& ctl) {
         if (Size(prefix) != level) return true;
-        return connected_subsets_internal::SolveWords(constraints, policy, memo, ctl, splits[t],
-                                                      prefix << word_bits,
-                                                      (prefix + 1) << word_bits);
+        const size_t first = prefix << word_bits, last = (prefix + 1) << word_bits;
+        return walk != nullptr
+                   ? internal::SolveWords(
+                         constraints, policy, memo, ctl, splits[t], first, last,
+                         internal::WalkedSplits{*walk, !constraints.constraints().empty()})
+                   : internal::SolveWords(constraints, policy, memo, ctl, splits[t], first, last,
+                                          internal::EverySplit{});
       });
   for (uint64_t s : splits) stats.splits += s;
   return status;

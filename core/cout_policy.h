@@ -92,6 +92,18 @@ class CoutPolicy {
     cost_[s] = Saturate(cost_[s]);
   }
 
+  // Finish in scattered mode over a direct memo (slots are sets): the
+  // set's cardinality from its best split's cached operand cardinalities
+  // (O(|smaller side|)) instead of a pass over the predicates, and cached.
+  void FinishJoin(Slot s, RelSet set, const Acc& a) {
+    if (a.left == kNoSlot) return;
+    const RelSet left = a.left, right = set ^ left;
+    const double card = card_.OfJoin(left, set_card_[a.left], right, set_card_[right]);
+    set_card_[s] = card;
+    left_[s] = a.left;
+    cost_[s] = CoutJoin(card, a.best, 0.0);
+  }
+
   // Scattered mode only (UseScatteredLayout before Resize); every entry is
   // initialised by one of these before it is read.
   void InitSet(Slot s, RelSet set) { Init(s, card_.Of(set)); }
@@ -138,6 +150,7 @@ class CoutPolicy {
 };
 
 static_assert(SearchPolicy<CoutPolicy>);
+static_assert(ScatteredLayout<CoutPolicy>);
 
 }  // namespace sliceplan
 

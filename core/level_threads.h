@@ -24,7 +24,12 @@ namespace sliceplan {
 template <class Items, class Item>
 absl::Status RunLevels(int first, int last, int threads, const SearchControl& outer, Items&& items,
                        Item&& item) {
-  std::vector<SearchControl> controls(threads, outer);
+  // One cache line or more each: a control's tick counter is written per
+  // set, and two threads' counters on one line cost a transfer per tick.
+  struct alignas(64) OwnControl {
+    SearchControl control;
+  };
+  std::vector<OwnControl> controls(threads, OwnControl{outer});
   std::atomic<bool> stopped{false};
   for (int level = first; level <= last && !stopped.load(); ++level) {
     const uint64_t count = items(level);
@@ -32,7 +37,7 @@ absl::Status RunLevels(int first, int last, int threads, const SearchControl& ou
     const auto work = [&](int t) {
       for (uint64_t i = next.fetch_add(1); i < count && !stopped.load(std::memory_order_relaxed);
            i = next.fetch_add(1)) {
-        if (!item(level, i, t, controls[t])) stopped.store(true);
+        if (!item(level, i, t, controls[t].control)) stopped.store(true);
       }
     };
     std::vector<std::thread> helpers;
@@ -40,8 +45,8 @@ absl::Status RunLevels(int first, int last, int threads, const SearchControl& ou
     work(0);
     for (std::thread& h : helpers) h.join();
   }
-  for (const SearchControl& c : controls) {
-    if (!c.status().ok()) return c.status();
+  for (const OwnControl& c : controls) {
+    if (!c.control.status().ok()) return c.control.status();
   }
   return absl::OkStatus();
 }

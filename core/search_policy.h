@@ -72,6 +72,19 @@ concept TwoChains = requires(const Policy& p, typename Policy::Acc a) {
   { p.Merge(a, a) } -> std::same_as<typename Policy::Acc>;
 };
 
+// Policies with a scattered layout (UseScatteredLayout before Resize, for
+// searches that meet sets out of mask order): each set's cardinality is
+// cached beside its cost, so a set solved from its own splits over a direct
+// memo (slot = set) takes its cardinality from its best split's operands.
+// Optional:
+//   void UseScatteredLayout();
+//   void FinishJoin(Slot s, RelSet set, const Acc&);  // Finish, so
+template <class Policy>
+concept ScatteredLayout = requires(Policy& p, const typename Policy::Acc& a, Slot s, RelSet set) {
+  p.UseScatteredLayout();
+  p.FinishJoin(s, set, a);
+};
+
 }  // namespace sliceplan
 
 #endif  // SLICEPLAN_CORE_SEARCH_POLICY_H_

@@ -186,6 +186,15 @@ class SliceSearch {
     ConnectedStrategy strategy = ChooseConnectedStrategy(
         working_, graph, options_.shape, kPolicyBytesPerSet, options_.memo_limit_bytes, wanted_);
     method_ = strategy.method;
+    const bool pulled = strategy.method == ConnectedMethod::kDirectSubsets ||
+                        strategy.method == ConnectedMethod::kDirectPartitions;
+    // The partitions walk tests connectivity in a copy of the connected
+    // sets: the memo loses the sets this slice has no plan for.
+    std::optional<DirectMemo> graph_sets;
+    std::optional<ConnectedPartitions> walk;
+    if (strategy.method == ConnectedMethod::kDirectPartitions) {
+      walk.emplace(working_.size(), graph, graph_sets.emplace(*strategy.connected));
+    }
     absl::Status status;
     if (strategy.method == ConnectedMethod::kHashPairs) {
       memo_.emplace(HashMemo(options_.memo_limit_bytes / kHashBytesPerSet));
@@ -193,15 +202,16 @@ class SliceSearch {
       memo_.emplace(strategy.connected ? std::move(*strategy.connected)
                                        : DirectMemo(working_.size()));
     }
-    constexpr bool kHasLayouts = requires(Policy & p) { p.UseScatteredLayout(); };
-    if constexpr (kHasLayouts) {
+    // Every split tested reads the sets in mask order; the pairs walk
+    // takes cardinalities from operands (connected_subsets.h).
+    if constexpr (ScatteredLayout<Policy>) {
       if (strategy.method != ConnectedMethod::kDirectSubsets) policy_.UseScatteredLayout();
     }
     memo_->Visit([&]<class Memo>(Memo& memo) {
       if constexpr (!Memo::kGrows) policy_.Resize(memo.slot_count());
       if constexpr (std::is_same_v<Memo, DirectMemo>) {
-        if (strategy.method == ConnectedMethod::kDirectSubsets) {
-          status = RunSubsets(memo, control);
+        if (pulled) {
+          status = RunSubsets(memo, control, walk ? &*walk : nullptr);
           return;
         }
       }
@@ -220,14 +230,17 @@ class SliceSearch {
     return status;
   }
 
-  absl::Status RunSubsets(DirectMemo& memo, SearchControl& control) {
+  // Sets pulled in mask order: every split tested, or (walk given) the
+  // pairs walked.
+  absl::Status RunSubsets(DirectMemo& memo, SearchControl& control,
+                          const ConnectedPartitions* walk) {
     if constexpr (Policy::kParallelDense) {
       if (working_.size() >= 7 && Threaded(memo.slot_count())) {
         return RunConnectedSubsetsThreaded(working_.size(), constraints_, policy_, memo, control,
-                                           stats_, options_.threads);
+                                           stats_, options_.threads, walk);
       }
     }
-    return RunConnectedSubsets(constraints_, policy_, memo, control, stats_);
+    return RunConnectedSubsets(constraints_, policy_, memo, control, stats_, walk);
   }
 
   template <class Memo>

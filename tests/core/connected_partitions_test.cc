@@ -29,7 +29,10 @@ using Pairs = std::vector<std::pair<RelSet, RelSet>>;
 
 Pairs Walked(const ConnectedPartitions& walk, RelSet set) {
   Pairs out;
-  walk.ForEach(set, [&](RelSet c, RelSet rest) { out.push_back({c, rest}); });
+  EXPECT_TRUE(walk.ForEach(set, [&](RelSet c, RelSet rest) {
+    out.push_back({c, rest});
+    return true;
+  }));
   return out;
 }
 
@@ -86,6 +89,15 @@ TEST(ConnectedPartitionsTest, FullSetSplitsMatchClosedForms) {
     EXPECT_EQ(count(GraphShape::kStar), static_cast<size_t>(n - 1));
     EXPECT_EQ(count(GraphShape::kClique), (size_t{1} << (n - 1)) - 1);
   }
+}
+
+TEST(ConnectedPartitionsTest, StopsWhenAsked) {
+  const Query q = testing::MakeQuery(GraphShape::kClique, 10, 1);
+  const DirectMemo connected = Connected(q);
+  const ConnectedPartitions walk(10, JoinGraph(q), connected);
+  int seen = 0;
+  EXPECT_FALSE(walk.ForEach(FullSet(10), [&](RelSet, RelSet) { return ++seen < 7; }));
+  EXPECT_EQ(seen, 7);
 }
 
 }  // namespace

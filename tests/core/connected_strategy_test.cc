@@ -1,4 +1,4 @@
-// The connected-only search's three methods (connected_strategy.h): the
+// The connected-only search's four methods (connected_strategy.h): the
 // choice rules, the sampled hit rate against closed forms, and identical
 // answers from every method (cost, plan count, splits, memo sets) for every
 // graph shape, both plan shapes and several slice counts, against the
@@ -78,9 +78,11 @@ TEST(ChooseConnectedStrategyTest, FollowsDensityHitRateAndLimits) {
   // A star: half its sets connected, one split in about 40 a pair (n = 12).
   const ConnectedStrategy star =
       Choose(testing::MakeQuery(GraphShape::kStar, 12, 1), PlanShape::kBushy);
-  EXPECT_EQ(star.method, ConnectedMethod::kDirectPairs);
+  EXPECT_EQ(star.method, ConnectedMethod::kDirectPartitions);
   EXPECT_LT(star.hit_rate, kSubsetsMinHitRate);
-  // Left-deep plans and hyperedges always pair.
+  ASSERT_TRUE(star.connected.has_value());
+  EXPECT_EQ(star.connected->size(), (1u << 11) + 11);  // the hub with any leaves, or one leaf
+  // Left-deep plans and hyperedges always pair (DPhyp).
   EXPECT_EQ(Choose(testing::MakeQuery(GraphShape::kClique, 12, 1), PlanShape::kLeftDeep).method,
             ConnectedMethod::kDirectPairs);
   // 2^12 sets of 20 bytes and the bits: over 80 KiB is hashed.
@@ -90,11 +92,14 @@ TEST(ChooseConnectedStrategyTest, FollowsDensityHitRateAndLimits) {
   EXPECT_EQ(DirectMemoBytes(12, kBytes), 4096.0 * 20 + 512);
 }
 
-TEST(ChooseConnectedStrategyTest, HyperedgesNeverTakeSubsets) {
+TEST(ChooseConnectedStrategyTest, HyperedgesNeverTakeSubsetsOrPartitions) {
   const Query q = testing::MakeQuery(GraphShape::kHyper, 10, 1);
-  const ConnectedStrategy s = ChooseConnectedStrategy(q, JoinGraph(q), PlanShape::kBushy, kBytes,
-                                                      kLimit, ConnectedMethod::kDirectSubsets);
-  EXPECT_EQ(s.method, ConnectedMethod::kDirectPairs);
+  for (ConnectedMethod wanted :
+       {ConnectedMethod::kDirectSubsets, ConnectedMethod::kDirectPartitions}) {
+    const ConnectedStrategy s =
+        ChooseConnectedStrategy(q, JoinGraph(q), PlanShape::kBushy, kBytes, kLimit, wanted);
+    EXPECT_EQ(s.method, ConnectedMethod::kDirectPairs);
+  }
 }
 
 struct Answer {
@@ -104,25 +109,28 @@ struct Answer {
 };
 
 template <class Policy>
-SliceSearch<Policy> Search(const Query& q, PlanShape shape, SliceSpec slice,
-                           ConnectedMethod method) {
+SliceSearch<Policy> Search(const Query& q, PlanShape shape, SliceSpec slice, ConnectedMethod method,
+                           int threads) {
   auto constraints = SliceConstraints::ForSlice(q, shape, slice, false);
   EXPECT_TRUE(constraints.ok()) << constraints.status();
-  SliceSearch<Policy> search(q, {shape, false, CostModelKind::kCout}, *std::move(constraints));
+  SearchOptions options{shape, false, CostModelKind::kCout};
+  options.threads = threads;
+  SliceSearch<Policy> search(q, options, *std::move(constraints));
   search.want_connected_method(method);
   return search;
 }
 
-Answer Solve(const Query& q, PlanShape shape, SliceSpec slice, ConnectedMethod method) {
+Answer Solve(const Query& q, PlanShape shape, SliceSpec slice, ConnectedMethod method,
+             int threads = 1) {
   Answer a;
   SearchControl control;
-  auto cout = Search<CoutPolicy>(q, shape, slice, method);
+  auto cout = Search<CoutPolicy>(q, shape, slice, method, threads);
   EXPECT_TRUE(cout.Run(control).ok());
   if (const auto root = cout.RootSlot()) a.cost = cout.policy().Cost(*root);
   a.splits = cout.stats().splits;
   a.sets = cout.stats().subsets;
   a.method = *cout.connected_method();
-  auto count = Search<CountPolicy>(q, shape, slice, method);
+  auto count = Search<CountPolicy>(q, shape, slice, method, threads);
   EXPECT_TRUE(count.Run(control).ok());
   if (const auto root = count.RootSlot()) a.plans = count.policy().Count(*root);
   // Bushy counting offers both orders of each pair; a left-deep step has one.
@@ -158,12 +166,16 @@ TEST(ConnectedMethodsTest, EveryMethodGivesTheSameAnswerInEverySlice) {
             const Answer hashed = Solve(q, shape, {i, p}, ConnectedMethod::kHashPairs);
             const Answer direct = Solve(q, shape, {i, p}, ConnectedMethod::kDirectPairs);
             const Answer subsets = Solve(q, shape, {i, p}, ConnectedMethod::kDirectSubsets);
+            const Answer walked = Solve(q, shape, {i, p}, ConnectedMethod::kDirectPartitions);
             EXPECT_EQ(hashed.method, ConnectedMethod::kHashPairs);
             EXPECT_EQ(direct.method, ConnectedMethod::kDirectPairs);
             EXPECT_EQ(subsets.method, subsets_run ? ConnectedMethod::kDirectSubsets
                                                   : ConnectedMethod::kDirectPairs);
+            EXPECT_EQ(walked.method, subsets_run ? ConnectedMethod::kDirectPartitions
+                                                 : ConnectedMethod::kDirectPairs);
             ExpectSame(hashed, direct);
             ExpectSame(hashed, subsets);
+            ExpectSame(hashed, walked);
             if (hashed.plans > 0) best = std::min(best, hashed.cost);
             plans += hashed.plans;
           }
@@ -176,6 +188,28 @@ TEST(ConnectedMethodsTest, EveryMethodGivesTheSameAnswerInEverySlice) {
             EXPECT_GE(plans, all_plans);
           }
           EXPECT_LE(std::fabs(best - want), 1e-9 * want);
+        }
+      }
+    }
+  }
+}
+
+TEST(ConnectedMethodsTest, PulledMethodsGiveTheSameAnswerOnThreads) {
+  // 15 relations: past the threaded searches' smallest memo (2^14 slots).
+  for (GraphShape graph : {GraphShape::kStar, GraphShape::kRandom, GraphShape::kClique}) {
+    const Query q = testing::MakeQuery(graph, 15, 2);
+    for (uint32_t p : {1u, 4u}) {
+      for (uint32_t i = 0; i < p; i += 3) {
+        const Answer want = Solve(q, PlanShape::kBushy, {i, p}, ConnectedMethod::kDirectPairs);
+        for (ConnectedMethod method :
+             {ConnectedMethod::kDirectPartitions, ConnectedMethod::kDirectSubsets}) {
+          for (int threads : {2, 3}) {
+            SCOPED_TRACE(testing::ShapeName(graph) + " P=" + std::to_string(p) +
+                         " i=" + std::to_string(i) + " threads=" + std::to_string(threads));
+            const Answer got = Solve(q, PlanShape::kBushy, {i, p}, method, threads);
+            EXPECT_EQ(got.method, method);
+            ExpectSame(want, got);
+          }
         }
       }
     }
