@@ -1,15 +1,22 @@
-// Bushy enumeration over connected sets for dense join graphs: every
-// connected set S in increasing mask order (a valid DP order: a proper
-// subset is a smaller number), every split of S into S1 (holding S's lowest
-// relation) and S2 = S \ S1 tested by two bits of a direct memo that holds
-// exactly the connected sets, the cost of the splits kept in registers as
-// in the dense kernel (dense_bushy.h). A split of a connected set into two
-// connected sets is joined by some predicate (else S would fall apart), so
-// this offers exactly DPhyp's csg-cmp pairs, at the dense kernel's cost per
-// tested split. It tests 2^(|S|-1) splits of each S where DPhyp visits only
-// the pairs, so it wins only when most splits are pairs (slice_search.h
-// chooses by sampling). Binary predicates only: with a hyperedge, a set
-// can be connected while a split of it is joined by none.
+// Bushy enumeration over connected sets in pull order: every connected set
+// S in increasing mask order (a valid DP order: a proper subset is a
+// smaller number) is solved from its own splits into S1 (holding S's
+// lowest relation) and S2 = S \ S1, over a direct memo that holds exactly
+// the connected sets, the cost of the splits kept in registers as in the
+// dense kernel (dense_bushy.h), and S's entry written once. The splits come
+// from one of two sources:
+//   every split:  all 2^(|S|-1) - 1 splits tested by two memo bits; a split
+//                 of a connected set into two connected sets is joined by
+//                 some predicate (else S would fall apart), so these are
+//                 DPhyp's csg-cmp pairs exactly, at the dense kernel's cost
+//                 per tested split; for dense graphs, where most splits
+//                 are pairs (connected_strategy.h chooses by sampling);
+//   walked pairs: only the csg-cmp pairs, found from S by the partitions
+//                 walk (connected_partitions.h); for the other graphs.
+// Either way a set's entry depends only on smaller sets, so the sets of
+// one prefix size can be solved on several threads at once. Binary
+// predicates only: with a hyperedge, a set can be connected while a split
+// of it is joined by none.
 #ifndef SLICEPLAN_CORE_CONNECTED_SUBSETS_H_
 #define SLICEPLAN_CORE_CONNECTED_SUBSETS_H_
 
