@@ -22,8 +22,9 @@ ExactWork MeasureExactWork(const Query& query, const SearchOptions& options) {
   return work;
 }
 
-double ThreadSpeedup(const SearchOptions& options) {
-  if (!options.cross_products || options.threads <= 1) return 1;
+double ThreadSpeedup(const SearchOptions& options, bool pulled) {
+  const bool threads = options.cross_products || (pulled && options.shape == PlanShape::kBushy);
+  if (!threads || options.threads <= 1) return 1;
   return 1 + kThreadEfficiency * (options.threads - 1);
 }
 
@@ -41,6 +42,7 @@ ExactForecast ForecastExact(const Query& query, const SearchOptions& options, co
   const double rounds = std::ceil(static_cast<double>(out.slices) / slots);
   const int n = query.size();
   double unit_seconds = 0;
+  bool pulled = false;  // a connected-only search in pull order (threads)
   if (options.cross_products) {
     out.work_units = DenseSplits(n, options.shape, k, true);
     out.memo_bytes = DenseSlots(n, options.shape, k) * CoutPolicy::kBytesPerSlot;
@@ -50,13 +52,17 @@ ExactForecast ForecastExact(const Query& query, const SearchOptions& options, co
     out.work_units = work.connected_sets * std::pow(shrink, k);
     // The policy's entry and cached cardinality per set, in the memo the
     // search would choose (direct or hashed, connected_strategy.h).
-    out.memo_bytes = ConnectedMemoBytes(
-        n, out.work_units, CoutPolicy::kBytesPerSlot + sizeof(double), options.memo_limit_bytes,
-        DirectSparsity(options.shape, JoinGraph(query).has_hyperedges()));
+    const bool hyperedges = JoinGraph(query).has_hyperedges();
+    constexpr uint64_t kBytesPerSet = CoutPolicy::kBytesPerSlot + sizeof(double);
+    const uint64_t sparsity = DirectSparsity(options.shape, hyperedges);
+    out.memo_bytes =
+        ConnectedMemoBytes(n, out.work_units, kBytesPerSet, options.memo_limit_bytes, sparsity);
+    pulled = options.shape == PlanShape::kBushy && !hyperedges &&
+             TakesDirectMemo(n, out.work_units, kBytesPerSet, options.memo_limit_bytes, sparsity);
     out.estimated = work.estimated;
     unit_seconds = rates.connected_set_seconds;
   }
-  out.seconds = rounds * (out.work_units * unit_seconds / ThreadSpeedup(options) +
+  out.seconds = rounds * (out.work_units * unit_seconds / ThreadSpeedup(options, pulled) +
                           rates.slice_overhead_seconds);
   return out;
 }

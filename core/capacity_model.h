@@ -53,11 +53,14 @@ struct ExactForecast {
 };
 
 // What each thread past the first adds to one slice's speed when
-// options.threads share its memo (0.75: 2 threads measured 1.5-1.8x on
-// 20-relation slices, docs/benchmarks.md). Only the dense kernel is
-// counted: the connected-only pair search runs on one thread.
+// options.threads share its memo (0.75: 2 threads measured 1.5-1.9x on
+// 20-relation slices, docs/benchmarks.md), for the searches that thread:
+// the dense kernel (cross products) and, without cross products, the
+// pulled bushy searches (`pulled`: a direct memo over binary predicates,
+// connected_strategy.h). DPhyp and left-deep connected searches run on
+// one thread.
 inline constexpr double kThreadEfficiency = 0.75;
-double ThreadSpeedup(const SearchOptions& options);
+double ThreadSpeedup(const SearchOptions& options, bool pulled = false);
 
 // The exact search of `query` on `slots` slice slots at once (each slice
 // on options.threads threads), P chosen by ChooseSliceCount unless

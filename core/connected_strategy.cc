@@ -46,12 +46,17 @@ uint64_t DirectSparsity(PlanShape shape, bool hyperedges) {
   return shape == PlanShape::kBushy && !hyperedges ? kPulledSparsity : kDirectSparsity;
 }
 
+bool TakesDirectMemo(int n, double sets, uint64_t bytes_per_slot, uint64_t limit,
+                     uint64_t sparsity) {
+  return n <= kMaxDirectRelations &&
+         DirectMemoBytes(n, bytes_per_slot) <= static_cast<double>(limit) &&
+         sets * static_cast<double>(sparsity) >= std::ldexp(1.0, n);
+}
+
 double ConnectedMemoBytes(int n, double sets, uint64_t bytes_per_slot, uint64_t limit,
                           uint64_t sparsity) {
-  const double direct = DirectMemoBytes(n, bytes_per_slot);
-  if (n <= kMaxDirectRelations && direct <= static_cast<double>(limit) &&
-      sets * static_cast<double>(sparsity) >= std::ldexp(1.0, n)) {
-    return direct;
+  if (TakesDirectMemo(n, sets, bytes_per_slot, limit, sparsity)) {
+    return DirectMemoBytes(n, bytes_per_slot);
   }
   return sets * static_cast<double>(bytes_per_slot + HashMemo::kBytesPerSet);
 }

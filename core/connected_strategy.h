@@ -61,6 +61,11 @@ ConnectedStrategy ChooseConnectedStrategy(const Query& query, const JoinGraph& g
 
 // Bytes of a direct memo over n relations with `bytes_per_slot` per set.
 double DirectMemoBytes(int n, uint64_t bytes_per_slot);
+// Whether a search over `sets` connected sets of n relations takes a
+// direct memo by the limit and the density rule (`sparsity`:
+// DirectSparsity).
+bool TakesDirectMemo(int n, double sets, uint64_t bytes_per_slot, uint64_t limit,
+                     uint64_t sparsity);
 // Bytes of the memo a search over `sets` connected sets of n relations
 // would use: direct where ChooseConnectedStrategy would take it by the
 // density rule (`sparsity`: DirectSparsity), else hashed.

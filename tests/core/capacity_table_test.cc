@@ -69,13 +69,18 @@ TEST(CapacityTableTest, ThreadsPerWorkerSpeedUpEachSlice) {
   EXPECT_NEAR(t->rows[0].seconds, 1.742343625 / 1.75, 1e-12);
   EXPECT_EQ(t->enough_workers, 1);
   EXPECT_DOUBLE_EQ(t->rows[2].memo_bytes, 49.0 * 16384 * CoutPolicy::kBytesPerSlot);
-  // Without cross products the pair search runs on one thread: no speed-up.
+  // Without cross products only the pulled bushy searches thread.
   SearchOptions connected;
   connected.cross_products = false;
-  EXPECT_EQ(ThreadSpeedup(connected), 1.0);
-  connected.cross_products = true;
   connected.threads = 5;
+  EXPECT_EQ(ThreadSpeedup(connected), 1.0);
+  EXPECT_EQ(ThreadSpeedup(connected, true), 4.0);
+  connected.shape = PlanShape::kLeftDeep;
+  EXPECT_EQ(ThreadSpeedup(connected, true), 1.0);
+  connected.cross_products = true;
   EXPECT_EQ(ThreadSpeedup(connected), 4.0);
+  connected.threads = 1;
+  EXPECT_EQ(ThreadSpeedup(connected), 1.0);
 }
 
 TEST(CapacityTableTest, EveryRowIsTheForecastOfItsPool) {
@@ -123,6 +128,32 @@ TEST(CapacityTableTest, ConnectedOnlyUsesTheConnectedSetCount) {
     EXPECT_NEAR(r.seconds, 465e-6, 1e-15);
   }
   EXPECT_EQ(t->enough_workers, 1);
+}
+
+TEST(CapacityTableTest, OnlyPulledConnectedSearchesSpeedUpOnThreads) {
+  // A 16-star has 2^15 + 15 connected sets, one in two of the 2^16: a
+  // direct memo, bushy plans pulled and threaded (2 threads: 1.75x). On
+  // one worker the planner keeps one slice. Left-deep plans (DPhyp) and a
+  // 30-chain's 465 sets (a hashed memo) get no speed-up.
+  SearchOptions options;
+  options.cross_products = false;
+  options.threads = 2;
+  MachineRates rates = OneNanosecond();
+  rates.connected_set_seconds = 1e-6;
+  const Query star = MakeQuery(GraphShape::kStar, 16, 1);
+  auto bushy = PlanCapacity(star, options, 1.0, 2, rates);
+  ASSERT_TRUE(bushy.ok()) << bushy.status();
+  ASSERT_EQ(bushy->rows[0].slices, 1u);
+  EXPECT_NEAR(bushy->rows[0].seconds, 32783e-6 / 1.75, 1e-12);
+  options.shape = PlanShape::kLeftDeep;
+  auto left_deep = PlanCapacity(star, options, 1.0, 2, rates);
+  ASSERT_TRUE(left_deep.ok()) << left_deep.status();
+  ASSERT_EQ(left_deep->rows[0].slices, 1u);
+  EXPECT_NEAR(left_deep->rows[0].seconds, 32783e-6, 1e-12);
+  options.shape = PlanShape::kBushy;
+  auto chain = PlanCapacity(MakeQuery(GraphShape::kChain, 30, 1), options, 1.0, 2, rates);
+  ASSERT_TRUE(chain.ok()) << chain.status();
+  EXPECT_NEAR(chain->rows[0].seconds, 465e-6, 1e-15);
 }
 
 TEST(CapacityTableTest, ASliceOverTheMemoLimitNeverCounts) {
