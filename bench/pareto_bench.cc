@@ -14,6 +14,9 @@
 #include <string>
 #include <vector>
 
+#include "absl/strings/numbers.h"
+#include "absl/strings/str_split.h"
+#include "absl/strings/string_view.h"
 #include "core/slice_solver.h"
 #include "tests/support/test_queries.h"
 
@@ -58,21 +61,32 @@ int main(int argc, char** argv) {
   std::vector<int> sizes;
   std::vector<double> alphas = {1.0, 1.05, 1.2};
   bool slices = true;
+  const auto bad = [](const std::string& arg) {
+    std::fprintf(stderr,
+                 "bad argument %s: want [--no-slices] [--budget=SECONDS] [--alphas=A,B,...] "
+                 "[N ...] (2 <= N <= 64, alpha >= 1)\n",
+                 arg.c_str());
+    return 2;
+  };
   for (int i = 1; i < argc; ++i) {
     const std::string arg = argv[i];
     if (arg == "--no-slices") {
       slices = false;
     } else if (arg.rfind("--budget=", 0) == 0) {
-      budget_seconds = std::atoi(arg.c_str() + 9);
+      if (!absl::SimpleAtoi(arg.substr(9), &budget_seconds) || budget_seconds <= 0) {
+        return bad(arg);
+      }
     } else if (arg.rfind("--alphas=", 0) == 0) {
       alphas.clear();
-      for (const char* p = arg.c_str() + 9; *p != 0;) {
-        char* end = nullptr;
-        alphas.push_back(std::strtod(p, &end));
-        p = *end == ',' ? end + 1 : end;
+      for (const absl::string_view part : absl::StrSplit(arg.substr(9), ',')) {
+        double alpha = 0;
+        if (!absl::SimpleAtod(part, &alpha) || !(alpha >= 1)) return bad(arg);
+        alphas.push_back(alpha);
       }
     } else {
-      sizes.push_back(std::atoi(arg.c_str()));
+      int n = 0;
+      if (!absl::SimpleAtoi(arg, &n) || n < 2 || n > kMaxRelations) return bad(arg);
+      sizes.push_back(n);
     }
   }
   if (sizes.empty()) sizes = {8, 10, 12, 14};

@@ -8,6 +8,7 @@ cost over the best of greedy and linear (median, largest, and how many
 queries auto improved). Figures in docs/benchmarks.md.
 
     bench/tiers_bench.py [--sizes=100,1000,5000] [--queries=20] [--bin=build/cli/sliceplan]
+                         [--cross-products=true|false]
 """
 import argparse
 import json
@@ -20,9 +21,10 @@ import tempfile
 ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
 
 
-def optimize(binary, path, tier):
+def optimize(binary, path, tier, cross_products):
     out = subprocess.run([binary, "optimize", path, "--quiet", "--workers=1", "--format=json",
-                          "--tier=" + tier], check=True, capture_output=True, text=True).stdout
+                          "--tier=" + tier, "--cross-products=" + cross_products],
+                         check=True, capture_output=True, text=True).stdout
     doc = json.loads(out)
     return doc["plans"][0]["costs"]["cout"], doc["stats"]["wall_seconds"], doc["tier"]
 
@@ -33,6 +35,7 @@ def main():
     parser.add_argument("--graphs", default="tree,snowflake,cycles")
     parser.add_argument("--queries", type=int, default=20)
     parser.add_argument("--bin", default=os.path.join(ROOT, "build", "cli", "sliceplan"))
+    parser.add_argument("--cross-products", default="true", choices=["true", "false"])
     args = parser.parse_args()
     print("| n | graph | queries | auto median s | auto max s | greedy median s | "
           "cost / best(greedy, linear): median | max | improved | tiers |")
@@ -48,11 +51,11 @@ def main():
                                         os.path.join(ROOT, "examples", "generate_port_query.py"),
                                         str(n), "--graph=" + graph, "--seed=%d" % seed],
                                        check=True, stdout=f)
-                    greedy, greedy_s, _ = optimize(args.bin, path, "greedy")
+                    greedy, greedy_s, _ = optimize(args.bin, path, "greedy", args.cross_products)
                     best = greedy
                     if n <= 1000:
-                        best = min(best, optimize(args.bin, path, "linear")[0])
-                    cost, seconds, tier = optimize(args.bin, path, "auto")
+                        best = min(best, optimize(args.bin, path, "linear", args.cross_products)[0])
+                    cost, seconds, tier = optimize(args.bin, path, "auto", args.cross_products)
                     times.append(seconds)
                     greedy_times.append(greedy_s)
                     ratios.append(cost / best)

@@ -171,9 +171,12 @@ void ClusterPolicy::Combine(Out& out, double card, std::span<const ClusterEntry>
   const ClusterParams& p = config_.params;
   LevelRuns(left, left_runs_);
   LevelRuns(right, right_runs_);
-  // The last stage time made, with its inputs: the entries of one level
-  // pair almost always share their row counts, and the same inputs give
-  // the same time.
+  // The last stage time made, with its row inputs: the entries of one
+  // level pair almost always share their row counts, and the same inputs
+  // give the same time. Set afresh for each option (strategy and node
+  // count) below from the time Options made for it, so within one
+  // option's loops only the rows can change and StageSeconds runs only
+  // when they do.
   struct LastStage {
     double left_rows = -1, right_rows = -1, out_rows = -1, seconds = 0;
   } last;
