@@ -69,7 +69,8 @@ class RunTable {
         cost_(size_t(n_) * n_, kInf),
         cost_by_end_(size_t(n_) * n_, kInf),
         reach_(size_t(n_) * n_, kNever),
-        split_(size_t(n_) * n_, -1) {
+        split_(size_t(n_) * n_, -1),
+        connected_ends_(n_) {
     FillCards(query, order);
     FillReach();
   }
@@ -77,7 +78,10 @@ class RunTable {
   // Bushy: every split of every run. Left-deep: a single relation on the
   // right, taken from either end of the run.
   absl::Status Solve(bool bushy, bool cross_products, SearchControl& control) {
-    for (int i = 0; i < n_; ++i) Set(i, i, 0, -1);
+    for (int i = 0; i < n_; ++i) {
+      Set(i, i, 0, -1);
+      connected_ends_[i].push_back(i);
+    }
     // Runs ending at j, from the shortest: each needs only runs inside it,
     // all done by then, and every run of one j reads the same column of
     // cost_by_end_, which stays in cache (by length, each run read another).
@@ -191,13 +195,40 @@ class RunTable {
     const double* left = &cost_[At(i, 0)];
     const double* right = &cost_by_end_[AtByEnd(0, j)];
     const int32_t* reach = &reach_[At(i, 0)];
+    if (!cross_products && 4 * connected_ends_[i].size() < size_t(j - i)) {
+      SolveBushySparse(i, j, left, right, reach);
+      return;
+    }
     const double best =
         cross_products ? LeastSplitAll(left, right, i, j)
                        : LeastSplit(left, right, i, j, [reach, j](int k) { return reach[k] <= j; });
     if (!(best < kInf)) return;
     int32_t at = i;
     while (!(left[at] + right[at + 1] == best && (cross_products || reach[at] <= j))) ++at;
-    Set(i, j, CoutJoin(card_[At(i, j)], left[at], right[at + 1]), at);
+    SetConnected(i, j, CoutJoin(card_[At(i, j)], left[at], right[at + 1]), at);
+  }
+
+  // SolveBushy without cross products where few runs starting at i are
+  // connected (a star's leaves, a snowflake's branches): only the splits
+  // whose lower part is one of them can have a finite cost, so only those
+  // are tried. The first least split wins, as in the scan above.
+  void SolveBushySparse(int i, int j, const double* left, const double* right,
+                        const int32_t* reach) {
+    double best = kInf;
+    int32_t at = -1;
+    for (const int32_t k : connected_ends_[i]) {
+      if (reach[k] > j) continue;
+      const double v = left[k] + right[k + 1];
+      if (v < best) best = v, at = k;
+    }
+    if (at >= 0) SetConnected(i, j, CoutJoin(card_[At(i, j)], left[at], right[at + 1]), at);
+  }
+
+  // Set for a run found connected (a finite cost): it joins the runs
+  // starting at i that the sparse split loop tries.
+  void SetConnected(int i, int j, double cost, int32_t split) {
+    Set(i, j, cost, split);
+    connected_ends_[i].push_back(j);
   }
 
   void SolveLeftDeep(int i, int j, bool cross_products) {
@@ -221,6 +252,9 @@ class RunTable {
   std::vector<int32_t> reach_;                  // [i][k]
   std::vector<int32_t> split_;                  // [i][j]: k, or -1 for "relation i on the right"
   std::vector<std::vector<int32_t>> first_of_;  // per first position: the last positions
+  // Per first position i: the ends k of the runs [i, k] with a plan so
+  // far, increasing (bushy, no cross products).
+  std::vector<std::vector<int32_t>> connected_ends_;
 };
 
 absl::Status CheckLinearSize(const WideQuery& query) {
