@@ -224,16 +224,17 @@ class TierRun {
   // products, the growth of 3^k; x2 without, a tree block's 2^k bound),
   // fits the blocks still to come (about two passes' worth, less those
   // `searched` so far). The largest block grows with the pool:
-  // 14 relations with cross products and 16 without on one slot (where a
-  // larger block cost 20x the time for little gain, docs/benchmarks.md),
-  // one more for every factor of the growth in slots, since a block's
-  // slices spread over them.
+  // 13 relations with cross products and 16 without on one slot, one more
+  // for every factor of the growth in slots, since a block's slices spread
+  // over them. (With cross products: 14 took 1.2-1.6x the time of 13 at
+  // 1,000 relations for the same median cost, 12 lost 1-2.5% of it, 18
+  // took 20x the time at 100 relations; docs/benchmarks.md.)
   int NextBlock(int last, double seconds, int searched) {
     const double growth = options_.cross_products ? 3.0 : 2.0;
     const int pool_extra =
         static_cast<int>(std::floor(std::log(static_cast<double>(slots_)) / std::log(growth)));
     const int most =
-        std::min({query_.size(), (options_.cross_products ? 14 : 16) + pool_extra, kMaxRelations});
+        std::min({query_.size(), (options_.cross_products ? 13 : 16) + pool_extra, kMaxRelations});
     const double remaining = 0.8 * Remaining();
     int best = 3;
     for (int k = 3; k <= std::min(most, last + 2); ++k) {
