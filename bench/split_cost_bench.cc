@@ -3,6 +3,7 @@
 // Not a test: run by hand, see docs/benchmarks.md.
 //
 //   build/bench/split_cost_bench [n ...]      (default 16 18 20)
+//   build/bench/split_cost_bench ratios N ... (the bushy slice ratios at each N)
 #include <chrono>
 #include <cmath>
 #include <cstdio>
@@ -88,6 +89,12 @@ int main(int argc, char** argv) {
     std::printf("n=%d P=%u slice %u: %.4f s, %llu splits, %.3f ns/split\n", n, p, index, r.seconds,
                 static_cast<unsigned long long>(r.splits),
                 1e9 * r.seconds / static_cast<double>(r.splits));
+    return 0;
+  }
+  if (argc >= 3 && std::string(argv[1]) == "ratios") {  // slice ratios: ratios N [N ...]
+    for (int i = 2; i < argc; ++i) {
+      sliceplan::SliceRatios(std::atoi(argv[i]), sliceplan::PlanShape::kBushy);
+    }
     return 0;
   }
   std::vector<int> sizes;
