@@ -218,9 +218,11 @@ class SliceSearch {
       status = RunPairs(graph, memo, control);
     });
     stats_.subsets = memo_->size();
+    // (The walk's copy of the connected sets' bits counts too.)
     stats_.memo_bytes =
         memo_->direct()
-            ? static_cast<uint64_t>(DirectMemoBytes(working_.size(), kPolicyBytesPerSet))
+            ? static_cast<uint64_t>(DirectMemoBytes(working_.size(), kPolicyBytesPerSet)) +
+                  (graph_sets ? graph_sets->bytes() : 0)
             : memo_->size() * kHashBytesPerSet;
     if (absl::IsResourceExhausted(status)) {
       return absl::ResourceExhaustedError(absl::StrCat(status.message(), " (memo limit ",

@@ -194,6 +194,23 @@ TEST(ConnectedMethodsTest, EveryMethodGivesTheSameAnswerInEverySlice) {
   }
 }
 
+TEST(ConnectedMethodsTest, MemoBytesCountTheWalksCopyOfTheSets) {
+  // 2^12 entries of cost, best left operand and cached cardinality, and
+  // the 512 bytes of one bit per set; the walk keeps a second copy of the
+  // bits (the memo loses the sets a slice has no plan for).
+  const uint64_t entries = 4096 * (CoutPolicy::kBytesPerSlot + sizeof(double));
+  const Query star = testing::MakeQuery(GraphShape::kStar, 12, 1);
+  auto walked =
+      Search<CoutPolicy>(star, PlanShape::kBushy, {0, 1}, ConnectedMethod::kDirectPartitions, 1);
+  SearchControl control;
+  ASSERT_TRUE(walked.Run(control).ok());
+  EXPECT_EQ(walked.stats().memo_bytes, entries + 2 * 512);
+  auto tested =
+      Search<CoutPolicy>(star, PlanShape::kBushy, {0, 1}, ConnectedMethod::kDirectSubsets, 1);
+  ASSERT_TRUE(tested.Run(control).ok());
+  EXPECT_EQ(tested.stats().memo_bytes, entries + 512);
+}
+
 TEST(ConnectedMethodsTest, PulledMethodsGiveTheSameAnswerOnThreads) {
   // 15 relations: past the threaded searches' smallest memo (2^14 slots).
   for (GraphShape graph : {GraphShape::kStar, GraphShape::kRandom, GraphShape::kClique}) {
