@@ -52,10 +52,11 @@ typename Policy::Acc OfferBoth(const Policy& policy, typename Policy::Acc a, Rel
 struct EverySplit {
   static constexpr bool kScattered = false;
   // Offers `set`'s splits whose parts are both in `memo` into acc,
-  // counting them in `pairs`. False once `control` stopped.
+  // counting them in `pairs`. False once `control` stopped. (`sliced`:
+  // the memo may lack connected sets; the bits are tested either way.)
   template <SearchPolicy Policy>
-  bool operator()(const Policy& policy, const DirectMemo& memo, SearchControl& control, RelSet set,
-                  typename Policy::Acc& acc, uint64_t& pairs) const {
+  bool operator()(const Policy& policy, const DirectMemo& memo, SearchControl& control,
+                  bool /*sliced*/, RelSet set, typename Policy::Acc& acc, uint64_t& pairs) const {
     const RelSet lowest = LowestBit(set);
     const RelSet rest = set ^ lowest;
     uint64_t tested = 0;
@@ -105,11 +106,10 @@ struct WalkedSplits {
   // A scattered policy caches each set's cardinality (search_policy.h).
   static constexpr bool kScattered = true;
   const ConnectedPartitions& walk;
-  bool sliced;  // the memo may lack connected sets (no plan in this slice)
 
   template <SearchPolicy Policy>
-  bool operator()(const Policy& policy, const DirectMemo& memo, SearchControl& control, RelSet set,
-                  typename Policy::Acc& acc, uint64_t& pairs) const {
+  bool operator()(const Policy& policy, const DirectMemo& memo, SearchControl& control, bool sliced,
+                  RelSet set, typename Policy::Acc& acc, uint64_t& pairs) const {
     auto a = acc;
     uint64_t offered = 0, walked = 0;
     const bool done = walk.ForEach(set, [&](RelSet left, RelSet right) {
@@ -161,7 +161,7 @@ bool SolveWords(const SliceConstraints& constraints, Policy& policy, DirectMemo&
       }
       auto acc = policy.Begin(s, set);
       uint64_t pairs = 0;
-      if (!source(policy, memo, control, set, acc, pairs)) return stop();
+      if (!source(policy, memo, control, sliced, set, acc, pairs)) return stop();
       if (pairs == 0) {
         memo.Erase(set);
         continue;
@@ -180,6 +180,17 @@ bool SolveWords(const SliceConstraints& constraints, Policy& policy, DirectMemo&
   return true;
 }
 
+// SolveWords with the pairs `walk` finds, or (none) every split tested.
+template <SearchPolicy Policy>
+bool SolveWordsFrom(const ConnectedPartitions* walk, const SliceConstraints& constraints,
+                    Policy& policy, DirectMemo& memo, SearchControl& control, uint64_t& splits,
+                    size_t first, size_t last) {
+  if (walk != nullptr) {
+    return SolveWords(constraints, policy, memo, control, splits, first, last, WalkedSplits{*walk});
+  }
+  return SolveWords(constraints, policy, memo, control, splits, first, last, EverySplit{});
+}
+
 }  // namespace connected_subsets_internal
 
 // Runs the search into `policy` (sized to memo.slot_count()). `memo` holds
@@ -192,14 +203,8 @@ template <SearchPolicy Policy>
 absl::Status RunConnectedSubsets(const SliceConstraints& constraints, Policy& policy,
                                  DirectMemo& memo, SearchControl& control, SearchStats& stats,
                                  const ConnectedPartitions* walk = nullptr) {
-  namespace internal = connected_subsets_internal;
-  const size_t words = memo.words().size();
-  const bool done =
-      walk != nullptr
-          ? internal::SolveWords(constraints, policy, memo, control, stats.splits, 0, words,
-                                 internal::WalkedSplits{*walk, !constraints.constraints().empty()})
-          : internal::SolveWords(constraints, policy, memo, control, stats.splits, 0, words,
-                                 internal::EverySplit{});
+  const bool done = connected_subsets_internal::SolveWordsFrom(
+      walk, constraints, policy, memo, control, stats.splits, 0, memo.words().size());
   return done ? absl::OkStatus() : control.status();
 }
 
@@ -213,7 +218,6 @@ absl::Status RunConnectedSubsetsThreaded(int n, const SliceConstraints& constrai
                                          DirectMemo& memo, const SearchControl& control,
                                          SearchStats& stats, int threads,
                                          const ConnectedPartitions* walk = nullptr) {
-  namespace internal = connected_subsets_internal;
   static_assert(Policy::kParallelDense);
   int h = 0;  // prefix bits per item
   while (h < n - 6 && (uint64_t{1} << h) < 256 * static_cast<uint64_t>(threads)) ++h;
@@ -223,13 +227,9 @@ absl::Status RunConnectedSubsetsThreaded(int n, const SliceConstraints& constrai
       0, h, threads, control, [&](int) { return uint64_t{1} << h; },
       [&](int level, uint64_t prefix, int t, SearchControl& ctl) {
         if (Size(prefix) != level) return true;
-        const size_t first = prefix << word_bits, last = (prefix + 1) << word_bits;
-        return walk != nullptr
-                   ? internal::SolveWords(
-                         constraints, policy, memo, ctl, splits[t], first, last,
-                         internal::WalkedSplits{*walk, !constraints.constraints().empty()})
-                   : internal::SolveWords(constraints, policy, memo, ctl, splits[t], first, last,
-                                          internal::EverySplit{});
+        return connected_subsets_internal::SolveWordsFrom(walk, constraints, policy, memo, ctl,
+                                                          splits[t], prefix << word_bits,
+                                                          (prefix + 1) << word_bits);
       });
   for (uint64_t s : splits) stats.splits += s;
   return status;
