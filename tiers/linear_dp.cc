@@ -205,7 +205,9 @@ class RunTable {
     if (!(best < kInf)) return;
     int32_t at = i;
     while (!(left[at] + right[at + 1] == best && (cross_products || reach[at] <= j))) ++at;
-    SetConnected(i, j, CoutJoin(card_[At(i, j)], left[at], right[at + 1]), at);
+    const double cost = CoutJoin(card_[At(i, j)], left[at], right[at + 1]);
+    // With cross products every run has a plan and the sparse loop never runs.
+    cross_products ? Set(i, j, cost, at) : SetConnected(i, j, cost, at);
   }
 
   // SolveBushy without cross products where few runs starting at i are
@@ -224,8 +226,8 @@ class RunTable {
     if (at >= 0) SetConnected(i, j, CoutJoin(card_[At(i, j)], left[at], right[at + 1]), at);
   }
 
-  // Set for a run found connected (a finite cost): it joins the runs
-  // starting at i that the sparse split loop tries.
+  // Set for a run found connected (a finite cost) without cross products:
+  // it joins the runs starting at i that the sparse split loop tries.
   void SetConnected(int i, int j, double cost, int32_t split) {
     Set(i, j, cost, split);
     connected_ends_[i].push_back(j);
