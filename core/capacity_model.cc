@@ -57,7 +57,8 @@ ExactForecast ForecastExact(const Query& query, const SearchOptions& options, co
     const uint64_t sparsity = DirectSparsity(options.shape, hyperedges);
     out.memo_bytes =
         ConnectedMemoBytes(n, out.work_units, kBytesPerSet, options.memo_limit_bytes, sparsity);
-    pulled = options.shape == PlanShape::kBushy && !hyperedges &&
+    // (ThreadSpeedup counts it for bushy plans only.)
+    pulled = !hyperedges &&
              TakesDirectMemo(n, out.work_units, kBytesPerSet, options.memo_limit_bytes, sparsity);
     out.estimated = work.estimated;
     unit_seconds = rates.connected_set_seconds;
