@@ -1,15 +1,15 @@
 // The capacity model against measured slice times: for n = 14..20 and
 // P = 1..16, both plan shapes, cross products allowed, the forecast
-// slowest-slice seconds (core/capacity_model.h, with the rate measured by
-// core/rate_calibration.h once per shape) over the measured slowest slice
+// slowest-slice seconds (core/capacity/capacity_model.h, with the rate measured by
+// core/capacity/rate_calibration.h once per shape) over the measured slowest slice
 // (every slice solved once, one at a time, on one thread). Figures in
 // docs/benchmarks.md.
 #include <bit>
 #include <chrono>
 #include <cstdio>
 
-#include "core/capacity_model.h"
-#include "core/rate_calibration.h"
+#include "core/capacity/capacity_model.h"
+#include "core/capacity/rate_calibration.h"
 #include "core/slice_solver.h"
 #include "tests/support/test_queries.h"
 

@@ -6,9 +6,9 @@
 #include <cstdio>
 #include <vector>
 
-#include "core/constraint_choice.h"
-#include "core/cout_policy.h"
+#include "core/cost/cout_policy.h"
 #include "core/slice_search.h"
+#include "core/slicing/constraint_choice.h"
 #include "tests/support/test_queries.h"
 
 namespace sliceplan {

@@ -1,4 +1,4 @@
-// Accuracy and cost of the connected-set estimate (core/connected_set_estimate.h)
+// Accuracy and cost of the connected-set estimate (core/graph/connected_set_estimate.h)
 // against the exact count, on random graphs, cycles and grids of growing
 // size: the estimate with 100, 400 and 1,600 probes per start relation,
 // each over the exact count, and the time of each. Figures in
@@ -6,8 +6,8 @@
 #include <chrono>
 #include <cstdio>
 
-#include "core/connected_set_estimate.h"
-#include "core/connected_sets.h"
+#include "core/graph/connected_set_estimate.h"
+#include "core/graph/connected_sets.h"
 #include "tests/support/test_queries.h"
 
 namespace {

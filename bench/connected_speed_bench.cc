@@ -3,7 +3,7 @@
 // pair of each, and their ratios. Targets (docs/benchmarks.md): the clique
 // without cross products at most 2x the time with them; other shapes at most
 // 4x the dense kernel's ns per pair. The `dphyp` and `walk` columns are
-// the ns per pair of DPhyp and of the partitions walk, each made to run
+// the ns per pair of DPhyp and of the set ccp walk, each made to run
 // over a direct memo (up to 24 relations; no counting or sampling to
 // choose). Not a test: run by hand.
 //
@@ -62,14 +62,14 @@ bool connected_only = false;
 void Compare(GraphShape shape, int n) {
   const Query q = testing::MakeQuery(shape, n, 1);
   const Run connected = Best(q, false);
-  // DPhyp and the partitions walk over a direct memo where it fits (ns
+  // DPhyp and the set ccp walk over a direct memo where it fits (ns
   // per pair; forced, so without the choice's counting and sampling).
   const auto forced = [&](ConnectedMethod method) {
     return n <= 26 ? 1e9 * Best(q, false, method).seconds / static_cast<double>(connected.pairs)
                    : 0.0;
   };
-  const double dphyp = forced(ConnectedMethod::kDirectPairs);
-  const double walked = forced(ConnectedMethod::kDirectPartitions);
+  const double dphyp = forced(ConnectedMethod::kPushDirect);
+  const double walked = forced(ConnectedMethod::kPullSetCcps);
   // 3^21 splits take about 10 s of dense kernel.
   const bool dense_fits = n <= 20 && !connected_only;
   const Run dense = dense_fits ? Best(q, true) : Run{};

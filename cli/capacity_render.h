@@ -1,4 +1,4 @@
-// Renders the capacity planner's table (core/capacity_table.h) as text,
+// Renders the capacity planner's table (core/capacity/capacity_table.h) as text,
 // as the JSON of docs/interfaces.md, and as an SVG plot: predicted seconds
 // against workers, log-log, the deadline drawn as a line.
 #ifndef SLICEPLAN_CLI_CAPACITY_RENDER_H_
@@ -6,7 +6,7 @@
 
 #include <string>
 
-#include "core/capacity_table.h"
+#include "core/capacity/capacity_table.h"
 #include "core/search_options.h"
 
 namespace sliceplan::cli {

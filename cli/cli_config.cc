@@ -7,10 +7,10 @@
 #include "absl/functional/function_ref.h"
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_split.h"
-#include "core/pareto.h"
-#include "core/plan_choice.h"
-#include "core/search_tier.h"
-#include "core/status_macros.h"
+#include "core/cost/pareto.h"
+#include "core/cost/plan_choice.h"
+#include "core/model/search_tier.h"
+#include "core/model/status_macros.h"
 
 namespace sliceplan::cli {
 namespace {

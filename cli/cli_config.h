@@ -9,8 +9,8 @@
 #include <vector>
 
 #include "absl/status/statusor.h"
-#include "core/capacity_model.h"
-#include "core/search_tier.h"
+#include "core/capacity/capacity_model.h"
+#include "core/model/search_tier.h"
 #include "core/slice_solver.h"
 #include "rpc/tls.h"
 

@@ -10,8 +10,8 @@
 #include <string>
 #include <vector>
 
-#include "core/plan.h"
-#include "core/query.h"
+#include "core/model/plan.h"
+#include "core/model/query.h"
 
 namespace sliceplan::cli {
 

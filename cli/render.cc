@@ -5,7 +5,7 @@
 
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_format.h"
-#include "core/pareto.h"
+#include "core/cost/pareto.h"
 
 namespace sliceplan::cli {
 namespace {

@@ -6,10 +6,10 @@
 #include <string>
 
 #include "cli/cli_config.h"
-#include "core/json_text.h"
 #include "core/merge.h"
-#include "core/query.h"
-#include "core/wide_query.h"
+#include "core/model/json_text.h"
+#include "core/model/query.h"
+#include "core/model/wide_query.h"
 #include "schedule/slice_scheduler.h"
 #include "schedule/tiered_search.h"
 

@@ -3,7 +3,7 @@
 #include <chrono>
 
 #include "absl/strings/str_cat.h"
-#include "core/status_macros.h"
+#include "core/model/status_macros.h"
 #include "grpcpp/grpcpp.h"
 #include "rpc/bearer_tokens.h"
 #include "rpc/rpc_status.h"

@@ -7,8 +7,8 @@
 #include <string>
 
 #include "absl/status/statusor.h"
-#include "core/capacity_table.h"
-#include "core/query.h"
+#include "core/capacity/capacity_table.h"
+#include "core/model/query.h"
 #include "rpc/tls.h"
 #include "schedule/slice_scheduler.h"
 #include "schedule/tiered_search.h"

@@ -5,9 +5,9 @@
 
 #include "absl/strings/str_cat.h"
 #include "absl/synchronization/mutex.h"
-#include "core/capacity_table.h"
+#include "core/capacity/capacity_table.h"
+#include "core/model/status_macros.h"
 #include "core/slice_planner.h"
-#include "core/status_macros.h"
 #include "rpc/call_deadline.h"
 #include "rpc/outcome_label.h"
 #include "rpc/request_id.h"

@@ -16,7 +16,7 @@
 #include "coordinator/admission.h"
 #include "coordinator/coordinator_metrics.h"
 #include "coordinator/worker_pool.h"
-#include "core/input_limits.h"
+#include "core/model/input_limits.h"
 #include "rpc/bearer_tokens.h"
 #include "schedule/slice_scheduler.h"
 #include "sliceplan.grpc.pb.h"

@@ -4,7 +4,7 @@
 
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_format.h"
-#include "core/value_range.h"
+#include "core/model/value_range.h"
 
 namespace sliceplan {
 

@@ -10,8 +10,8 @@
 #include <vector>
 
 #include "absl/status/statusor.h"
-#include "core/pareto.h"
-#include "core/plan_choice.h"
+#include "core/cost/pareto.h"
+#include "core/cost/plan_choice.h"
 #include "core/slice_solver.h"
 
 namespace sliceplan {

@@ -3,7 +3,7 @@
 #include <cmath>
 
 #include "absl/strings/str_cat.h"
-#include "core/status_macros.h"
+#include "core/model/status_macros.h"
 
 namespace sliceplan {
 

@@ -9,20 +9,13 @@
 #include <string>
 
 #include "absl/status/status.h"
-#include "core/cluster_model.h"
-#include "core/input_limits.h"
-#include "core/pareto.h"
-#include "core/plan_choice.h"
-#include "core/slice_spec.h"
+#include "core/cost/cluster_config.h"
+#include "core/cost/pareto.h"
+#include "core/cost/plan_choice.h"
+#include "core/model/input_limits.h"
+#include "core/slicing/slice_spec.h"
 
 namespace sliceplan {
-
-struct ClusterSearchConfig {
-  ClusterParams params;
-  Objectives objectives;
-  double alpha = 1.0;  // >= 1; 1 is exact
-  ChoiceRule choice;   // which frontier plan the answer names
-};
 
 enum class CostModelKind { kCout, kCluster };
 

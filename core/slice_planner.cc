@@ -3,9 +3,9 @@
 #include <algorithm>
 #include <cmath>
 
-#include "core/connected_sets.h"
-#include "core/cout_policy.h"
-#include "core/search_estimate.h"
+#include "core/cost/cout_policy.h"
+#include "core/graph/connected_sets.h"
+#include "core/slicing/search_estimate.h"
 
 namespace sliceplan {
 namespace {

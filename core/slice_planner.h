@@ -12,8 +12,8 @@
 
 #include <cstdint>
 
-#include "core/connected_sets.h"  // CountConnectedSets, for the planner's callers
-#include "core/query.h"
+#include "core/graph/connected_sets.h"  // CountConnectedSets, for the planner's callers
+#include "core/model/query.h"
 #include "core/slice_solver.h"
 
 namespace sliceplan {

@@ -14,22 +14,25 @@
 #include "absl/status/status.h"
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_format.h"
-#include "core/cardinality.h"
-#include "core/cluster_policy.h"
-#include "core/connected_bushy.h"
-#include "core/connected_left_deep.h"
-#include "core/connected_memo.h"
-#include "core/connected_strategy.h"
-#include "core/connected_subsets.h"
-#include "core/count_policy.h"
-#include "core/cout_policy.h"
-#include "core/dense_bushy.h"
-#include "core/dense_layout.h"
-#include "core/dense_left_deep.h"
-#include "core/join_graph.h"
-#include "core/search_estimate.h"
-#include "core/slice_constraints.h"
-#include "core/slice_solver.h"
+#include "core/cost/cluster_policy.h"
+#include "core/cost/count_policy.h"
+#include "core/cost/cout_policy.h"
+#include "core/graph/join_graph.h"
+#include "core/memo/connected_memo.h"
+#include "core/model/cardinality.h"
+#include "core/model/plan.h"
+#include "core/search/connected_left_deep.h"
+#include "core/search/connected_pull.h"
+#include "core/search/connected_push.h"
+#include "core/search/connected_strategy.h"
+#include "core/search/dense_bushy.h"
+#include "core/search/dense_left_deep.h"
+#include "core/search/search_control.h"
+#include "core/search/search_stats.h"
+#include "core/search_options.h"
+#include "core/slicing/dense_layout.h"
+#include "core/slicing/search_estimate.h"
+#include "core/slicing/slice_constraints.h"
 
 namespace sliceplan {
 
@@ -186,26 +189,26 @@ class SliceSearch {
     ConnectedStrategy strategy = ChooseConnectedStrategy(
         working_, graph, options_.shape, kPolicyBytesPerSet, options_.memo_limit_bytes, wanted_);
     method_ = strategy.method;
-    const bool pulled = strategy.method == ConnectedMethod::kDirectSubsets ||
-                        strategy.method == ConnectedMethod::kDirectPartitions;
-    // The partitions walk tests connectivity in a copy of the connected
+    const bool pulled = strategy.method == ConnectedMethod::kPullEverySplit ||
+                        strategy.method == ConnectedMethod::kPullSetCcps;
+    // The set ccp walk tests connectivity in a copy of the connected
     // sets: the memo loses the sets this slice has no plan for.
     std::optional<DirectMemo> graph_sets;
-    std::optional<ConnectedPartitions> walk;
-    if (strategy.method == ConnectedMethod::kDirectPartitions) {
+    std::optional<SetCcpWalk> walk;
+    if (strategy.method == ConnectedMethod::kPullSetCcps) {
       walk.emplace(working_.size(), graph, graph_sets.emplace(*strategy.connected));
     }
     absl::Status status;
-    if (strategy.method == ConnectedMethod::kHashPairs) {
+    if (strategy.method == ConnectedMethod::kPushHashed) {
       memo_.emplace(HashMemo(options_.memo_limit_bytes / kHashBytesPerSet));
     } else {
       memo_.emplace(strategy.connected ? std::move(*strategy.connected)
                                        : DirectMemo(working_.size()));
     }
     // Every split tested reads the sets in mask order; the pairs walk
-    // takes cardinalities from operands (connected_subsets.h).
+    // takes cardinalities from operands (connected_pull.h).
     if constexpr (ScatteredLayout<Policy>) {
-      if (strategy.method != ConnectedMethod::kDirectSubsets) policy_.UseScatteredLayout();
+      if (strategy.method != ConnectedMethod::kPullEverySplit) policy_.UseScatteredLayout();
     }
     memo_->Visit([&]<class Memo>(Memo& memo) {
       if constexpr (!Memo::kGrows) policy_.Resize(memo.slot_count());
@@ -234,22 +237,21 @@ class SliceSearch {
 
   // Sets pulled in mask order: every split tested, or (walk given) the
   // pairs walked.
-  absl::Status RunSubsets(DirectMemo& memo, SearchControl& control,
-                          const ConnectedPartitions* walk) {
+  absl::Status RunSubsets(DirectMemo& memo, SearchControl& control, const SetCcpWalk* walk) {
     if constexpr (Policy::kParallelDense) {
       if (working_.size() >= 7 && Threaded(memo.slot_count())) {
-        return RunConnectedSubsetsThreaded(working_.size(), constraints_, policy_, memo, control,
-                                           stats_, options_.threads, walk);
+        return RunConnectedPullThreaded(working_.size(), constraints_, policy_, memo, control,
+                                        stats_, options_.threads, walk);
       }
     }
-    return RunConnectedSubsets(constraints_, policy_, memo, control, stats_, walk);
+    return RunConnectedPull(constraints_, policy_, memo, control, stats_, walk);
   }
 
   template <class Memo>
   absl::Status RunPairs(const JoinGraph& graph, Memo& memo, SearchControl& control) {
     if (options_.shape == PlanShape::kBushy) {
-      return ConnectedBushy<Policy, Memo>(working_.size(), graph, card_, constraints_, policy_,
-                                          memo, control, stats_)
+      return ConnectedPush<Policy, Memo>(working_.size(), graph, card_, constraints_, policy_, memo,
+                                         control, stats_)
           .Run();
     }
     return RunConnectedLeftDeep(working_.size(), graph, card_, constraints_, policy_, memo, control,

@@ -4,13 +4,14 @@
 #include <cmath>
 #include <type_traits>
 
-#include "core/count_policy.h"
-#include "core/cout_policy.h"
-#include "core/pareto.h"
+#include "core/cost/count_policy.h"
+#include "core/cost/cout_model.h"
+#include "core/cost/cout_policy.h"
+#include "core/cost/pareto.h"
+#include "core/model/status_macros.h"
+#include "core/model/user_text.h"
+#include "core/model/value_range.h"
 #include "core/slice_search.h"
-#include "core/status_macros.h"
-#include "core/user_text.h"
-#include "core/value_range.h"
 
 namespace sliceplan {
 

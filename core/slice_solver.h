@@ -10,12 +10,12 @@
 #include <string>
 
 #include "absl/status/statusor.h"
-#include "core/plan.h"
-#include "core/query.h"
-#include "core/search_control.h"
+#include "core/model/plan.h"
+#include "core/model/query.h"
+#include "core/search/search_control.h"
+#include "core/search/search_stats.h"
 #include "core/search_options.h"
-#include "core/search_stats.h"
-#include "core/slice_spec.h"
+#include "core/slicing/slice_spec.h"
 
 namespace sliceplan {
 

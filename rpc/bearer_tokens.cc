@@ -4,7 +4,7 @@
 
 #include "absl/strings/ascii.h"
 #include "absl/strings/str_cat.h"
-#include "core/user_text.h"
+#include "core/model/user_text.h"
 
 namespace sliceplan {
 namespace {

@@ -8,7 +8,7 @@
 
 #include "absl/strings/ascii.h"
 #include "absl/strings/str_cat.h"
-#include "core/user_text.h"
+#include "core/model/user_text.h"
 #include "grpcpp/ext/proto_server_reflection_plugin.h"
 #include "grpcpp/health_check_service_interface.h"
 #include "grpcpp/support/server_interceptor.h"

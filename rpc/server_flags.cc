@@ -4,7 +4,7 @@
 #include <cstdint>
 
 #include "absl/flags/flag.h"
-#include "core/status_macros.h"
+#include "core/model/status_macros.h"
 #include "rpc/server_log.h"
 #include "rpc/server_setup.h"
 

@@ -10,7 +10,7 @@
 #include <string>
 
 #include "absl/status/statusor.h"
-#include "core/input_limits.h"
+#include "core/model/input_limits.h"
 #include "rpc/serve.h"
 #include "rpc/tls.h"
 

@@ -6,7 +6,7 @@
 #include "absl/flags/usage.h"
 #include "absl/flags/usage_config.h"
 #include "absl/strings/match.h"
-#include "core/status_macros.h"
+#include "core/model/status_macros.h"
 #include "rpc/flag_names.h"
 #include "rpc/server_flags.h"
 #include "spdlog/spdlog.h"

@@ -12,7 +12,7 @@
 #ifndef SLICEPLAN_RPC_SLICE_METRICS_H_
 #define SLICEPLAN_RPC_SLICE_METRICS_H_
 
-#include "core/search_stats.h"
+#include "core/search/search_stats.h"
 #include "prometheus/counter.h"
 #include "prometheus/gauge.h"
 #include "prometheus/histogram.h"

@@ -4,9 +4,9 @@
 #include <sstream>
 
 #include "absl/strings/str_cat.h"
-#include "core/input_limits.h"
-#include "core/status_macros.h"
-#include "core/user_text.h"
+#include "core/model/input_limits.h"
+#include "core/model/status_macros.h"
+#include "core/model/user_text.h"
 #include "grpcpp/security/tls_certificate_provider.h"
 #include "grpcpp/security/tls_certificate_verifier.h"
 #include "grpcpp/security/tls_credentials_options.h"

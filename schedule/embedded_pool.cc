@@ -4,7 +4,7 @@
 #include <string>
 #include <vector>
 
-#include "core/status_macros.h"
+#include "core/model/status_macros.h"
 #include "schedule/local_worker.h"
 
 namespace sliceplan {

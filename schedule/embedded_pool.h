@@ -6,7 +6,7 @@
 
 #include "absl/status/statusor.h"
 #include "core/merge.h"
-#include "core/query.h"
+#include "core/model/query.h"
 #include "core/slice_solver.h"
 #include "schedule/slice_scheduler.h"
 #include "schedule/tiered_search.h"

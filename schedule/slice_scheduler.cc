@@ -12,8 +12,8 @@
 #include "absl/strings/str_join.h"
 #include "absl/synchronization/mutex.h"
 #include "absl/time/time.h"
-#include "core/search_estimate.h"
-#include "core/status_macros.h"
+#include "core/model/status_macros.h"
+#include "core/slicing/search_estimate.h"
 
 namespace sliceplan {
 

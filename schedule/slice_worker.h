@@ -13,7 +13,7 @@
 #include <string>
 
 #include "absl/status/statusor.h"
-#include "core/query.h"
+#include "core/model/query.h"
 #include "core/slice_solver.h"
 
 namespace sliceplan {

@@ -8,9 +8,9 @@
 
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_format.h"
-#include "core/input_limits.h"
+#include "core/model/input_limits.h"
+#include "core/model/status_macros.h"
 #include "core/slice_planner.h"
-#include "core/status_macros.h"
 #include "tiers/greedy.h"
 #include "tiers/join_forest.h"
 #include "tiers/linear_dp.h"

@@ -7,7 +7,7 @@
 //      where it is cheap (up to kAutoLinearRelations): every request has a
 //      plan, whatever happens after;
 //   2. up to 64 relations, the exact search runs when the capacity model
-//      (core/capacity_model.h) predicts it finishes within kExactShare of
+//      (core/capacity/capacity_model.h) predicts it finishes within kExactShare of
 //      the time left on this pool; cut short by the deadline, its best
 //      plan so far competes with the incumbent;
 //   3. otherwise (bushy plans) idp improves the incumbent block by block,
@@ -31,9 +31,9 @@
 #include <vector>
 
 #include "absl/status/statusor.h"
-#include "core/capacity_model.h"
-#include "core/search_tier.h"
-#include "core/wide_query.h"
+#include "core/capacity/capacity_model.h"
+#include "core/model/search_tier.h"
+#include "core/model/wide_query.h"
 #include "schedule/slice_scheduler.h"
 #include "tiers/idp.h"
 #include "tiers/linear_dp.h"

@@ -7,7 +7,7 @@
 #include <vector>
 
 #include "absl/container/flat_hash_map.h"
-#include "core/value_range.h"
+#include "core/model/value_range.h"
 
 namespace sliceplan {
 namespace {

@@ -21,8 +21,8 @@
 #ifndef SLICEPLAN_TIERS_GREEDY_H_
 #define SLICEPLAN_TIERS_GREEDY_H_
 
-#include "core/slice_spec.h"
-#include "core/wide_query.h"
+#include "core/model/wide_query.h"
+#include "core/slicing/slice_spec.h"
 #include "tiers/wide_plan.h"
 
 namespace sliceplan {

@@ -12,7 +12,7 @@
 
 #include "absl/container/flat_hash_map.h"
 #include "absl/strings/str_cat.h"
-#include "core/value_range.h"
+#include "core/model/value_range.h"
 
 namespace sliceplan {
 namespace {

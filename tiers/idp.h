@@ -32,9 +32,9 @@
 #include <functional>
 
 #include "absl/status/statusor.h"
-#include "core/plan.h"
-#include "core/query.h"
-#include "core/wide_query.h"
+#include "core/model/plan.h"
+#include "core/model/query.h"
+#include "core/model/wide_query.h"
 #include "tiers/wide_plan.h"
 
 namespace sliceplan {

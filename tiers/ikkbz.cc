@@ -4,8 +4,8 @@
 #include <numeric>
 #include <utility>
 
-#include "core/cout_policy.h"
-#include "core/value_range.h"
+#include "core/cost/cout_model.h"
+#include "core/model/value_range.h"
 
 namespace sliceplan {
 namespace {

@@ -25,7 +25,7 @@
 #include <cstdint>
 #include <vector>
 
-#include "core/wide_query.h"
+#include "core/model/wide_query.h"
 
 namespace sliceplan {
 

@@ -2,7 +2,7 @@
 
 #include <utility>
 
-#include "core/value_range.h"
+#include "core/model/value_range.h"
 
 namespace sliceplan {
 

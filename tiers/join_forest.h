@@ -7,7 +7,7 @@
 // Union-find (union by size, path halving); each predicate is re-checked
 // only from the smaller side of a merge, so n - 1 merges cost
 // O(m log n) predicate checks in all. Values saturate at kValueCeiling
-// (core/value_range.h). Single-threaded.
+// (core/model/value_range.h). Single-threaded.
 #ifndef SLICEPLAN_TIERS_JOIN_FOREST_H_
 #define SLICEPLAN_TIERS_JOIN_FOREST_H_
 
@@ -15,7 +15,7 @@
 #include <span>
 #include <vector>
 
-#include "core/wide_query.h"
+#include "core/model/wide_query.h"
 
 namespace sliceplan {
 

@@ -7,9 +7,9 @@
 #include <utility>
 
 #include "absl/strings/str_cat.h"
-#include "core/cout_policy.h"
-#include "core/status_macros.h"
-#include "core/value_range.h"
+#include "core/cost/cout_model.h"
+#include "core/model/status_macros.h"
+#include "core/model/value_range.h"
 #include "tiers/ikkbz.h"
 #include "tiers/join_forest.h"
 

@@ -20,17 +20,17 @@
 #include <vector>
 
 #include "absl/status/statusor.h"
-#include "core/capacity_table.h"  // kMaxLinearTierRelations
-#include "core/search_control.h"
-#include "core/slice_spec.h"
-#include "core/wide_query.h"
+#include "core/capacity/capacity_table.h"  // kMaxLinearTierRelations
+#include "core/model/wide_query.h"
+#include "core/search/search_control.h"
+#include "core/slicing/slice_spec.h"
 #include "tiers/wide_plan.h"
 
 namespace sliceplan {
 
 // The largest query the linear tier takes (memory: 32 n^2 bytes).
 inline constexpr int kMaxLinearRelations = 1000;
-static_assert(kMaxLinearRelations == kMaxLinearTierRelations, "core/capacity_table.h");
+static_assert(kMaxLinearRelations == kMaxLinearTierRelations, "core/capacity/capacity_table.h");
 
 // The best plan of `shape` over contiguous runs of `order`, costed. Without
 // cross products: on a disconnected join graph (where no plan avoids them)

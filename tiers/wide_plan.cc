@@ -3,7 +3,7 @@
 #include <utility>
 
 #include "absl/strings/str_cat.h"
-#include "core/cout_policy.h"
+#include "core/cost/cout_model.h"
 #include "tiers/join_forest.h"
 
 namespace sliceplan {

@@ -1,6 +1,6 @@
 // A join plan over a query of any size: a binary tree whose leaves name
 // relation ids, with every node's cardinality and C_out cost. The exact
-// engine's Plan (core/plan.h) converts to it; the heuristic tiers build it
+// engine's Plan (core/model/plan.h) converts to it; the heuristic tiers build it
 // directly. Plain value type.
 #ifndef SLICEPLAN_TIERS_WIDE_PLAN_H_
 #define SLICEPLAN_TIERS_WIDE_PLAN_H_
@@ -10,8 +10,8 @@
 #include <vector>
 
 #include "absl/status/status.h"
-#include "core/plan.h"
-#include "core/wide_query.h"
+#include "core/model/plan.h"
+#include "core/model/wide_query.h"
 
 namespace sliceplan {
 
@@ -40,7 +40,7 @@ int32_t AddJoin(WidePlan& plan, int32_t left, int32_t right);
 // otherwise: a tier that returns such a plan has a bug.
 absl::Status CheckWidePlan(const WidePlan& plan, int n, bool left_deep = false);
 
-// Fills every node's cardinality and C_out (core/cout_policy.h's
+// Fills every node's cardinality and C_out (core/cost/cout_model.h's
 // rounding); returns the root's cost. REQUIRES: CheckWidePlan is OK.
 double CostWidePlan(WidePlan& plan, const WideQuery& query);
 
@@ -48,7 +48,7 @@ double CostWidePlan(WidePlan& plan, const WideQuery& query);
 // its two inputs). REQUIRES: CheckWidePlan is OK.
 bool HasCrossProduct(const WidePlan& plan, const WideQuery& query);
 
-// "((shipments vessels) ports)", as TreeString (core/plan.h). Iterative:
+// "((shipments vessels) ports)", as TreeString (core/model/plan.h). Iterative:
 // a 10,000-deep left-deep plan does not recurse.
 std::string WideTreeString(const WidePlan& plan, const WideQuery& query);
 

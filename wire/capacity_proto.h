@@ -1,4 +1,4 @@
-// Conversion of the capacity planner's table (core/capacity_table.h) to and
+// Conversion of the capacity planner's table (core/capacity/capacity_table.h) to and
 // from the coordinator's CapacityResponse. A reply is validated like a
 // request: rows for 1, 2, 4, ... workers in order, slice counts powers of
 // two, seconds and bytes finite and not negative, rates finite and > 0.
@@ -7,7 +7,7 @@
 #define SLICEPLAN_WIRE_CAPACITY_PROTO_H_
 
 #include "absl/status/statusor.h"
-#include "core/capacity_table.h"
+#include "core/capacity/capacity_table.h"
 #include "sliceplan.pb.h"
 
 namespace sliceplan {

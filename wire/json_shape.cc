@@ -5,7 +5,7 @@
 
 #include "absl/container/flat_hash_set.h"
 #include "absl/strings/str_cat.h"
-#include "core/user_text.h"
+#include "core/model/user_text.h"
 
 namespace sliceplan {
 namespace {

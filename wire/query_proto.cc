@@ -8,8 +8,8 @@
 
 #include "absl/container/flat_hash_map.h"
 #include "absl/strings/str_cat.h"
-#include "core/status_macros.h"
-#include "core/user_text.h"
+#include "core/model/status_macros.h"
+#include "core/model/user_text.h"
 #include "google/protobuf/util/json_util.h"
 #include "wire/json_shape.h"
 

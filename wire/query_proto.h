@@ -12,9 +12,9 @@
 #include <string_view>
 
 #include "absl/status/statusor.h"
-#include "core/input_limits.h"
-#include "core/query.h"
-#include "core/wide_query.h"
+#include "core/model/input_limits.h"
+#include "core/model/query.h"
+#include "core/model/wide_query.h"
 #include "query.pb.h"
 
 namespace sliceplan {

@@ -5,10 +5,10 @@
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_join.h"
 #include "absl/strings/str_split.h"
-#include "core/pareto.h"
-#include "core/plan_choice.h"
-#include "core/status_macros.h"
-#include "core/value_range.h"
+#include "core/cost/pareto.h"
+#include "core/cost/plan_choice.h"
+#include "core/model/status_macros.h"
+#include "core/model/value_range.h"
 
 namespace sliceplan {
 

@@ -1,8 +1,8 @@
 #include "wire/tier_proto.h"
 
 #include "absl/strings/str_cat.h"
-#include "core/status_macros.h"
-#include "core/value_range.h"
+#include "core/model/status_macros.h"
+#include "core/model/value_range.h"
 #include "wire/service_proto.h"
 
 namespace sliceplan {

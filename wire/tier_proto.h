@@ -7,9 +7,9 @@
 #define SLICEPLAN_WIRE_TIER_PROTO_H_
 
 #include "absl/status/statusor.h"
+#include "core/model/search_tier.h"
+#include "core/model/wide_query.h"
 #include "core/search_options.h"
-#include "core/search_tier.h"
-#include "core/wide_query.h"
 #include "schedule/tiered_search.h"
 #include "sliceplan.pb.h"
 #include "tiers/wide_plan.h"

@@ -14,7 +14,7 @@
 #include <vector>
 
 #include "absl/status/status.h"
-#include "core/search_stats.h"
+#include "core/search/search_stats.h"
 #include "prometheus/counter.h"
 #include "prometheus/registry.h"
 #include "rpc/metric_set.h"

@@ -6,8 +6,8 @@
 #include <thread>
 
 #include "absl/strings/str_cat.h"
+#include "core/model/status_macros.h"
 #include "core/slice_solver.h"
-#include "core/status_macros.h"
 #include "rpc/call_deadline.h"
 #include "rpc/outcome_label.h"
 #include "rpc/request_id.h"

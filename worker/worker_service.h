@@ -14,7 +14,7 @@
 
 #include "absl/base/thread_annotations.h"
 #include "absl/synchronization/mutex.h"
-#include "core/input_limits.h"
+#include "core/model/input_limits.h"
 #include "core/slice_solver.h"
 #include "sliceplan.grpc.pb.h"
 #include "worker/worker_metrics.h"

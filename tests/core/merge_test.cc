@@ -4,7 +4,7 @@
 // answers. Expected values are worked out by hand beside each test.
 #include "core/merge.h"
 
-#include "core/value_range.h"
+#include "core/model/value_range.h"
 #include "gtest/gtest.h"
 
 namespace sliceplan {

@@ -6,7 +6,7 @@
 #include <bit>
 #include <cmath>
 
-#include "core/search_estimate.h"
+#include "core/slicing/search_estimate.h"
 #include "gtest/gtest.h"
 #include "tests/support/test_queries.h"
 

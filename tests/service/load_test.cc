@@ -23,7 +23,8 @@
 #include <vector>
 
 #include "cli/rpc_client.h"
-#include "core/plan.h"
+#include "core/cost/cout_model.h"
+#include "core/model/plan.h"
 #include "grpcpp/grpcpp.h"
 #include "gtest/gtest.h"
 #include "sliceplan.grpc.pb.h"

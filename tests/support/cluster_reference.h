@@ -6,9 +6,9 @@
 
 #include <vector>
 
-#include "core/cluster_model.h"
-#include "core/plan.h"
-#include "core/query.h"
+#include "core/cost/cluster_model.h"
+#include "core/model/plan.h"
+#include "core/model/query.h"
 
 namespace sliceplan::testing {
 

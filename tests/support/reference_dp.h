@@ -6,7 +6,7 @@
 #ifndef SLICEPLAN_TESTS_SUPPORT_REFERENCE_DP_H_
 #define SLICEPLAN_TESTS_SUPPORT_REFERENCE_DP_H_
 
-#include "core/query.h"
+#include "core/model/query.h"
 
 namespace sliceplan::testing {
 

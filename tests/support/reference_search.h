@@ -8,8 +8,8 @@
 #include <functional>
 #include <vector>
 
-#include "core/plan.h"
-#include "core/query.h"
+#include "core/model/plan.h"
+#include "core/model/query.h"
 
 namespace sliceplan::testing {
 

@@ -9,7 +9,7 @@
 #include <utility>
 #include <vector>
 
-#include "core/query.h"
+#include "core/model/query.h"
 
 namespace sliceplan::testing {
 

@@ -10,7 +10,7 @@
 #include <cstdint>
 #include <string>
 
-#include "core/wide_query.h"
+#include "core/model/wide_query.h"
 
 namespace sliceplan::testing {
 

@@ -11,7 +11,7 @@
 #include <random>
 #include <string>
 
-#include "core/cout_policy.h"
+#include "core/cost/cout_policy.h"
 #include "tests/support/reference_dp.h"
 #include "tests/support/test_queries.h"
 #include "tests/support/wide_queries.h"

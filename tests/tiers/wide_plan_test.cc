@@ -4,7 +4,7 @@
 
 #include <gtest/gtest.h>
 
-#include "core/plan.h"
+#include "core/model/plan.h"
 #include "schedule/embedded_pool.h"
 #include "tests/support/test_queries.h"
 #include "tiers/join_forest.h"

@@ -1,0 +1,312 @@
+#include "core/cost/cluster_policy.h"
+
+#include <algorithm>
+
+#include "core/model/value_range.h"
+
+namespace sliceplan {
+namespace {
+
+// Completeness level codes: a level is the multiset of the leaves' rates,
+// keyed by the sum of integer codes -log(rate) * 2^40. Equal multisets get
+// equal keys exactly; distinct rates whose products merely coincide may
+// get distinct keys, which only prunes less (always safe).
+int64_t RateCode(double rate) { return std::llround(-std::log(rate) * 1099511627776.0); }
+
+}  // namespace
+
+ClusterPolicy::ClusterPolicy(const Query& query, const Cardinality& card,
+                             const ClusterSearchConfig& config, uint64_t memo_limit_bytes)
+    : query_(query),
+      card_(card),
+      config_(config),
+      level_alpha_(std::pow(config.alpha, 1.0 / std::max(1, query.size()))),
+      rule_(config.objectives, level_alpha_),
+      max_entries_(memo_limit_bytes / sizeof(ClusterEntry)) {
+  for (double rate : config_.params.sample_rates) rate_codes_.push_back(RateCode(rate));
+  leaves_.resize(query.size());
+  for (int i = 0; i < query.size(); ++i) {
+    const Relation& rel = query.relations()[i];
+    for (size_t k = 0; k < config_.params.sample_rates.size(); ++k) {
+      const double rate = config_.params.sample_rates[k];
+      ClusterEntry e;
+      e.costs = {0, 0, rate};
+      e.rows = IsSaturated(rel.rows) ? kValueCeiling : rel.rows * rate;
+      e.level = rate_codes_[k];
+      e.left_index = static_cast<uint32_t>(k);
+      leaves_[i].push_back(e);
+    }
+  }
+}
+
+void ClusterPolicy::Resize(size_t slots) {
+  first_.resize(slots, 0);
+  size_.resize(slots, 0);
+  card_of_.resize(slots, 0);
+  width_of_.resize(slots, 0);
+  leaf_.resize(slots, 0);
+  if (scattered_) per_set_.resize(slots);
+}
+
+void ClusterPolicy::InitLeaf(Slot s, RelationId r) {
+  card_of_[s] = query_.relation(r).rows;
+  width_of_[s] = query_.relation(r).row_bytes;
+  leaf_[s] = 1;
+  if (scattered_) {
+    per_set_[s] = leaves_[r.value];
+    Grown(s, 0);
+  } else {
+    Store(s, leaves_[r.value]);
+  }
+}
+
+ClusterPolicy::Acc ClusterPolicy::Begin(Slot s, RelSet set) {
+  SetInfo(s, set);
+  scratch_.Clear();
+  return {&scratch_, card_of_[s]};
+}
+
+void ClusterPolicy::InitSet(Slot s, RelSet set) {
+  if (!scattered_) {
+    scattered_ = true;
+    per_set_.resize(card_of_.size());
+  }
+  SetInfo(s, set);
+}
+
+void ClusterPolicy::SetInfo(Slot s, RelSet set) {
+  card_of_[s] = card_.Of(set);
+  double width = 0;
+  ForEachMember(set, [&](RelationId r) { width += query_.relation(r).row_bytes; });
+  width_of_[s] = width;
+  leaf_[s] = 0;
+}
+
+namespace {
+
+// Level runs of a frontier sorted by (level, latency): [begin, end) each.
+void LevelRuns(std::span<const ClusterEntry> plans,
+               std::vector<std::pair<uint32_t, uint32_t>>& runs) {
+  runs.clear();
+  for (uint32_t i = 0; i < plans.size();) {
+    uint32_t j = i + 1;
+    while (j < plans.size() && plans[j].level == plans[i].level) ++j;
+    runs.emplace_back(i, j);
+    i = j;
+  }
+}
+
+}  // namespace
+
+template <class Level>
+bool ClusterPolicy::PairCovered(const Level& out, std::span<const ClusterEntry> left, uint32_t a0,
+                                uint32_t a1, std::span<const ClusterEntry> right, uint32_t b0,
+                                uint32_t b1, int nodes, double t) const {
+  // Each side's least latency (its first entry) and least node-seconds
+  // (its last), a hair lower so that the last-bit spread of t within a
+  // level cannot make the test unsafe.
+  const double lat =
+      std::max(rule_.Lat(left[a0]), rule_.Lat(right[b0])) + (rule_.has_latency() ? t : 0.0);
+  const double ns = rule_.Ns(left[a1 - 1]) + rule_.Ns(right[b1 - 1]) +
+                    (rule_.has_node_seconds() ? nodes * t : 0.0);
+  return out.Covers(rule_, lat * (1 - 1e-12), ns * (1 - 1e-12));
+}
+
+void ClusterPolicy::Options(const ClusterEntry& l, double left_width, bool left_leaf,
+                            const ClusterEntry& r, double right_width, bool right_leaf,
+                            double out_rows) const {
+  const ClusterParams& p = config_.params;
+  options_.clear();
+  for (JoinStrategy strategy : kAllStrategies) {
+    for (size_t m = 0; m < p.node_counts.size(); ++m) {
+      const int nodes = p.node_counts[m];
+      options_.push_back({strategy, m, nodes,
+                          StageSeconds(p, strategy, nodes, {l.rows, left_width, left_leaf},
+                                       {r.rows, right_width, right_leaf}, out_rows)});
+    }
+  }
+  // With t the same for every combination of the pair, option a gives
+  // each (l, r) latency max + t_a and node-seconds sum + m_a t_a: no worse
+  // than option b on the objectives asked for means every combination
+  // under b is dominated by the same one under a. Ties keep the first.
+  // Only for the exact frontier: with alpha > 1 the dominated options'
+  // combinations, offered first, often cover several better ones at once,
+  // and the sets came out larger and slower without them (8 and 10
+  // relations, alpha 1.05: 30% slower, docs/benchmarks.md).
+  if (config_.alpha > 1) return;
+  const auto no_worse = [&](const StageOption& a, const StageOption& b) {
+    return (!rule_.has_latency() || a.seconds <= b.seconds) &&
+           (!rule_.has_node_seconds() || a.nodes * a.seconds <= b.nodes * b.seconds);
+  };
+  size_t kept = 0;
+  for (size_t b = 0; b < options_.size(); ++b) {
+    bool dominated = false;
+    for (size_t a = 0; a < options_.size() && !dominated; ++a) {
+      if (a == b || !no_worse(options_[a], options_[b])) continue;
+      // a equal to b on both: the earlier one stays.
+      dominated = !no_worse(options_[b], options_[a]) || a < b;
+    }
+    if (!dominated) options_[kept++] = options_[b];
+  }
+  options_.resize(kept);
+}
+
+// Within one completeness level every entry has the same completeness (up
+// to rounding in the last bit of its product), so for one level pair and
+// one (strategy, node count) every combination has the same stage time t:
+// latency max(L, R) + t, node-seconds L + R + m t. Of the combinations of
+// one left entry l with the right entries of latency <= l's, the one with
+// the least node-seconds (the last of them on the right staircase) is as
+// fast and at least as cheap as the others; the same for a right entry and
+// the left entries of smaller latency. So those |A| + |B| combinations
+// hold every combination not dominated by another, and only they are made.
+// And a level pair whose best conceivable combination (each side's least
+// latency and least node-seconds, with that t) is already covered is
+// skipped whole.
+template <class Out>
+void ClusterPolicy::Combine(Out& out, double card, std::span<const ClusterEntry> left,
+                            Slot left_slot, bool left_leaf, double left_width,
+                            std::span<const ClusterEntry> right, Slot right_slot, bool right_leaf,
+                            double right_width) const {
+  const ClusterParams& p = config_.params;
+  LevelRuns(left, left_runs_);
+  LevelRuns(right, right_runs_);
+  // The last stage time made, with its row inputs: the entries of one
+  // level pair almost always share their row counts, and the same inputs
+  // give the same time. Set afresh for each option (strategy and node
+  // count) below from the time Options made for it, so within one
+  // option's loops only the rows can change and StageSeconds runs only
+  // when they do.
+  struct LastStage {
+    double left_rows = -1, right_rows = -1, out_rows = -1, seconds = 0;
+  } last;
+  const auto stage = [&](const ClusterEntry& l, const ClusterEntry& r, double out_rows,
+                         JoinStrategy strategy, int nodes) {
+    if (l.rows != last.left_rows || r.rows != last.right_rows || out_rows != last.out_rows) {
+      last = {l.rows, r.rows, out_rows,
+              StageSeconds(p, strategy, nodes, {l.rows, left_width, left_leaf},
+                           {r.rows, right_width, right_leaf}, out_rows)};
+    }
+    return last.seconds;
+  };
+  // Sampling shrinks a saturated count only on paper: it stays saturated.
+  const auto out_rows = [&](const ClusterEntry& l, const ClusterEntry& r) {
+    return IsSaturated(card) ? kValueCeiling : card * (l.costs.completeness * r.costs.completeness);
+  };
+  const auto make = [&](uint32_t i, uint32_t j, JoinStrategy strategy, size_t m) {
+    const ClusterEntry& l = left[i];
+    const ClusterEntry& r = right[j];
+    ClusterEntry e;
+    e.rows = out_rows(l, r);
+    e.level = l.level + r.level;
+    e.left_slot = left_slot;
+    e.left_index = i;
+    e.right_slot = right_slot;
+    e.right_index = j;
+    const int nodes = p.node_counts[m];
+    e.costs = JoinCosts(l.costs, r.costs, nodes, stage(l, r, e.rows, strategy, nodes));
+    e.strategy = strategy;
+    e.nodes_index = static_cast<uint16_t>(m);
+    return e;
+  };
+  const int fewest_nodes = *std::min_element(p.node_counts.begin(), p.node_counts.end());
+  for (const auto& [a0, a1] : left_runs_) {
+    for (const auto& [b0, b1] : right_runs_) {
+      uint64_t made = 0;
+      auto level = out.At(left[a0].level + right[b0].level);
+      // Every stage pays its start-up, on at least the fewest nodes: if the
+      // pair's best point at that floor is covered, all its options are.
+      if (PairCovered(level, left, a0, a1, right, b0, b1, fewest_nodes, p.stage_startup_s)) {
+        continue;
+      }
+      const double rows0 = out_rows(left[a0], right[b0]);
+      Options(left[a0], left_width, left_leaf, right[b0], right_width, right_leaf, rows0);
+      for (const StageOption& o : options_) {
+        const JoinStrategy strategy = o.strategy;
+        const size_t m = o.nodes_index;
+        last = {left[a0].rows, right[b0].rows, rows0, o.seconds};
+        if (PairCovered(level, left, a0, a1, right, b0, b1, o.nodes, o.seconds)) continue;
+        // Right entries of latency <= each left entry's: the last of them.
+        uint32_t j = b0;
+        for (uint32_t i = a0; i < a1; ++i) {
+          while (j + 1 < b1 && rule_.Lat(right[j + 1]) <= rule_.Lat(left[i])) ++j;
+          if (rule_.Lat(right[j]) <= rule_.Lat(left[i])) {
+            level.Insert(rule_, make(i, j, strategy, m));
+            ++made;
+          }
+        }
+        // Left entries of latency < each right entry's: the last of them.
+        uint32_t i = a0;
+        for (j = b0; j < b1; ++j) {
+          while (i + 1 < a1 && rule_.Lat(left[i + 1]) < rule_.Lat(right[j])) ++i;
+          if (rule_.Lat(left[i]) < rule_.Lat(right[j])) {
+            level.Insert(rule_, make(i, j, strategy, m));
+            ++made;
+          }
+        }
+      }
+      // A stopped control stays stopped: the enumerator sees it next.
+      if (control_ != nullptr && control_->Tick(std::max<uint64_t>(made, 1))) return;
+    }
+  }
+}
+
+ClusterPolicy::Acc ClusterPolicy::Offer(Acc a, Slot left, Slot right) const {
+  Combine(*a.out, a.card, Plans(left), left, leaf_[left], width_of_[left], Plans(right), right,
+          leaf_[right], width_of_[right]);
+  return a;
+}
+
+ClusterPolicy::Acc ClusterPolicy::OfferLeafRight(Acc a, Slot left, RelationId right) const {
+  Combine(*a.out, a.card, Plans(left), left, leaf_[left], width_of_[left], leaves_[right.value],
+          kNoSlot, true, query_.relation(right).row_bytes);
+  return a;
+}
+
+void ClusterPolicy::Store(Slot s, std::span<const ClusterEntry> plans) {
+  largest_ = std::max(largest_, plans.size());
+  entries_ += plans.size();
+  if (entries_ > max_entries_) exhausted_ = true;
+  first_[s] = arena_.size();
+  size_[s] = exhausted_ ? 0 : static_cast<uint32_t>(plans.size());
+  if (!exhausted_) arena_.insert(arena_.end(), plans.begin(), plans.end());
+}
+
+void ClusterPolicy::Store(Slot s, const LevelFrontier& plans) {
+  const size_t count = plans.size();
+  largest_ = std::max(largest_, count);
+  entries_ += count;
+  if (entries_ > max_entries_) exhausted_ = true;
+  first_[s] = arena_.size();
+  size_[s] = exhausted_ ? 0 : static_cast<uint32_t>(count);
+  if (!exhausted_) plans.AppendTo(arena_);
+}
+
+void ClusterPolicy::Finish(Slot s, RelSet, const Acc& a) { Store(s, *a.out); }
+
+void ClusterPolicy::Grown(Slot s, size_t before) {
+  entries_ = entries_ + per_set_[s].size() - before;
+  largest_ = std::max(largest_, per_set_[s].size());
+  if (entries_ > max_entries_) {
+    exhausted_ = true;
+    per_set_[s].clear();
+  }
+}
+
+void ClusterPolicy::Relax(Slot s, Slot left, Slot right) {
+  const size_t before = per_set_[s].size();
+  FlatFrontier out(per_set_[s]);
+  Combine(out, card_of_[s], Plans(left), left, leaf_[left], width_of_[left], Plans(right), right,
+          leaf_[right], width_of_[right]);
+  Grown(s, before);
+}
+
+void ClusterPolicy::RelaxLeafRight(Slot s, Slot left, RelationId right) {
+  const size_t before = per_set_[s].size();
+  FlatFrontier out(per_set_[s]);
+  Combine(out, card_of_[s], Plans(left), left, leaf_[left], width_of_[left], leaves_[right.value],
+          kNoSlot, true, query_.relation(right).row_bytes);
+  Grown(s, before);
+}
+
+}  // namespace sliceplan

@@ -1,0 +1,74 @@
+// Left-deep enumeration over connected sets only: a plan of S grows by one
+// base relation x at a time, and only when a predicate links x to S (a
+// predicate containing x that lies inside S u {x}). Sets are visited by size,
+// so every prefix is final before it is extended. A slice keeps the steps
+// whose result is admissible (prefixes are admissible by construction).
+#ifndef SLICEPLAN_CORE_SEARCH_CONNECTED_LEFT_DEEP_H_
+#define SLICEPLAN_CORE_SEARCH_CONNECTED_LEFT_DEEP_H_
+
+#include <vector>
+
+#include "absl/status/status.h"
+#include "absl/strings/str_cat.h"
+#include "core/graph/join_graph.h"
+#include "core/memo/connected_memo.h"
+#include "core/model/cardinality.h"
+#include "core/search/search_control.h"
+#include "core/search/search_policy.h"
+#include "core/search/search_stats.h"
+#include "core/slicing/slice_constraints.h"
+
+namespace sliceplan {
+
+// Runs the connected left-deep DP into `policy` and `memo` (both empty).
+// Errors as ConnectedPush::Run.
+template <SearchPolicy Policy, class Memo>
+absl::Status RunConnectedLeftDeep(int n, const JoinGraph& graph, const Cardinality& card,
+                                  const SliceConstraints& constraints, Policy& policy, Memo& memo,
+                                  SearchControl& control, SearchStats& stats) {
+  std::vector<RelSet> level;
+  const auto add = [&](RelSet s, Slot& slot) {
+    auto found = AddConnectedSet(memo, policy, s);
+    if (found.ok()) slot = *found;
+    return found.status();
+  };
+  for (int v = 0; v < n; ++v) {
+    const RelationId r{static_cast<uint8_t>(v)};
+    if (!constraints.Admissible(Singleton(r))) continue;
+    Slot slot = kNoSlot;
+    if (auto st = add(Singleton(r), slot); !st.ok()) return st;
+    policy.InitLeaf(slot, r);
+    level.push_back(Singleton(r));
+  }
+  for (int size = 1; size < n && !level.empty(); ++size) {
+    std::vector<RelSet> next;
+    for (RelSet prefix : level) {
+      const Slot from = *memo.Find(prefix);
+      uint64_t work = 0;
+      absl::Status status;
+      ForEachMember(graph.Around(prefix), [&](RelationId x) {
+        const RelSet grown = prefix | Singleton(x);
+        if (!status.ok() || !constraints.Admissible(grown) ||
+            !card.Connects(prefix, Singleton(x))) {
+          return;
+        }
+        const size_t before = memo.size();
+        Slot to = kNoSlot;
+        status = add(grown, to);
+        if (!status.ok()) return;
+        if (memo.size() > before) next.push_back(grown);
+        policy.RelaxLeafRight(to, from, x);
+        ++work;
+      });
+      if (!status.ok()) return status;
+      stats.splits += work;
+      if (control.Tick(work + 1)) return control.status();
+    }
+    level = std::move(next);
+  }
+  return absl::OkStatus();
+}
+
+}  // namespace sliceplan
+
+#endif  // SLICEPLAN_CORE_SEARCH_CONNECTED_LEFT_DEEP_H_
