@@ -3,10 +3,12 @@
 #include <charconv>
 #include <cmath>
 #include <cstdlib>
+#include <functional>
+#include <utility>
 
-#include "absl/functional/function_ref.h"
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_split.h"
+#include "cli/command_table.h"
 #include "core/cost/pareto.h"
 #include "core/cost/plan_choice.h"
 #include "core/model/search_tier.h"
@@ -51,37 +53,6 @@ absl::StatusOr<int> ParseCount(const std::string& flag, const std::string& value
   return static_cast<int>(n);
 }
 
-// The connection flags shared by `optimize --coordinator` and `workers`.
-// REQUIRES: flag is one of tls-ca, tls-cert, tls-key, token-file.
-void SetConnectionFlag(const std::string& flag, const std::string& value, TlsFiles& tls,
-                       std::string& token_file) {
-  if (flag == "tls-ca") tls.ca = value;
-  if (flag == "tls-cert") tls.cert = value;
-  if (flag == "tls-key") tls.key = value;
-  if (flag == "token-file") token_file = value;
-}
-
-// The flags that shape the searched space, shared by optimize and capacity.
-// REQUIRES: flag is shape, cross-products or memo-limit.
-absl::Status SetSearchSpaceFlag(SearchOptions& search, const std::string& flag,
-                                const std::string& value) {
-  if (flag == "shape") {
-    if (value == "bushy")
-      search.shape = PlanShape::kBushy;
-    else if (value == "left-deep")
-      search.shape = PlanShape::kLeftDeep;
-    else
-      return BadFlag(flag, value, "bushy or left-deep");
-  } else if (flag == "cross-products") {
-    ASSIGN_OR_RETURN(search.cross_products, ParseBool(flag, value));
-  } else {
-    auto bytes = ParseBytes(value);
-    if (!bytes.ok()) return BadFlag(flag, value, "bytes, e.g. 512MiB or 8GiB");
-    search.memo_limit_bytes = *bytes;
-  }
-  return absl::OkStatus();
-}
-
 // A positive finite number of seconds (rates, deadlines).
 absl::StatusOr<double> ParsePositiveSeconds(const std::string& flag, const std::string& value,
                                             double most) {
@@ -92,157 +63,300 @@ absl::StatusOr<double> ParsePositiveSeconds(const std::string& flag, const std::
   return *d;
 }
 
-absl::Status SetCapacityFlag(CapacityConfig& config, const std::string& flag,
-                             const std::string& value) {
-  if (flag == "shape" || flag == "cross-products" || flag == "memo-limit") {
-    return SetSearchSpaceFlag(config.search, flag, value);
-  } else if (flag == "deadline-seconds") {
-    ASSIGN_OR_RETURN(config.deadline_seconds, ParsePositiveSeconds(flag, value, 1e6));
-  } else if (flag == "threads-per-worker") {
-    ASSIGN_OR_RETURN(config.threads_per_worker, ParseCount(flag, value, kMaxSearchThreads));
-  } else if (flag == "coordinator") {
-    if (value.empty()) return BadFlag(flag, value, "HOST:PORT");
-    config.coordinator = value;
-  } else if (flag == "tls-ca" || flag == "tls-cert" || flag == "tls-key" || flag == "token-file") {
-    if (value.empty()) return BadFlag(flag, value, "a file name");
-    SetConnectionFlag(flag, value, config.tls, config.token_file);
-  } else if (flag == "format") {
-    if (value == "text")
-      config.json = false;
-    else if (value == "json")
-      config.json = true;
-    else
-      return BadFlag(flag, value, "text or json");
-  } else if (flag == "plot") {
-    if (value.empty()) return BadFlag(flag, value, "a file name");
-    config.plot_path = value;
-  } else if (flag == "seconds-per-split") {
-    ASSIGN_OR_RETURN(const double r, ParsePositiveSeconds(flag, value, 1));
-    config.rates.dense_split_seconds = r;
-    config.split_rate_given = true;
-  } else if (flag == "seconds-per-connected-set") {
-    ASSIGN_OR_RETURN(const double r, ParsePositiveSeconds(flag, value, 1));
-    config.rates.connected_set_seconds = r;
-    config.set_rate_given = true;
-  } else {
-    return absl::InvalidArgumentError(absl::StrCat("--", flag, ": unknown flag"));
-  }
-  return absl::OkStatus();
+// A non-empty value stored as is (file names, addresses).
+std::function<absl::Status(const std::string&)> Text(const std::string& flag, std::string& out,
+                                                     const std::string& expected) {
+  return [&out, flag, expected](const std::string& value) {
+    if (value.empty()) return BadFlag(flag, value, expected);
+    out = value;
+    return absl::OkStatus();
+  };
 }
 
-absl::Status SetFlag(OptimizeConfig& config, const std::string& flag, const std::string& value) {
-  if (flag == "shape" || flag == "cross-products" || flag == "memo-limit") {
-    return SetSearchSpaceFlag(config.search, flag, value);
-  } else if (flag == "cost") {
-    if (value == "cout")
-      config.search.cost = CostModelKind::kCout;
-    else if (value == "cluster")
-      config.search.cost = CostModelKind::kCluster;
-    else
-      return BadFlag(flag, value, "cout or cluster");
-  } else if (flag == "objectives") {
-    auto o = ParseObjectives(value);
-    if (!o.ok()) return o.status();
-    config.search.cluster.objectives = *o;
-  } else if (flag == "alpha") {
-    ASSIGN_OR_RETURN(config.search.cluster.alpha, ParseDouble(flag, value));
-  } else if (flag == "node-counts") {
-    std::vector<int> counts;
-    for (absl::string_view part : absl::StrSplit(value, ',')) {
-      ASSIGN_OR_RETURN(const uint64_t m, ParseUnsigned(flag, std::string(part)));
-      counts.push_back(static_cast<int>(std::min<uint64_t>(m, 1u << 30)));
-    }
-    config.search.cluster.params.node_counts = counts;
-  } else if (flag == "sample-rates") {
-    std::vector<double> rates;
-    for (absl::string_view part : absl::StrSplit(value, ',')) {
-      ASSIGN_OR_RETURN(const double f, ParseDouble(flag, std::string(part)));
-      rates.push_back(f);
-    }
-    config.search.cluster.params.sample_rates = rates;
-  } else if (flag == "net-bytes-per-s") {
-    ASSIGN_OR_RETURN(config.search.cluster.params.net_bytes_per_s, ParseDouble(flag, value));
-  } else if (flag == "cpu-rows-per-s") {
-    ASSIGN_OR_RETURN(config.search.cluster.params.cpu_rows_per_s, ParseDouble(flag, value));
-  } else if (flag == "scan-bytes-per-s") {
-    ASSIGN_OR_RETURN(config.search.cluster.params.scan_bytes_per_s, ParseDouble(flag, value));
-  } else if (flag == "stage-startup-s") {
-    ASSIGN_OR_RETURN(config.search.cluster.params.stage_startup_s, ParseDouble(flag, value));
-  } else if (flag == "bound") {
-    ASSIGN_OR_RETURN(const Bound b, ParseBound(value));
-    config.search.cluster.choice.bounds.push_back(b);
-  } else if (flag == "prefer") {
-    ASSIGN_OR_RETURN(config.search.cluster.choice.prefer, ParsePreference(value));
-  } else if (flag == "plot") {
-    if (value.empty()) return BadFlag(flag, value, "a file name");
-    config.plot_path = value;
-  } else if (flag == "slices") {
-    // Checked with the query, by ValidateSlice (cli/main.cc).
-    ASSIGN_OR_RETURN(const uint64_t p, ParseUnsigned(flag, value));
-    if (p > (uint64_t{1} << 31)) return BadFlag(flag, value, "at most 2^31 slices");
-    config.slices = static_cast<uint32_t>(p);
-  } else if (flag == "workers") {
-    ASSIGN_OR_RETURN(config.workers, ParseCount(flag, value, 1024));
-  } else if (flag == "threads-per-worker") {
-    ASSIGN_OR_RETURN(config.threads_per_worker, ParseCount(flag, value, kMaxSearchThreads));
-  } else if (flag == "coordinator") {
-    if (value.empty()) return BadFlag(flag, value, "HOST:PORT");
-    config.coordinator = value;
-  } else if (flag == "format") {
-    if (value == "text")
-      config.format = OutputFormat::kText;
-    else if (value == "json")
-      config.format = OutputFormat::kJson;
-    else if (value == "dot")
-      config.format = OutputFormat::kDot;
-    else
-      return BadFlag(flag, value, "text, json or dot");
-  } else if (flag == "deadline-seconds") {
-    const auto d = ParseDouble(flag, value);
-    if (!d.ok() || !(*d > 0)) return BadFlag(flag, value, "a number of seconds > 0");
-    config.deadline_seconds = *d;
-  } else if (flag == "tier") {
-    const auto tier = ParseTier(value);
-    if (!tier) return BadFlag(flag, value, "auto, exact, idp, linear or greedy");
-    config.tier = *tier;
-  } else if (flag == "budget-seconds") {
-    ASSIGN_OR_RETURN(config.budget_seconds, ParsePositiveSeconds(flag, value, 3600));
-  } else if (flag == "partial-on-deadline") {
-    ASSIGN_OR_RETURN(config.partial_on_deadline, ParseBool(flag, value));
-  } else if (flag == "tls-ca" || flag == "tls-cert" || flag == "tls-key" || flag == "token-file") {
-    if (value.empty()) return BadFlag(flag, value, "a file name");
-    SetConnectionFlag(flag, value, config.tls, config.token_file);
-  } else {
-    return absl::InvalidArgumentError(absl::StrCat("--", flag, ": unknown flag"));
-  }
-  return absl::OkStatus();
+std::function<absl::Status(const std::string&)> OptionalText(const std::string& flag,
+                                                             std::optional<std::string>& out,
+                                                             const std::string& expected) {
+  return [&out, flag, expected](const std::string& value) {
+    if (value.empty()) return BadFlag(flag, value, expected);
+    out = value;
+    return absl::OkStatus();
+  };
 }
 
-// The arguments of a command over one query file: the file, --flag=VALUE
-// pairs handed to `set_flag`, and bare flags `bare_flag` takes (it returns
-// true when it took one).
-absl::Status ParseQueryAndFlags(
-    const std::vector<std::string>& args, std::string& query_path,
-    absl::FunctionRef<absl::Status(const std::string&, const std::string&)> set_flag,
-    absl::FunctionRef<bool(const std::string&)> bare_flag) {
-  for (const std::string& arg : args) {
-    if (bare_flag(arg)) continue;
-    if (arg.rfind("--", 0) != 0) {
-      if (!query_path.empty()) {
-        return absl::InvalidArgumentError(
-            absl::StrCat("QUERY.json: a second query file \"", arg, "\" was given"));
+// One of a few words, each mapped to a value.
+template <class T>
+std::function<absl::Status(const std::string&)> OneOf(const std::string& flag, T& out,
+                                                      std::vector<std::pair<std::string, T>> words,
+                                                      const std::string& expected) {
+  return [&out, flag, words, expected](const std::string& value) {
+    for (const auto& [word, v] : words) {
+      if (value == word) {
+        out = v;
+        return absl::OkStatus();
       }
-      query_path = arg;
-      continue;
     }
-    const size_t eq = arg.find('=');
-    if (eq == std::string::npos) {
-      return absl::InvalidArgumentError(
-          absl::StrCat(arg, ": flags take a value, as in ", arg, "=VALUE"));
-    }
-    RETURN_IF_ERROR(set_flag(arg.substr(2, eq - 2), arg.substr(eq + 1)));
+    return BadFlag(flag, value, expected);
+  };
+}
+
+std::function<absl::Status(const std::string&)> Number(const std::string& flag, double& out) {
+  return [&out, flag](const std::string& value) {
+    ASSIGN_OR_RETURN(out, ParseDouble(flag, value));
+    return absl::OkStatus();
+  };
+}
+
+// The rows that shape the searched space, shared by optimize and capacity.
+std::vector<FlagRow> SearchSpaceRows(SearchOptions& search) {
+  return {
+      {"shape", "bushy|left-deep", "bushy", "plan shape",
+       OneOf<PlanShape>("shape", search.shape,
+                        {{"bushy", PlanShape::kBushy}, {"left-deep", PlanShape::kLeftDeep}},
+                        "bushy or left-deep")},
+      {"cross-products", "true|false", "true", "allow cross products",
+       [&search](const std::string& v) {
+         ASSIGN_OR_RETURN(search.cross_products, ParseBool("cross-products", v));
+         return absl::OkStatus();
+       }},
+      {"memo-limit", "BYTES", "8GiB", "per-slice memo limit, e.g. 512MiB",
+       [&search](const std::string& v) {
+         auto bytes = ParseBytes(v);
+         if (!bytes.ok()) return BadFlag("memo-limit", v, "bytes, e.g. 512MiB or 8GiB");
+         search.memo_limit_bytes = *bytes;
+         return absl::OkStatus();
+       }},
+  };
+}
+
+// --tls-ca, --tls-cert, --tls-key, --token-file: with --coordinator.
+std::vector<FlagRow> ConnectionRows(TlsFiles& tls, std::string& token_file) {
+  return {
+      {"tls-ca", "FILE", "", "with --coordinator: verify it against this CA (TLS)",
+       Text("tls-ca", tls.ca, "a file name")},
+      {"tls-cert", "FILE", "", "with --coordinator: present this certificate (with --tls-key)",
+       Text("tls-cert", tls.cert, "a file name")},
+      {"tls-key", "FILE", "", "with --coordinator: the certificate's private key",
+       Text("tls-key", tls.key, "a file name")},
+      {"token-file", "FILE", "", "with --coordinator: send its first bearer token",
+       Text("token-file", token_file, "a file name")},
+  };
+}
+
+void Append(std::vector<FlagRow>& rows, std::vector<FlagRow> more) {
+  for (FlagRow& row : more) rows.push_back(std::move(row));
+}
+
+// The cluster model's rows (--cost=cluster).
+std::vector<FlagRow> ClusterRows(ClusterSearchConfig& cluster) {
+  ClusterParams& params = cluster.params;
+  return {
+      {"objectives", "LIST", "latency_s,node_seconds,completeness",
+       "the metrics the Pareto set trades",
+       [&cluster](const std::string& v) {
+         ASSIGN_OR_RETURN(cluster.objectives, ParseObjectives(v));
+         return absl::OkStatus();
+       }},
+      {"alpha", "A", "1", "precision, >= 1 (1: the exact Pareto set)",
+       Number("alpha", cluster.alpha)},
+      {"node-counts", "N,N,...", "4,16,64", "node counts a join stage may rent",
+       [&params](const std::string& v) {
+         std::vector<int> counts;
+         for (absl::string_view part : absl::StrSplit(v, ',')) {
+           ASSIGN_OR_RETURN(const uint64_t m, ParseUnsigned("node-counts", std::string(part)));
+           counts.push_back(static_cast<int>(std::min<uint64_t>(m, 1u << 30)));
+         }
+         params.node_counts = counts;
+         return absl::OkStatus();
+       }},
+      {"sample-rates", "F,F,...", "1", "leaf sample rates, e.g. 1,0.1,0.01",
+       [&params](const std::string& v) {
+         std::vector<double> rates;
+         for (absl::string_view part : absl::StrSplit(v, ',')) {
+           ASSIGN_OR_RETURN(const double f, ParseDouble("sample-rates", std::string(part)));
+           rates.push_back(f);
+         }
+         params.sample_rates = rates;
+         return absl::OkStatus();
+       }},
+      {"net-bytes-per-s", "B", "1.25e9", "network throughput per node",
+       Number("net-bytes-per-s", params.net_bytes_per_s)},
+      {"cpu-rows-per-s", "R", "5e7", "join throughput per node",
+       Number("cpu-rows-per-s", params.cpu_rows_per_s)},
+      {"scan-bytes-per-s", "B", "5e8", "scan throughput per node",
+       Number("scan-bytes-per-s", params.scan_bytes_per_s)},
+      {"stage-startup-s", "S", "0.5", "start-up time of a join stage",
+       Number("stage-startup-s", params.stage_startup_s)},
+      {"bound", "METRIC<=V|METRIC>=V", "",
+       "a bound the named plan must meet, repeatable, e.g. completeness>=0.99",
+       [&cluster](const std::string& v) {
+         ASSIGN_OR_RETURN(const Bound b, ParseBound(v));
+         cluster.choice.bounds.push_back(b);
+         return absl::OkStatus();
+       }},
+      {"prefer", "METRIC|weights:M=W,...", "latency_s", "which Pareto plan the answer names",
+       [&cluster](const std::string& v) {
+         ASSIGN_OR_RETURN(cluster.choice.prefer, ParsePreference(v));
+         return absl::OkStatus();
+       }},
+  };
+}
+
+// optimize's rows on how and where the search runs.
+std::vector<FlagRow> RunRows(OptimizeConfig& config) {
+  return {
+      {"slices", "P", "chosen from the query and the worker count", "slice count, a power of two",
+       [&config](const std::string& v) {
+         // Checked with the query, by ValidateSlice (cli/main.cc).
+         ASSIGN_OR_RETURN(const uint64_t p, ParseUnsigned("slices", v));
+         if (p > (uint64_t{1} << 31)) return BadFlag("slices", v, "at most 2^31 slices");
+         config.slices = static_cast<uint32_t>(p);
+         return absl::OkStatus();
+       }},
+      {"workers", "N", "the cores", "in-process workers",
+       [&config](const std::string& v) {
+         ASSIGN_OR_RETURN(config.workers, ParseCount("workers", v, 1024));
+         return absl::OkStatus();
+       }},
+      {"threads-per-worker", "T", "the cores over the workers",
+       "threads solving one slice together in each in-process worker",
+       [&config](const std::string& v) {
+         ASSIGN_OR_RETURN(config.threads_per_worker,
+                          ParseCount("threads-per-worker", v, kMaxSearchThreads));
+         return absl::OkStatus();
+       }},
+      {"coordinator", "HOST:PORT", "", "solve on a running coordinator",
+       OptionalText("coordinator", config.coordinator, "HOST:PORT")},
+      {"format", "text|json|dot", "text", "output",
+       OneOf<OutputFormat>("format", config.format,
+                           {{"text", OutputFormat::kText},
+                            {"json", OutputFormat::kJson},
+                            {"dot", OutputFormat::kDot}},
+                           "text, json or dot")},
+      {"tier", "auto|exact|idp|linear|greedy", "auto",
+       "how to search: auto takes the exact search when it fits the time on this pool, else "
+       "idp from the best of greedy and linear",
+       [&config](const std::string& v) {
+         const auto tier = ParseTier(v);
+         if (!tier) return BadFlag("tier", v, "auto, exact, idp, linear or greedy");
+         config.tier = *tier;
+         return absl::OkStatus();
+       }},
+      {"budget-seconds", "S", "10", "the time auto and idp plan for without a deadline",
+       [&config](const std::string& v) {
+         ASSIGN_OR_RETURN(config.budget_seconds, ParsePositiveSeconds("budget-seconds", v, 3600));
+         return absl::OkStatus();
+       }},
+      {"deadline-seconds", "S", "",
+       "answer within S seconds: auto and idp return the best plan found by then",
+       [&config](const std::string& v) {
+         const auto d = ParseDouble("deadline-seconds", v);
+         if (!d.ok() || !(*d > 0)) return BadFlag("deadline-seconds", v, "a number of seconds > 0");
+         config.deadline_seconds = *d;
+         return absl::OkStatus();
+       }},
+      {"partial-on-deadline", "true|false", "false",
+       "--tier=exact or the cluster model: at the deadline, print the best plan so far (marked "
+       "not proven optimal) instead of failing",
+       [&config](const std::string& v) {
+         ASSIGN_OR_RETURN(config.partial_on_deadline, ParseBool("partial-on-deadline", v));
+         return absl::OkStatus();
+       }},
+      {"plot", "FILE.svg", "", "--cost=cluster: latency against node-seconds, one point a plan",
+       Text("plot", config.plot_path, "a file name")},
+      {"quiet", "", "", "no progress bar on stderr",
+       [&config](const std::string&) {
+         config.quiet = true;
+         return absl::OkStatus();
+       }},
+  };
+}
+
+CommandTable OptimizeTable(OptimizeConfig& config) {
+  CommandTable table{"optimize",
+                     "Finds the optimal join order of QUERY.json by solving slices of the plan "
+                     "space on workers and merging their optima.",
+                     "QUERY.json",
+                     "query file",
+                     [&config](const std::string& path) { config.query_path = path; },
+                     SearchSpaceRows(config.search)};
+  Append(
+      table.flags,
+      {{"cost", "cout|cluster", "cout",
+        "cost model; cluster returns the Pareto set of latency, node-seconds and completeness",
+        OneOf<CostModelKind>("cost", config.search.cost,
+                             {{"cout", CostModelKind::kCout}, {"cluster", CostModelKind::kCluster}},
+                             "cout or cluster")}});
+  Append(table.flags, RunRows(config));
+  Append(table.flags, ClusterRows(config.search.cluster));
+  Append(table.flags, ConnectionRows(config.tls, config.token_file));
+  return table;
+}
+
+CommandTable CapacityTable(CapacityConfig& config) {
+  CommandTable table{"capacity",
+                     "Predicts the exact search's wall time on pools of 1, 2, 4, ... 1,024 "
+                     "workers and marks the smallest that meets the deadline.",
+                     "QUERY.json",
+                     "query file",
+                     [&config](const std::string& path) { config.query_path = path; },
+                     SearchSpaceRows(config.search)};
+  MachineRates& rates = config.rates;
+  Append(table.flags,
+         {{"deadline-seconds", "S", "", "the time to plan for (required)",
+           [&config](const std::string& v) {
+             ASSIGN_OR_RETURN(config.deadline_seconds,
+                              ParsePositiveSeconds("deadline-seconds", v, 1e6));
+             return absl::OkStatus();
+           }},
+          {"threads-per-worker", "T", "1; with --coordinator, the pool's",
+           "threads solving one slice together in each worker",
+           [&config](const std::string& v) {
+             ASSIGN_OR_RETURN(config.threads_per_worker,
+                              ParseCount("threads-per-worker", v, kMaxSearchThreads));
+             return absl::OkStatus();
+           }},
+          {"coordinator", "HOST:PORT", "",
+           "the table from a running coordinator: its pool's threads and rates",
+           OptionalText("coordinator", config.coordinator, "HOST:PORT")},
+          {"format", "text|json", "text", "output",
+           OneOf<bool>("format", config.json, {{"text", false}, {"json", true}}, "text or json")},
+          {"plot", "FILE.svg", "", "predicted seconds against workers, log-log",
+           Text("plot", config.plot_path, "a file name")},
+          {"seconds-per-split", "S", "measured here in under a second", "the dense kernel's rate",
+           [&config, &rates](const std::string& v) {
+             ASSIGN_OR_RETURN(rates.dense_split_seconds,
+                              ParsePositiveSeconds("seconds-per-split", v, 1));
+             config.split_rate_given = true;
+             return absl::OkStatus();
+           }},
+          {"seconds-per-connected-set", "S", "measured here in under a second",
+           "the connected-only search's rate", [&config, &rates](const std::string& v) {
+             ASSIGN_OR_RETURN(rates.connected_set_seconds,
+                              ParsePositiveSeconds("seconds-per-connected-set", v, 1));
+             config.set_rate_given = true;
+             return absl::OkStatus();
+           }}});
+  Append(table.flags, ConnectionRows(config.tls, config.token_file));
+  return table;
+}
+
+CommandTable WorkersTable(WorkersConfig& config) {
+  CommandTable table{"workers",
+                     "Lists the coordinator's worker pool and its health.",
+                     "",
+                     "",
+                     {},
+                     {{"coordinator", "HOST:PORT", "", "the coordinator to ask (required)",
+                       Text("coordinator", config.coordinator, "HOST:PORT")}}};
+  Append(table.flags, ConnectionRows(config.tls, config.token_file));
+  return table;
+}
+
+absl::Status NeedCoordinator(const TlsFiles& tls, const std::string& token_file, bool coordinator) {
+  if ((tls.any() || !token_file.empty()) && !coordinator) {
+    return absl::InvalidArgumentError(
+        "--tls-ca, --tls-cert, --tls-key and --token-file: need --coordinator");
   }
-  if (query_path.empty()) return absl::InvalidArgumentError("QUERY.json: no query file given");
   return absl::OkStatus();
 }
 
@@ -267,139 +381,54 @@ absl::StatusOr<uint64_t> ParseBytes(const std::string& text) {
 absl::StatusOr<OptimizeConfig> ParseOptimizeArgs(const std::vector<std::string>& args, int cores) {
   OptimizeConfig config;
   config.workers = cores;
-  RETURN_IF_ERROR(ParseQueryAndFlags(
-      args, config.query_path,
-      [&](const std::string& flag, const std::string& value) {
-        return SetFlag(config, flag, value);
-      },
-      [&](const std::string& arg) {
-        if (arg != "--quiet") return false;
-        config.quiet = true;
-        return true;
-      }));
+  RETURN_IF_ERROR(ParseCommand(OptimizeTable(config), args));
   if (config.threads_per_worker && config.coordinator) {
     return absl::InvalidArgumentError(
         "--threads-per-worker: in-process workers only (a worker's --threads sets its own)");
   }
   config.search.threads = config.threads_per_worker.value_or(std::max(1, cores / config.workers));
-  if ((config.tls.any() || !config.token_file.empty()) && !config.coordinator) {
-    return absl::InvalidArgumentError(
-        "--tls-ca, --tls-cert, --tls-key and --token-file: need --coordinator");
-  }
+  RETURN_IF_ERROR(NeedCoordinator(config.tls, config.token_file, config.coordinator.has_value()));
   return config;
 }
 
 absl::StatusOr<CapacityConfig> ParseCapacityArgs(const std::vector<std::string>& args) {
   CapacityConfig config;
-  RETURN_IF_ERROR(ParseQueryAndFlags(
-      args, config.query_path,
-      [&](const std::string& flag, const std::string& value) {
-        return SetCapacityFlag(config, flag, value);
-      },
-      [](const std::string&) { return false; }));
+  RETURN_IF_ERROR(ParseCommand(CapacityTable(config), args));
   if (!(config.deadline_seconds > 0)) {
     return absl::InvalidArgumentError("--deadline-seconds=S: missing (the time to plan for)");
   }
-  if ((config.tls.any() || !config.token_file.empty()) && !config.coordinator) {
-    return absl::InvalidArgumentError(
-        "--tls-ca, --tls-cert, --tls-key and --token-file: need --coordinator");
-  }
+  RETURN_IF_ERROR(NeedCoordinator(config.tls, config.token_file, config.coordinator.has_value()));
   return config;
 }
 
 absl::StatusOr<WorkersConfig> ParseWorkersArgs(const std::vector<std::string>& args) {
   WorkersConfig config;
-  for (const std::string& arg : args) {
-    const size_t eq = arg.find('=');
-    const std::string flag =
-        arg.rfind("--", 0) == 0 && eq != std::string::npos ? arg.substr(2, eq - 2) : std::string();
-    const std::string value = eq == std::string::npos ? "" : arg.substr(eq + 1);
-    if (flag == "coordinator" && !value.empty()) {
-      config.coordinator = value;
-    } else if ((flag == "tls-ca" || flag == "tls-cert" || flag == "tls-key" ||
-                flag == "token-file") &&
-               !value.empty()) {
-      SetConnectionFlag(flag, value, config.tls, config.token_file);
-    } else {
-      return absl::InvalidArgumentError(absl::StrCat(arg, ": unknown argument"));
-    }
-  }
+  RETURN_IF_ERROR(ParseCommand(WorkersTable(config), args));
   if (config.coordinator.empty()) {
     return absl::InvalidArgumentError("--coordinator=HOST:PORT: missing");
   }
   return config;
 }
 
+std::string CommandUsage(const std::string& command) {
+  OptimizeConfig optimize;
+  CapacityConfig capacity;
+  WorkersConfig workers;
+  if (command == "optimize") return CommandHelp(OptimizeTable(optimize));
+  if (command == "capacity") return CommandHelp(CapacityTable(capacity));
+  if (command == "workers") return CommandHelp(WorkersTable(workers));
+  return "";
+}
+
 std::string Usage() {
-  return R"(usage: sliceplan optimize QUERY.json [flags]
-
-Finds the optimal join order of QUERY.json by solving slices of the plan
-space on workers and merging their optima.
-
-  --shape=bushy|left-deep        plan shape (default bushy)
-  --cross-products=true|false    allow cross products (default true)
-  --cost=cout|cluster            cost model (default cout)
-  --slices=P                     slice count, a power of two (default: chosen
-                                 from the query and the worker count)
-  --workers=N                    in-process workers (default: the cores)
-  --threads-per-worker=T         threads solving one slice together in each
-                                 in-process worker (default: the cores over
-                                 the workers)
-  --coordinator=HOST:PORT        solve on a running coordinator
-  --format=text|json|dot         output (default text)
-  --tier=auto|exact|idp|linear|greedy
-                                 how to search (default auto: exact when it
-                                 fits the time on this pool, else idp from the
-                                 best of greedy and linear; any query size)
-  --budget-seconds=S             the time auto and idp plan for without a
-                                 deadline (default 10)
-  --memo-limit=BYTES             per-slice memo limit (default 8GiB)
-
-The cluster model (--cost=cluster) returns the Pareto set of plans:
-  --objectives=LIST              of latency_s,node_seconds,completeness (all)
-  --alpha=A                      precision, >= 1 (1: exact frontier)
-  --node-counts=4,16,64          node counts a join stage may rent
-  --sample-rates=1               leaf sample rates (e.g. 1,0.1,0.01)
-  --net-bytes-per-s=1.25e9 --cpu-rows-per-s=5e7 --scan-bytes-per-s=5e8
-  --stage-startup-s=0.5          per-node throughputs and stage start-up
-  --bound=METRIC<=V|>=V          repeatable, e.g. --bound=completeness>=0.99
-  --prefer=METRIC|weights:M=W,.. which frontier plan to name (latency_s)
-  --plot=FILE.svg                latency against node-seconds, one point a plan
-  --tls-ca=FILE                  with --coordinator: verify it against this CA (TLS)
-  --tls-cert=FILE --tls-key=FILE with --coordinator: present this certificate
-  --token-file=FILE              with --coordinator: send its first bearer token
-  --deadline-seconds=S           answer within S seconds: auto and idp return
-                                 the best plan found by then
-  --partial-on-deadline=true     --tier=exact or the cluster model: at the
-                                 deadline, print the best plan so far (marked
-                                 not proven optimal) instead of failing
-  --quiet                        no progress bar on stderr
-
-usage: sliceplan capacity QUERY.json --deadline-seconds=S [flags]
-
-Predicts the exact search's wall time on pools of 1, 2, 4, ... 1,024
-workers and marks the smallest that meets the deadline.
-
-  --shape, --cross-products, --memo-limit   as for optimize
-  --threads-per-worker=T         threads solving one slice together in each
-                                 worker (default 1; with --coordinator, the
-                                 pool's)
-  --coordinator=HOST:PORT        the table from a running coordinator: its
-                                 pool's threads, its rates (with --tls-ca,
-                                 --tls-cert, --tls-key, --token-file)
-  --format=text|json             output (default text)
-  --plot=FILE.svg                predicted seconds against workers, log-log
-  --seconds-per-split=S          the dense kernel's rate (default: measured
-                                 here in under a second)
-  --seconds-per-connected-set=S  the connected-only search's rate (same)
-
-usage: sliceplan workers --coordinator=HOST:PORT [--tls-ca=FILE [--tls-cert=FILE --tls-key=FILE]]
-                         [--token-file=FILE]
-
-Lists the coordinator's worker pool and its health.
-
-Exit status: 0 success, 2 bad input, 1 any other failure.
-)";
+  return absl::StrCat(
+      "usage: sliceplan COMMAND [ARGS] (sliceplan COMMAND --help for one command)\n\n",
+      "Finds optimal join orders of large queries by slicing the plan space over workers.\n\n",
+      "commands:\n", "  optimize QUERY.json [flags]                  the best plan of a query\n",
+      "  capacity QUERY.json --deadline-seconds=S     the pool a deadline needs\n",
+      "  workers --coordinator=HOST:PORT              a coordinator's worker pool\n\n",
+      CommandUsage("optimize"), "\n", CommandUsage("capacity"), "\n", CommandUsage("workers"),
+      "\nExit status: 0 success, 2 bad input, 1 any other failure.\n");
 }
 
 }  // namespace sliceplan::cli

@@ -1,5 +1,6 @@
-// The command line of `sliceplan optimize`, parsed into a config struct (the
-// only place flags exist; the library takes the struct).
+// The command lines of `sliceplan` (optimize, capacity, workers), parsed into
+// config structs from one flag table per command (cli/command_table.h): the
+// only place flags exist; the library takes the structs.
 #ifndef SLICEPLAN_CLI_CLI_CONFIG_H_
 #define SLICEPLAN_CLI_CLI_CONFIG_H_
 
@@ -77,8 +78,11 @@ absl::StatusOr<OptimizeConfig> ParseOptimizeArgs(const std::vector<std::string>&
 // Parses a byte count: a number with an optional KiB, MiB or GiB suffix.
 absl::StatusOr<uint64_t> ParseBytes(const std::string& text);
 
-// The usage text of `sliceplan`.
+// The usage text of `sliceplan`: the commands, then each one's help.
 std::string Usage();
+// One command's help ("optimize", "capacity", "workers"); empty for
+// another name.
+std::string CommandUsage(const std::string& command);
 
 }  // namespace sliceplan::cli
 

@@ -17,9 +17,9 @@
 #include "cli/rpc_client.h"
 #include "core/capacity/capacity_table.h"
 #include "core/model/input_limits.h"
-#include "core/slice_planner.h"
 #include "core/model/status_macros.h"
 #include "core/model/wide_query.h"
+#include "core/slice_planner.h"
 #include "schedule/embedded_pool.h"
 #include "tiers/join_forest.h"
 #include "wire/query_proto.h"
@@ -212,8 +212,9 @@ int main(int argc, char** argv) {
   const std::string command = args[0];
   args.erase(args.begin());
   for (const std::string& a : args) {
-    if (a == "--help") {
-      std::cout << Usage();
+    if (a == "--help" || a == "-h") {
+      const std::string help = CommandUsage(command);
+      std::cout << (help.empty() ? Usage() : help);
       return kExitOk;
     }
   }

@@ -1,9 +1,11 @@
-# All dependencies come from Debian packages (see .ci/run for the list).
+# All dependencies come from Debian packages (deploy/install-deps lists them).
 find_package(Threads REQUIRED)
 find_package(absl REQUIRED CONFIG)
 find_package(Protobuf REQUIRED)
 find_package(gRPC REQUIRED CONFIG)
 find_package(spdlog REQUIRED CONFIG)
 find_package(prometheus-cpp REQUIRED CONFIG)
+# The command line of `sliceplan`: subcommands, generated help (cli/command_table.h).
+find_package(CLI11 REQUIRED CONFIG)
 find_package(GTest CONFIG)
 find_package(benchmark CONFIG)
