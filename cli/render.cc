@@ -147,76 +147,73 @@ SliceBalance Balance(const OptimizeResult& result) {
   return b;
 }
 
-std::string RenderText(const TieredOutcome& outcome, const RunInfo& info) {
-  const OptimizeResult& result = outcome.schedule.result;
-  const WideQuery& wide = *info.query;
-  std::string out;
-  if (info.search.cost == CostModelKind::kCluster) {
-    const Query& query = *info.exact;
-    absl::StrAppendFormat(&out,
-                          "Pareto frontier of %s plans of %d relations (cross products %s), "
-                          "objectives %s, alpha %g: %d plans\n\n",
-                          ShapeName(info.search.shape), query.size(),
-                          info.search.cross_products ? "allowed" : "excluded",
-                          ObjectivesString(info.search.cluster.objectives),
-                          info.search.cluster.alpha, static_cast<int>(result.frontier.size()));
-    absl::StrAppendFormat(&out, "  %4s  %12s  %14s  %12s  %s\n", "plan", "latency_s",
-                          "node_seconds", "completeness", "tree");
-    for (size_t i = 0; i < result.frontier.size(); ++i) {
-      const ClusterCosts& m = result.frontier[i].root().metrics;
-      absl::StrAppendFormat(&out, "%s %4d  %12.4g  %14.4g  %12.4g  %s\n",
-                            result.chosen == i ? "*" : " ", static_cast<int>(i), m.latency_s,
-                            m.node_seconds, m.completeness,
-                            PhysicalTreeString(result.frontier[i], query));
-    }
-    out +=
-        "\n  (name@r: a leaf sampled at rate r; [strategy n]: a join's strategy, shuffle or\n"
-        "  broadcast of the right or left side, on n rented nodes)\n";
-    if (result.chosen) {
-      absl::StrAppendFormat(&out, "\nchosen: plan %d (* above)\n\n",
-                            static_cast<int>(*result.chosen));
-      AppendClusterTree(result.plan, query, out);
-    } else {
-      out += "\nno plan of the frontier meets the bounds\n";
-    }
+namespace {
+
+// The cluster model's report: the Pareto frontier, one line per plan, and
+// the chosen plan's tree (or why there is none).
+void AppendFrontierReport(const OptimizeResult& result, const RunInfo& info, std::string& out) {
+  const Query& query = *info.exact;
+  absl::StrAppendFormat(&out,
+                        "Pareto frontier of %s plans of %d relations (cross products %s), "
+                        "objectives %s, alpha %g: %d plans\n\n",
+                        ShapeName(info.search.shape), query.size(),
+                        info.search.cross_products ? "allowed" : "excluded",
+                        ObjectivesString(info.search.cluster.objectives), info.search.cluster.alpha,
+                        static_cast<int>(result.frontier.size()));
+  absl::StrAppendFormat(&out, "  %4s  %12s  %14s  %12s  %s\n", "plan", "latency_s", "node_seconds",
+                        "completeness", "tree");
+  for (size_t i = 0; i < result.frontier.size(); ++i) {
+    const ClusterCosts& m = result.frontier[i].root().metrics;
+    absl::StrAppendFormat(&out, "%s %4d  %12.4g  %14.4g  %12.4g  %s\n",
+                          result.chosen == i ? "*" : " ", static_cast<int>(i), m.latency_s,
+                          m.node_seconds, m.completeness,
+                          PhysicalTreeString(result.frontier[i], query));
+  }
+  out +=
+      "\n  (name@r: a leaf sampled at rate r; [strategy n]: a join's strategy, shuffle or\n"
+      "  broadcast of the right or left side, on n rented nodes)\n";
+  if (result.chosen) {
+    absl::StrAppendFormat(&out, "\nchosen: plan %d (* above)\n\n",
+                          static_cast<int>(*result.chosen));
+    AppendClusterTree(result.plan, query, out);
   } else {
-    absl::StrAppendFormat(&out, "best %s plan of %d relations (cross products %s): %s %.6g\n",
-                          ShapeName(info.search.shape), wide.size(),
-                          info.search.cross_products ? "allowed" : "excluded",
-                          MetricName(info.search.cost), outcome.plan.cost());
-    absl::StrAppendFormat(&out, "tier: %s, %s; %s\n\n", TierName(outcome.tier),
-                          outcome.proven_optimal ? "proven optimal" : "not proven optimal",
-                          outcome.reason);
-    if (outcome.tier == SearchTier::kExact && !outcome.proven_optimal) {
-      absl::StrAppendFormat(&out,
-                            "NOT PROVEN OPTIMAL: the deadline passed with %.0f%% of the slices "
-                            "solved; this is the best plan found so far\n\n",
-                            100 * outcome.coverage);
-    }
-    out += WideTreeString(outcome.plan, wide) + "\n\n";
-    if (wide.size() <= kMaxTextTableRelations) {
-      AppendWideTree(outcome.plan, wide, out);
-    } else {
-      absl::StrAppendFormat(&out,
-                            "(the node table is shown up to %d relations; --format=json "
-                            "has every figure)\n",
-                            kMaxTextTableRelations);
-    }
+    out += "\nno plan of the frontier meets the bounds\n";
   }
-  if (outcome.tier == SearchTier::kIdp || (!outcome.exact_ran && !result.slices.empty())) {
+}
+
+// A single-cost model's report: the best plan's cost, the tier that found
+// it, its tree string and (up to kMaxTextTableRelations) its node table.
+void AppendBestPlanReport(const TieredOutcome& outcome, const RunInfo& info, std::string& out) {
+  const WideQuery& wide = *info.query;
+  absl::StrAppendFormat(&out, "best %s plan of %d relations (cross products %s): %s %.6g\n",
+                        ShapeName(info.search.shape), wide.size(),
+                        info.search.cross_products ? "allowed" : "excluded",
+                        MetricName(info.search.cost), outcome.plan.cost());
+  absl::StrAppendFormat(&out, "tier: %s, %s; %s\n\n", TierName(outcome.tier),
+                        outcome.proven_optimal ? "proven optimal" : "not proven optimal",
+                        outcome.reason);
+  if (outcome.tier == SearchTier::kExact && !outcome.proven_optimal) {
     absl::StrAppendFormat(&out,
-                          "\nidp: %d blocks searched exactly (largest %d relations), %d met "
-                          "again, %d improved the plan, %d passes, %u slices solved; wall time "
-                          "%.3f s\n",
-                          outcome.idp.blocks, outcome.idp.largest_block, outcome.idp.reused,
-                          outcome.idp.improved, outcome.idp.passes,
-                          static_cast<unsigned>(result.slices.size()), outcome.wall_seconds);
-    return out;
+                          "NOT PROVEN OPTIMAL: the deadline passed with %.0f%% of the slices "
+                          "solved; this is the best plan found so far\n\n",
+                          100 * outcome.coverage);
   }
-  if (!outcome.exact_ran) {
-    absl::StrAppendFormat(&out, "\nwall time %.3f s\n", outcome.wall_seconds);
-    return out;
+  out += WideTreeString(outcome.plan, wide) + "\n\n";
+  if (wide.size() <= kMaxTextTableRelations) {
+    AppendWideTree(outcome.plan, wide, out);
+  } else {
+    absl::StrAppendFormat(&out,
+                          "(the node table is shown up to %d relations; --format=json "
+                          "has every figure)\n",
+                          kMaxTextTableRelations);
   }
+}
+
+// The exact search's slice table: one line per slice, the slowest slice and
+// the balance, and the re-dispatched and hedged counts when there were any.
+// REQUIRES: the exact search ran.
+void AppendSliceTable(const TieredOutcome& outcome, const RunInfo& info, std::string& out) {
+  const OptimizeResult& result = outcome.schedule.result;
   const SliceBalance b = Balance(result);
   absl::StrAppendFormat(&out, "\nslices: %u (%s), workers: %d, wall time %.3f s\n",
                         result.slice_count,
@@ -234,6 +231,40 @@ std::string RenderText(const TieredOutcome& outcome, const RunInfo& info) {
     absl::StrAppendFormat(&out, "re-dispatched slices: %u, hedged slices: %u\n",
                           outcome.schedule.retries, outcome.schedule.hedges);
   }
+}
+
+// How the run went, after either report: the IDP summary when IDP ran (or
+// slices were solved outside the exact tier), the wall time alone when the
+// exact search did not run, else the slice table.
+void AppendRunSummary(const TieredOutcome& outcome, const RunInfo& info, std::string& out) {
+  const OptimizeResult& result = outcome.schedule.result;
+  if (outcome.tier == SearchTier::kIdp || (!outcome.exact_ran && !result.slices.empty())) {
+    absl::StrAppendFormat(&out,
+                          "\nidp: %d blocks searched exactly (largest %d relations), %d met "
+                          "again, %d improved the plan, %d passes, %u slices solved; wall time "
+                          "%.3f s\n",
+                          outcome.idp.blocks, outcome.idp.largest_block, outcome.idp.reused,
+                          outcome.idp.improved, outcome.idp.passes,
+                          static_cast<unsigned>(result.slices.size()), outcome.wall_seconds);
+    return;
+  }
+  if (!outcome.exact_ran) {
+    absl::StrAppendFormat(&out, "\nwall time %.3f s\n", outcome.wall_seconds);
+    return;
+  }
+  AppendSliceTable(outcome, info, out);
+}
+
+}  // namespace
+
+std::string RenderText(const TieredOutcome& outcome, const RunInfo& info) {
+  std::string out;
+  if (info.search.cost == CostModelKind::kCluster) {
+    AppendFrontierReport(outcome.schedule.result, info, out);
+  } else {
+    AppendBestPlanReport(outcome, info, out);
+  }
+  AppendRunSummary(outcome, info, out);
   return out;
 }
 
