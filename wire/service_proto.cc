@@ -125,39 +125,36 @@ absl::Status ReadOperator(const v1::PlanNode& in, const std::string& at, CostMod
                    in.kind_case() == v1::PlanNode::kJoin ? "a join" : "a leaf"));
 }
 
-}  // namespace
-
-absl::StatusOr<SearchOptions> SearchOptionsFromProto(const v1::SearchOptions& m) {
-  SearchOptions out;
-  switch (m.shape()) {
+absl::StatusOr<PlanShape> ShapeFromProto(v1::PlanShape shape) {
+  switch (shape) {
     case v1::PLAN_SHAPE_UNSPECIFIED:
     case v1::PLAN_SHAPE_BUSHY:
-      out.shape = PlanShape::kBushy;
-      break;
+      return PlanShape::kBushy;
     case v1::PLAN_SHAPE_LEFT_DEEP:
-      out.shape = PlanShape::kLeftDeep;
-      break;
+      return PlanShape::kLeftDeep;
     default:
-      return absl::InvalidArgumentError(
-          absl::StrCat("options.shape: unknown plan shape ", m.shape()));
+      return absl::InvalidArgumentError(absl::StrCat("options.shape: unknown plan shape ", shape));
   }
-  switch (m.cost()) {
+}
+
+absl::StatusOr<CostModelKind> CostModelFromProto(v1::CostModel cost) {
+  switch (cost) {
     case v1::COST_MODEL_UNSPECIFIED:
     case v1::COST_MODEL_COUT:
-      out.cost = CostModelKind::kCout;
-      break;
+      return CostModelKind::kCout;
     case v1::COST_MODEL_CLUSTER:
-      out.cost = CostModelKind::kCluster;
-      break;
+      return CostModelKind::kCluster;
     default:
-      return absl::InvalidArgumentError(
-          absl::StrCat("options.cost: unknown cost model ", m.cost()));
+      return absl::InvalidArgumentError(absl::StrCat("options.cost: unknown cost model ", cost));
   }
-  out.cross_products = !m.has_cross_products() || m.cross_products().value();
-  if (m.memo_limit_bytes() != 0) out.memo_limit_bytes = m.memo_limit_bytes();
-  ClusterParams& p = out.cluster.params;
-  for (int i = 0; i < m.cluster().node_counts_size(); ++i) {
-    const uint32_t n = m.cluster().node_counts(i);
+}
+
+// Overwrites the fields of `p` that `m` sets (node counts and sample rates
+// when non-empty, each rate when present) and keeps the others; INVALID_
+// ARGUMENT when a node count exceeds kMaxNodeCount.
+absl::Status ClusterParamsFromProto(const v1::ClusterParams& m, ClusterParams& p) {
+  for (int i = 0; i < m.node_counts_size(); ++i) {
+    const uint32_t n = m.node_counts(i);
     if (n > static_cast<uint32_t>(kMaxNodeCount)) {  // before narrowing to int
       return absl::InvalidArgumentError(absl::StrCat("options.cluster.node_counts[", i,
                                                      "]: must be a whole number in 1..",
@@ -166,15 +163,21 @@ absl::StatusOr<SearchOptions> SearchOptionsFromProto(const v1::SearchOptions& m)
     if (i == 0) p.node_counts.clear();
     p.node_counts.push_back(static_cast<int>(n));
   }
-  if (m.cluster().sample_rates_size() > 0) {
-    p.sample_rates.assign(m.cluster().sample_rates().begin(), m.cluster().sample_rates().end());
+  if (m.sample_rates_size() > 0) {
+    p.sample_rates.assign(m.sample_rates().begin(), m.sample_rates().end());
   }
-  if (m.cluster().has_net_bytes_per_s()) p.net_bytes_per_s = m.cluster().net_bytes_per_s().value();
-  if (m.cluster().has_cpu_rows_per_s()) p.cpu_rows_per_s = m.cluster().cpu_rows_per_s().value();
-  if (m.cluster().has_scan_bytes_per_s()) {
-    p.scan_bytes_per_s = m.cluster().scan_bytes_per_s().value();
-  }
-  if (m.cluster().has_stage_startup_s()) p.stage_startup_s = m.cluster().stage_startup_s().value();
+  if (m.has_net_bytes_per_s()) p.net_bytes_per_s = m.net_bytes_per_s().value();
+  if (m.has_cpu_rows_per_s()) p.cpu_rows_per_s = m.cpu_rows_per_s().value();
+  if (m.has_scan_bytes_per_s()) p.scan_bytes_per_s = m.scan_bytes_per_s().value();
+  if (m.has_stage_startup_s()) p.stage_startup_s = m.stage_startup_s().value();
+  return absl::OkStatus();
+}
+
+// Reads the Pareto search's options of `m` (objectives, alpha, bounds,
+// preference) into `out`, in that order, keeping the defaults of those `m`
+// leaves unset. REQUIRES: out.cost is already read (alpha needs the cluster
+// model). INVALID_ARGUMENT naming the first bad field.
+absl::Status ParetoOptionsFromProto(const v1::SearchOptions& m, SearchOptions& out) {
   if (m.objectives_size() > 0) {
     ASSIGN_OR_RETURN(out.cluster.objectives, ObjectivesFromProto(m.objectives()));
   }
@@ -192,6 +195,123 @@ absl::StatusOr<SearchOptions> SearchOptionsFromProto(const v1::SearchOptions& m)
   if (m.has_preference()) {
     ASSIGN_OR_RETURN(out.cluster.choice.prefer, PreferenceFromProto(m.preference()));
   }
+  return absl::OkStatus();
+}
+
+// A leaf's relation into node.relations, added to `leaves`; INVALID_ARGUMENT
+// when the id is not the query's or the relation is already a leaf.
+absl::Status ReadLeaf(const v1::PlanNode& in, const std::string& at, const Query& query,
+                      RelSet& leaves, PlanNode& node) {
+  if (in.relation() >= static_cast<uint32_t>(query.size())) {
+    return absl::InvalidArgumentError(absl::StrCat(at, ".relation: unknown relation id ",
+                                                   in.relation(), " (the query has ", query.size(),
+                                                   ")"));
+  }
+  node.relations = Singleton(RelationId{static_cast<uint8_t>(in.relation())});
+  if (leaves & node.relations) {
+    return absl::InvalidArgumentError(
+        absl::StrCat(at, ".relation: relation ", in.relation(), " appears twice"));
+  }
+  leaves |= node.relations;
+  return absl::OkStatus();
+}
+
+// Node i's join: its children and the union of their relations; INVALID_
+// ARGUMENT unless the children are two distinct nodes before i in `plan`.
+absl::Status ReadJoin(const v1::PlanNode& in, const std::string& at, int i, const Plan& plan,
+                      PlanNode& node) {
+  const uint32_t l = in.join().left(), r = in.join().right();
+  if (l >= static_cast<uint32_t>(i) || r >= static_cast<uint32_t>(i) || l == r) {
+    return absl::InvalidArgumentError(
+        absl::StrCat(at, ".join: children must be distinct earlier nodes, got ", l, " and ", r));
+  }
+  node.left = static_cast<int>(l);
+  node.right = static_cast<int>(r);
+  node.relations = plan.nodes[l].relations | plan.nodes[r].relations;
+  return absl::OkStatus();
+}
+
+// The cluster model's figures of a node besides its latency: node-seconds,
+// completeness, a leaf's sample rate, a join's node count; INVALID_ARGUMENT
+// when the costs lack node_seconds or completeness.
+absl::Status ReadClusterFigures(const v1::PlanNode& in, const std::string& at, PlanNode& node) {
+  const auto ns = in.costs().find("node_seconds");
+  const auto comp = in.costs().find("completeness");
+  if (ns == in.costs().end() || comp == in.costs().end()) {
+    return absl::InvalidArgumentError(
+        absl::StrCat(at, ".costs: needs node_seconds and completeness"));
+  }
+  node.metrics.node_seconds = ns->second;
+  node.metrics.completeness = comp->second;
+  node.sample_rate = in.kind_case() == v1::PlanNode::kRelation ? in.sample_rate() : 1;
+  node.nodes = static_cast<int>(in.nodes());
+  return absl::OkStatus();
+}
+
+// The model's own cost entry into node.cost (and the cluster model's
+// latency); INVALID_ARGUMENT when the entry is missing.
+absl::Status ReadModelCost(const v1::PlanNode& in, const std::string& at, CostModelKind model,
+                           PlanNode& node) {
+  const auto cost = in.costs().find(MetricName(model));
+  if (cost == in.costs().end()) {
+    return absl::InvalidArgumentError(
+        absl::StrCat(at, ".costs: no \"", MetricName(model), "\" entry"));
+  }
+  node.cost = cost->second;
+  if (model == CostModelKind::kCluster) node.metrics.latency_s = cost->second;
+  return absl::OkStatus();
+}
+
+// A reply's numbers are checked like a request's: a worker that sends NaN
+// or a negative cost must not decide the merge. INVALID_ARGUMENT unless the
+// cost, cardinality and node-seconds lie in [0, kValueCeiling] and the
+// completeness in (0, 1].
+absl::Status CheckNodeFigures(const PlanNode& node, const std::string& at) {
+  for (const double v : {node.cost, node.cardinality, node.metrics.node_seconds}) {
+    if (!(v >= 0 && v <= kValueCeiling)) {
+      return absl::InvalidArgumentError(
+          absl::StrCat(at, ": a cost or cardinality is not a number in [0, 1e300], got ", v));
+    }
+  }
+  if (!(node.metrics.completeness > 0 && node.metrics.completeness <= 1)) {
+    return absl::InvalidArgumentError(absl::StrCat(
+        at, ".costs: completeness must lie in (0, 1], got ", node.metrics.completeness));
+  }
+  return absl::OkStatus();
+}
+
+// Node i of a plan reply, read against the nodes before it in `plan` (a
+// leaf's relation is added to `leaves`); INVALID_ARGUMENT naming the first
+// bad field of the node.
+absl::StatusOr<PlanNode> NodeFromProto(const v1::PlanNode& in, int i, const Query& query,
+                                       CostModelKind model, const Plan& plan, RelSet& leaves) {
+  const std::string at = absl::StrCat("plan.nodes[", i, "]");
+  PlanNode node;
+  if (in.kind_case() == v1::PlanNode::kRelation) {
+    RETURN_IF_ERROR(ReadLeaf(in, at, query, leaves, node));
+  } else if (in.kind_case() == v1::PlanNode::kJoin) {
+    RETURN_IF_ERROR(ReadJoin(in, at, i, plan, node));
+  } else {
+    return absl::InvalidArgumentError(absl::StrCat(at, ": neither relation nor join"));
+  }
+  node.cardinality = in.cardinality();
+  if (model == CostModelKind::kCluster) RETURN_IF_ERROR(ReadClusterFigures(in, at, node));
+  RETURN_IF_ERROR(ReadOperator(in, at, model, node));
+  RETURN_IF_ERROR(ReadModelCost(in, at, model, node));
+  RETURN_IF_ERROR(CheckNodeFigures(node, at));
+  return node;
+}
+
+}  // namespace
+
+absl::StatusOr<SearchOptions> SearchOptionsFromProto(const v1::SearchOptions& m) {
+  SearchOptions out;
+  ASSIGN_OR_RETURN(out.shape, ShapeFromProto(m.shape()));
+  ASSIGN_OR_RETURN(out.cost, CostModelFromProto(m.cost()));
+  out.cross_products = !m.has_cross_products() || m.cross_products().value();
+  if (m.memo_limit_bytes() != 0) out.memo_limit_bytes = m.memo_limit_bytes();
+  RETURN_IF_ERROR(ClusterParamsFromProto(m.cluster(), out.cluster.params));
+  RETURN_IF_ERROR(ParetoOptionsFromProto(m, out));
   if (auto s = ValidateSearchOptions(out); !s.ok()) {
     return absl::InvalidArgumentError(absl::StrCat("options.cluster.", s.message()));
   }
@@ -262,66 +382,7 @@ absl::StatusOr<Plan> PlanFromProto(const v1::Plan& m, const Query& query, CostMo
   Plan plan;
   RelSet leaves = 0;
   for (int i = 0; i < m.nodes_size(); ++i) {
-    const v1::PlanNode& in = m.nodes(i);
-    const std::string at = absl::StrCat("plan.nodes[", i, "]");
-    PlanNode node;
-    if (in.kind_case() == v1::PlanNode::kRelation) {
-      if (in.relation() >= static_cast<uint32_t>(query.size())) {
-        return absl::InvalidArgumentError(absl::StrCat(at, ".relation: unknown relation id ",
-                                                       in.relation(), " (the query has ",
-                                                       query.size(), ")"));
-      }
-      node.relations = Singleton(RelationId{static_cast<uint8_t>(in.relation())});
-      if (leaves & node.relations) {
-        return absl::InvalidArgumentError(
-            absl::StrCat(at, ".relation: relation ", in.relation(), " appears twice"));
-      }
-      leaves |= node.relations;
-    } else if (in.kind_case() == v1::PlanNode::kJoin) {
-      const uint32_t l = in.join().left(), r = in.join().right();
-      if (l >= static_cast<uint32_t>(i) || r >= static_cast<uint32_t>(i) || l == r) {
-        return absl::InvalidArgumentError(absl::StrCat(
-            at, ".join: children must be distinct earlier nodes, got ", l, " and ", r));
-      }
-      node.left = static_cast<int>(l);
-      node.right = static_cast<int>(r);
-      node.relations = plan.nodes[l].relations | plan.nodes[r].relations;
-    } else {
-      return absl::InvalidArgumentError(absl::StrCat(at, ": neither relation nor join"));
-    }
-    node.cardinality = in.cardinality();
-    if (model == CostModelKind::kCluster) {
-      const auto ns = in.costs().find("node_seconds");
-      const auto comp = in.costs().find("completeness");
-      if (ns == in.costs().end() || comp == in.costs().end()) {
-        return absl::InvalidArgumentError(
-            absl::StrCat(at, ".costs: needs node_seconds and completeness"));
-      }
-      node.metrics.node_seconds = ns->second;
-      node.metrics.completeness = comp->second;
-      node.sample_rate = in.kind_case() == v1::PlanNode::kRelation ? in.sample_rate() : 1;
-      node.nodes = static_cast<int>(in.nodes());
-    }
-    RETURN_IF_ERROR(ReadOperator(in, at, model, node));
-    const auto cost = in.costs().find(MetricName(model));
-    if (cost == in.costs().end()) {
-      return absl::InvalidArgumentError(
-          absl::StrCat(at, ".costs: no \"", MetricName(model), "\" entry"));
-    }
-    node.cost = cost->second;
-    if (model == CostModelKind::kCluster) node.metrics.latency_s = cost->second;
-    // A reply's numbers are checked like a request's: a worker that sends
-    // NaN or a negative cost must not decide the merge.
-    for (const double v : {node.cost, node.cardinality, node.metrics.node_seconds}) {
-      if (!(v >= 0 && v <= kValueCeiling)) {
-        return absl::InvalidArgumentError(
-            absl::StrCat(at, ": a cost or cardinality is not a number in [0, 1e300], got ", v));
-      }
-    }
-    if (!(node.metrics.completeness > 0 && node.metrics.completeness <= 1)) {
-      return absl::InvalidArgumentError(absl::StrCat(
-          at, ".costs: completeness must lie in (0, 1], got ", node.metrics.completeness));
-    }
+    ASSIGN_OR_RETURN(PlanNode node, NodeFromProto(m.nodes(i), i, query, model, plan, leaves));
     plan.nodes.push_back(node);
   }
   if (plan.nodes.empty() || plan.root().relations != query.all() ||
