@@ -122,10 +122,10 @@ std::unique_ptr<prometheus::Exposer> StartMetricsEndpoint(
 
 std::string HostOf(const std::string& address) { return address.substr(0, address.rfind(':')); }
 
-}  // namespace
-
-absl::Status Serve(const std::string& listen, const std::vector<grpc::Service*>& services,
-                   const ServeOptions& options) {
+// Checks Serve's addresses before anything starts: INVALID_ARGUMENT for a
+// malformed listen, health or metrics address (in that order),
+// FAILED_PRECONDITION for plaintext off-host without the options' consent.
+absl::Status CheckServeAddresses(const std::string& listen, const ServeOptions& options) {
   if (auto s = ValidateListenAddress(listen); !s.ok()) return s;
   if (!options.health_listen.empty()) {
     if (auto s = ValidateListenAddress(options.health_listen, "--health-listen"); !s.ok()) {
@@ -138,13 +138,20 @@ absl::Status Serve(const std::string& listen, const std::vector<grpc::Service*>&
     }
   }
   const bool tls = options.credentials != nullptr;
-  if (auto s = CheckPlaintextAllowed(listen, tls || options.allow_plaintext_off_host); !s.ok()) {
-    return s;
-  }
+  return CheckPlaintextAllowed(listen, tls || options.allow_plaintext_off_host);
+}
+
+// The gRPC server of `services` on `listen` (TLS when the options carry
+// credentials), with health checking, reflection, one socket, the request
+// size limit and the unparsed-request interceptor. Its bound port is in
+// `port` after the call, 0 (or a null server) when it could not be bound.
+std::unique_ptr<grpc::Server> StartServiceServer(const std::string& listen,
+                                                 const std::vector<grpc::Service*>& services,
+                                                 const ServeOptions& options, int& port) {
+  const bool tls = options.credentials != nullptr;
   grpc::EnableDefaultHealthCheckService(true);
   grpc::reflection::InitProtoReflectionServerBuilderPlugin();
   grpc::ServerBuilder builder;
-  int port = 0;
   builder.AddListeningPort(listen, tls ? options.credentials : grpc::InsecureServerCredentials(),
                            &port);
   // Without this, gRPC opens one socket per poller with SO_REUSEPORT: with
@@ -158,54 +165,92 @@ absl::Status Serve(const std::string& listen, const std::vector<grpc::Service*>&
   std::vector<std::unique_ptr<grpc::experimental::ServerInterceptorFactoryInterface>> interceptors;
   interceptors.push_back(std::make_unique<UnparsedRequestInterceptorFactory>());
   builder.experimental().SetInterceptorCreators(std::move(interceptors));
-  std::unique_ptr<grpc::Server> server = builder.BuildAndStart();
-  if (!server || port == 0) {
-    return absl::UnavailableError(absl::StrCat("cannot listen on ", listen));
-  }
+  return builder.BuildAndStart();
+}
+
+// The optional health and metrics listeners beside the service server.
+// Serve declares it after the server and the members are in this order, so
+// they are destroyed metrics first, then health, then the server.
+struct SideListeners {
   std::unique_ptr<grpc::Server> health;
   int health_port = 0;
+  std::unique_ptr<prometheus::Exposer> metrics;
+  int metrics_port = 0;
+};
+
+// Starts the health server and the metrics endpoint the options ask for,
+// in that order, into `side`. UNAVAILABLE naming the address that cannot
+// be bound; a health server already started is shut down then.
+absl::Status StartSideListeners(const ServeOptions& options, SideListeners& side) {
   if (!options.health_listen.empty()) {
-    health = StartHealthServer(options.health_listen, health_port);
-    if (!health) {
-      server->Shutdown();
+    side.health = StartHealthServer(options.health_listen, side.health_port);
+    if (!side.health) {
       return absl::UnavailableError(absl::StrCat("cannot listen on ", options.health_listen));
     }
   }
-  std::unique_ptr<prometheus::Exposer> metrics;
-  int metrics_port = 0;
   if (!options.metrics_listen.empty()) {
-    metrics = StartMetricsEndpoint(options.metrics_listen, options.metrics, metrics_port);
-    if (!metrics) {
-      if (health) health->Shutdown();
-      server->Shutdown();
+    side.metrics = StartMetricsEndpoint(options.metrics_listen, options.metrics, side.metrics_port);
+    if (!side.metrics) {
+      if (side.health) side.health->Shutdown();
       return absl::UnavailableError(absl::StrCat("cannot listen on ", options.metrics_listen));
     }
   }
+  return absl::OkStatus();
+}
+
+// Prints the bound addresses on stdout: "listening on HOST:PORT", then
+// "health on ..." and "metrics on ..." for the side listeners that run.
+void AnnounceListeners(const std::string& listen, int port, const ServeOptions& options,
+                       const SideListeners& side) {
   std::cout << "listening on " << HostOf(listen) << ":" << port << std::endl;
-  if (health)
-    std::cout << "health on " << HostOf(options.health_listen) << ":" << health_port << std::endl;
-  if (metrics) {
-    std::cout << "metrics on " << HostOf(options.metrics_listen) << ":" << metrics_port
+  if (side.health) {
+    std::cout << "health on " << HostOf(options.health_listen) << ":" << side.health_port
               << std::endl;
   }
+  if (side.metrics) {
+    std::cout << "metrics on " << HostOf(options.metrics_listen) << ":" << side.metrics_port
+              << std::endl;
+  }
+}
 
-  std::thread stopper([&] {
-    sigset_t set;
-    sigemptyset(&set);
-    sigaddset(&set, SIGINT);
-    sigaddset(&set, SIGTERM);
-    sigaddset(&set, SIGHUP);
-    int sig = 0;
-    for (sigwait(&set, &sig); sig == SIGHUP; sigwait(&set, &sig)) {
-      if (options.on_reload) options.on_reload();
-    }
-    if (options.on_stop) options.on_stop();
-    // Refuses new calls at once; running ones finish (and answer) until
-    // the grace period ends, when gRPC cancels them and every search sees
-    // the cancel within its polling interval.
-    if (health) health->Shutdown(std::chrono::system_clock::now());  // probes fail from now on
-    server->Shutdown(std::chrono::system_clock::now() + options.shutdown_grace);
-  });
+// Waits for SIGINT or SIGTERM (running on_reload on each SIGHUP meanwhile),
+// then runs on_stop and shuts the servers down: `health` (may be null) at
+// once, `server` after the grace period.
+void ShutDownOnStopSignal(const ServeOptions& options, grpc::Server& server, grpc::Server* health) {
+  sigset_t set;
+  sigemptyset(&set);
+  sigaddset(&set, SIGINT);
+  sigaddset(&set, SIGTERM);
+  sigaddset(&set, SIGHUP);
+  int sig = 0;
+  for (sigwait(&set, &sig); sig == SIGHUP; sigwait(&set, &sig)) {
+    if (options.on_reload) options.on_reload();
+  }
+  if (options.on_stop) options.on_stop();
+  // Refuses new calls at once; running ones finish (and answer) until
+  // the grace period ends, when gRPC cancels them and every search sees
+  // the cancel within its polling interval.
+  if (health) health->Shutdown(std::chrono::system_clock::now());  // probes fail from now on
+  server.Shutdown(std::chrono::system_clock::now() + options.shutdown_grace);
+}
+
+}  // namespace
+
+absl::Status Serve(const std::string& listen, const std::vector<grpc::Service*>& services,
+                   const ServeOptions& options) {
+  if (auto s = CheckServeAddresses(listen, options); !s.ok()) return s;
+  int port = 0;
+  std::unique_ptr<grpc::Server> server = StartServiceServer(listen, services, options, port);
+  if (!server || port == 0) {
+    return absl::UnavailableError(absl::StrCat("cannot listen on ", listen));
+  }
+  SideListeners side;
+  if (auto s = StartSideListeners(options, side); !s.ok()) {
+    server->Shutdown();
+    return s;
+  }
+  AnnounceListeners(listen, port, options, side);
+  std::thread stopper([&] { ShutDownOnStopSignal(options, *server, side.health.get()); });
   server->Wait();
   stopper.join();
   return absl::OkStatus();
