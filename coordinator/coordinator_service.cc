@@ -81,6 +81,102 @@ void LogRequest(const std::string& request_id, const RequestFacts& facts,
                                                                      : spdlog::level::warn);
 }
 
+// The request's query, with "query." before the message of any error.
+absl::StatusOr<WideQuery> QueryOfRequest(const v1::OptimizeRequest& request,
+                                         const InputLimits& limits) {
+  auto query = WideQueryFromProto(request.query(), limits);
+  if (!query.ok()) {
+    return absl::Status(query.status().code(), absl::StrCat("query.", query.status().message()));
+  }
+  return query;
+}
+
+// The server's limits on the options, with "options.cluster." before the
+// message of an error.
+absl::Status CheckOptionsWithinLimits(const SearchOptions& options, const InputLimits& limits) {
+  if (auto s = CheckOptionLimits(options, limits); !s.ok()) {
+    return absl::Status(s.code(), absl::StrCat("options.cluster.", s.message()));
+  }
+  return absl::OkStatus();
+}
+
+// The workers a search is given: the healthy ones of `pool` in order, at
+// most `max_workers` of them (0: no limit), counted with their slots in
+// `facts`, then every unhealthy one: the scheduler skips them (and uses
+// them if they recover), and names them if nothing is left.
+std::vector<SliceWorker*> WorkersForSearch(const std::vector<std::shared_ptr<RpcWorker>>& pool,
+                                           uint32_t max_workers, RequestFacts& facts) {
+  std::vector<SliceWorker*> workers;
+  for (const auto& w : pool) {
+    if (max_workers != 0 && workers.size() >= max_workers) break;
+    if (!w->Healthy()) continue;
+    workers.push_back(w.get());
+    facts.slots += w->Slots();
+  }
+  facts.workers = workers.size();
+  for (const auto& w : pool) {
+    if (!w->Healthy()) workers.push_back(w.get());
+  }
+  return workers;
+}
+
+// INVALID_ARGUMENT when the request names a slice count (non-zero) that the
+// query cannot be sliced into: past the exact search's kMaxRelations, or
+// not a valid count for its size and shape.
+absl::Status CheckSliceCount(uint32_t slice_count, int relations, PlanShape shape) {
+  if (slice_count == 0) return absl::OkStatus();
+  if (relations > kMaxRelations) {
+    return absl::InvalidArgumentError(
+        absl::StrCat("slice_count: slices divide the exact search, which takes at most ",
+                     kMaxRelations, " relations (", relations, " given)"));
+  }
+  return ValidateSlice({0, slice_count}, relations, shape, kRpcSliceFields);
+}
+
+// The tiers the request asks for. The time auto plans for: the request's
+// deadline, else its budget (`budget`, already checked), else the server's
+// default; the call's deadline still bounds it.
+TierRequest TiersOfRequest(const v1::OptimizeRequest& request, SearchTier asked, double budget,
+                           double default_budget_seconds) {
+  TierRequest tiers;
+  tiers.tier = asked;
+  tiers.slice_count = request.slice_count();
+  tiers.budget_seconds = request.deadline_seconds() > 0 ? request.deadline_seconds()
+                         : request.budget_seconds() > 0 ? budget
+                                                        : default_budget_seconds;
+  return tiers;
+}
+
+// How the request's slices are scheduled: the server's hedging, the run's
+// deadline, the request's partial-on-deadline, the progress callback and
+// request id; a caller that cancels or goes away cancels every slice it
+// started.
+ScheduleOptions ScheduleOfRequest(grpc::ServerContext* context, const v1::OptimizeRequest& request,
+                                  const CoordinatorConfig& config, Clock::time_point deadline,
+                                  const std::string& request_id,
+                                  const std::function<void(const ScheduleProgress&)>& on_progress) {
+  ScheduleOptions schedule;
+  if (config.hedge_after) schedule.hedge_after = *config.hedge_after;
+  schedule.deadline = deadline;
+  schedule.partial_on_deadline = request.partial_on_deadline();
+  schedule.on_progress = on_progress;
+  schedule.cancelled = [context] { return context->IsCancelled(); };
+  schedule.request_id = request_id;
+  return schedule;
+}
+
+// RESOURCE_EXHAUSTED when the outcome's Pareto set has more plans than the
+// server returns.
+absl::Status CheckFrontierSize(const TieredOutcome& outcome, const InputLimits& limits) {
+  const auto plans = static_cast<int64_t>(outcome.schedule.result.frontier.size());
+  if (plans > limits.max_frontier_plans) {
+    return absl::ResourceExhaustedError(absl::StrCat(
+        "the Pareto set has ", plans, " plans, over the limit of ", limits.max_frontier_plans,
+        " (--max_frontier_plans); ask for a precision alpha > 1 or fewer objectives"));
+  }
+  return absl::OkStatus();
+}
+
 }  // namespace
 
 absl::StatusOr<TieredOutcome> CoordinatorService::Search(
@@ -88,74 +184,31 @@ absl::StatusOr<TieredOutcome> CoordinatorService::Search(
     const std::function<void(const ScheduleProgress&)>& on_progress, RequestFacts& facts) {
   RETURN_IF_ERROR(ValidateRequest(request));
   ASSIGN_OR_RETURN(const Clock::time_point deadline, RunDeadline(context, request, config_));
-  auto query = WideQueryFromProto(request.query(), config_.limits);
-  if (!query.ok()) {
-    return absl::Status(query.status().code(), absl::StrCat("query.", query.status().message()));
-  }
-  facts.relations = query->size();
+  ASSIGN_OR_RETURN(const WideQuery query, QueryOfRequest(request, config_.limits));
+  facts.relations = query.size();
   ASSIGN_OR_RETURN(const SearchOptions options, SearchOptionsFromProto(request.options()));
   facts.cost = options.cost;
   ASSIGN_OR_RETURN(facts.asked, TierFromProto(request.tier()));
   ASSIGN_OR_RETURN(const double budget,
                    AllowedSeconds(request.budget_seconds(), config_.limits.max_deadline_seconds,
                                   "budget_seconds"));
-  if (auto s = CheckOptionLimits(options, config_.limits); !s.ok()) {
-    return absl::Status(s.code(), absl::StrCat("options.cluster.", s.message()));
-  }
+  RETURN_IF_ERROR(CheckOptionsWithinLimits(options, config_.limits));
   std::optional<Admission::Ticket> ticket;
   RETURN_IF_ERROR(admission_.Enter(
       deadline, [context] { return context->IsCancelled(); }, ticket));
   const auto start = Clock::now();  // admitted: the search's own time from here
 
-  std::vector<std::shared_ptr<RpcWorker>> pool = pool_.Workers();
-  std::vector<SliceWorker*> workers;
-  for (const auto& w : pool) {
-    if (request.max_workers() != 0 && workers.size() >= request.max_workers()) break;
-    if (!w->Healthy()) continue;
-    workers.push_back(w.get());
-    facts.slots += w->Slots();
-  }
-  facts.workers = workers.size();
-  // The unhealthy ones too, after the healthy: the scheduler skips them
-  // (and uses them if they recover), and names them if nothing is left.
-  for (const auto& w : pool) {
-    if (!w->Healthy()) workers.push_back(w.get());
-  }
-  if (request.slice_count() != 0) {
-    if (query->size() > kMaxRelations) {
-      return absl::InvalidArgumentError(
-          absl::StrCat("slice_count: slices divide the exact search, which takes at most ",
-                       kMaxRelations, " relations (", query->size(), " given)"));
-    }
-    RETURN_IF_ERROR(
-        ValidateSlice({0, request.slice_count()}, query->size(), options.shape, kRpcSliceFields));
-  }
-  TierRequest tiers;
-  tiers.tier = facts.asked;
-  tiers.slice_count = request.slice_count();
-  // The time auto plans for: the request's deadline, else its budget,
-  // else the server's default; the call's deadline still bounds it.
-  tiers.budget_seconds = request.deadline_seconds() > 0 ? request.deadline_seconds()
-                         : request.budget_seconds() > 0 ? budget
-                                                        : config_.default_budget_seconds;
-  ScheduleOptions schedule;
-  if (config_.hedge_after) schedule.hedge_after = *config_.hedge_after;
-  schedule.deadline = deadline;
-  schedule.partial_on_deadline = request.partial_on_deadline();
-  schedule.on_progress = on_progress;
-  // A caller that cancels or goes away cancels every slice it started.
-  schedule.cancelled = [context] { return context->IsCancelled(); };
-  schedule.request_id = request_id;
-  auto outcome = RunTiers(*query, options, tiers, workers, schedule);
+  const std::vector<std::shared_ptr<RpcWorker>> pool = pool_.Workers();
+  const std::vector<SliceWorker*> workers = WorkersForSearch(pool, request.max_workers(), facts);
+  RETURN_IF_ERROR(CheckSliceCount(request.slice_count(), query.size(), options.shape));
+  const TierRequest tiers =
+      TiersOfRequest(request, facts.asked, budget, config_.default_budget_seconds);
+  const ScheduleOptions schedule =
+      ScheduleOfRequest(context, request, config_, deadline, request_id, on_progress);
+  auto outcome = RunTiers(query, options, tiers, workers, schedule);
   facts.search_seconds = std::chrono::duration<double>(Clock::now() - start).count();
   if (!outcome.ok()) return outcome;
-  const auto plans = static_cast<int64_t>(outcome->schedule.result.frontier.size());
-  if (plans > config_.limits.max_frontier_plans) {
-    return absl::ResourceExhaustedError(
-        absl::StrCat("the Pareto set has ", plans, " plans, over the limit of ",
-                     config_.limits.max_frontier_plans,
-                     " (--max_frontier_plans); ask for a precision alpha > 1 or fewer objectives"));
-  }
+  RETURN_IF_ERROR(CheckFrontierSize(*outcome, config_.limits));
   return outcome;
 }
 
