@@ -14,6 +14,100 @@ constexpr std::array<RelSet, 3> kPairPatterns = {0b00, 0b01, 0b11};
 // required one (0b011) is forbidden.
 constexpr std::array<RelSet, 7> kTriplePatterns = {0b000, 0b001, 0b010, 0b100, 0b101, 0b110, 0b111};
 
+// digit value -> its splits into two allowed digit values (left, right)
+using DigitSplitTable = std::vector<std::vector<std::pair<uint8_t, uint8_t>>>;
+
+// The local pattern of digit value v, for digits of pairs or of triples.
+RelSet DigitPattern(bool pairs, uint64_t v) {
+  return pairs ? kPairPatterns[v] : kTriplePatterns[v];
+}
+
+// perm[i], the renumbered id of relation i of n: the free relations first,
+// in their relative order, then each constraint's relations in digit order.
+std::vector<RelationId> Renumbering(int n, const SliceConstraints& constraints) {
+  std::vector<RelationId> perm(n, RelationId{});
+  int next = 0;
+  for (int i = 0; i < n; ++i) {  // free relations keep their relative order
+    const RelationId r{static_cast<uint8_t>(i)};
+    if (!Contains(constraints.constrained(), r)) perm[i].value = static_cast<uint8_t>(next++);
+  }
+  for (const OrientedConstraint& c : constraints.constraints()) {
+    for (int d = 0; d < c.relations.size; ++d) {
+      perm[c.relations.ids[d].value].value = static_cast<uint8_t>(next++);
+    }
+  }
+  return perm;
+}
+
+// The inverse of a permutation of relation ids.
+std::vector<RelationId> InverseOf(const std::vector<RelationId>& perm) {
+  std::vector<RelationId> inverse(perm.size(), RelationId{});
+  for (size_t i = 0; i < perm.size(); ++i) inverse[perm[i].value].value = static_cast<uint8_t>(i);
+  return inverse;
+}
+
+// value[p] for each local pattern p of `width` bits: its digit value among
+// the `radix` allowed patterns, or -1 when p is not allowed.
+std::vector<int8_t> DigitValues(bool pairs, int width, int radix) {
+  std::vector<int8_t> value(size_t{1} << width, -1);
+  for (int v = 0; v < radix; ++v) value[DigitPattern(pairs, v)] = static_cast<int8_t>(v);
+  return value;
+}
+
+// For each of the `radix` digit values, every split of its pattern p into
+// a sub-pattern l and p \ l, both allowed, in the order l walks p's subsets.
+DigitSplitTable DigitSplits(bool pairs, int radix, const std::vector<int8_t>& digit_value) {
+  DigitSplitTable splits(radix);
+  for (int v = 0; v < radix; ++v) {
+    const RelSet p = DigitPattern(pairs, v);
+    RelSet l = 0;
+    do {  // every sub-pattern l of p with l and p \ l both allowed
+      const int8_t vl = digit_value[l], vr = digit_value[p ^ l];
+      if (vl >= 0 && vr >= 0) {
+        splits[v].emplace_back(static_cast<uint8_t>(vl), static_cast<uint8_t>(vr));
+      }
+      l = (l - p) & p;
+    } while (l != 0);
+  }
+  return splits;
+}
+
+// The symmetric order keeps a split when the left pattern is at most the
+// right one as an integer; disjoint parts differ first at the pattern's
+// top bit, so that is when the right part holds the top bit of the top
+// non-zero digit. Those splits of each digit value, in the same order.
+DigitSplitTable TopDigitSplits(bool pairs, const DigitSplitTable& splits) {
+  DigitSplitTable top_splits(splits.size());
+  for (size_t v = 0; v < splits.size(); ++v) {
+    const RelSet p = DigitPattern(pairs, v);
+    const RelSet top = p == 0 ? 0 : RelSet{1} << (63 - std::countl_zero(p));
+    for (const auto& [vl, vr] : splits[v]) {
+      const RelSet right = DigitPattern(pairs, vr);
+      if ((right & top) == top) top_splits[v].emplace_back(vl, vr);
+    }
+  }
+  return top_splits;
+}
+
+// patterns[b] for each of the block_count blocks: the high pattern whose
+// `digits` digits of `width` bits (digit 0 lowest) have the values of b's
+// mixed-radix digits.
+std::vector<RelSet> BlockPatterns(bool pairs, int width, int radix, int digits,
+                                  uint64_t block_count) {
+  std::vector<RelSet> patterns(block_count);
+  for (uint64_t b = 0; b < block_count; ++b) {
+    RelSet high = 0;
+    uint64_t rest = b;
+    for (int j = 0; j < digits; ++j) {
+      const uint64_t v = rest % static_cast<uint64_t>(radix);
+      rest /= static_cast<uint64_t>(radix);
+      high |= DigitPattern(pairs, v) << (width * j);
+    }
+    patterns[b] = high;
+  }
+  return patterns;
+}
+
 }  // namespace
 
 DenseLayout::DenseLayout(int n, const SliceConstraints& constraints)
@@ -23,66 +117,17 @@ DenseLayout::DenseLayout(int n, const SliceConstraints& constraints)
   const bool pairs = width_ == 2;
   radix_ = pairs ? 3 : 7;
   f_ = n - width_ * digits_;
-  perm_.assign(n, RelationId{});
-  inverse_.assign(n, RelationId{});
-  int next = 0;
-  for (int i = 0; i < n; ++i) {  // free relations keep their relative order
-    const RelationId r{static_cast<uint8_t>(i)};
-    if (!Contains(constraints.constrained(), r)) perm_[i].value = static_cast<uint8_t>(next++);
-  }
-  for (const OrientedConstraint& c : constraints.constraints()) {
-    for (int d = 0; d < c.relations.size; ++d) {
-      perm_[c.relations.ids[d].value].value = static_cast<uint8_t>(next++);
-    }
-  }
-  for (int i = 0; i < n; ++i) inverse_[perm_[i].value].value = static_cast<uint8_t>(i);
-
-  digit_value_.assign(size_t{1} << width_, -1);
-  for (int v = 0; v < radix_; ++v) {
-    const RelSet p = pairs ? kPairPatterns[v] : kTriplePatterns[v];
-    digit_value_[p] = static_cast<int8_t>(v);
-  }
-  digit_splits_.resize(radix_);
-  for (int v = 0; v < radix_; ++v) {
-    const RelSet p = pairs ? kPairPatterns[v] : kTriplePatterns[v];
-    RelSet l = 0;
-    do {  // every sub-pattern l of p with l and p \ l both allowed
-      const int8_t vl = digit_value_[l], vr = digit_value_[p ^ l];
-      if (vl >= 0 && vr >= 0) {
-        digit_splits_[v].emplace_back(static_cast<uint8_t>(vl), static_cast<uint8_t>(vr));
-      }
-      l = (l - p) & p;
-    } while (l != 0);
-  }
-  // The symmetric order keeps a split when the left pattern is at most the
-  // right one as an integer; disjoint parts differ first at the pattern's
-  // top bit, so that is when the right part holds the top bit of the top
-  // non-zero digit. Those splits of each digit value, in the same order:
-  digit_splits_top_.resize(radix_);
-  for (int v = 0; v < radix_; ++v) {
-    const RelSet p = pairs ? kPairPatterns[v] : kTriplePatterns[v];
-    const RelSet top = p == 0 ? 0 : RelSet{1} << (63 - std::countl_zero(p));
-    for (const auto& [vl, vr] : digit_splits_[v]) {
-      const RelSet right = pairs ? kPairPatterns[vr] : kTriplePatterns[vr];
-      if ((right & top) == top) digit_splits_top_[v].emplace_back(vl, vr);
-    }
-  }
+  perm_ = Renumbering(n, constraints);
+  inverse_ = InverseOf(perm_);
+  digit_value_ = DigitValues(pairs, width_, radix_);
+  digit_splits_ = DigitSplits(pairs, radix_, digit_value_);
+  digit_splits_top_ = TopDigitSplits(pairs, digit_splits_);
   block_count_ = 1;
   for (int j = 0; j < digits_; ++j) {
     place_.push_back(block_count_);
     block_count_ *= static_cast<uint64_t>(radix_);
   }
-  patterns_.resize(block_count_);
-  for (uint64_t b = 0; b < block_count_; ++b) {
-    RelSet high = 0;
-    uint64_t rest = b;
-    for (int j = 0; j < digits_; ++j) {
-      const uint64_t v = rest % static_cast<uint64_t>(radix_);
-      rest /= static_cast<uint64_t>(radix_);
-      high |= (pairs ? kPairPatterns[v] : kTriplePatterns[v]) << (width_ * j);
-    }
-    patterns_[b] = high;
-  }
+  patterns_ = BlockPatterns(pairs, width_, radix_, digits_, block_count_);
 }
 
 bool DenseLayout::PatternAdmissible(RelSet high) const {
