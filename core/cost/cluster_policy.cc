@@ -96,6 +96,12 @@ void LevelRuns(std::span<const ClusterEntry> plans,
   }
 }
 
+// The rows of joining l and r into a set of `card` rows: sampling shrinks
+// a saturated count only on paper, so it stays saturated.
+double OutRows(double card, const ClusterEntry& l, const ClusterEntry& r) {
+  return IsSaturated(card) ? kValueCeiling : card * (l.costs.completeness * r.costs.completeness);
+}
+
 }  // namespace
 
 template <class Level>
@@ -164,102 +170,113 @@ void ClusterPolicy::Options(const ClusterEntry& l, double left_width, bool left_
 // latency and least node-seconds, with that t) is already covered is
 // skipped whole.
 template <class Out>
-void ClusterPolicy::Combine(Out& out, double card, std::span<const ClusterEntry> left,
-                            Slot left_slot, bool left_leaf, double left_width,
-                            std::span<const ClusterEntry> right, Slot right_slot, bool right_leaf,
-                            double right_width) const {
+void ClusterPolicy::Combine(Out& out, double card, Operand left, Operand right) const {
   const ClusterParams& p = config_.params;
-  LevelRuns(left, left_runs_);
-  LevelRuns(right, right_runs_);
-  // The last stage time made, with its row inputs: the entries of one
-  // level pair almost always share their row counts, and the same inputs
-  // give the same time. Set afresh for each option (strategy and node
-  // count) below from the time Options made for it, so within one
-  // option's loops only the rows can change and StageSeconds runs only
-  // when they do.
-  struct LastStage {
-    double left_rows = -1, right_rows = -1, out_rows = -1, seconds = 0;
-  } last;
-  const auto stage = [&](const ClusterEntry& l, const ClusterEntry& r, double out_rows,
-                         JoinStrategy strategy, int nodes) {
-    if (l.rows != last.left_rows || r.rows != last.right_rows || out_rows != last.out_rows) {
-      last = {l.rows, r.rows, out_rows,
-              StageSeconds(p, strategy, nodes, {l.rows, left_width, left_leaf},
-                           {r.rows, right_width, right_leaf}, out_rows)};
-    }
-    return last.seconds;
-  };
-  // Sampling shrinks a saturated count only on paper: it stays saturated.
-  const auto out_rows = [&](const ClusterEntry& l, const ClusterEntry& r) {
-    return IsSaturated(card) ? kValueCeiling : card * (l.costs.completeness * r.costs.completeness);
-  };
-  const auto make = [&](uint32_t i, uint32_t j, JoinStrategy strategy, size_t m) {
-    const ClusterEntry& l = left[i];
-    const ClusterEntry& r = right[j];
-    ClusterEntry e;
-    e.rows = out_rows(l, r);
-    e.level = l.level + r.level;
-    e.left_slot = left_slot;
-    e.left_index = i;
-    e.right_slot = right_slot;
-    e.right_index = j;
-    const int nodes = p.node_counts[m];
-    e.costs = JoinCosts(l.costs, r.costs, nodes, stage(l, r, e.rows, strategy, nodes));
-    e.strategy = strategy;
-    e.nodes_index = static_cast<uint16_t>(m);
-    return e;
-  };
+  LevelRuns(left.plans, left_runs_);
+  LevelRuns(right.plans, right_runs_);
   const int fewest_nodes = *std::min_element(p.node_counts.begin(), p.node_counts.end());
-  for (const auto& [a0, a1] : left_runs_) {
-    for (const auto& [b0, b1] : right_runs_) {
-      uint64_t made = 0;
-      auto level = out.At(left[a0].level + right[b0].level);
+  for (const Run& a : left_runs_) {
+    for (const Run& b : right_runs_) {
+      auto level = out.At(left.plans[a.first].level + right.plans[b.first].level);
       // Every stage pays its start-up, on at least the fewest nodes: if the
       // pair's best point at that floor is covered, all its options are.
-      if (PairCovered(level, left, a0, a1, right, b0, b1, fewest_nodes, p.stage_startup_s)) {
+      if (PairCovered(level, left.plans, a.first, a.second, right.plans, b.first, b.second,
+                      fewest_nodes, p.stage_startup_s)) {
         continue;
       }
-      const double rows0 = out_rows(left[a0], right[b0]);
-      Options(left[a0], left_width, left_leaf, right[b0], right_width, right_leaf, rows0);
-      for (const StageOption& o : options_) {
-        const JoinStrategy strategy = o.strategy;
-        const size_t m = o.nodes_index;
-        last = {left[a0].rows, right[b0].rows, rows0, o.seconds};
-        if (PairCovered(level, left, a0, a1, right, b0, b1, o.nodes, o.seconds)) continue;
-        // Right entries of latency <= each left entry's: the last of them.
-        uint32_t j = b0;
-        for (uint32_t i = a0; i < a1; ++i) {
-          while (j + 1 < b1 && rule_.Lat(right[j + 1]) <= rule_.Lat(left[i])) ++j;
-          if (rule_.Lat(right[j]) <= rule_.Lat(left[i])) {
-            level.Insert(rule_, make(i, j, strategy, m));
-            ++made;
-          }
-        }
-        // Left entries of latency < each right entry's: the last of them.
-        uint32_t i = a0;
-        for (j = b0; j < b1; ++j) {
-          while (i + 1 < a1 && rule_.Lat(left[i + 1]) < rule_.Lat(right[j])) ++i;
-          if (rule_.Lat(left[i]) < rule_.Lat(right[j])) {
-            level.Insert(rule_, make(i, j, strategy, m));
-            ++made;
-          }
-        }
-      }
+      const uint64_t made = CombineLevelPair(level, card, left, a, right, b);
       // A stopped control stays stopped: the enumerator sees it next.
       if (control_ != nullptr && control_->Tick(std::max<uint64_t>(made, 1))) return;
     }
   }
 }
 
+template <class Level>
+uint64_t ClusterPolicy::CombineLevelPair(Level& level, double card, Operand left, Run a,
+                                         Operand right, Run b) const {
+  const ClusterEntry& l0 = left.plans[a.first];
+  const ClusterEntry& r0 = right.plans[b.first];
+  const double rows0 = OutRows(card, l0, r0);
+  Options(l0, left.width, left.leaf, r0, right.width, right.leaf, rows0);
+  uint64_t made = 0;
+  for (const StageOption& o : options_) {
+    // The entries of one level pair almost always share their row counts,
+    // and the same inputs give the same time: start from the time Options
+    // made for this option, so StageTime recomputes only when rows change.
+    LastStage last{l0.rows, r0.rows, rows0, o.seconds};
+    if (PairCovered(level, left.plans, a.first, a.second, right.plans, b.first, b.second, o.nodes,
+                    o.seconds)) {
+      continue;
+    }
+    made += InsertStaircases(level, card, left, a, right, b, o, last);
+  }
+  return made;
+}
+
+template <class Level>
+uint64_t ClusterPolicy::InsertStaircases(Level& level, double card, Operand left, Run a,
+                                         Operand right, Run b, const StageOption& o,
+                                         LastStage& last) const {
+  const std::span<const ClusterEntry> ls = left.plans, rs = right.plans;
+  const auto [a0, a1] = a;
+  const auto [b0, b1] = b;
+  uint64_t made = 0;
+  // Right entries of latency <= each left entry's: the last of them.
+  uint32_t j = b0;
+  for (uint32_t i = a0; i < a1; ++i) {
+    while (j + 1 < b1 && rule_.Lat(rs[j + 1]) <= rule_.Lat(ls[i])) ++j;
+    if (rule_.Lat(rs[j]) <= rule_.Lat(ls[i])) {
+      level.Insert(rule_, MakeEntry(card, left, i, right, j, o, last));
+      ++made;
+    }
+  }
+  // Left entries of latency < each right entry's: the last of them.
+  uint32_t i = a0;
+  for (j = b0; j < b1; ++j) {
+    while (i + 1 < a1 && rule_.Lat(ls[i + 1]) < rule_.Lat(rs[j])) ++i;
+    if (rule_.Lat(ls[i]) < rule_.Lat(rs[j])) {
+      level.Insert(rule_, MakeEntry(card, left, i, right, j, o, last));
+      ++made;
+    }
+  }
+  return made;
+}
+
+ClusterEntry ClusterPolicy::MakeEntry(double card, Operand left, uint32_t i, Operand right,
+                                      uint32_t j, const StageOption& o, LastStage& last) const {
+  const ClusterEntry& l = left.plans[i];
+  const ClusterEntry& r = right.plans[j];
+  ClusterEntry e;
+  e.rows = OutRows(card, l, r);
+  e.level = l.level + r.level;
+  e.left_slot = left.slot;
+  e.left_index = i;
+  e.right_slot = right.slot;
+  e.right_index = j;
+  e.costs = JoinCosts(l.costs, r.costs, o.nodes, StageTime(left, l, right, r, e.rows, o, last));
+  e.strategy = o.strategy;
+  e.nodes_index = static_cast<uint16_t>(o.nodes_index);
+  return e;
+}
+
+double ClusterPolicy::StageTime(Operand left, const ClusterEntry& l, Operand right,
+                                const ClusterEntry& r, double out_rows, const StageOption& o,
+                                LastStage& last) const {
+  if (l.rows != last.left_rows || r.rows != last.right_rows || out_rows != last.out_rows) {
+    last = {l.rows, r.rows, out_rows,
+            StageSeconds(config_.params, o.strategy, o.nodes, {l.rows, left.width, left.leaf},
+                         {r.rows, right.width, right.leaf}, out_rows)};
+  }
+  return last.seconds;
+}
+
 ClusterPolicy::Acc ClusterPolicy::Offer(Acc a, Slot left, Slot right) const {
-  Combine(*a.out, a.card, Plans(left), left, leaf_[left], width_of_[left], Plans(right), right,
-          leaf_[right], width_of_[right]);
+  Combine(*a.out, a.card, SlotOperand(left), SlotOperand(right));
   return a;
 }
 
 ClusterPolicy::Acc ClusterPolicy::OfferLeafRight(Acc a, Slot left, RelationId right) const {
-  Combine(*a.out, a.card, Plans(left), left, leaf_[left], width_of_[left], leaves_[right.value],
-          kNoSlot, true, query_.relation(right).row_bytes);
+  Combine(*a.out, a.card, SlotOperand(left), LeafOperand(right));
   return a;
 }
 
@@ -296,16 +313,14 @@ void ClusterPolicy::Grown(Slot s, size_t before) {
 void ClusterPolicy::Relax(Slot s, Slot left, Slot right) {
   const size_t before = per_set_[s].size();
   FlatFrontier out(per_set_[s]);
-  Combine(out, card_of_[s], Plans(left), left, leaf_[left], width_of_[left], Plans(right), right,
-          leaf_[right], width_of_[right]);
+  Combine(out, card_of_[s], SlotOperand(left), SlotOperand(right));
   Grown(s, before);
 }
 
 void ClusterPolicy::RelaxLeafRight(Slot s, Slot left, RelationId right) {
   const size_t before = per_set_[s].size();
   FlatFrontier out(per_set_[s]);
-  Combine(out, card_of_[s], Plans(left), left, leaf_[left], width_of_[left], leaves_[right.value],
-          kNoSlot, true, query_.relation(right).row_bytes);
+  Combine(out, card_of_[s], SlotOperand(left), LeafOperand(right));
   Grown(s, before);
 }
 
