@@ -24,9 +24,14 @@
 namespace sliceplan {
 namespace dense_bushy_internal {
 
-// Offers the split (l, low ^ l) of the low bits into blocks (lb, rb).
-#define SLICEPLAN_OFFER_(l) \
-  a = policy.Offer(a, lb + static_cast<Slot>(l), rb + static_cast<Slot>(low ^ (l)))
+// Offers to `acc` the split (l, low ^ l) of the low bits into the blocks
+// with slot bases (lb, rb); returns the accumulator. REQUIRES: l within low.
+template <SearchPolicy Policy>
+[[gnu::always_inline]] inline typename Policy::Acc OfferSplit(const Policy& policy,
+                                                              typename Policy::Acc acc, Slot lb,
+                                                              Slot rb, RelSet low, RelSet l) {
+  return policy.Offer(acc, lb + static_cast<Slot>(l), rb + static_cast<Slot>(low ^ l));
+}
 
 // Offers (lb + l, rb + (low ^ l)) for every l within `low` (not empty), in
 // increasing order, without l = 0 when skip_empty and without l = low when
@@ -88,16 +93,16 @@ template <SearchPolicy Policy>
           auto b = policy.Empty();
           RelSet sub = 0;
           for (; sub != half; sub = (sub - half) & half) {
-            SLICEPLAN_OFFER_(sub | lowest);
-            b = policy.Offer(b, lb + static_cast<Slot>(sub | bit | lowest),
-                             rb + static_cast<Slot>(low ^ (sub | bit | lowest)));
+            a = OfferSplit(policy, a, lb, rb, low, sub | lowest);
+            b = OfferSplit(policy, b, lb, rb, low, sub | bit | lowest);
           }
-          SLICEPLAN_OFFER_(sub | lowest);  // sub = half; half | bit = rest is no split
+          // sub = half; half | bit = rest is no split
+          a = OfferSplit(policy, a, lb, rb, low, sub | lowest);
           a = policy.Merge(a, b);
         }
       } else {
         for (RelSet sub = 0; sub != rest; sub = (sub - rest) & rest) {
-          SLICEPLAN_OFFER_(sub | lowest);
+          a = OfferSplit(policy, a, lb, rb, low, sub | lowest);
         }
       }
       work += subsets / 2 - 1;
@@ -106,7 +111,7 @@ template <SearchPolicy Policy>
         if (low != 0) a = OfferSubsetsTwoChains(policy, a, lb, rb, low, true, true);
       } else {
         for (RelSet l = (0 - low) & low; l != low; l = (l - low) & low) {
-          SLICEPLAN_OFFER_(l);
+          a = OfferSplit(policy, a, lb, rb, low, l);
         }
       }
       work += subsets - 2;
@@ -115,7 +120,7 @@ template <SearchPolicy Policy>
   }
   if (low == 0) {  // the high parts alone make the split
     if (!left_empty && !right_empty) {
-      SLICEPLAN_OFFER_(RelSet{0});
+      a = OfferSplit(policy, a, lb, rb, low, RelSet{0});
       work += 1;
     }
     return a;
@@ -130,24 +135,22 @@ template <SearchPolicy Policy>
     RelSet l = 0;
     do {
       l = (l - low) & low;
-      SLICEPLAN_OFFER_(l);
+      a = OfferSplit(policy, a, lb, rb, low, l);
     } while (l != low);
     work += subsets - 1;
   } else if (right_empty) {  // right part non-empty: l != low
-    for (RelSet l = 0; l != low; l = (l - low) & low) SLICEPLAN_OFFER_(l);
+    for (RelSet l = 0; l != low; l = (l - low) & low) a = OfferSplit(policy, a, lb, rb, low, l);
     work += subsets - 1;
   } else {
     RelSet l = 0;
     do {
-      SLICEPLAN_OFFER_(l);
+      a = OfferSplit(policy, a, lb, rb, low, l);
       l = (l - low) & low;
     } while (l != 0);
     work += subsets;
   }
   return a;
 }
-
-#undef SLICEPLAN_OFFER_
 
 // Offers the splits of a set with low bits `low` into every block pair of
 // `inner` (both high parts non-empty, so any l from the empty set to all of
