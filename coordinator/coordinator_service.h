@@ -1,5 +1,5 @@
 // The coordinator's gRPC service: turns an OptimizeRequest into slices,
-// runs them on the pool with the shared scheduler (core/slice_scheduler.h)
+// runs them on the pool with the shared scheduler (schedule/slice_scheduler.h)
 // and returns the merged plan; one log line and one metrics record per
 // request. Thread-safe.
 #ifndef SLICEPLAN_COORDINATOR_COORDINATOR_SERVICE_H_

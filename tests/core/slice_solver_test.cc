@@ -8,11 +8,10 @@
 #include <tuple>
 
 #include "gtest/gtest.h"
-#include "schedule/embedded_pool.h"
 #include "tests/support/reference_dp.h"
 #include "tests/support/reference_search.h"
+#include "tests/support/solve_slices.h"
 #include "tests/support/test_queries.h"
-#include "wire/query_proto.h"
 
 namespace sliceplan {
 namespace {
@@ -46,7 +45,7 @@ TEST_P(SliceSolverTest, MergedOptimumEqualsReferenceForEverySliceCount) {
       if (std::countr_zero(p) > MaxSliceBits(c.n, c.shape)) continue;
       SCOPED_TRACE(testing::ShapeName(c.graph) + " n=" + std::to_string(c.n) +
                    " seed=" + std::to_string(seed) + " P=" + std::to_string(p));
-      auto result = OptimizeEmbedded(query, options, p, 2);
+      auto result = testing::SolveAllSlices(query, options, p);
       ASSERT_TRUE(result.ok()) << result.status();
       const Plan& plan = result->plan;
       ExpectNear(want, plan.root().cost);
@@ -114,7 +113,7 @@ TEST_P(SliceSolverLargeTest, MergedOptimumEqualsTheSubsetDpForEverySliceCount) {
         SCOPED_TRACE(std::string(cross ? "cross" : "connected") +
                      (shape == PlanShape::kBushy ? " bushy" : " left-deep") +
                      " P=" + std::to_string(1 << k));
-        auto r = OptimizeEmbedded(query, {shape, cross, CostModelKind::kCout}, 1u << k, 2);
+        auto r = testing::SolveAllSlices(query, {shape, cross, CostModelKind::kCout}, 1u << k);
         ASSERT_TRUE(r.ok()) << r.status();
         ExpectNear(want, r->plan.root().cost);
         ExpectNear(testing::RefCoutOf(query, r->plan), r->plan.root().cost);
@@ -200,49 +199,10 @@ TEST(SliceSolverErrorsTest, DisconnectedGraphWithoutCrossProductsIsNotFound) {
                                               {{0b011, 0.1}});  // c joins nothing
   SearchOptions options;
   options.cross_products = false;
-  auto r = OptimizeEmbedded(query, options, 1, 1);
+  auto r = testing::SolveAllSlices(query, options, 1);
   ASSERT_FALSE(r.ok());
   EXPECT_EQ(r.status().code(), absl::StatusCode::kNotFound);
 }
-
-// TPC-H join graphs (examples/tpch, cardinalities of the TPC-H
-// specification, clause 4.2.5, scale factor 1, from memory): the engine's
-// plan is valid and its cost equals the reference optimum, for both plan
-// shapes, with and without cross products, sliced and not.
-class TpchTest : public ::testing::TestWithParam<const char*> {};
-
-TEST_P(TpchTest, PlanIsValidAndOptimal) {
-  auto query =
-      ReadQueryFile(std::string(SLICEPLAN_SOURCE_DIR) + "/examples/tpch/" + GetParam() + ".json");
-  ASSERT_TRUE(query.ok()) << query.status();
-  for (PlanShape shape : {PlanShape::kBushy, PlanShape::kLeftDeep}) {
-    for (bool cross : {true, false}) {
-      const double want = shape == PlanShape::kBushy ? testing::RefBestBushy(*query, cross)
-                                                     : testing::RefBestLeftDeep(*query, cross);
-      ASSERT_TRUE(std::isfinite(want)) << "the reference found no plan";
-      for (uint32_t p : {1u, 2u, 4u}) {
-        SCOPED_TRACE(std::string(GetParam()) + " P=" + std::to_string(p) +
-                     (cross ? " cross" : " connected"));
-        auto r = OptimizeEmbedded(*query, {shape, cross, CostModelKind::kCout}, p, 2);
-        ASSERT_TRUE(r.ok()) << r.status();
-        EXPECT_LE(std::fabs(r->plan.root().cost - want), 1e-9 * want);
-        EXPECT_TRUE(testing::RefCoversQuery(*query, r->plan));
-        EXPECT_LE(std::fabs(testing::RefCoutOf(*query, r->plan) - want), 1e-9 * want);
-        if (!cross) {
-          EXPECT_TRUE(testing::RefFreeOfCrossProducts(*query, r->plan));
-        }
-        if (shape == PlanShape::kLeftDeep) {
-          EXPECT_TRUE(IsLeftDeep(r->plan));
-        }
-      }
-    }
-  }
-}
-
-INSTANTIATE_TEST_SUITE_P(Queries, TpchTest, ::testing::Values("q5", "q8", "q9"),
-                         [](const ::testing::TestParamInfo<const char*>& param_info) {
-                           return std::string(param_info.param);
-                         });
 
 }  // namespace
 }  // namespace sliceplan

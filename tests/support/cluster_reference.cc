@@ -14,7 +14,8 @@ struct RefPlan {
   bool leaf;
 };
 
-// docs/cost-models.md, "A join stage", transcribed separately from core/.
+// docs/cost-models.md, "`cluster`: stages on a rented cluster", transcribed
+// separately from core/.
 double Stage(const ClusterParams& p, int strategy, int m, const RefPlan& l, double wl,
              const RefPlan& r, double wr, double out_rows) {
   const double bl = l.rows * wl, br = r.rows * wr;

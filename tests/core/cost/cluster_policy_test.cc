@@ -7,11 +7,10 @@
 
 #include "core/slice_solver.h"
 #include "gtest/gtest.h"
-#include "schedule/embedded_pool.h"
 #include "tests/support/cluster_reference.h"
 #include "tests/support/reference_search.h"
+#include "tests/support/solve_slices.h"
 #include "tests/support/test_queries.h"
-#include "wire/query_proto.h"
 
 namespace sliceplan {
 namespace {
@@ -38,7 +37,7 @@ SearchOptions ClusterOptions(std::vector<int> nodes, std::vector<double> rates, 
 }
 
 std::vector<Plan> Frontier(const Query& q, const SearchOptions& o, uint32_t p = 1) {
-  auto r = OptimizeEmbedded(q, o, p, 2);
+  auto r = testing::SolveAllSlices(q, o, p);
   EXPECT_TRUE(r.ok()) << r.status();
   return r.ok() ? r->frontier : std::vector<Plan>{};
 }
@@ -282,29 +281,6 @@ TEST(ClusterSearchTest, MergedFrontierIsTheSameForEverySliceCount) {
                     Near(a.completeness, b.completeness))
             << "P=" << p << " point " << i;
       }
-    }
-  }
-}
-
-TEST(ClusterSearchTest, TpchQ8WithSamplingGivesASortedValidFrontier) {
-  auto q = ReadQueryFile(std::string(SLICEPLAN_SOURCE_DIR) + "/examples/tpch/q8.json");
-  ASSERT_TRUE(q.ok());
-  const SearchOptions o = ClusterOptions({4, 16, 64}, {1.0, 0.1, 0.01}, 1.05);
-  const auto f = Frontier(*q, o, 2);
-  ASSERT_FALSE(f.empty());
-  for (size_t i = 0; i < f.size(); ++i) {
-    EXPECT_TRUE(testing::RefCoversQuery(*q, f[i]));
-    EXPECT_TRUE(Same(testing::RefCostsOf(*q, o.cluster.params, f[i]), f[i].root().metrics));
-    if (i > 0) {
-      EXPECT_LE(f[i - 1].root().metrics.latency_s, f[i].root().metrics.latency_s);
-    }
-    for (size_t j = 0; j < f.size(); ++j) {
-      if (i == j) continue;
-      const ClusterCosts& a = f[j].root().metrics;
-      const ClusterCosts& b = f[i].root().metrics;
-      EXPECT_FALSE(a.latency_s <= b.latency_s && a.node_seconds <= b.node_seconds &&
-                   a.completeness >= b.completeness)
-          << j << " dominates " << i;
     }
   }
 }

@@ -6,7 +6,7 @@
 #include <vector>
 
 #include "gtest/gtest.h"
-#include "schedule/embedded_pool.h"
+#include "tests/support/solve_slices.h"
 #include "tests/support/test_queries.h"
 
 namespace sliceplan {
@@ -28,7 +28,7 @@ Query Example() {
 }
 
 TEST(CoutPolicyTest, HandComputedOptimum) {
-  auto r = OptimizeEmbedded(Example(), {}, 1, 1);
+  auto r = testing::SolveAllSlices(Example(), {}, 1);
   ASSERT_TRUE(r.ok());
   EXPECT_DOUBLE_EQ(r->plan.root().cost, 11000);
   EXPECT_DOUBLE_EQ(r->plan.root().cardinality, 10000);
@@ -49,7 +49,7 @@ TEST(CoutPolicyTest, ReportedCardinalitiesAndCostsMatchTheHandComputation) {
                                          {0b111, 10000}};
   for (PlanShape shape : {PlanShape::kBushy, PlanShape::kLeftDeep}) {
     for (uint32_t p : {1u, 2u}) {
-      auto r = OptimizeEmbedded(Example(), {shape, true, CostModelKind::kCout}, p, 1);
+      auto r = testing::SolveAllSlices(Example(), {shape, true, CostModelKind::kCout}, p);
       ASSERT_TRUE(r.ok());
       std::vector<double> want(r->plan.nodes.size());
       for (size_t i = 0; i < r->plan.nodes.size(); ++i) {

@@ -10,7 +10,7 @@
 #include "core/model/cardinality.h"
 #include "core/model/plan.h"
 #include "gtest/gtest.h"
-#include "schedule/embedded_pool.h"
+#include "tests/support/solve_slices.h"
 #include "tests/support/test_queries.h"
 
 namespace sliceplan {
@@ -63,7 +63,7 @@ TEST(ValueRangeTest, SaturatedSubPlansLoseToExactOnes) {
   for (PlanShape shape : {PlanShape::kBushy, PlanShape::kLeftDeep}) {
     for (uint32_t p : {1u, 2u}) {
       SearchOptions options{shape, true, CostModelKind::kCout};
-      auto r = OptimizeEmbedded(q, options, p, 2);
+      auto r = testing::SolveAllSlices(q, options, p);
       ASSERT_TRUE(r.ok()) << r.status();
       EXPECT_NEAR(r->plan.root().cost, 2.0, 1e-9);
       const std::string tree = TreeString(r->plan, q);
@@ -75,7 +75,7 @@ TEST(ValueRangeTest, SaturatedSubPlansLoseToExactOnes) {
 
 void ExpectOutOfRange(const Query& q, SearchOptions options, const std::string& names) {
   for (uint32_t p : {1u, 2u}) {
-    auto r = OptimizeEmbedded(q, options, p, 2);
+    auto r = testing::SolveAllSlices(q, options, p);
     ASSERT_FALSE(r.ok());
     EXPECT_EQ(r.status().code(), absl::StatusCode::kOutOfRange) << r.status();
     EXPECT_NE(r.status().message().find(names), std::string::npos) << r.status();

@@ -1,0 +1,109 @@
+// The tiers behind one request (schedule/tiered_search.h), over the
+// embedded pool: a forced tier answers with a valid plan of its own (or
+// greedy's, where that is cheaper);
+// exact is the optimum of the subset DP; auto is exact when it fits and
+// never costlier than greedy when it does not; refusals name the reason.
+#include "schedule/tiered_search.h"
+
+#include <string>
+
+#include "gtest/gtest.h"
+#include "schedule/embedded_pool.h"
+#include "tests/support/reference_dp.h"
+#include "tests/support/test_queries.h"
+#include "tests/support/wide_queries.h"
+#include "tiers/wide_plan.h"
+
+namespace sliceplan {
+namespace {
+
+using testing::GraphShape;
+
+SearchOptions Bushy(bool cross_products) {
+  SearchOptions options;
+  options.cross_products = cross_products;
+  return options;
+}
+
+absl::StatusOr<TieredOutcome> Tiers(const WideQuery& q, const SearchOptions& options,
+                                    SearchTier tier, double budget = 10) {
+  TierRequest request;
+  request.tier = tier;
+  request.budget_seconds = budget;
+  return RunEmbeddedTiers(q, options, request, 2);
+}
+
+TEST(TieredSearchTest, AForcedTierAnswersWithAValidPlan) {
+  for (bool cross : {true, false}) {
+    const Query exact = testing::MakeQuery(GraphShape::kRandom, 12, 4);
+    const WideQuery q = WideQuery::FromExact(exact);
+    const double best = testing::DpBestBushy(exact, cross);
+    for (SearchTier tier :
+         {SearchTier::kGreedy, SearchTier::kLinear, SearchTier::kIdp, SearchTier::kExact}) {
+      SCOPED_TRACE(TierName(tier) + (cross ? " cross" : " connected"));
+      auto out = Tiers(q, Bushy(cross), tier);
+      ASSERT_TRUE(out.ok()) << out.status();
+      // The answer is the cheapest plan found, greedy's included (idp and
+      // linear start from it), named by the tier that found it.
+      if (tier == SearchTier::kLinear || tier == SearchTier::kIdp) {
+        EXPECT_TRUE(out->tier == tier || out->tier == SearchTier::kGreedy) << TierName(out->tier);
+      } else {
+        EXPECT_EQ(out->tier, tier);
+      }
+      EXPECT_TRUE(CheckWidePlan(out->plan, q.size()).ok());
+      EXPECT_GE(out->plan.cost(), best * (1 - 1e-12));  // nothing beats the optimum
+      if (tier == SearchTier::kExact) {
+        EXPECT_TRUE(out->proven_optimal);
+        EXPECT_NEAR(out->plan.cost(), best, best * 1e-12);
+      }
+    }
+  }
+}
+
+TEST(TieredSearchTest, AutoRunsTheExactSearchWhenItFits) {
+  const Query exact = testing::MakeQuery(GraphShape::kChain, 10, 1);
+  auto out = Tiers(WideQuery::FromExact(exact), Bushy(true), SearchTier::kAuto);
+  ASSERT_TRUE(out.ok()) << out.status();
+  EXPECT_EQ(out->tier, SearchTier::kExact) << out->reason;
+  EXPECT_TRUE(out->proven_optimal);
+  const double best = testing::DpBestBushy(exact, true);
+  EXPECT_NEAR(out->plan.cost(), best, best * 1e-12);
+}
+
+TEST(TieredSearchTest, AutoPastTheExactReachIsNeverCostlierThanGreedy) {
+  const WideQuery q = testing::MakeWideQuery(testing::WideShape::kSnowflake, 120, 3);
+  auto out = Tiers(q, Bushy(true), SearchTier::kAuto, 2);
+  ASSERT_TRUE(out.ok()) << out.status();
+  EXPECT_NE(out->tier, SearchTier::kExact);
+  EXPECT_FALSE(out->proven_optimal);
+  EXPECT_TRUE(CheckWidePlan(out->plan, q.size()).ok());
+  auto greedy = Tiers(q, Bushy(true), SearchTier::kGreedy);
+  ASSERT_TRUE(greedy.ok());
+  EXPECT_LE(out->plan.cost(), greedy->plan.cost());
+  EXPECT_LE(out->plan.cost(), out->start_cost);
+}
+
+TEST(TieredSearchTest, RefusalsNameTheReason) {
+  const WideQuery q = WideQuery::FromExact(testing::MakeQuery(GraphShape::kStar, 8, 2));
+  SearchOptions left_deep = Bushy(true);
+  left_deep.shape = PlanShape::kLeftDeep;
+  auto idp = Tiers(q, left_deep, SearchTier::kIdp);
+  EXPECT_EQ(idp.status().code(), absl::StatusCode::kInvalidArgument) << idp.status();
+  SearchOptions cluster = Bushy(true);
+  cluster.cost = CostModelKind::kCluster;
+  auto greedy = Tiers(q, cluster, SearchTier::kGreedy);
+  EXPECT_EQ(greedy.status().code(), absl::StatusCode::kInvalidArgument) << greedy.status();
+  const WideQuery apart = testing::MakeWideQuery(testing::WideShape::kTree, 80, 1);
+  auto exact = Tiers(apart, Bushy(true), SearchTier::kExact);
+  EXPECT_EQ(exact.status().code(), absl::StatusCode::kInvalidArgument) << exact.status();
+  EXPECT_NE(exact.status().message().find("64"), std::string::npos) << exact.status();
+}
+
+TEST(TieredSearchTest, ADisconnectedGraphWithoutCrossProductsIsNotFound) {
+  const Query two = testing::MakeQueryOrDie({{"quays", 10, 8}, {"tugs", 20, 8}}, {});
+  auto out = Tiers(WideQuery::FromExact(two), Bushy(false), SearchTier::kAuto);
+  EXPECT_EQ(out.status().code(), absl::StatusCode::kNotFound) << out.status();
+}
+
+}  // namespace
+}  // namespace sliceplan
