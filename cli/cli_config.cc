@@ -201,8 +201,8 @@ std::vector<FlagRow> ClusterRows(ClusterSearchConfig& cluster) {
   };
 }
 
-// optimize's rows on how and where the search runs.
-std::vector<FlagRow> RunRows(OptimizeConfig& config) {
+// optimize's rows on where the search runs: slices, workers, threads.
+std::vector<FlagRow> PlacementRows(OptimizeConfig& config) {
   return {
       {"slices", "P", "chosen from the query and the worker count", "slice count, a power of two",
        [&config](const std::string& v) {
@@ -226,6 +226,12 @@ std::vector<FlagRow> RunRows(OptimizeConfig& config) {
        }},
       {"coordinator", "HOST:PORT", "", "solve on a running coordinator",
        OptionalText("coordinator", config.coordinator, "HOST:PORT")},
+  };
+}
+
+// optimize's rows on how the search runs and what it prints.
+std::vector<FlagRow> RunRows(OptimizeConfig& config) {
+  return {
       {"format", "text|json|dot", "text", "output",
        OneOf<OutputFormat>("format", config.format,
                            {{"text", OutputFormat::kText},
@@ -286,6 +292,7 @@ CommandTable OptimizeTable(OptimizeConfig& config) {
         OneOf<CostModelKind>("cost", config.search.cost,
                              {{"cout", CostModelKind::kCout}, {"cluster", CostModelKind::kCluster}},
                              "cout or cluster")}});
+  Append(table.flags, PlacementRows(config));
   Append(table.flags, RunRows(config));
   Append(table.flags, ClusterRows(config.search.cluster));
   Append(table.flags, ConnectionRows(config.tls, config.token_file));

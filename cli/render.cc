@@ -221,7 +221,7 @@ void AppendSliceTable(const TieredOutcome& outcome, const RunInfo& info, std::st
                         info.workers, outcome.wall_seconds);
   absl::StrAppendFormat(&out, "  %-6s %14s %16s %10s\n", "slice", "subsets", "splits", "seconds");
   for (const SliceResult& s : result.slices) {
-    absl::StrAppendFormat(&out, "  %-6u %14u %16u %10.4f%s\n", s.slice.index, s.stats.subsets,
+    absl::StrAppendFormat(&out, "  %-6u %14u %16u %10.4f%s\n", s.slice.index, s.stats.memo_entries,
                           s.stats.splits, s.stats.seconds,
                           s.slice.index == result.best_slice ? "  <- best plan" : "");
   }
@@ -314,7 +314,7 @@ std::string RenderJson(const TieredOutcome& outcome, const RunInfo& info) {
   for (size_t i = 0; i < result.slices.size(); ++i) {
     const SliceResult& s = result.slices[i];
     absl::StrAppend(
-        &out, "      {\"index\": ", s.slice.index, ", \"subsets\": ", s.stats.subsets,
+        &out, "      {\"index\": ", s.slice.index, ", \"subsets\": ", s.stats.memo_entries,
         ", \"splits\": ", s.stats.splits, ", \"seconds\": ", JsonNumber(s.stats.seconds),
         ", \"memo_bytes\": ", s.stats.memo_bytes, "}", i + 1 < result.slices.size() ? ",\n" : "\n");
   }

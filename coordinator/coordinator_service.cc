@@ -66,7 +66,7 @@ void LogRequest(const std::string& request_id, const RequestFacts& facts,
       .Add("relations", facts.relations)
       .Add("tier", TierName(outcome.ok() ? outcome->tier : facts.asked))
       .Add("workers", facts.workers)
-      .Add("slots", facts.slots);
+      .Add("concurrent_slices", facts.concurrent_slices);
   if (outcome.ok()) {
     line.Add("proven_optimal", outcome->proven_optimal)
         .Add("slices", outcome->schedule.result.slices.size())
@@ -101,7 +101,7 @@ absl::Status CheckOptionsWithinLimits(const SearchOptions& options, const InputL
 }
 
 // The workers a search is given: the healthy ones of `pool` in order, at
-// most `max_workers` of them (0: no limit), counted with their slots in
+// most `max_workers` of them (0: no limit), counted with their concurrent slices in
 // `facts`, then every unhealthy one: the scheduler skips them (and uses
 // them if they recover), and names them if nothing is left.
 std::vector<SliceWorker*> WorkersForSearch(const std::vector<std::shared_ptr<RpcWorker>>& pool,
@@ -111,7 +111,7 @@ std::vector<SliceWorker*> WorkersForSearch(const std::vector<std::shared_ptr<Rpc
     if (max_workers != 0 && workers.size() >= max_workers) break;
     if (!w->Healthy()) continue;
     workers.push_back(w.get());
-    facts.slots += w->Slots();
+    facts.concurrent_slices += w->ConcurrentSlices();
   }
   facts.workers = workers.size();
   for (const auto& w : pool) {
@@ -352,7 +352,7 @@ grpc::Status CoordinatorService::ListWorkers(grpc::ServerContext* context,
     const WorkerCounters c = w->counters();
     s->set_address(w->Name());
     s->set_healthy(w->Healthy());
-    s->set_concurrent_slices(static_cast<uint32_t>(w->Slots()));
+    s->set_concurrent_slices(static_cast<uint32_t>(w->ConcurrentSlices()));
     s->set_threads_per_slice(static_cast<uint32_t>(w->ThreadsPerSlice()));
     s->set_slices_solved(c.solved);
     s->set_failures(c.failures);

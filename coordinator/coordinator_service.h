@@ -24,7 +24,7 @@
 namespace sliceplan {
 
 struct CoordinatorConfig {
-  // Hedge a slice running this long while a slot is free; none: never.
+  // Hedge a slice running this long while a worker has a slice free; none: never.
   std::optional<std::chrono::milliseconds> hedge_after = std::chrono::milliseconds(2000);
   // Answer this long before the call's deadline, to get the answer back in time.
   std::chrono::milliseconds deadline_margin{50};
@@ -48,7 +48,7 @@ struct RequestFacts {
   SearchTier asked = SearchTier::kAuto;
   CostModelKind cost = CostModelKind::kCout;
   size_t workers = 0;         // healthy workers used
-  int slots = 0;              // their slices at once
+  int concurrent_slices = 0;  // their slices at once
   double search_seconds = 0;  // from admission to the answer
 };
 

@@ -118,7 +118,7 @@ void RpcWorker::CheckHealth(std::chrono::milliseconds timeout) {
   describe_context.set_deadline(std::chrono::system_clock::now() + timeout);
   v1::DescribeWorkerResponse info;
   if (stub_->DescribeWorker(&describe_context, v1::DescribeWorkerRequest(), &info).ok()) {
-    slots_ = std::max(1, static_cast<int>(info.concurrent_slices()));
+    concurrent_slices_ = std::max(1, static_cast<int>(info.concurrent_slices()));
     threads_per_slice_ = std::max(1, static_cast<int>(info.threads_per_slice()));
   }
 }

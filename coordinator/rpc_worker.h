@@ -1,8 +1,8 @@
 // A remote worker as the scheduler sees it (slice_worker.h): one gRPC
 // channel to a sliceplan-worker, calls as asynchronous SolveSlice RPCs, and
 // health from the standard grpc.health.v1 check plus DescribeWorker (for
-// its slot count). Until the first check it counts as healthy with one
-// slot. Thread-safe.
+// its concurrent slices). Until the first check it counts as healthy with
+// one concurrent slice. Thread-safe.
 #ifndef SLICEPLAN_COORDINATOR_RPC_WORKER_H_
 #define SLICEPLAN_COORDINATOR_RPC_WORKER_H_
 
@@ -37,13 +37,13 @@ class RpcWorker : public SliceWorker {
                      const std::string& tls_name = "");
 
   std::string Name() const override { return address_; }
-  int Slots() const override { return slots_.load(); }
+  int ConcurrentSlices() const override { return concurrent_slices_.load(); }
   int ThreadsPerSlice() const override { return threads_per_slice_.load(); }
   bool Healthy() const override { return healthy_.load(); }
   std::unique_ptr<SliceCall> Start(const SliceTask& task, SliceDone done) override;
 
   // Runs the health check and DescribeWorker with `timeout`; updates
-  // Healthy() and Slots().
+  // Healthy() and ConcurrentSlices().
   void CheckHealth(std::chrono::milliseconds timeout) ABSL_LOCKS_EXCLUDED(mu_);
   WorkerCounters counters() const ABSL_LOCKS_EXCLUDED(mu_);
 
@@ -55,7 +55,7 @@ class RpcWorker : public SliceWorker {
   std::unique_ptr<v1::SliceWorker::Stub> stub_;
   std::unique_ptr<grpc::health::v1::Health::Stub> health_;
   std::atomic<bool> healthy_{true};
-  std::atomic<int> slots_{1};
+  std::atomic<int> concurrent_slices_{1};
   std::atomic<int> threads_per_slice_{1};
   mutable absl::Mutex mu_;
   WorkerCounters counters_ ABSL_GUARDED_BY(mu_);

@@ -39,12 +39,12 @@ struct OptimizeResult {
 absl::StatusOr<OptimizeResult> MergeSlices(std::vector<SliceResult> slices, uint32_t slice_count,
                                            Objectives objectives = {});
 
-// As MergeSlices over the slices that were solved (a deadline passed before
-// the rest): any subset of distinct slices, at least one of them with a
-// plan. The result is the best plan found so far, not proven optimal.
 // Names the frontier plan `rule` picks (OptimizeResult::chosen).
 void ApplyChoice(OptimizeResult& result, const ChoiceRule& rule);
 
+// As MergeSlices over the slices that were solved (a deadline passed before
+// the rest): any subset of distinct slices, at least one of them with a
+// plan. The result is the best plan found so far, not proven optimal.
 absl::StatusOr<OptimizeResult> MergeSolvedSlices(std::vector<SliceResult> slices,
                                                  uint32_t slice_count, Objectives objectives = {});
 

@@ -163,7 +163,7 @@ class SliceSearch {
   absl::Status RunDense(SearchControl& control) {
     const uint64_t slots = layout_->slot_count();
     policy_.Resize(slots);
-    stats_.subsets = slots;
+    stats_.memo_entries = slots;
     stats_.memo_bytes = slots * Policy::kBytesPerSlot;
     // The enumerators see the renumbered constraints through the layout.
     if (options_.shape == PlanShape::kLeftDeep) {
@@ -205,8 +205,8 @@ class SliceSearch {
       memo_.emplace(strategy.connected ? std::move(*strategy.connected)
                                        : DirectMemo(working_.size()));
     }
-    // Every split tested reads the sets in mask order; the pairs walk
-    // takes cardinalities from operands (connected_pull.h).
+    // Every split tested reads the sets in mask order; the ccp walks take
+    // cardinalities from operands (connected_pull.h).
     if constexpr (ScatteredLayout<Policy>) {
       if (strategy.method != ConnectedMethod::kPullEverySplit) policy_.UseScatteredLayout();
     }
@@ -214,13 +214,13 @@ class SliceSearch {
       if constexpr (!Memo::kGrows) policy_.Resize(memo.slot_count());
       if constexpr (std::is_same_v<Memo, DirectMemo>) {
         if (pulled) {
-          status = RunSubsets(memo, control, walk ? &*walk : nullptr);
+          status = RunPulled(memo, control, walk ? &*walk : nullptr);
           return;
         }
       }
-      status = RunPairs(graph, memo, control);
+      status = RunPushed(graph, memo, control);
     });
-    stats_.subsets = memo_->size();
+    stats_.memo_entries = memo_->size();
     // (The walk's copy of the connected sets' bits counts too.)
     stats_.memo_bytes =
         memo_->direct()
@@ -235,9 +235,9 @@ class SliceSearch {
     return status;
   }
 
-  // Sets pulled in mask order: every split tested, or (walk given) the
-  // pairs walked.
-  absl::Status RunSubsets(DirectMemo& memo, SearchControl& control, const SetCcpWalk* walk) {
+  // Sets pulled in mask order: every split tested, or (walk given) each
+  // set's csg-cmp pairs walked.
+  absl::Status RunPulled(DirectMemo& memo, SearchControl& control, const SetCcpWalk* walk) {
     if constexpr (Policy::kParallelDense) {
       if (working_.size() >= 7 && Threaded(memo.slot_count())) {
         return RunConnectedPullThreaded(working_.size(), constraints_, policy_, memo, control,
@@ -248,7 +248,7 @@ class SliceSearch {
   }
 
   template <class Memo>
-  absl::Status RunPairs(const JoinGraph& graph, Memo& memo, SearchControl& control) {
+  absl::Status RunPushed(const JoinGraph& graph, Memo& memo, SearchControl& control) {
     if (options_.shape == PlanShape::kBushy) {
       return ConnectedPush<Policy, Memo>(working_.size(), graph, card_, constraints_, policy_, memo,
                                          control, stats_)

@@ -131,7 +131,7 @@ class Run {
     }
   }
 
-  // Picks work for every free slot: the pending slices, then hedges.
+  // Picks work for every worker with a slice free: the pending slices, then hedges.
   std::vector<Attempt*> Dispatch() ABSL_EXCLUSIVE_LOCKS_REQUIRED(mu_) {
     std::vector<Attempt*> picked;
     for (;;) {
@@ -150,7 +150,7 @@ class Run {
   }
 
   // A second copy of the oldest lone slice that has run longer than
-  // hedge_after, on a free slot of another worker; null when none.
+  // hedge_after, on another worker with a slice free; null when none.
   Attempt* TryHedge() ABSL_EXCLUSIVE_LOCKS_REQUIRED(mu_) {
     if (!schedule_.hedge_after) return nullptr;
     const auto now = Clock::now();
@@ -165,13 +165,13 @@ class Run {
     return nullptr;
   }
 
-  // A usable worker with a free slot, preferring one other than `avoid`,
+  // A usable worker with a slice free, preferring one other than `avoid`,
   // and the least busy.
   std::optional<size_t> FreeWorker(std::optional<size_t> avoid = {}) const
       ABSL_EXCLUSIVE_LOCKS_REQUIRED(mu_) {
     std::optional<size_t> best;
     for (size_t w = 0; w < workers_.size(); ++w) {
-      if (!Usable(w) || busy_[w] >= workers_[w]->Slots()) continue;
+      if (!Usable(w) || busy_[w] >= workers_[w]->ConcurrentSlices()) continue;
       if (avoid && w == *avoid) continue;
       if (!best || busy_[w] < busy_[*best]) best = w;
     }
@@ -188,7 +188,7 @@ class Run {
     return false;
   }
 
-  // Books a slot for `slice` on worker w; the call starts in StartCalls.
+  // Books one of worker w's concurrent slices for `slice`; the call starts in StartCalls.
   Attempt* NewAttempt(uint32_t slice, size_t w) ABSL_EXCLUSIVE_LOCKS_REQUIRED(mu_) {
     attempts_.push_back(std::make_unique<Attempt>(Attempt{slice, w, Clock::now(), nullptr}));
     ++busy_[w];
@@ -386,24 +386,25 @@ absl::Status CheckCanFinish(const Query& query, const SearchOptions& options, ui
   if (!schedule.deadline || schedule.partial_on_deadline || !options.cross_products) {
     return absl::OkStatus();
   }
-  int slots = 0;
-  for (SliceWorker* w : workers) slots += w->Healthy() ? w->Slots() : 0;
-  if (slots == 0) return absl::OkStatus();  // the run reports the pool
+  int concurrent = 0;
+  for (SliceWorker* w : workers) concurrent += w->Healthy() ? w->ConcurrentSlices() : 0;
+  if (concurrent == 0) return absl::OkStatus();  // the run reports the pool
   const int k = std::countr_zero(slice_count);
   double per_split = kFastestSplitSeconds;
   if (options.cost == CostModelKind::kCluster) {
     per_split *= 3.0 * static_cast<double>(options.cluster.params.node_counts.size());
   }
-  const double rounds = std::ceil(static_cast<double>(slice_count) / slots);
+  const double rounds = std::ceil(static_cast<double>(slice_count) / concurrent);
   const double splits = DenseSplits(query.size(), options.shape, k, true);
   const double at_least = rounds * splits * per_split;
   const double allowed = std::chrono::duration<double>(*schedule.deadline - Clock::now()).count();
   if (at_least <= allowed) return absl::OkStatus();
   return absl::DeadlineExceededError(absl::StrFormat(
-      "refused up front: %u slices of %.3g splits each on %d worker slots need at least "
+      "refused up front: %u slices of %.3g splits each on %d concurrent worker slices need at "
+      "least "
       "%.3g s, and the deadline allows %.3g s; use more workers, a later deadline, or "
       "partial_on_deadline",
-      slice_count, splits, slots, at_least, std::max(0.0, allowed)));
+      slice_count, splits, concurrent, at_least, std::max(0.0, allowed)));
 }
 
 absl::StatusOr<ScheduleOutcome> RunSlices(const Query& query, const SearchOptions& options,

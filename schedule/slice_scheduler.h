@@ -1,6 +1,6 @@
 // The coordinator's scheduling and merging path, shared by the embedded
 // mode and the RPC coordinator: queue the P slices, hand the next one to
-// whichever worker slot frees up, re-dispatch a slice whose worker fails,
+// whichever worker has a slice free, re-dispatch a slice whose worker fails,
 // hedge a straggler with a second copy, enforce the deadline, merge.
 //
 // Invariants:
@@ -42,7 +42,7 @@ struct ScheduleProgress {
 };
 
 struct ScheduleOptions {
-  // Start a second copy of a slice that has run this long while a slot is
+  // Start a second copy of a slice that has run this long while a worker has a slice
   // free and no slice waits; none: never hedge.
   std::optional<std::chrono::steady_clock::duration> hedge_after;
   std::optional<std::chrono::steady_clock::time_point> deadline;

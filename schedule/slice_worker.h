@@ -1,5 +1,5 @@
 // What the coordinator's scheduler talks to: something that solves one
-// slice at a time per slot, in this process (local_worker.h) or over RPC
+// slice at a time per concurrent slice, in this process (local_worker.h) or over RPC
 // (coordinator/rpc_worker.h). Slices are deterministic and idempotent, so a
 // slice may be run twice (a retry, a hedge) and either answer used.
 #ifndef SLICEPLAN_SCHEDULE_SLICE_WORKER_H_
@@ -43,7 +43,7 @@ class SliceWorker {
   virtual ~SliceWorker() = default;
   virtual std::string Name() const = 0;
   // Slices it solves at once.
-  virtual int Slots() const { return 1; }
+  virtual int ConcurrentSlices() const { return 1; }
   // Threads the worker puts on one slice (sharing its memo).
   virtual int ThreadsPerSlice() const { return 1; }
   // False while health checks fail; the scheduler skips it.

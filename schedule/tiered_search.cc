@@ -33,12 +33,12 @@ SearchOptions ForecastOptions(const SearchOptions& options, std::span<SliceWorke
   return out;
 }
 
-int PoolSlots(std::span<SliceWorker* const> workers) {
-  int slots = 0;
+int PoolConcurrentSlices(std::span<SliceWorker* const> workers) {
+  int concurrent = 0;
   for (SliceWorker* w : workers) {
-    if (w->Healthy()) slots += w->Slots();
+    if (w->Healthy()) concurrent += w->ConcurrentSlices();
   }
-  return std::max(1, slots);
+  return std::max(1, concurrent);
 }
 
 // The tier checks that need no search.
@@ -84,7 +84,7 @@ class TierRun {
         start_(Clock::now()),
         deadline_(std::min(schedule.deadline.value_or(Clock::time_point::max()),
                            SteadyAfter(request.budget_seconds))),
-        slots_(PoolSlots(workers)) {}
+        concurrent_slices_(PoolConcurrentSlices(workers)) {}
 
   absl::StatusOr<TieredOutcome> Run() {
     const SearchTier tier = request_.tier;
@@ -137,8 +137,9 @@ class TierRun {
   // The exact tier forced, or the cluster model: the scheduler's rules.
   absl::StatusOr<TieredOutcome> ExactAlone() {
     ASSIGN_OR_RETURN(const Query exact, ToExactQuery(query_));
-    const uint32_t p = request_.slice_count != 0 ? request_.slice_count
-                                                 : ChooseSliceCount(exact, options_, slots_);
+    const uint32_t p = request_.slice_count != 0
+                           ? request_.slice_count
+                           : ChooseSliceCount(exact, options_, concurrent_slices_);
     ASSIGN_OR_RETURN(ScheduleOutcome outcome, RunSlices(exact, options_, p, workers_, schedule_));
     out_.tier = SearchTier::kExact;
     out_.proven_optimal = outcome.proven_optimal;
@@ -173,14 +174,15 @@ class TierRun {
   absl::StatusOr<bool> TryExact() {
     ASSIGN_OR_RETURN(const Query exact, ToExactQuery(query_));
     const double remaining = Remaining();
-    const ExactForecast f = ForecastExact(exact, ForecastOptions(options_, workers_), slots_,
-                                          request_.rates, request_.slice_count);
+    const ExactForecast f = ForecastExact(exact, ForecastOptions(options_, workers_),
+                                          concurrent_slices_, request_.rates, request_.slice_count);
     out_.forecast = f;
     if (!(f.seconds <= kExactShare * remaining)) {
       reason_ = absl::StrFormat(
-          "the exact search was predicted %.3g s%s on %d slots, past %.0f%% of the %.3g s left",
-          f.seconds, f.estimated ? " (connected sets sampled)" : "", slots_, 100 * kExactShare,
-          remaining);
+          "the exact search was predicted %.3g s%s on %d concurrent slices, past %.0f%% of the "
+          "%.3g s left",
+          f.seconds, f.estimated ? " (connected sets sampled)" : "", concurrent_slices_,
+          100 * kExactShare, remaining);
       return false;
     }
     ScheduleOptions schedule = schedule_;
@@ -208,8 +210,9 @@ class TierRun {
       Offer(FromExactPlan(outcome->result.plan), SearchTier::kExact);
     }
     reason_ = proven
-                  ? absl::StrFormat("exact: predicted %.3g s on %d slots, within the %.3g s left",
-                                    f.seconds, slots_, remaining)
+                  ? absl::StrFormat(
+                        "exact: predicted %.3g s on %d concurrent slices, within the %.3g s left",
+                        f.seconds, concurrent_slices_, remaining)
                   : absl::StrFormat(
                         "exact (predicted %.3g s) cut short by the deadline with "
                         "%.0f%% of the slices solved",
@@ -224,15 +227,14 @@ class TierRun {
   // products, the growth of 3^k; x2 without, a tree block's 2^k bound),
   // fits the blocks still to come (about two passes' worth, less those
   // `searched` so far). The largest block grows with the pool:
-  // 13 relations with cross products and 16 without on one slot, one more
-  // for every factor of the growth in slots, since a block's slices spread
-  // over them. (With cross products: 14 took 1.2-1.6x the time of 13 at
-  // 1,000 relations for the same median cost, 12 lost 1-2.5% of it, 18
-  // took 20x the time at 100 relations; docs/benchmarks.md.)
+  // 13 relations with cross products and 16 without on one concurrent
+  // slice, one more for every factor of the growth in concurrent slices,
+  // since a block's slices spread over them (the caps' measurements:
+  // docs/benchmarks.md).
   int NextBlock(int last, double seconds, int searched) {
     const double growth = options_.cross_products ? 3.0 : 2.0;
-    const int pool_extra =
-        static_cast<int>(std::floor(std::log(static_cast<double>(slots_)) / std::log(growth)));
+    const int pool_extra = static_cast<int>(
+        std::floor(std::log(static_cast<double>(concurrent_slices_)) / std::log(growth)));
     const int most =
         std::min({query_.size(), (options_.cross_products ? 13 : 16) + pool_extra, kMaxRelations});
     const double remaining = 0.8 * Remaining();
@@ -260,7 +262,7 @@ class TierRun {
       schedule.deadline = deadline_;
       schedule.partial_on_deadline = false;
       schedule.on_progress = nullptr;
-      const uint32_t p = ChooseSliceCount(block, block_options, slots_);
+      const uint32_t p = ChooseSliceCount(block, block_options, concurrent_slices_);
       ASSIGN_OR_RETURN(ScheduleOutcome o, RunSlices(block, block_options, p, workers_, schedule));
       ScheduleOutcome& all = out_.schedule;
       for (size_t i = 0; i < o.result.slices.size(); ++i) {
@@ -295,7 +297,7 @@ class TierRun {
   const ScheduleOptions& schedule_;
   const Clock::time_point start_;
   const Clock::time_point deadline_;
-  const int slots_;
+  const int concurrent_slices_;
   TieredOutcome out_;
   std::string reason_;
 };

@@ -42,9 +42,9 @@
 namespace sliceplan {
 
 // auto runs the linear tier as a second incumbent up to this many
-// relations, the linear tier's own limit (its O(n^3) DP takes ~0.1 s at
-// 300 here, ~0.3 s at 1,000; a deadline cuts it short, and greedy's plan
-// stands). Greedy alone is often several times costlier at 1,000
+// relations, the linear tier's own limit (its O(n^3) DP takes a fraction
+// of a second there; a deadline cuts it short, and greedy's plan stands).
+// Greedy alone is often several times costlier at that size
 // (docs/benchmarks.md).
 inline constexpr int kAutoLinearRelations = kMaxLinearRelations;
 inline constexpr double kDefaultBudgetSeconds = 10;

@@ -396,7 +396,7 @@ absl::StatusOr<Plan> PlanFromProto(const v1::Plan& m, const Query& query, CostMo
 v1::SliceStats SliceStatsToProto(const SliceResult& r) {
   v1::SliceStats m;
   m.set_index(r.slice.index);
-  m.set_subsets(r.stats.subsets);
+  m.set_subsets(r.stats.memo_entries);
   m.set_splits(r.stats.splits);
   m.set_seconds(r.stats.seconds);
   m.set_memo_bytes(r.stats.memo_bytes);

@@ -28,18 +28,21 @@ double ThreadSpeedup(const SearchOptions& options, bool pulled) {
   return 1 + kThreadEfficiency * (options.threads - 1);
 }
 
-ExactForecast ForecastExact(const Query& query, const SearchOptions& options, int slots,
+ExactForecast ForecastExact(const Query& query, const SearchOptions& options, int concurrent_slices,
                             const MachineRates& rates, uint32_t slices) {
-  return ForecastExact(query, options, MeasureExactWork(query, options), slots, rates, slices);
+  return ForecastExact(query, options, MeasureExactWork(query, options), concurrent_slices, rates,
+                       slices);
 }
 
 ExactForecast ForecastExact(const Query& query, const SearchOptions& options, const ExactWork& work,
-                            int slots, const MachineRates& rates, uint32_t slices) {
+                            int concurrent_slices, const MachineRates& rates, uint32_t slices) {
   ExactForecast out;
-  slots = std::max(1, slots);
-  out.slices = slices != 0 ? slices : ChooseSliceCount(query, options, slots, work.connected_sets);
+  concurrent_slices = std::max(1, concurrent_slices);
+  out.slices = slices != 0
+                   ? slices
+                   : ChooseSliceCount(query, options, concurrent_slices, work.connected_sets);
   const int k = std::countr_zero(out.slices);
-  const double rounds = std::ceil(static_cast<double>(out.slices) / slots);
+  const double rounds = std::ceil(static_cast<double>(out.slices) / concurrent_slices);
   const int n = query.size();
   double unit_seconds = 0;
   bool pulled = false;  // a connected-only search in pull order (threads)

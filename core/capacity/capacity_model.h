@@ -25,19 +25,18 @@ namespace sliceplan {
 inline constexpr double kExactShare = 0.6;
 
 struct MachineRates {
-  // One split of the dense kernel (0.9 ns unsliced, 1.2 ns in a slice of
-  // P = 8 to 16 measured, RelWithDebInfo, two accumulators).
+  // One split of the dense kernel (a default between its unsliced and its
+  // sliced rate on the reference machine, docs/benchmarks.md).
   double dense_split_seconds = 1.1e-9;
   // One connected set of the connected-only search, its pairs included
-  // (1-14 us measured over stars, cycles, cliques and random graphs
-  // before the direct memo; now measured per query, rate_calibration.h).
+  // (a default only: measured per query, rate_calibration.h).
   double connected_set_seconds = 8e-6;
   // A round trip of one slice call (scheduling, the call, the merge).
   double slice_overhead_seconds = 0.2e-3;
 };
 
 // The size of the whole (unsliced) exact search, which does not depend on
-// the pool: computed once, then forecast for any number of slots.
+// the pool: computed once, then forecast for any number of concurrent slices.
 struct ExactWork {
   double connected_sets = 0;  // without cross products
   bool estimated = false;     // connected sets sampled, not counted
@@ -62,16 +61,17 @@ struct ExactForecast {
 inline constexpr double kThreadEfficiency = 0.75;
 double ThreadSpeedup(const SearchOptions& options, bool pulled = false);
 
-// The exact search of `query` on `slots` slice slots at once (each slice
+// The exact search of `query` on `concurrent_slices` slices at once (each slice
 // on options.threads threads), P chosen by ChooseSliceCount unless
 // `slices` (a power of two) is given.
-ExactForecast ForecastExact(const Query& query, const SearchOptions& options, int slots,
+ExactForecast ForecastExact(const Query& query, const SearchOptions& options, int concurrent_slices,
                             const MachineRates& rates = {}, uint32_t slices = 0);
 // The same from work measured once (MeasureExactWork of the same query
 // and options): no connected set is counted again, for the slice count
 // either.
 ExactForecast ForecastExact(const Query& query, const SearchOptions& options, const ExactWork& work,
-                            int slots, const MachineRates& rates = {}, uint32_t slices = 0);
+                            int concurrent_slices, const MachineRates& rates = {},
+                            uint32_t slices = 0);
 
 }  // namespace sliceplan
 

@@ -48,9 +48,9 @@ double Cardinality::OfByProduct(RelSet x) const {
   ForEachMember(x, [&](RelationId r) { card *= rows_[r.value]; });
   // Branch-free, the factor picked by masks (x times 1.0 is x exactly, so
   // the product is the same; GCC turns a ?: back into the branch): whether
-  // a predicate lies inside a set is a coin toss from set to set, and a
-  // mispredicted branch per predicate made this 11% of a 1,000-relation
-  // idp run (6% without, docs/benchmarks.md).
+  // a predicate lies inside a set is a coin toss from set to set, so a
+  // branch per predicate is mispredicted half the time (the cost in a
+  // large idp run: docs/benchmarks.md).
   constexpr uint64_t kOne = std::bit_cast<uint64_t>(1.0);
   for (const Predicate& p : predicates_) {
     const uint64_t inside = uint64_t{0} - static_cast<uint64_t>(IsSubset(p.relations, x));

@@ -61,7 +61,7 @@ double ConnectedMemoBytes(int n, double sets, uint64_t bytes_per_slot, uint64_t 
   return sets * static_cast<double>(bytes_per_slot + HashMemo::kBytesPerSet);
 }
 
-double SubsetHitRate(const DirectMemo& connected, int samples) {
+double EverySplitHitRate(const DirectMemo& connected, int samples) {
   double total = 0;
   ForEachJoinSet(connected, [&](RelSet set) { total += TestedSplits(set); });
   if (total <= 0 || samples <= 0) return 0;
@@ -104,11 +104,11 @@ ConnectedStrategy ChooseConnectedStrategy(const Query& query, const JoinGraph& g
   DirectMemo connected(n);
   MarkConnectedSets(query, connected);
   if (wanted != ConnectedMethod::kPullSetCcps) {
-    out.hit_rate = SubsetHitRate(connected, kHitRateSamples);
+    out.hit_rate = EverySplitHitRate(connected, kHitRateSamples);
   }
-  const bool subsets =
-      wanted ? wanted == ConnectedMethod::kPullEverySplit : out.hit_rate >= kSubsetsMinHitRate;
-  out.method = subsets ? ConnectedMethod::kPullEverySplit : ConnectedMethod::kPullSetCcps;
+  const bool every_split =
+      wanted ? wanted == ConnectedMethod::kPullEverySplit : out.hit_rate >= kEverySplitMinHitRate;
+  out.method = every_split ? ConnectedMethod::kPullEverySplit : ConnectedMethod::kPullSetCcps;
   out.connected.emplace(std::move(connected));
   return out;
 }

@@ -40,7 +40,7 @@ uint64_t DirectSparsity(PlanShape shape, bool hyperedges);
 // The every-split pull search is chosen when at least this share of the splits
 // it tests are csg-cmp pairs: it tests a split in about the time DPhyp
 // spends per pair times this share (measured, docs/benchmarks.md).
-inline constexpr double kSubsetsMinHitRate = 0.25;
+inline constexpr double kEverySplitMinHitRate = 0.25;
 
 struct ConnectedStrategy {
   ConnectedMethod method = ConnectedMethod::kPushHashed;
@@ -77,7 +77,7 @@ double ConnectedMemoBytes(int n, double sets, uint64_t bytes_per_slot, uint64_t 
 // relations) whose two sides are both connected, estimated from `samples`
 // splits drawn with probability proportional to each set's split count.
 // 0 when there is no set of two or more relations. Deterministic.
-double SubsetHitRate(const DirectMemo& connected, int samples);
+double EverySplitHitRate(const DirectMemo& connected, int samples);
 
 }  // namespace sliceplan
 

@@ -44,9 +44,8 @@ requires TwoChains<Policy>
     bool skip_full) {
   const RelSet bit = LowestBit(low), half = low ^ bit;
   auto b = policy.Empty();
-  // Inlined by force: GCC 12 kept this lambda out of line, a call per
-  // split of every sliced search (28% more instructions per split at
-  // P = 8, docs/benchmarks.md).
+  // Inlined by force: left to itself GCC 12 keeps this lambda out of
+  // line, a call per split of every sliced search (docs/benchmarks.md).
   const auto offer = [&](typename Policy::Acc acc, RelSet l) __attribute__((always_inline)) {
     return policy.Offer(acc, lb + static_cast<Slot>(l), rb + static_cast<Slot>(low ^ l));
   };
@@ -70,7 +69,7 @@ requires TwoChains<Policy>
 // (lb, rb), given as slot bases; returns how many it offered. The
 // accumulator is taken and returned by value so that it stays in registers
 // (through a reference GCC spills it and chains every split on a
-// store-to-load round trip: 3.3 instead of 1 ns per split).
+// store-to-load round trip, three times the time per split).
 template <SearchPolicy Policy>
 [[gnu::always_inline]] inline typename Policy::Acc OfferBlockPair(const Policy& policy,
                                                                   typename Policy::Acc a, Slot lb,
@@ -328,8 +327,8 @@ absl::Status RunDenseBushyThreaded(const DenseLayout& layout, Policy& policy,
 // With no free relations every block holds one set, so its block splits
 // would be stored and read once: they are generated and offered in one
 // pass instead (a block pair with an empty side is no split here: the
-// empty high pattern is the empty set). 2.7x faster per split than
-// storing them at 18 relations, P = 64 (docs/benchmarks.md).
+// empty high pattern is the empty set), much faster than storing them
+// (docs/benchmarks.md).
 template <SearchPolicy Policy>
 absl::Status RunDenseBushyNoFreeBits(const DenseLayout& layout, Policy& policy,
                                      SearchControl& control, SearchStats& stats) {

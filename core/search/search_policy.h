@@ -61,8 +61,8 @@ concept SearchPolicy = requires(P p, const P cp, typename P::Acc acc, Slot s, Re
 
 // Policies whose accumulators can be joined (Empty, Merge): their loops
 // keep two accumulators, so one split's min does not wait for the last
-// one's (the loop is bound by that chain's latency otherwise: 1.5 against
-// 0.9 ns per split at 18 relations, docs/benchmarks.md).
+// one's (the loop is bound by that chain's latency otherwise,
+// docs/benchmarks.md).
 // Optional:
 //   Acc Empty() const;          // the accumulator no split touched
 //   Acc Merge(Acc a, Acc b) const;  // both joined, a kept on a tie

@@ -7,10 +7,10 @@
 namespace sliceplan {
 
 struct SearchStats {
-  uint64_t subsets = 0;     // memo entries created
-  uint64_t splits = 0;      // (left, right) pairs evaluated
-  uint64_t memo_bytes = 0;  // memo size at its peak
-  double seconds = 0;       // wall time of the search
+  uint64_t memo_entries = 0;  // memo entries created (the answer's `subsets`)
+  uint64_t splits = 0;        // (left, right) pairs evaluated
+  uint64_t memo_bytes = 0;    // memo size at its peak
+  double seconds = 0;         // wall time of the search
 };
 
 }  // namespace sliceplan

@@ -34,12 +34,12 @@ CommandTable Table(Seen& seen) {
 
 TEST(CommandTableTest, SettersRunInTheOrderGiven) {
   Seen seen;
-  ASSERT_TRUE(ParseCommand(Table(seen), {"--bound=1", "f", "--mode", "b", "--quiet", "--bound=2",
-                                         "--mode=a"})
+  ASSERT_TRUE(ParseCommand(Table(seen),
+                           {"--bound=1", "f", "--mode", "b", "--quiet", "--bound=2", "--mode=a"})
                   .ok());
   EXPECT_EQ(seen.operand, "f");
-  EXPECT_EQ(seen.values, (std::vector<std::string>{"bound=1", "mode=b", "quiet=true", "bound=2",
-                                                   "mode=a"}));
+  EXPECT_EQ(seen.values,
+            (std::vector<std::string>{"bound=1", "mode=b", "quiet=true", "bound=2", "mode=a"}));
 }
 
 TEST(CommandTableTest, AnEmptyValueReachesTheSetter) {
@@ -80,11 +80,31 @@ TEST(CommandTableTest, HelpListsEveryFlagWithItsDefault) {
 TEST(CommandTableTest, EveryDocumentedFlagIsInTheHelp) {
   const std::pair<std::string, std::vector<std::string>> documented[] = {
       {"optimize",
-       {"--shape", "--cross-products", "--cost", "--slices", "--workers", "--coordinator",
-        "--format", "--tier", "--deadline-seconds", "--threads-per-worker", "--tls-ca",
-        "--tls-cert", "--tls-key", "--token-file", "--partial-on-deadline", "--memo-limit",
-        "--plot", "--objectives", "--alpha", "--bound", "--prefer", "--sample-rates",
-        "--node-counts", "--budget-seconds", "--quiet"}},
+       {"--shape",
+        "--cross-products",
+        "--cost",
+        "--slices",
+        "--workers",
+        "--coordinator",
+        "--format",
+        "--tier",
+        "--deadline-seconds",
+        "--threads-per-worker",
+        "--tls-ca",
+        "--tls-cert",
+        "--tls-key",
+        "--token-file",
+        "--partial-on-deadline",
+        "--memo-limit",
+        "--plot",
+        "--objectives",
+        "--alpha",
+        "--bound",
+        "--prefer",
+        "--sample-rates",
+        "--node-counts",
+        "--budget-seconds",
+        "--quiet"}},
       {"capacity",
        {"--deadline-seconds", "--shape", "--cross-products", "--threads-per-worker", "--format",
         "--plot", "--coordinator", "--seconds-per-split", "--seconds-per-connected-set"}},

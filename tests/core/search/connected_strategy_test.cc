@@ -33,7 +33,8 @@ DirectMemo Connected(const Query& q) {
 }
 
 TEST(SubsetHitRateTest, CliqueSplitsAreAllPairs) {
-  EXPECT_EQ(SubsetHitRate(Connected(testing::MakeQuery(GraphShape::kClique, 12, 1)), 4096), 1.0);
+  EXPECT_EQ(EverySplitHitRate(Connected(testing::MakeQuery(GraphShape::kClique, 12, 1)), 4096),
+            1.0);
 }
 
 TEST(SubsetHitRateTest, StarMatchesClosedForm) {
@@ -42,7 +43,8 @@ TEST(SubsetHitRateTest, StarMatchesClosedForm) {
   for (int n : {8, 10, 14}) {
     const double pairs = (n - 1) * std::ldexp(1.0, n - 2);
     const double tested = std::pow(3.0, n - 1) - std::ldexp(1.0, n - 1);
-    const double rate = SubsetHitRate(Connected(testing::MakeQuery(GraphShape::kStar, n, 1)), 4096);
+    const double rate =
+        EverySplitHitRate(Connected(testing::MakeQuery(GraphShape::kStar, n, 1)), 4096);
     EXPECT_NEAR(rate, pairs / tested, 0.02) << "n=" << n;
   }
 }
@@ -56,12 +58,13 @@ TEST(SubsetHitRateTest, ChainMatchesClosedForm) {
     pairs += (n - len + 1) * (len - 1);
     tested += (n - len + 1) * (std::ldexp(1.0, len - 1) - 1);
   }
-  const double rate = SubsetHitRate(Connected(testing::MakeQuery(GraphShape::kChain, n, 1)), 4096);
+  const double rate =
+      EverySplitHitRate(Connected(testing::MakeQuery(GraphShape::kChain, n, 1)), 4096);
   EXPECT_NEAR(rate, pairs / tested, 0.01);
 }
 
 TEST(SubsetHitRateTest, NoJoinSetIsZero) {
-  EXPECT_EQ(SubsetHitRate(Connected(testing::MakeQuery(GraphShape::kChain, 1, 1)), 4096), 0.0);
+  EXPECT_EQ(EverySplitHitRate(Connected(testing::MakeQuery(GraphShape::kChain, 1, 1)), 4096), 0.0);
 }
 
 TEST(ChooseConnectedStrategyTest, FollowsDensityHitRateAndLimits) {
@@ -79,7 +82,7 @@ TEST(ChooseConnectedStrategyTest, FollowsDensityHitRateAndLimits) {
   const ConnectedStrategy star =
       Choose(testing::MakeQuery(GraphShape::kStar, 12, 1), PlanShape::kBushy);
   EXPECT_EQ(star.method, ConnectedMethod::kPullSetCcps);
-  EXPECT_LT(star.hit_rate, kSubsetsMinHitRate);
+  EXPECT_LT(star.hit_rate, kEverySplitMinHitRate);
   ASSERT_TRUE(star.connected.has_value());
   EXPECT_EQ(star.connected->size(), (1u << 11) + 11);  // the hub with any leaves, or one leaf
   // Left-deep plans and hyperedges always pair (DPhyp).
@@ -127,7 +130,7 @@ Answer Solve(const Query& q, PlanShape shape, SliceSpec slice, ConnectedMethod m
   EXPECT_TRUE(cout.Run(control).ok());
   if (const auto root = cout.RootSlot()) a.cost = cout.policy().Cost(*root);
   a.splits = cout.stats().splits;
-  a.sets = cout.stats().subsets;
+  a.sets = cout.stats().memo_entries;
   a.method = *cout.connected_method();
   auto count = Search<CountPolicy>(q, shape, slice, method, threads);
   EXPECT_TRUE(count.Run(control).ok());

@@ -42,7 +42,7 @@ TEST(ThreadedSearchTest, SameAnswerOnAnyNumberOfThreads) {
               EXPECT_EQ(one->plan->root().cost, many->plan->root().cost);
             }
             EXPECT_EQ(one->stats.splits, many->stats.splits);
-            EXPECT_EQ(one->stats.subsets, many->stats.subsets);
+            EXPECT_EQ(one->stats.memo_entries, many->stats.memo_entries);
             auto count = CountSlicePlans(q, Options(cross, threads), {i, p});
             ASSERT_TRUE(count.ok());
             EXPECT_EQ(one_count->plans, count->plans);

@@ -101,7 +101,7 @@ TEST(SplitCountTest, EngineCountsMatchTheClosedFormsUpToSixteenRelations) {
         // cout is symmetric: bushy slices cost each unordered split once.
         const double want = shape == PlanShape::kBushy ? ordered / 2 : ordered;
         EXPECT_EQ(costed->stats.splits, static_cast<uint64_t>(want));
-        EXPECT_EQ(costed->stats.subsets, static_cast<uint64_t>(DenseSlots(n, shape, k)));
+        EXPECT_EQ(costed->stats.memo_entries, static_cast<uint64_t>(DenseSlots(n, shape, k)));
         if (n <= 13) {  // the counting policy offers both orders
           auto counted = CountSlicePlans(q, options, slice);
           ASSERT_TRUE(counted.ok());
