@@ -7,6 +7,7 @@
 
 #include "gtest/gtest.h"
 #include "tests/support/closed_forms.h"
+#include "tests/support/enumerator_checks.h"
 #include "tests/support/enumerator_runs.h"
 #include "tests/support/reference_dp.h"
 #include "tests/support/test_queries.h"
@@ -15,18 +16,6 @@ namespace sliceplan {
 namespace {
 
 using testing::GraphShape;
-
-// Bushy slices cover every tree; a tree whose constrained relations arrive
-// together on the path lies in both slices of that constraint
-// (docs/slicing.md), so over P slices a tree is counted 1 to P times.
-void ExpectCovered(uint64_t counted, uint64_t trees, uint32_t p) {
-  if (p == 1) {
-    EXPECT_EQ(counted, trees);
-  } else {
-    EXPECT_GE(counted, trees);
-    EXPECT_LE(counted, p * trees);
-  }
-}
 
 TEST(DenseBushyTest, UnslicedSplitsAreEverySplitOfEverySubset) {
   for (int n = 2; n <= 13; ++n) {
@@ -50,7 +39,7 @@ TEST(DenseBushyTest, SlicesHoldTheOptimumAndCoverEveryTree) {
         const testing::SlicedRun all = testing::RunAllSlices(q, PlanShape::kBushy, true, p);
         ASSERT_TRUE(all.cost.has_value());
         EXPECT_NEAR(*all.cost, best, best * 1e-12);
-        if (n <= 9) ExpectCovered(all.plans, testing::BushyTrees(shape, n, true), p);
+        if (n <= 9) testing::ExpectBushyCover(all.plans, testing::BushyTrees(shape, n, true), p);
       }
     }
   }
