@@ -45,12 +45,15 @@ class ConnectedMemo {
 };
 
 // The slot of `s` in `memo`, adding it (and growing and initialising the
-// policy's entry) if new. RESOURCE_EXHAUSTED at the memo's slot limit.
-// A direct memo's policy arrays are sized once by the caller.
+// policy's entry) if new; `added` (when given) says whether it was.
+// RESOURCE_EXHAUSTED at the memo's slot limit. A direct memo's policy
+// arrays are sized once by the caller. O(1) (amortised for a hash memo).
 template <class Memo, class Policy>
-absl::StatusOr<Slot> AddConnectedSet(Memo& memo, Policy& policy, RelSet s) {
+absl::StatusOr<Slot> AddConnectedSet(Memo& memo, Policy& policy, RelSet s,
+                                     bool* added_out = nullptr) {
   bool added = false;
   const Slot slot = memo.Insert(s, added);
+  if (added_out != nullptr) *added_out = added;
   if (slot == kNoSlot) {
     return absl::ResourceExhaustedError(
         absl::StrCat("connected-sets memo reached its limit of ", memo.size(),

@@ -45,6 +45,7 @@ class DirectMemo {
   void Erase(RelSet s) { present_[s >> 6] &= ~(uint64_t{1} << (s & 63)); }
   RelSet SetOf(Slot slot) const { return slot; }
   // The sets held, counted: O(2^n / 64).
+  // The sets present, counted over every word: O(2^n / 64), never per split.
   size_t size() const {
     size_t count = 0;
     for (uint64_t w : present_) count += static_cast<size_t>(std::popcount(w));

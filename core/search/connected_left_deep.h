@@ -27,8 +27,8 @@ absl::Status RunConnectedLeftDeep(int n, const JoinGraph& graph, const Cardinali
                                   const SliceConstraints& constraints, Policy& policy, Memo& memo,
                                   SearchControl& control, SearchStats& stats) {
   std::vector<RelSet> level;
-  const auto add = [&](RelSet s, Slot& slot) {
-    auto found = AddConnectedSet(memo, policy, s);
+  const auto add = [&](RelSet s, Slot& slot, bool* added = nullptr) {
+    auto found = AddConnectedSet(memo, policy, s, added);
     if (found.ok()) slot = *found;
     return found.status();
   };
@@ -52,11 +52,11 @@ absl::Status RunConnectedLeftDeep(int n, const JoinGraph& graph, const Cardinali
             !card.Connects(prefix, Singleton(x))) {
           return;
         }
-        const size_t before = memo.size();
         Slot to = kNoSlot;
-        status = add(grown, to);
+        bool added = false;
+        status = add(grown, to, &added);
         if (!status.ok()) return;
-        if (memo.size() > before) next.push_back(grown);
+        if (added) next.push_back(grown);
         policy.RelaxLeafRight(to, from, x);
         ++work;
       });
