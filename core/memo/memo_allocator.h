@@ -1,9 +1,10 @@
 // The allocator of memo arrays: new elements of trivial types are left
 // uninitialised (default-initialised) instead of zeroed, so a memo of 2^n
 // entries is not written in full before the search writes the entries it
-// uses; blocks of 2 MiB or more are aligned to 2 MiB and offered to the
-// kernel as transparent huge pages, so first touching a large memo takes
-// one page fault per 2 MiB instead of per 4 KiB. Only for element types
+// uses; blocks of 2 MiB or more are aligned to 2 MiB and their whole 2 MiB
+// pages offered to the kernel as transparent huge pages, so first touching
+// a large memo takes one page fault per 2 MiB instead of per 4 KiB, and a
+// block's resident size is still its bytes, not its bytes rounded up. Only for element types
 // every reader initialises first.
 #ifndef SLICEPLAN_CORE_MEMO_MEMO_ALLOCATOR_H_
 #define SLICEPLAN_CORE_MEMO_MEMO_ALLOCATOR_H_
@@ -19,16 +20,26 @@ namespace sliceplan {
 
 namespace memo_allocator_internal {
 inline constexpr size_t kHugePage = size_t{2} << 20;
+// Past any machine's memory; keeps the rounding below from overflowing.
+inline constexpr size_t kMaxBytes = size_t{1} << 60;
 
 inline void* Allocate(size_t bytes) {
   if (bytes < kHugePage) {
     if (void* p = std::malloc(bytes)) return p;
     throw std::bad_alloc();
   }
+  if (bytes > kMaxBytes) throw std::bad_alloc();
   const size_t rounded = (bytes + kHugePage - 1) / kHugePage * kHugePage;
   void* p = std::aligned_alloc(kHugePage, rounded);
   if (p == nullptr) throw std::bad_alloc();
-  madvise(p, rounded, MADV_HUGEPAGE);  // advice only: ignored where unsupported
+  // Huge pages for the whole 2 MiB pages of the block only: a huge page
+  // over its tail would make the tail's every byte resident, up to 2 MiB an
+  // array (a slice's memo would then not shrink with the slice), so the
+  // tail is advised against them where huge pages are the default. Advice
+  // only: ignored where unsupported.
+  const size_t whole = bytes / kHugePage * kHugePage;
+  madvise(p, whole, MADV_HUGEPAGE);
+  if (rounded > whole) madvise(static_cast<char*>(p) + whole, rounded - whole, MADV_NOHUGEPAGE);
   return p;
 }
 }  // namespace memo_allocator_internal
