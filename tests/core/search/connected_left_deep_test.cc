@@ -109,8 +109,8 @@ TEST(ConnectedLeftDeepTest, MemoWorkPerSplitDoesNotGrowWithN) {
       policy.Resize(memo.slot_count());
       SearchControl control;
       SearchStats stats;
-      ASSERT_TRUE(RunConnectedLeftDeep(n, graph, card, *constraints, policy, memo, control, stats)
-                      .ok());
+      ASSERT_TRUE(
+          RunConnectedLeftDeep(n, graph, card, *constraints, policy, memo, control, stats).ok());
       ASSERT_GT(stats.splits, 0u);
       EXPECT_LE(memo.words(), 3 * stats.splits + (uint64_t{1} << n))
           << testing::ShapeName(shape) << " n=" << n << " splits " << stats.splits;
