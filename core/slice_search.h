@@ -214,7 +214,7 @@ class SliceSearch {
       if constexpr (!Memo::kGrows) policy_.Resize(memo.slot_count());
       if constexpr (std::is_same_v<Memo, DirectMemo>) {
         if (pulled) {
-          status = RunPulled(memo, control, walk ? &*walk : nullptr);
+          status = RunPulled(graph, memo, control, walk ? &*walk : nullptr);
           return;
         }
       }
@@ -235,9 +235,13 @@ class SliceSearch {
     return status;
   }
 
-  // Sets pulled in mask order: every split tested, or (walk given) each
-  // set's csg-cmp pairs walked.
-  absl::Status RunPulled(DirectMemo& memo, SearchControl& control, const SetCcpWalk* walk) {
+  // Sets pulled in mask order: every split tested (left-deep: every
+  // (S \ {r}, r)), or (walk given) each set's csg-cmp pairs walked.
+  absl::Status RunPulled(const JoinGraph& graph, DirectMemo& memo, SearchControl& control,
+                         const SetCcpWalk* walk) {
+    if (options_.shape == PlanShape::kLeftDeep) {
+      return RunConnectedLeftDeepPull(graph, constraints_, policy_, memo, control, stats_);
+    }
     if constexpr (Policy::kParallelDense) {
       if (working_.size() >= 7 && Threaded(memo.slot_count())) {
         return RunConnectedPullThreaded(working_.size(), constraints_, policy_, memo, control,

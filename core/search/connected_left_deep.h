@@ -12,7 +12,9 @@
 #include "absl/strings/str_cat.h"
 #include "core/graph/join_graph.h"
 #include "core/memo/connected_memo.h"
+#include "core/memo/direct_memo.h"
 #include "core/model/cardinality.h"
+#include "core/search/connected_pull.h"
 #include "core/search/search_control.h"
 #include "core/search/search_policy.h"
 #include "core/search/search_stats.h"
@@ -67,6 +69,50 @@ absl::Status RunConnectedLeftDeep(int n, const JoinGraph& graph, const Cardinali
     level = std::move(next);
   }
   return absl::OkStatus();
+}
+
+namespace connected_left_deep_internal {
+
+// The split source of the pull order: each (S \ {r}, r) whose prefix is in
+// the memo (connected, with a plan in this slice) and whose relation r
+// shares a binary predicate with it, tested by one memo bit and one mask.
+struct LeftDeepSplits {
+  static constexpr bool kScattered = false;
+  static constexpr bool kOneWay = true;  // the right input is always the relation
+  const JoinGraph& graph;
+
+  template <SearchPolicy Policy>
+  bool operator()(const Policy& policy, const DirectMemo& memo, SearchControl&, bool, RelSet set,
+                  typename Policy::Acc& acc, uint64_t& pairs) const {
+    for (RelSet rest = set; rest != 0; rest &= rest - 1) {
+      const RelSet bit = LowestBit(rest), prefix = set ^ bit;
+      if (memo.Contains(prefix) && (graph.Adjacent(bit) & prefix) != 0) {
+        acc = policy.OfferLeafRight(acc, static_cast<Slot>(prefix), Lowest(bit));
+        ++pairs;
+      }
+    }
+    return true;
+  }
+};
+
+}  // namespace connected_left_deep_internal
+
+// The same search in pull order over a direct memo: every connected set in
+// increasing mask order (its prefixes come first) takes its best prefix
+// from its own splits, so the reads of S \ {r} run in n sequential streams
+// rather than scattered pushes. `memo` holds exactly the connected sets on
+// entry, those with a plan in this slice on return; the policy is sized to
+// memo.slot_count(). Binary predicates only (a hyperedge can join r to a
+// prefix no binary predicate reaches). Errors: CANCELLED /
+// DEADLINE_EXCEEDED.
+template <SearchPolicy Policy>
+absl::Status RunConnectedLeftDeepPull(const JoinGraph& graph, const SliceConstraints& constraints,
+                                      Policy& policy, DirectMemo& memo, SearchControl& control,
+                                      SearchStats& stats) {
+  const bool done = connected_pull_internal::SolveWords(
+      constraints, policy, memo, control, stats.splits, 0, memo.words().size(),
+      connected_left_deep_internal::LeftDeepSplits{graph});
+  return done ? absl::OkStatus() : control.status();
 }
 
 }  // namespace sliceplan

@@ -51,6 +51,7 @@ typename Policy::Acc OfferBoth(const Policy& policy, typename Policy::Acc a, Rel
 // tested by two memo bits.
 struct EverySplit {
   static constexpr bool kScattered = false;
+  static constexpr bool kOneWay = false;  // a split offered both ways counts twice
   // Offers `set`'s splits whose parts are both in `memo` into acc,
   // counting them in `pairs`. False once `control` stopped. (`sliced`:
   // the memo may lack connected sets; the bits are tested either way.)
@@ -105,6 +106,7 @@ struct EverySplit {
 struct WalkedSplits {
   // A scattered policy caches each set's cardinality (search_policy.h).
   static constexpr bool kScattered = true;
+  static constexpr bool kOneWay = false;
   const SetCcpWalk& walk;
 
   template <SearchPolicy Policy>
@@ -171,7 +173,7 @@ bool SolveWords(const SliceConstraints& constraints, Policy& policy, DirectMemo&
       } else {
         policy.Finish(s, set, acc);
       }
-      const uint64_t work = Policy::kSymmetric ? pairs : 2 * pairs;
+      const uint64_t work = Source::kOneWay || Policy::kSymmetric ? pairs : 2 * pairs;
       work_done += work;
       if (control.Tick(work + 1)) return stop();
     }

@@ -97,12 +97,14 @@ ConnectedStrategy ChooseConnectedStrategy(const Query& query, const JoinGraph& g
   const uint64_t enough = std::max<uint64_t>(1, (uint64_t{1} << n) / sparsity);
   if (!wanted && CountConnectedSets(query, enough) < enough) return out;
   out.method = ConnectedMethod::kPushDirect;
-  if (shape != PlanShape::kBushy || graph.has_hyperedges() ||
-      wanted == ConnectedMethod::kPushDirect) {
-    return out;
-  }
+  if (graph.has_hyperedges() || wanted == ConnectedMethod::kPushDirect) return out;
   DirectMemo connected(n);
   MarkConnectedSets(query, connected);
+  if (shape == PlanShape::kLeftDeep) {  // every left-deep split is one memo bit
+    out.method = ConnectedMethod::kPullEverySplit;
+    out.connected.emplace(std::move(connected));
+    return out;
+  }
   if (wanted != ConnectedMethod::kPullSetCcps) {
     out.hit_rate = EverySplitHitRate(connected, kHitRateSamples);
   }

@@ -1,12 +1,13 @@
-// How a connected-only search runs: which memo and, for bushy plans, which
-// enumerator (docs/benchmarks.md, "Connected-only search").
+// How a connected-only search runs: which memo and which enumerator
+// (docs/benchmarks.md, "Connected-only search").
 //   push, hashed:   DPhyp over a hash memo, when 2^n sets do not fit the
 //                   memo limit or few of them are connected;
-//   push, direct:   DPhyp over a direct memo (slot = set), for left-deep
-//                   plans and hyperedges;
-//   pull, every split: every split of every connected set tested by two bits
-//                   (connected_pull.h), when most splits are csg-cmp
-//                   pairs (dense graphs) and the graph has no hyperedge;
+//   push, direct:   DPhyp (or the left-deep push) over a direct memo
+//                   (slot = set), for hyperedges;
+//   pull, every split: every split of every connected set tested by memo
+//                   bits: bushy (connected_pull.h) when most splits are
+//                   csg-cmp pairs (dense graphs), every left-deep search
+//                   (connected_left_deep.h); no hyperedge;
 //   pull, set ccps: each connected set's csg-cmp pairs walked from the
 //                   set (set_ccp_walk.h), the other bushy searches
 //                   over binary predicates.

@@ -1,7 +1,8 @@
 // The connected-only left-deep search (core/search/connected_left_deep.h):
 // every (S \ {r}, r) with S \ {r} connected and r joined to it costed once,
 // the optimum over join orders without cross products split over slices,
-// every such order counted once, on a hashed or a direct memo.
+// every such order counted once, in push order on a hashed or a direct
+// memo and in pull order.
 #include "core/search/connected_left_deep.h"
 
 #include <optional>
@@ -22,10 +23,13 @@ namespace {
 
 using testing::GraphShape;
 
-constexpr ConnectedMethod kMemos[] = {ConnectedMethod::kPushHashed, ConnectedMethod::kPushDirect};
+// Push order on either memo, and pull order (a direct memo, binary
+// predicates: the hyperedge shape is searched in push order).
+constexpr ConnectedMethod kMethods[] = {ConnectedMethod::kPushHashed, ConnectedMethod::kPushDirect,
+                                        ConnectedMethod::kPullEverySplit};
 
 TEST(ConnectedLeftDeepTest, UnslicedSplitsMatchTheClosedForms) {
-  for (ConnectedMethod method : kMemos) {
+  for (ConnectedMethod method : kMethods) {
     for (GraphShape shape :
          {GraphShape::kChain, GraphShape::kCycle, GraphShape::kStar, GraphShape::kClique}) {
       for (int n = 3; n <= 12; ++n) {
@@ -41,7 +45,7 @@ TEST(ConnectedLeftDeepTest, UnslicedSplitsMatchTheClosedForms) {
 }
 
 TEST(ConnectedLeftDeepTest, SlicesHoldTheOptimumAndEveryOrderOnce) {
-  for (ConnectedMethod method : kMemos) {
+  for (ConnectedMethod method : kMethods) {
     for (GraphShape shape : {GraphShape::kChain, GraphShape::kCycle, GraphShape::kStar,
                              GraphShape::kClique, GraphShape::kRandom, GraphShape::kHyper}) {
       for (int n : {5, 8, 11}) {

@@ -85,9 +85,12 @@ TEST(ChooseConnectedStrategyTest, FollowsDensityHitRateAndLimits) {
   EXPECT_LT(star.hit_rate, kEverySplitMinHitRate);
   ASSERT_TRUE(star.connected.has_value());
   EXPECT_EQ(star.connected->size(), (1u << 11) + 11);  // the hub with any leaves, or one leaf
-  // Left-deep plans and hyperedges always pair (DPhyp).
-  EXPECT_EQ(Choose(testing::MakeQuery(GraphShape::kClique, 12, 1), PlanShape::kLeftDeep).method,
-            ConnectedMethod::kPushDirect);
+  // Left-deep plans over a direct memo pull (each split one memo bit).
+  const ConnectedStrategy left_deep =
+      Choose(testing::MakeQuery(GraphShape::kClique, 12, 1), PlanShape::kLeftDeep);
+  EXPECT_EQ(left_deep.method, ConnectedMethod::kPullEverySplit);
+  ASSERT_TRUE(left_deep.connected.has_value());
+  EXPECT_EQ(left_deep.connected->size(), (1u << 12) - 1);
   // 2^12 sets of 20 bytes and the bits: over 80 KiB is hashed.
   EXPECT_EQ(
       Choose(testing::MakeQuery(GraphShape::kClique, 12, 1), PlanShape::kBushy, 80 << 10).method,
@@ -97,10 +100,13 @@ TEST(ChooseConnectedStrategyTest, FollowsDensityHitRateAndLimits) {
 
 TEST(ChooseConnectedStrategyTest, HyperedgesNeverTakeAPullSearch) {
   const Query q = testing::MakeQuery(GraphShape::kHyper, 10, 1);
-  for (ConnectedMethod wanted : {ConnectedMethod::kPullEverySplit, ConnectedMethod::kPullSetCcps}) {
-    const ConnectedStrategy s =
-        ChooseConnectedStrategy(q, JoinGraph(q), PlanShape::kBushy, kBytes, kLimit, wanted);
-    EXPECT_EQ(s.method, ConnectedMethod::kPushDirect);
+  for (PlanShape shape : {PlanShape::kBushy, PlanShape::kLeftDeep}) {
+    for (ConnectedMethod wanted :
+         {ConnectedMethod::kPullEverySplit, ConnectedMethod::kPullSetCcps}) {
+      const ConnectedStrategy s =
+          ChooseConnectedStrategy(q, JoinGraph(q), shape, kBytes, kLimit, wanted);
+      EXPECT_EQ(s.method, ConnectedMethod::kPushDirect);
+    }
   }
 }
 
@@ -153,7 +159,9 @@ TEST(ConnectedMethodsTest, EveryMethodGivesTheSameAnswerInEverySlice) {
     for (int n : {5, 9, 12}) {
       const Query q = testing::MakeQuery(graph, n, 3);
       for (PlanShape shape : {PlanShape::kBushy, PlanShape::kLeftDeep}) {
-        const bool subsets_run = shape == PlanShape::kBushy && graph != GraphShape::kHyper;
+        // Pull order over binary predicates only; set ccps are bushy only.
+        const bool pulls = graph != GraphShape::kHyper;
+        const bool walks = pulls && shape == PlanShape::kBushy;
         const double want = shape == PlanShape::kBushy ? testing::DpBestBushy(q, false)
                                                        : testing::DpBestLeftDeep(q, false);
         const uint64_t all_plans = Solve(q, shape, {0, 1}, ConnectedMethod::kPushHashed).plans;
@@ -171,10 +179,11 @@ TEST(ConnectedMethodsTest, EveryMethodGivesTheSameAnswerInEverySlice) {
             const Answer walked = Solve(q, shape, {i, p}, ConnectedMethod::kPullSetCcps);
             EXPECT_EQ(hashed.method, ConnectedMethod::kPushHashed);
             EXPECT_EQ(direct.method, ConnectedMethod::kPushDirect);
-            EXPECT_EQ(subsets.method, subsets_run ? ConnectedMethod::kPullEverySplit
-                                                  : ConnectedMethod::kPushDirect);
-            EXPECT_EQ(walked.method,
-                      subsets_run ? ConnectedMethod::kPullSetCcps : ConnectedMethod::kPushDirect);
+            EXPECT_EQ(subsets.method,
+                      pulls ? ConnectedMethod::kPullEverySplit : ConnectedMethod::kPushDirect);
+            EXPECT_EQ(walked.method, walks   ? ConnectedMethod::kPullSetCcps
+                                     : pulls ? ConnectedMethod::kPullEverySplit
+                                             : ConnectedMethod::kPushDirect);
             ExpectSame(hashed, direct);
             ExpectSame(hashed, subsets);
             ExpectSame(hashed, walked);
