@@ -17,6 +17,10 @@ using Clock = std::chrono::steady_clock;
 
 constexpr double kDenseCalibrationSplits = 2e7;
 constexpr uint64_t kConnectedCalibrationSets = 20000;
+// Runs of the dense calibration, the best kept: its runs take milliseconds,
+// and the first few on an idle core run slow (best of 3 varied by 1.7x
+// between invocations, best of 7 by 2%, docs/benchmarks.md).
+constexpr int kDenseRuns = 7;
 
 // Seconds of one unsliced search (best of `runs`).
 absl::StatusOr<double> TimeSearch(const Query& query, const SearchOptions& options, int runs) {
@@ -48,7 +52,7 @@ absl::StatusOr<double> DenseRate(const SearchOptions& options) {
   SearchOptions dense = options;
   dense.cross_products = true;
   dense.cost = CostModelKind::kCout;
-  ASSIGN_OR_RETURN(const double seconds, TimeSearch(SyntheticChain(n), dense, 3));
+  ASSIGN_OR_RETURN(const double seconds, TimeSearch(SyntheticChain(n), dense, kDenseRuns));
   return seconds / DenseSplits(n, options.shape, 0, true);
 }
 

@@ -3,7 +3,7 @@
 // measuring the one rate the request's search uses:
 //   - dense_split_seconds: an unsliced cross-product search of a synthetic
 //     chain sized to about 2e7 splits in the request's plan shape, best of
-//     three runs, over the closed-form split count;
+//     seven runs, over the closed-form split count;
 //   - connected_set_seconds: the connected-only search of a connected part
 //     of the query itself (grown from relation 0 one neighbour at a time
 //     until about 20,000 connected sets), over its connected-set count. The time per set grows
