@@ -174,8 +174,13 @@ class TierRun {
   absl::StatusOr<bool> TryExact() {
     ASSIGN_OR_RETURN(const Query exact, ToExactQuery(query_));
     const double remaining = Remaining();
-    const ExactForecast f = ForecastExact(exact, ForecastOptions(options_, workers_),
-                                          concurrent_slices_, request_.rates, request_.slice_count);
+    const SearchOptions forecast_options = ForecastOptions(options_, workers_);
+    const ExactWork work = MeasureExactWork(exact, forecast_options);
+    const ExactForecast f =
+        request_.slice_count != 0
+            ? ForecastExact(exact, forecast_options, work, concurrent_slices_, request_.rates,
+                            request_.slice_count)
+            : FastestForecast(exact, forecast_options, work, concurrent_slices_, request_.rates);
     out_.forecast = f;
     if (!(f.seconds <= kExactShare * remaining)) {
       reason_ = absl::StrFormat(

@@ -71,4 +71,21 @@ ExactForecast ForecastExact(const Query& query, const SearchOptions& options, co
   return out;
 }
 
+ExactForecast FastestForecast(const Query& query, const SearchOptions& options,
+                              const ExactWork& work, int concurrent_slices,
+                              const MachineRates& rates) {
+  ExactForecast best = ForecastExact(query, options, work, concurrent_slices, rates);
+  // The largest slice count the planner picks for any pool up to this one.
+  uint32_t most = best.slices;
+  for (int w = 1; w < concurrent_slices; ++w) {
+    most = std::max(most, ChooseSliceCount(query, options, w, work.connected_sets));
+  }
+  for (uint32_t p = 1; p <= most && p != 0; p *= 2) {
+    const ExactForecast f = ForecastExact(query, options, work, concurrent_slices, rates, p);
+    const bool fits = f.memo_bytes <= static_cast<double>(options.memo_limit_bytes);
+    if (fits && f.seconds < best.seconds) best = f;
+  }
+  return best;
+}
+
 }  // namespace sliceplan

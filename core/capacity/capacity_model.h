@@ -66,6 +66,16 @@ double ThreadSpeedup(const SearchOptions& options, bool pulled = false);
 // `slices` (a power of two) is given.
 ExactForecast ForecastExact(const Query& query, const SearchOptions& options, int concurrent_slices,
                             const MachineRates& rates = {}, uint32_t slices = 0);
+// The fastest forecast on `concurrent_slices` of the planner's slice count
+// (ChooseSliceCount) and every P = 1, 2, 4, ... up to the largest the
+// planner picks for any smaller pool, whose slice memo fits
+// options.memo_limit_bytes: the slice count auto runs the exact search
+// with. A pool that grows never gets a slower forecast (it could always run
+// a smaller pool's P). O(concurrent_slices) planner calls.
+ExactForecast FastestForecast(const Query& query, const SearchOptions& options,
+                              const ExactWork& work, int concurrent_slices,
+                              const MachineRates& rates = {});
+
 // The same from work measured once (MeasureExactWork of the same query
 // and options): no connected set is counted again, for the slice count
 // either.

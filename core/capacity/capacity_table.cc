@@ -11,10 +11,11 @@
 namespace sliceplan {
 namespace {
 
-// A worker solves one slice at a time on `options.threads` threads.
+// A worker solves one slice at a time on `options.threads` threads; the
+// slice count is the one auto would run (FastestForecast).
 CapacityRow Row(const Query& query, const SearchOptions& options, const ExactWork& work,
                 int workers, const MachineRates& rates) {
-  const ExactForecast f = ForecastExact(query, options, work, workers, rates);
+  const ExactForecast f = FastestForecast(query, options, work, workers, rates);
   CapacityRow row;
   row.workers = workers;
   row.slices = f.slices;

@@ -84,22 +84,33 @@ TEST(CapacityTableTest, ThreadsPerWorkerSpeedUpEachSlice) {
 }
 
 TEST(CapacityTableTest, EveryRowIsTheForecastOfItsPool) {
-  // Left-deep, with the default rates and overhead: each row is
-  // ceil(P / W) x (splits(k) x rate + overhead) with the planner's P.
+  // Left-deep, with the default rates and overhead: each row is the least
+  // over P = 2^k up to the largest planner's P of a pool up to W of
+  // ceil(P / W) x (splits(k) x rate + overhead), so never slower than the
+  // planner's P.
   SearchOptions options;
   options.shape = PlanShape::kLeftDeep;
   const Query q = MakeQuery(GraphShape::kChain, 24, 1);
   const MachineRates rates;
   auto t = PlanCapacity(q, options, 0.5, 1, rates);
   ASSERT_TRUE(t.ok()) << t.status();
+  const auto seconds = [&](int workers, int k) {
+    const double rounds = std::ceil(std::ldexp(1.0, k) / workers);
+    return rounds * (DenseSplits(24, PlanShape::kLeftDeep, k, true) * rates.dense_split_seconds +
+                     rates.slice_overhead_seconds);
+  };
   for (const CapacityRow& r : t->rows) {
-    const uint32_t p = ChooseSliceCount(q, options, r.workers);
-    const int k = std::countr_zero(p);
-    const double rounds = std::ceil(static_cast<double>(p) / r.workers);
-    EXPECT_EQ(r.slices, p);
-    EXPECT_DOUBLE_EQ(r.seconds, rounds * (DenseSplits(24, PlanShape::kLeftDeep, k, true) *
-                                              rates.dense_split_seconds +
-                                          rates.slice_overhead_seconds));
+    uint32_t most = 1;
+    for (int w = 1; w <= r.workers; ++w) most = std::max(most, ChooseSliceCount(q, options, w));
+    double least = INFINITY;
+    uint32_t least_p = 0;
+    for (int k = 0; (1u << k) <= most; ++k) {
+      if (seconds(r.workers, k) < least) least = seconds(r.workers, k), least_p = 1u << k;
+    }
+    EXPECT_EQ(r.slices, least_p) << r.workers;
+    EXPECT_NEAR(r.seconds, least, least * 1e-12) << r.workers;
+    const uint32_t planned = ChooseSliceCount(q, options, r.workers);
+    EXPECT_LE(r.seconds, seconds(r.workers, std::countr_zero(planned)) * (1 + 1e-12));
   }
 }
 
@@ -199,6 +210,28 @@ TEST(CapacityTableTest, PastTheExactReachNamesWhatAutoDoes) {
   EXPECT_NE(t.summary.find("greedy and linear"), std::string::npos);
   // Past 1,000 relations there is no linear tier.
   EXPECT_EQ(CapacityPastExact(1001, 2.0, 1).summary.find("linear"), std::string::npos);
+}
+
+// More workers never get a slower forecast: the fastest slice count of a
+// pool is open to any larger pool. Connected-only searches, where the
+// planner's slice count can be predicted slower than fewer slices, and the
+// dense search, on 1 to 64 workers.
+TEST(CapacityTableTest, TheForecastNeverRisesWithTheWorkers) {
+  for (bool cross : {true, false}) {
+    for (testing::GraphShape shape : {testing::GraphShape::kRandom, testing::GraphShape::kStar}) {
+      const Query q = testing::MakeQuery(shape, 20, 5);
+      SearchOptions options{PlanShape::kBushy, cross, CostModelKind::kCout};
+      const ExactWork work = MeasureExactWork(q, options);
+      double last = INFINITY;
+      for (int workers = 1; workers <= 64; ++workers) {
+        const ExactForecast f = FastestForecast(q, options, work, workers);
+        EXPECT_LE(f.seconds, last) << testing::ShapeName(shape) << " workers=" << workers;
+        EXPECT_LE(f.seconds, ForecastExact(q, options, work, workers).seconds);
+        EXPECT_EQ(f.seconds, ForecastExact(q, options, work, workers, {}, f.slices).seconds);
+        last = f.seconds;
+      }
+    }
+  }
 }
 
 }  // namespace
