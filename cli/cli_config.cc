@@ -63,8 +63,10 @@ absl::StatusOr<double> ParsePositiveSeconds(const std::string& flag, const std::
   return *d;
 }
 
-// A non-empty value stored as is (file names, addresses).
-std::function<absl::Status(const std::string&)> Text(const std::string& flag, std::string& out,
+// A non-empty value stored as is (file names, addresses), into a
+// std::string or a std::optional<std::string>.
+template <class Out>
+std::function<absl::Status(const std::string&)> Text(const std::string& flag, Out& out,
                                                      const std::string& expected) {
   return [&out, flag, expected](const std::string& value) {
     if (value.empty()) return BadFlag(flag, value, expected);
@@ -73,12 +75,20 @@ std::function<absl::Status(const std::string&)> Text(const std::string& flag, st
   };
 }
 
-std::function<absl::Status(const std::string&)> OptionalText(const std::string& flag,
-                                                             std::optional<std::string>& out,
-                                                             const std::string& expected) {
-  return [&out, flag, expected](const std::string& value) {
-    if (value.empty()) return BadFlag(flag, value, expected);
-    out = value;
+// A count in 1..most (ParseCount), into an int or a std::optional<int>.
+template <class Out>
+std::function<absl::Status(const std::string&)> Count(const std::string& flag, Out& out, int most) {
+  return [&out, flag, most](const std::string& value) {
+    ASSIGN_OR_RETURN(out, ParseCount(flag, value, most));
+    return absl::OkStatus();
+  };
+}
+
+// Seconds in (0, most] (ParsePositiveSeconds).
+std::function<absl::Status(const std::string&)> Seconds(const std::string& flag, double& out,
+                                                        double most) {
+  return [&out, flag, most](const std::string& value) {
+    ASSIGN_OR_RETURN(out, ParsePositiveSeconds(flag, value, most));
     return absl::OkStatus();
   };
 }
@@ -212,20 +222,12 @@ std::vector<FlagRow> PlacementRows(OptimizeConfig& config) {
          config.slices = static_cast<uint32_t>(p);
          return absl::OkStatus();
        }},
-      {"workers", "N", "the cores", "in-process workers",
-       [&config](const std::string& v) {
-         ASSIGN_OR_RETURN(config.workers, ParseCount("workers", v, 1024));
-         return absl::OkStatus();
-       }},
+      {"workers", "N", "the cores", "in-process workers", Count("workers", config.workers, 1024)},
       {"threads-per-worker", "T", "the cores over the workers",
        "threads solving one slice together in each in-process worker",
-       [&config](const std::string& v) {
-         ASSIGN_OR_RETURN(config.threads_per_worker,
-                          ParseCount("threads-per-worker", v, kMaxSearchThreads));
-         return absl::OkStatus();
-       }},
+       Count("threads-per-worker", config.threads_per_worker, kMaxSearchThreads)},
       {"coordinator", "HOST:PORT", "", "solve on a running coordinator",
-       OptionalText("coordinator", config.coordinator, "HOST:PORT")},
+       Text("coordinator", config.coordinator, "HOST:PORT")},
   };
 }
 
@@ -248,10 +250,7 @@ std::vector<FlagRow> RunRows(OptimizeConfig& config) {
          return absl::OkStatus();
        }},
       {"budget-seconds", "S", "10", "the time auto and idp plan for without a deadline",
-       [&config](const std::string& v) {
-         ASSIGN_OR_RETURN(config.budget_seconds, ParsePositiveSeconds("budget-seconds", v, 3600));
-         return absl::OkStatus();
-       }},
+       Seconds("budget-seconds", config.budget_seconds, 3600)},
       {"deadline-seconds", "S", "",
        "answer within S seconds: auto and idp return the best plan found by then",
        [&config](const std::string& v) {
@@ -310,21 +309,13 @@ CommandTable CapacityTable(CapacityConfig& config) {
   MachineRates& rates = config.rates;
   Append(table.flags,
          {{"deadline-seconds", "S", "", "the time to plan for (required)",
-           [&config](const std::string& v) {
-             ASSIGN_OR_RETURN(config.deadline_seconds,
-                              ParsePositiveSeconds("deadline-seconds", v, 1e6));
-             return absl::OkStatus();
-           }},
+           Seconds("deadline-seconds", config.deadline_seconds, 1e6)},
           {"threads-per-worker", "T", "1; with --coordinator, the pool's",
            "threads solving one slice together in each worker",
-           [&config](const std::string& v) {
-             ASSIGN_OR_RETURN(config.threads_per_worker,
-                              ParseCount("threads-per-worker", v, kMaxSearchThreads));
-             return absl::OkStatus();
-           }},
+           Count("threads-per-worker", config.threads_per_worker, kMaxSearchThreads)},
           {"coordinator", "HOST:PORT", "",
            "the table from a running coordinator: its pool's threads and rates",
-           OptionalText("coordinator", config.coordinator, "HOST:PORT")},
+           Text("coordinator", config.coordinator, "HOST:PORT")},
           {"format", "text|json", "text", "output",
            OneOf<bool>("format", config.json, {{"text", false}, {"json", true}}, "text or json")},
           {"plot", "FILE.svg", "", "predicted seconds against workers, log-log",
