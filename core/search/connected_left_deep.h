@@ -1,8 +1,13 @@
-// Left-deep enumeration over connected sets only: a plan of S grows by one
-// base relation x at a time, and only when a predicate links x to S (a
-// predicate containing x that lies inside S u {x}). Sets are visited by size,
-// so every prefix is final before it is extended. A slice keeps the steps
-// whose result is admissible (prefixes are admissible by construction).
+// Left-deep enumeration over connected sets only, in two orders:
+//   push (RunConnectedLeftDeep, any memo, hyperedges): a plan of S grows by
+//     one base relation x at a time, and only when a predicate links x to S
+//     (a predicate containing x that lies inside S u {x}). Sets are visited
+//     by size, so every prefix is final before it is extended. A slice
+//     keeps the steps whose result is admissible (prefixes are admissible
+//     by construction);
+//   pull (RunConnectedLeftDeepPull, a direct memo, binary predicates): each
+//     connected set in mask order takes its best prefix from its own
+//     splits (connected_strategy.h chooses it wherever it applies).
 #ifndef SLICEPLAN_CORE_SEARCH_CONNECTED_LEFT_DEEP_H_
 #define SLICEPLAN_CORE_SEARCH_CONNECTED_LEFT_DEEP_H_
 
