@@ -8,7 +8,11 @@
 //
 //   build/bench/connected_slice_bench [random|star N ...]
 //   (default: random 22, star 22, random 24)
+//   build/bench/connected_slice_bench one random|star N bushy|left-deep P I
+//   (slice I of P alone, five times or $CONNECTED_SLICE_BENCH_RUNS: for a
+//   profiler)
 #include <algorithm>
+#include <chrono>
 #include <cmath>
 #include <cstdio>
 #include <cstdlib>
@@ -29,26 +33,33 @@ constexpr int kMaxK = 4;
 
 struct Run {
   double seconds = 0;
+  double call_seconds = 0;  // the whole SolveSlice call
   uint64_t splits = 0;
   uint64_t memo_bytes = 0;
+  uint64_t memo_entries = 0;
   double cost = 0;
 };
 
-Run Solve(const Query& q, PlanShape shape, SliceSpec slice) {
+Run Solve(const Query& q, PlanShape shape, SliceSpec slice, int repeats = kRepeats) {
   const SearchOptions options{shape, false, CostModelKind::kCout};
   Run best;
   best.seconds = 1e300;
-  for (int r = 0; r < kRepeats; ++r) {
+  for (int r = 0; r < repeats; ++r) {
     SearchControl control;
+    const auto start = std::chrono::steady_clock::now();
     auto result = SolveSlice(q, options, slice, control);
+    const double call =
+        std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
     if (!result.ok()) {
       std::fprintf(stderr, "slice %u of %u: %s\n", slice.index, slice.count,
                    std::string(result.status().message()).c_str());
       std::exit(1);
     }
     best.seconds = std::min(best.seconds, result->stats.seconds);
+    best.call_seconds = r == 0 ? call : std::min(best.call_seconds, call);
     best.splits = result->stats.splits;
     best.memo_bytes = result->stats.memo_bytes;
+    best.memo_entries = result->stats.memo_entries;
     best.cost = result->plan ? result->plan->root().cost : 1e300;
   }
   return best;
@@ -59,7 +70,8 @@ void Report(const char* name, const Query& q, PlanShape shape) {
   const Run whole = Solve(q, shape, {0, 1});
   std::printf("%-10s %-9s P=1  %.3f s  %llu splits  %.1f MiB\n", name,
               bushy ? "bushy" : "left-deep", whole.seconds,
-              static_cast<unsigned long long>(whole.splits), static_cast<double>(whole.memo_bytes) / 1048576.0);
+              static_cast<unsigned long long>(whole.splits),
+              static_cast<double>(whole.memo_bytes) / 1048576.0);
   for (int k = 1; k <= kMaxK; ++k) {
     const uint32_t p = 1u << k;
     Run slowest;
@@ -77,14 +89,15 @@ void Report(const char* name, const Query& q, PlanShape shape) {
     const double split_formula = std::pow(bushy ? 21.0 / 27 : 0.75, k);
     const double memo_formula = std::pow(bushy ? 7.0 / 8 : 0.75, k);
     const double time_ratio = slowest.seconds / whole.seconds;
-    const double memo_ratio = static_cast<double>(slowest.memo_bytes) / static_cast<double>(whole.memo_bytes);
+    const double memo_ratio =
+        static_cast<double>(slowest.memo_bytes) / static_cast<double>(whole.memo_bytes);
     std::printf(
         "%-10s %-9s P=%-2u slowest %.3f s (%.3f, %.2fx formula %.3f)  splits %.3f  memo %.3f "
         "(%.2fx formula %.3f)\n",
         name, bushy ? "bushy" : "left-deep", p, slowest.seconds, time_ratio,
         time_ratio / split_formula, split_formula,
-        static_cast<double>(slowest.splits) / static_cast<double>(whole.splits), memo_ratio, memo_ratio / memo_formula,
-        memo_formula);
+        static_cast<double>(slowest.splits) / static_cast<double>(whole.splits), memo_ratio,
+        memo_ratio / memo_formula, memo_formula);
     std::fflush(stdout);
   }
 }
@@ -94,6 +107,23 @@ void Report(const char* name, const Query& q, PlanShape shape) {
 
 int main(int argc, char** argv) {
   using namespace sliceplan;
+  if (argc == 7 && std::string(argv[1]) == "one") {
+    const GraphShape graph =
+        std::string(argv[2]) == "star" ? GraphShape::kStar : GraphShape::kRandom;
+    const PlanShape shape =
+        std::string(argv[4]) == "bushy" ? PlanShape::kBushy : PlanShape::kLeftDeep;
+    const Query q = testing::MakeQuery(graph, std::atoi(argv[3]), 1);
+    const SliceSpec slice{static_cast<uint32_t>(std::atoi(argv[6])),
+                          static_cast<uint32_t>(std::atoi(argv[5]))};
+    const char* runs = std::getenv("CONNECTED_SLICE_BENCH_RUNS");
+    for (int r = 0; r < (runs ? std::atoi(runs) : 5); ++r) {
+      const Run run = Solve(q, shape, slice, 1);
+      std::printf("search %.4f s, call %.4f s, %llu splits, %llu memo entries\n", run.seconds,
+                  run.call_seconds, static_cast<unsigned long long>(run.splits),
+                  static_cast<unsigned long long>(run.memo_entries));
+    }
+    return 0;
+  }
   std::vector<std::pair<std::string, int>> graphs;
   for (int i = 1; i + 1 < argc; i += 2) {
     int n = 0;

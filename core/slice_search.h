@@ -19,6 +19,7 @@
 #include "core/cost/cout_policy.h"
 #include "core/graph/join_graph.h"
 #include "core/memo/connected_memo.h"
+#include "core/memo/memo_allocator.h"
 #include "core/model/cardinality.h"
 #include "core/model/plan.h"
 #include "core/search/connected_left_deep.h"
@@ -67,6 +68,9 @@ class SliceSearch {
         constraints_(std::move(constraints)),
         layout_(MakeLayout(query)),
         working_(layout_ ? query.Permuted(layout_->perm()) : query),
+        connected_constraints_(layout_ && !options_.cross_products
+                                   ? constraints_.Renumbered(layout_->perm())
+                                   : constraints_),
         card_(working_),
         policy_(MakePolicy<Policy>(working_, card_, options_)) {}
 
@@ -79,7 +83,7 @@ class SliceSearch {
     }
     constexpr bool kTicksInside = requires(Policy & p) { p.set_control(&control); };
     if constexpr (kTicksInside) policy_.set_control(&control);
-    absl::Status status = layout_ ? RunDense(control) : RunConnected(control);
+    absl::Status status = options_.cross_products ? RunDense(control) : RunConnected(control);
     if constexpr (kTicksInside) policy_.set_control(nullptr);
     stats_.seconds =
         std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
@@ -96,7 +100,7 @@ class SliceSearch {
   // The slot of the whole query, if the slice holds a plan for it.
   std::optional<Slot> RootSlot() const {
     const RelSet all = working_.all();
-    if (layout_) {
+    if (options_.cross_products) {
       const Slot slot = layout_->SlotOf(all);
       if (!policy_.HasPlan(slot)) return std::nullopt;
       return slot;
@@ -141,8 +145,12 @@ class SliceSearch {
     return layout_->inverse_perm();
   }
 
-  Slot SlotOf(RelSet set) const { return layout_ ? layout_->SlotOf(set) : *memo_->Find(set); }
-  RelSet SetOf(Slot slot) const { return layout_ ? layout_->SetOf(slot) : memo_->SetOf(slot); }
+  Slot SlotOf(RelSet set) const {
+    return options_.cross_products ? layout_->SlotOf(set) : *memo_->Find(set);
+  }
+  RelSet SetOf(Slot slot) const {
+    return options_.cross_products ? layout_->SetOf(slot) : memo_->SetOf(slot);
+  }
   // How the connected-only search ran (unset with cross products).
   std::optional<ConnectedMethod> connected_method() const { return method_; }
   // Tests: run the connected-only search with `method` where the limits
@@ -155,8 +163,12 @@ class SliceSearch {
   static constexpr size_t kPolicyBytesPerSet = Policy::kBytesPerSlot + sizeof(double);
   static constexpr size_t kHashBytesPerSet = kPolicyBytesPerSet + HashMemo::kBytesPerSet;
 
+  // The dense search's memo layout; a sliced connected-only search takes
+  // only its numbering (the constrained relations on the top bits), so the
+  // sets no plan of the slice holds fill whole blocks of a direct memo that
+  // the search never touches (docs/slicing.md, "Connected-only slices").
   std::optional<DenseLayout> MakeLayout(const Query& query) const {
-    if (!options_.cross_products) return std::nullopt;
+    if (!options_.cross_products && constraints_.constraints().empty()) return std::nullopt;
     return DenseLayout(query.size(), constraints_);
   }
 
@@ -181,7 +193,7 @@ class SliceSearch {
   static constexpr uint64_t kThreadedFromSets = uint64_t{1} << 14;
   bool Threaded(uint64_t sets) const {
     return options_.threads > 1 && sets >= kThreadedFromSets &&
-           (!layout_ || layout_->free_bits() > 0);
+           (!options_.cross_products || layout_->free_bits() > 0);
   }
 
   absl::Status RunConnected(SearchControl& control) {
@@ -210,6 +222,14 @@ class SliceSearch {
     if constexpr (ScatteredLayout<Policy>) {
       if (strategy.method != ConnectedMethod::kPullEverySplit) policy_.UseScatteredLayout();
     }
+    constexpr bool kCanLeaveUnfilled = requires(Policy & p) { p.LeaveUnfilled(); };
+    if constexpr (kCanLeaveUnfilled) {
+      if (pulled) policy_.LeaveUnfilled();
+    }
+    // A slice touches only its admissible blocks (MakeLayout): no huge
+    // page may make the others resident.
+    std::optional<SmallPagesScope> small_pages;
+    if (layout_) small_pages.emplace();
     memo_->Visit([&]<class Memo>(Memo& memo) {
       if constexpr (!Memo::kGrows) policy_.Resize(memo.slot_count());
       if constexpr (std::is_same_v<Memo, DirectMemo>) {
@@ -222,11 +242,8 @@ class SliceSearch {
     });
     stats_.memo_entries = memo_->size();
     // (The walk's copy of the connected sets' bits counts too.)
-    stats_.memo_bytes =
-        memo_->direct()
-            ? static_cast<uint64_t>(DirectMemoBytes(working_.size(), kPolicyBytesPerSet)) +
-                  (graph_sets ? graph_sets->bytes() : 0)
-            : memo_->size() * kHashBytesPerSet;
+    stats_.memo_bytes = memo_->direct() ? DirectBytes() + (graph_sets ? graph_sets->bytes() : 0)
+                                        : memo_->size() * kHashBytesPerSet;
     if (absl::IsResourceExhausted(status)) {
       return absl::ResourceExhaustedError(absl::StrCat(status.message(), " (memo limit ",
                                                        options_.memo_limit_bytes, " bytes at ",
@@ -235,37 +252,51 @@ class SliceSearch {
     return status;
   }
 
+  // A direct memo's bytes: the presence bits, and the policy's entries of
+  // the blocks whose high pattern the slice admits (the others are never
+  // touched, so never resident).
+  uint64_t DirectBytes() const {
+    const int n = working_.size();
+    const uint64_t slots = layout_ ? layout_->slot_count() : uint64_t{1} << n;
+    return slots * kPolicyBytesPerSet + DirectMemo::BitmapBytes(n);
+  }
+
   // Sets pulled in mask order: every split tested (left-deep: every
   // (S \ {r}, r)), or (walk given) each set's csg-cmp pairs walked.
   absl::Status RunPulled(const JoinGraph& graph, DirectMemo& memo, SearchControl& control,
                          const SetCcpWalk* walk) {
     if (options_.shape == PlanShape::kLeftDeep) {
-      return RunConnectedLeftDeepPull(graph, constraints_, policy_, memo, control, stats_);
+      return RunConnectedLeftDeepPull(graph, connected_constraints_, policy_, memo, control,
+                                      stats_);
     }
     if constexpr (Policy::kParallelDense) {
       if (working_.size() >= 7 && Threaded(memo.slot_count())) {
-        return RunConnectedPullThreaded(working_.size(), constraints_, policy_, memo, control,
-                                        stats_, options_.threads, walk);
+        return RunConnectedPullThreaded(working_.size(), connected_constraints_, policy_, memo,
+                                        control, stats_, options_.threads, walk);
       }
     }
-    return RunConnectedPull(constraints_, policy_, memo, control, stats_, walk);
+    return RunConnectedPull(connected_constraints_, policy_, memo, control, stats_, walk);
   }
 
   template <class Memo>
   absl::Status RunPushed(const JoinGraph& graph, Memo& memo, SearchControl& control) {
     if (options_.shape == PlanShape::kBushy) {
-      return ConnectedPush<Policy, Memo>(working_.size(), graph, card_, constraints_, policy_, memo,
-                                         control, stats_)
+      return ConnectedPush<Policy, Memo>(working_.size(), graph, card_, connected_constraints_,
+                                         policy_, memo, control, stats_)
           .Run();
     }
-    return RunConnectedLeftDeep(working_.size(), graph, card_, constraints_, policy_, memo, control,
-                                stats_);
+    return RunConnectedLeftDeep(working_.size(), graph, card_, connected_constraints_, policy_,
+                                memo, control, stats_);
   }
 
   SearchOptions options_;
   SliceConstraints constraints_;
+  // Set for the dense search, and for a sliced connected-only one (its
+  // numbering only).
   std::optional<DenseLayout> layout_;
-  Query working_;  // renumbered for the dense layout, else the query itself
+  Query working_;  // renumbered by the layout, else the query itself
+  // The constraints in working_'s numbering (connected-only search).
+  SliceConstraints connected_constraints_;
   Cardinality card_;
   Policy policy_;
   std::optional<ConnectedMemo> memo_;  // set by a connected-only run

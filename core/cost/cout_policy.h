@@ -41,7 +41,18 @@ class CoutPolicy {
   // predicates, and the arrays are left uninitialised until a set is met.
   void UseScatteredLayout() { scattered_ = true; }
 
+  // Called before Resize by a search that writes every entry it keeps
+  // before any read (the connected-only pull searches): Resize then leaves
+  // the entries uninitialised, so the memo's pages are touched only where
+  // the search keeps sets.
+  void LeaveUnfilled() { unfilled_ = true; }
+
   void Resize(size_t slots) {
+    if (unfilled_ && !scattered_) {
+      cost_.resize(slots);
+      left_.resize(slots);
+      return;
+    }
     if (scattered_) {
       cost_.resize(slots);
       left_.resize(slots);
@@ -136,6 +147,7 @@ class CoutPolicy {
 
   const Cardinality& card_;
   bool scattered_ = false;
+  bool unfilled_ = false;
   // Scattered mode leaves entries uninitialised until InitSet or InitJoin.
   std::vector<double, MemoAllocator<double>> cost_;
   std::vector<Slot, MemoAllocator<Slot>> left_;

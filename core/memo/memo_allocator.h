@@ -4,8 +4,9 @@
 // uses; blocks of 2 MiB or more are aligned to 2 MiB and their whole 2 MiB
 // pages offered to the kernel as transparent huge pages, so first touching
 // a large memo takes one page fault per 2 MiB instead of per 4 KiB, and a
-// block's resident size is still its bytes, not its bytes rounded up. Only for element types
-// every reader initialises first.
+// block's resident size is still its bytes, not its bytes rounded up
+// (SmallPagesScope turns the huge pages off). Only for element types every
+// reader initialises first.
 #ifndef SLICEPLAN_CORE_MEMO_MEMO_ALLOCATOR_H_
 #define SLICEPLAN_CORE_MEMO_MEMO_ALLOCATOR_H_
 
@@ -23,8 +24,11 @@ inline constexpr size_t kHugePage = size_t{2} << 20;
 // Past any machine's memory; keeps the rounding below from overflowing.
 inline constexpr size_t kMaxBytes = size_t{1} << 60;
 
+// Set while a SmallPagesScope is live on this thread.
+inline thread_local bool small_pages = false;
+
 inline void* Allocate(size_t bytes) {
-  if (bytes < kHugePage) {
+  if (bytes < kHugePage || small_pages) {
     if (void* p = std::malloc(bytes)) return p;
     throw std::bad_alloc();
   }
@@ -43,6 +47,23 @@ inline void* Allocate(size_t bytes) {
   return p;
 }
 }  // namespace memo_allocator_internal
+
+// While one lives, memo arrays allocated on this thread keep the kernel's
+// 4 KiB pages: for a memo of which the search touches only some blocks
+// (a sliced connected-only search), a huge page over a touched entry would
+// make 2 MiB around it resident. Not nestable across threads; RAII.
+class SmallPagesScope {
+ public:
+  SmallPagesScope() : before_(memo_allocator_internal::small_pages) {
+    memo_allocator_internal::small_pages = true;
+  }
+  ~SmallPagesScope() { memo_allocator_internal::small_pages = before_; }
+  SmallPagesScope(const SmallPagesScope&) = delete;
+  SmallPagesScope& operator=(const SmallPagesScope&) = delete;
+
+ private:
+  bool before_;
+};
 
 template <class T>
 class MemoAllocator {

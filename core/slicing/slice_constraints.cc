@@ -48,4 +48,15 @@ SliceConstraints SliceConstraints::FromRelations(
   return out;
 }
 
+SliceConstraints SliceConstraints::Renumbered(std::span<const RelationId> perm) const {
+  SliceConstraints out = *this;
+  out.constrained_ = PermuteSet(constrained_, perm);
+  for (OrientedConstraint& c : out.constraints_) {
+    c.trigger = PermuteSet(c.trigger, perm);
+    c.need = PermuteSet(c.need, perm);
+    for (int d = 0; d < c.relations.size; ++d) c.relations.ids[d] = perm[c.relations.ids[d].value];
+  }
+  return out;
+}
+
 }  // namespace sliceplan

@@ -12,6 +12,7 @@
 #define SLICEPLAN_CORE_SLICING_SLICE_CONSTRAINTS_H_
 
 #include <array>
+#include <span>
 #include <vector>
 
 #include "absl/status/statusor.h"
@@ -50,6 +51,10 @@ class SliceConstraints {
   // REQUIRES: relations disjoint, sizes match `shape`, one per slice bit.
   static SliceConstraints FromRelations(PlanShape shape, SliceSpec spec,
                                         const std::vector<ConstraintRelations>& relations);
+  // The same constraints with every relation i renamed perm[i] (a search
+  // that renumbers its query tests its own sets). REQUIRES: perm is a
+  // permutation of the query's relations.
+  SliceConstraints Renumbered(std::span<const RelationId> perm) const;
 
   bool Admissible(RelSet s) const {
     for (const OrientedConstraint& c : constraints_) {

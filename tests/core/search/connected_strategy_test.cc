@@ -222,6 +222,26 @@ TEST(ConnectedMethodsTest, MemoBytesCountTheWalksCopyOfTheSets) {
   EXPECT_EQ(tested.stats().memo_bytes, entries + 512);
 }
 
+TEST(ConnectedMethodsTest, SlicedDirectMemoCountsTheAdmittedBlocksOnly) {
+  // P = 4, bushy: two triples, 7^2 of their 8^2 high patterns admitted,
+  // each a block of 2^6 of the 2^12 sets; the bits stay whole (docs/slicing.md,
+  // "Connected-only slices"). Left-deep: two pairs, 3^2 of 4^2.
+  const uint64_t per_set = CoutPolicy::kBytesPerSlot + sizeof(double);
+  const Query star = testing::MakeQuery(GraphShape::kStar, 12, 1);
+  SearchControl control;
+  for (ConnectedMethod method : {ConnectedMethod::kPullSetCcps, ConnectedMethod::kPullEverySplit,
+                                 ConnectedMethod::kPushDirect}) {
+    auto bushy = Search<CoutPolicy>(star, PlanShape::kBushy, {1, 4}, method, 1);
+    ASSERT_TRUE(bushy.Run(control).ok());
+    const uint64_t bits = method == ConnectedMethod::kPullSetCcps ? 2 * 512 : 512;
+    EXPECT_EQ(bushy.stats().memo_bytes, 49 * 64 * per_set + bits);
+  }
+  auto left_deep =
+      Search<CoutPolicy>(star, PlanShape::kLeftDeep, {1, 4}, ConnectedMethod::kPullEverySplit, 1);
+  ASSERT_TRUE(left_deep.Run(control).ok());
+  EXPECT_EQ(left_deep.stats().memo_bytes, 9 * 256 * per_set + 512);
+}
+
 TEST(ConnectedMethodsTest, PulledMethodsGiveTheSameAnswerOnThreads) {
   // 15 relations: past the threaded searches' smallest memo (2^14 slots).
   for (GraphShape graph : {GraphShape::kStar, GraphShape::kRandom, GraphShape::kClique}) {
