@@ -52,21 +52,12 @@ class SetCcpWalk {
     }
   }
 
-  // Never prunes (ForEach's default).
-  struct NothingDead {
-    bool operator()(RelSet, RelSet) const { return false; }
-  };
-
   // Calls fn(c, rest) for every split of `set` into connected c (holding
   // the lowest relation) and connected rest = set \ c, each once, until fn
   // returns false. Returns false if fn did. REQUIRES: `set` connected.
-  // `dead(c, x)`, when true, says that no split of the state (c, x) is
-  // wanted (every c* with c <= c* <= set \ x): the state and all it would
-  // grow into are skipped unreported. A slice prunes with it (a constraint
-  // settled by c and x forbids every such part, split_pruner.h).
-  template <class Fn, class Dead = NothingDead>
-  bool ForEach(RelSet set, Fn&& fn, const Dead& dead = Dead{}) const {
-    Walk<Dead> walk(*this, set, dead);
+  template <class Fn>
+  bool ForEach(RelSet set, Fn&& fn) const {
+    Walk walk(*this, set);
     walk.Enter(LowestBit(set), 0, adjacent_[std::countr_zero(set)] & set & ~LowestBit(set), fn);
     while (walk.top > 0) {
       Frame& f = walk.stack[walk.top - 1];
@@ -92,15 +83,12 @@ class SetCcpWalk {
     RelSet boundary;    // C's neighbours in S outside C
   };
 
-  template <class Dead>
   struct Walk {
     // Leaves the stack uninitialised (4 KiB cleared per set otherwise).
-    Walk(const SetCcpWalk& owner, RelSet whole, const Dead& is_dead)
-        : self(owner), set(whole), dead(is_dead) {}
+    Walk(const SetCcpWalk& owner, RelSet whole) : self(owner), set(whole) {}
 
     const SetCcpWalk& self;
     const RelSet set;
-    const Dead& dead;
     // The remainders of the live states are distinct and pairwise nested
     // or disjoint subsets of S, so there are fewer than 2 |S| of them.
     std::array<Frame, 2 * kMaxRelations> stack;
@@ -112,7 +100,7 @@ class SetCcpWalk {
     template <class Fn>
     [[gnu::always_inline]] void Enter(RelSet c, RelSet x, RelSet boundary, Fn& fn) {
       const RelSet rest = set ^ c;
-      if (rest == 0 || dead(c, x)) return;
+      if (rest == 0) return;
       if (self.connected_.Contains(rest)) {
         Push(c, x, boundary, fn);
         return;
@@ -133,7 +121,6 @@ class SetCcpWalk {
     template <class Fn>
     [[gnu::always_inline]] void Absorb(RelSet k, RelSet x, Fn& fn) {
       const RelSet c = set ^ k;
-      if (dead(c, x)) return;
       // A one-relation remainder has no child: its boundary is not needed.
       Push(c, x, (k & (k - 1)) != 0 ? self.Boundary(k, c) : k, fn);
     }

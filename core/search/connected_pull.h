@@ -28,7 +28,6 @@
 #include "core/search/search_policy.h"
 #include "core/search/search_stats.h"
 #include "core/slicing/slice_constraints.h"
-#include "core/slicing/split_pruner.h"
 
 namespace sliceplan {
 
@@ -109,14 +108,13 @@ struct WalkedSplits {
   static constexpr bool kScattered = true;
   static constexpr bool kOneWay = false;
   const SetCcpWalk& walk;
-  const SliceConstraints& constraints;
 
   template <SearchPolicy Policy>
   bool operator()(const Policy& policy, const DirectMemo& memo, SearchControl& control, bool sliced,
                   RelSet set, typename Policy::Acc& acc, uint64_t& pairs) const {
     auto a = acc;
     uint64_t offered = 0, walked = 0;
-    const auto offer = [&](RelSet left, RelSet right) {
+    const bool done = walk.ForEach(set, [&](RelSet left, RelSet right) {
       // Unsliced, every connected set has a plan: no bit to test.
       if (!sliced || (memo.Contains(left) && memo.Contains(right))) {
         a = OfferBoth(policy, a, left, right);
@@ -127,15 +125,7 @@ struct WalkedSplits {
         if (control.Tick(SearchControl::kTickWork)) return false;
       }
       return true;
-    };
-    bool done;
-    if (!sliced) {
-      done = walk.ForEach(set, offer);
-    } else if (const SplitPruner pruner(constraints, set); !pruner.empty()) {
-      done = walk.ForEach(set, offer, pruner);  // the slice's dead parts unwalked
-    } else {
-      done = walk.ForEach(set, offer);
-    }
+    });
     acc = a;
     pairs += offered;
     return done;
@@ -198,8 +188,7 @@ bool SolveWordsFrom(const SetCcpWalk* walk, const SliceConstraints& constraints,
                     DirectMemo& memo, SearchControl& control, uint64_t& splits, size_t first,
                     size_t last) {
   if (walk != nullptr) {
-    return SolveWords(constraints, policy, memo, control, splits, first, last,
-                      WalkedSplits{*walk, constraints});
+    return SolveWords(constraints, policy, memo, control, splits, first, last, WalkedSplits{*walk});
   }
   return SolveWords(constraints, policy, memo, control, splits, first, last, EverySplit{});
 }
