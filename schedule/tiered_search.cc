@@ -8,6 +8,7 @@
 
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_format.h"
+#include "core/capacity/rate_calibration.h"
 #include "core/model/input_limits.h"
 #include "core/model/status_macros.h"
 #include "core/slice_planner.h"
@@ -176,17 +177,31 @@ class TierRun {
     const double remaining = Remaining();
     const SearchOptions forecast_options = ForecastOptions(options_, workers_);
     const ExactWork work = MeasureExactWork(exact, forecast_options);
-    const ExactForecast f =
-        request_.slice_count != 0
-            ? ForecastExact(exact, forecast_options, work, concurrent_slices_, request_.rates,
-                            request_.slice_count)
-            : FastestForecast(exact, forecast_options, work, concurrent_slices_, request_.rates);
+    const auto forecast = [&](const MachineRates& rates) {
+      return request_.slice_count != 0
+                 ? ForecastExact(exact, forecast_options, work, concurrent_slices_, rates,
+                                 request_.slice_count)
+                 : FastestForecast(exact, forecast_options, work, concurrent_slices_, rates);
+    };
+    ExactForecast f = forecast(request_.rates);
+    const char* rates_note = "";
+    if (!(f.seconds <= kExactShare * remaining) && !request_.rates_given &&
+        remaining >= kCalibrateFromSeconds) {
+      // The defaults are cautious: measure before giving the search up,
+      // in at most kCalibrationShare of the time left (else they stand).
+      SearchControl control(nullptr, SteadyAfter(kCalibrationShare * remaining));
+      if (schedule_.cancelled) control.set_cancel_check(schedule_.cancelled);
+      if (auto measured = CalibrateRatesOnce(exact, forecast_options, control); measured.ok()) {
+        f = forecast(*measured);
+        rates_note = " (rates measured on this machine)";
+      }
+    }
     out_.forecast = f;
-    if (!(f.seconds <= kExactShare * remaining)) {
+    if (!(f.seconds <= kExactShare * Remaining())) {
       reason_ = absl::StrFormat(
-          "the exact search was predicted %.3g s%s on %d concurrent slices, past %.0f%% of the "
+          "the exact search was predicted %.3g s%s%s on %d concurrent slices, past %.0f%% of the "
           "%.3g s left",
-          f.seconds, f.estimated ? " (connected sets sampled)" : "", concurrent_slices_,
+          f.seconds, f.estimated ? " (connected sets sampled)" : "", rates_note, concurrent_slices_,
           100 * kExactShare, remaining);
       return false;
     }
@@ -216,8 +231,8 @@ class TierRun {
     }
     reason_ = proven
                   ? absl::StrFormat(
-                        "exact: predicted %.3g s on %d concurrent slices, within the %.3g s left",
-                        f.seconds, concurrent_slices_, remaining)
+                        "exact: predicted %.3g s%s on %d concurrent slices, within the %.3g s left",
+                        f.seconds, rates_note, concurrent_slices_, remaining)
                   : absl::StrFormat(
                         "exact (predicted %.3g s) cut short by the deadline with "
                         "%.0f%% of the slices solved",

@@ -8,8 +8,10 @@
 //      plan, whatever happens after;
 //   2. up to 64 relations, the exact search runs when the capacity model
 //      (core/capacity/capacity_model.h) predicts it finishes within kExactShare of
-//      the time left on this pool; cut short by the deadline, its best
-//      plan so far competes with the incumbent;
+//      the time left on this pool, by the default rates or, where those
+//      say no, by the rates measured for the query on this machine; cut
+//      short by the deadline, its best plan so far competes with the
+//      incumbent;
 //   3. otherwise (bushy plans) idp improves the incumbent block by block,
 //      each block an exact search sliced over the pool, the block size
 //      chosen and re-chosen by the capacity model from the time left.
@@ -48,6 +50,11 @@ namespace sliceplan {
 // (docs/benchmarks.md).
 inline constexpr int kAutoLinearRelations = kMaxLinearRelations;
 inline constexpr double kDefaultBudgetSeconds = 10;
+// auto measures the rates (TierRequest::rates_given) only with this much
+// time left, and gives the measuring at most this share of it: a
+// calibration takes 0.1-0.3 s (docs/tiers.md).
+inline constexpr double kCalibrateFromSeconds = 0.5;
+inline constexpr double kCalibrationShare = 0.25;
 
 struct TierRequest {
   SearchTier tier = SearchTier::kAuto;
@@ -56,7 +63,12 @@ struct TierRequest {
   // if sooner, still ends everything.
   double budget_seconds = kDefaultBudgetSeconds;
   uint32_t slice_count = 0;  // the exact search's P; 0: the planner's
+  // The capacity model's rates. Unless given, auto keeps the defaults
+  // (which over-predict on the reference machine) while the exact search
+  // fits by them, and measures this machine's rates for the query
+  // (CalibrateRatesOnce) before it gives the exact search up.
   MachineRates rates;
+  bool rates_given = false;
 };
 
 struct TieredOutcome {

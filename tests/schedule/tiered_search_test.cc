@@ -70,6 +70,33 @@ TEST(TieredSearchTest, AutoRunsTheExactSearchWhenItFits) {
   EXPECT_NEAR(out->plan.cost(), best, best * 1e-12);
 }
 
+TEST(TieredSearchTest, AutoMeasuresTheRatesBeforeGivingTheExactSearchUp) {
+  // A 20-relation random graph without cross products: by the default
+  // connected rate (8 us per set) its exact search is predicted past 60%
+  // of a 1 s budget; measured on this machine (well under 1 us per set)
+  // it fits, and runs in tens of milliseconds.
+  const Query exact = testing::MakeQuery(GraphShape::kRandom, 20, 1);
+  const WideQuery q = WideQuery::FromExact(exact);
+  TierRequest given;
+  given.budget_seconds = 1;
+  given.rates_given = true;  // the defaults, as a caller may insist
+  auto cautious = RunEmbeddedTiers(q, Bushy(false), given, 1);
+  ASSERT_TRUE(cautious.ok()) << cautious.status();
+  ASSERT_TRUE(cautious->forecast.has_value());
+  EXPECT_GT(cautious->forecast->seconds, kExactShare * 1.0) << cautious->reason;
+  EXPECT_NE(cautious->tier, SearchTier::kExact) << cautious->reason;
+
+  TierRequest measured = given;
+  measured.rates_given = false;
+  auto out = RunEmbeddedTiers(q, Bushy(false), measured, 1);
+  ASSERT_TRUE(out.ok()) << out.status();
+  EXPECT_EQ(out->tier, SearchTier::kExact) << out->reason;
+  EXPECT_TRUE(out->proven_optimal);
+  EXPECT_NE(out->reason.find("rates measured on this machine"), std::string::npos) << out->reason;
+  // (That the exact tier's plan is the optimum is AForcedTierAnswersWithAValidPlan's.)
+  EXPECT_LE(out->plan.cost(), cautious->plan.cost());
+}
+
 TEST(TieredSearchTest, AutoPastTheExactReachIsNeverCostlierThanGreedy) {
   const WideQuery q = testing::MakeWideQuery(testing::WideShape::kSnowflake, 120, 3);
   auto out = Tiers(q, Bushy(true), SearchTier::kAuto, 2);
