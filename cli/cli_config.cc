@@ -249,6 +249,23 @@ std::vector<FlagRow> RunRows(OptimizeConfig& config) {
          config.tier = *tier;
          return absl::OkStatus();
        }},
+      {"max-cardinalities", "N", "1000000",
+       "most listed row estimates (cardinalities) the query may carry",
+       [&config](const std::string& v) {
+         ASSIGN_OR_RETURN(const uint64_t n, ParseUnsigned("max-cardinalities", v));
+         if (n > (uint64_t{1} << 40)) return BadFlag("max-cardinalities", v, "at most 2^40");
+         config.limits.max_cardinalities = static_cast<int64_t>(n);
+         return absl::OkStatus();
+       }},
+      {"max-query-bytes", "BYTES", "16777216", "largest query file read",
+       [&config](const std::string& v) {
+         ASSIGN_OR_RETURN(const uint64_t n, ParseUnsigned("max-query-bytes", v));
+         if (n == 0 || n > (uint64_t{1} << 40)) {
+           return BadFlag("max-query-bytes", v, "a number of bytes in 1..2^40");
+         }
+         config.limits.max_query_bytes = static_cast<int64_t>(n);
+         return absl::OkStatus();
+       }},
       {"budget-seconds", "S", "10", "the time auto and idp plan for without a deadline",
        Seconds("budget-seconds", config.budget_seconds, 3600)},
       {"deadline-seconds", "S", "",

@@ -37,6 +37,9 @@ struct OptimizeConfig {
   std::string plot_path;                // --plot=FILE.svg (cluster model)
   TlsFiles tls;                         // --tls-ca, --tls-cert, --tls-key (with --coordinator)
   std::string token_file;               // --token-file (with --coordinator)
+  // --max-cardinalities, --max-query-bytes (the query file's limits here;
+  // a coordinator applies its own).
+  InputLimits limits;
 };
 
 // `sliceplan capacity QUERY.json --deadline-seconds=S`.

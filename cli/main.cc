@@ -101,7 +101,7 @@ int Optimize(const std::vector<std::string>& args) {
   if (!config->plot_path.empty() && config->search.cost != CostModelKind::kCluster) {
     return Fail(absl::InvalidArgumentError("--plot: needs --cost=cluster (a frontier to plot)"));
   }
-  auto query = ReadWideQueryFile(config->query_path);
+  auto query = ReadWideQueryFile(config->query_path, config->limits);
   if (!query.ok()) return Fail(query.status());
   if (auto s = CheckSlicesFlag(*config, *query); !s.ok()) return Fail(s);
   std::optional<Query> exact;

@@ -26,6 +26,8 @@ ABSL_FLAG(int, tls_reload_seconds, 10,
 ABSL_FLAG(int64_t, max_request_bytes, int64_t{16} << 20, "largest request accepted, in bytes");
 ABSL_FLAG(int64_t, max_relations, 10000, "most relations per query");
 ABSL_FLAG(int64_t, max_predicates, 100000, "most predicates per query");
+ABSL_FLAG(int64_t, max_cardinalities, 1000000,
+          "most listed row estimates (cardinalities) per query; raise --max_request_bytes with it");
 ABSL_FLAG(int64_t, max_node_counts, 16, "most node counts a cluster-model request may list");
 ABSL_FLAG(int64_t, max_sample_rates, 16, "most sample rates a cluster-model request may list");
 ABSL_FLAG(double, max_deadline_seconds, 3600,
@@ -49,6 +51,7 @@ absl::StatusOr<ServerFlags> ReadServerFlags(const char* server) {
   InputLimits& limits = out.limits;
   limits.max_relations = absl::GetFlag(FLAGS_max_relations);
   limits.max_predicates = absl::GetFlag(FLAGS_max_predicates);
+  limits.max_cardinalities = absl::GetFlag(FLAGS_max_cardinalities);
   limits.max_query_bytes = absl::GetFlag(FLAGS_max_request_bytes);
   limits.max_node_counts = absl::GetFlag(FLAGS_max_node_counts);
   limits.max_sample_rates = absl::GetFlag(FLAGS_max_sample_rates);

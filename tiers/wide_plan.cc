@@ -4,6 +4,7 @@
 
 #include "absl/strings/str_cat.h"
 #include "core/cost/cout_model.h"
+#include "core/model/cardinality.h"
 #include "tiers/join_forest.h"
 
 namespace sliceplan {
@@ -47,7 +48,34 @@ absl::Status CheckWidePlan(const WidePlan& plan, int n, bool left_deep) {
   return absl::OkStatus();
 }
 
+namespace {
+
+// CostWidePlan on the engine's listed estimates: each node's set as a
+// mask (listed estimates come with 64 relations at most) and its
+// cardinality by the exact engine's rule (core/model/cardinality.h).
+double CostWithListed(WidePlan& plan, const WideQuery& query) {
+  const Query exact = *ToExactQuery(query);
+  const Cardinality card(exact);
+  std::vector<RelSet> sets(plan.nodes.size());
+  for (size_t i = 0; i < plan.nodes.size(); ++i) {
+    WideNode& node = plan.nodes[i];
+    if (node.is_leaf()) {
+      sets[i] = Singleton(RelationId{static_cast<uint8_t>(node.relation)});
+      node.cardinality = card.Of(sets[i]);
+      node.cost = 0;
+      continue;
+    }
+    sets[i] = sets[node.left] | sets[node.right];
+    node.cardinality = card.Of(sets[i]);
+    node.cost = CoutJoin(node.cardinality, plan.nodes[node.left].cost, plan.nodes[node.right].cost);
+  }
+  return plan.cost();
+}
+
+}  // namespace
+
 double CostWidePlan(WidePlan& plan, const WideQuery& query) {
+  if (query.listed() != nullptr) return CostWithListed(plan, query);
   JoinForest forest(query);
   std::vector<int32_t> component(plan.nodes.size());
   for (size_t i = 0; i < plan.nodes.size(); ++i) {

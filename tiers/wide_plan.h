@@ -41,7 +41,10 @@ int32_t AddJoin(WidePlan& plan, int32_t left, int32_t right);
 absl::Status CheckWidePlan(const WidePlan& plan, int n, bool left_deep = false);
 
 // Fills every node's cardinality and C_out (core/cost/cout_model.h's
-// rounding); returns the root's cost. REQUIRES: CheckWidePlan is OK.
+// rounding); returns the root's cost. With the engine's listed estimates
+// (WideQuery::listed) the cardinalities are the exact engine's
+// (core/model/cardinality.h), so every plan of every tier is costed on the
+// same numbers. REQUIRES: CheckWidePlan is OK.
 double CostWidePlan(WidePlan& plan, const WideQuery& query);
 
 // True when some join of the plan is a cross product (no predicate spans

@@ -4,6 +4,7 @@
 #include <cerrno>
 #include <cstring>
 #include <fstream>
+#include <memory>
 #include <sstream>
 
 #include "absl/container/flat_hash_map.h"
@@ -52,6 +53,38 @@ absl::StatusOr<WidePredicate> PredicateFromProto(
   return p;
 }
 
+// The listed estimates, names resolved to ids. Errors name the entry.
+absl::StatusOr<ListedRows> ListedFromProto(
+    const v1::Query& message, const absl::flat_hash_map<std::string_view, int32_t>& ids) {
+  std::vector<ListedSet> sets;
+  sets.reserve(message.cardinalities_size());
+  for (int i = 0; i < message.cardinalities_size(); ++i) {
+    const v1::SetRows& m = message.cardinalities(i);
+    ListedSet set;
+    for (int k = 0; k < m.relations_size(); ++k) {
+      const auto it = ids.find(m.relations(k));
+      if (it == ids.end()) {
+        return absl::InvalidArgumentError(absl::StrCat("cardinalities[", i, "].relations[", k,
+                                                       "]: unknown relation \"",
+                                                       ShortName(m.relations(k)), "\""));
+      }
+      const RelSet bit = Singleton(RelationId{static_cast<uint8_t>(it->second)});
+      if ((set.relations & bit) != 0) {
+        return absl::InvalidArgumentError(absl::StrCat("cardinalities[", i, "].relations[", k,
+                                                       "]: relation \"", ShortName(m.relations(k)),
+                                                       "\" is named twice"));
+      }
+      set.relations |= bit;
+    }
+    if (!m.has_rows()) {
+      return absl::InvalidArgumentError(absl::StrCat("cardinalities[", i, "].rows: missing"));
+    }
+    set.rows = m.rows().value();
+    sets.push_back(set);
+  }
+  return ListedRows::Create(static_cast<int>(message.relations_size()), std::move(sets));
+}
+
 absl::Status CheckSizes(const v1::Query& message, const InputLimits& limits) {
   if (message.relations_size() > limits.max_relations) {
     return absl::ResourceExhaustedError(absl::StrCat("relations: ", message.relations_size(),
@@ -62,6 +95,16 @@ absl::Status CheckSizes(const v1::Query& message, const InputLimits& limits) {
     return absl::ResourceExhaustedError(absl::StrCat("predicates: ", message.predicates_size(),
                                                      " predicates given; the limit is ",
                                                      limits.max_predicates));
+  }
+  if (message.cardinalities_size() > limits.max_cardinalities) {
+    return absl::ResourceExhaustedError(
+        absl::StrCat("cardinalities: ", message.cardinalities_size(),
+                     " listed sets given; the limit is ", limits.max_cardinalities));
+  }
+  if (message.cardinalities_size() > 0 && message.relations_size() > kMaxRelations) {
+    return absl::InvalidArgumentError(
+        absl::StrCat("cardinalities: the engine's estimates are taken for queries of up to ",
+                     kMaxRelations, " relations; this one has ", message.relations_size()));
   }
   return absl::OkStatus();
 }
@@ -114,7 +157,10 @@ absl::StatusOr<WideQuery> WideQueryFromProto(const v1::Query& message, const Inp
   }
   // Names were checked first, so no predicate resolved to the wrong one of
   // two equal names.
-  return WideQuery::Create(std::move(relations), std::move(predicates));
+  ASSIGN_OR_RETURN(WideQuery query, WideQuery::Create(std::move(relations), std::move(predicates)));
+  if (message.cardinalities_size() == 0) return query;
+  ASSIGN_OR_RETURN(ListedRows listed, ListedFromProto(message, ids));
+  return query.WithListed(std::make_shared<const ListedRows>(std::move(listed)));
 }
 
 absl::StatusOr<Query> QueryFromProto(const v1::Query& message, const InputLimits& limits) {
@@ -136,6 +182,14 @@ v1::Query WideQueryToProto(const WideQuery& query) {
     v1::Predicate* out = m.add_predicates();
     for (const int32_t r : p.relations) out->add_relations(query.relation(r).name);
     out->mutable_selectivity()->set_value(p.selectivity);
+  }
+  if (query.listed() != nullptr) {
+    for (const ListedSet& set : query.listed()->sets()) {
+      v1::SetRows* out = m.add_cardinalities();
+      ForEachMember(set.relations,
+                    [&](RelationId r) { out->add_relations(query.relation(r.value).name); });
+      out->mutable_rows()->set_value(set.rows);
+    }
   }
   return m;
 }

@@ -16,7 +16,8 @@ constexpr double kSmallest = 1e-290;
 }  // namespace
 
 Cardinality::Cardinality(const Query& query)
-    : predicates_(query.predicates().begin(), query.predicates().end()) {
+    : predicates_(query.predicates().begin(), query.predicates().end()),
+      listed_(query.shared_listed()) {
   double above = 1, below = 1;
   for (const Relation& rel : query.relations()) {
     rows_.push_back(rel.rows);
@@ -28,7 +29,8 @@ Cardinality::Cardinality(const Query& query)
     below *= p.selectivity;
   }
   wide_range_ = !(above < kValueCeiling && below > kSmallest);
-  pairwise_ = !wide_range_;
+  // OfJoin composes the model's product; listed estimates do not compose.
+  pairwise_ = !wide_range_ && !listed_;
   for (const Predicate& p : predicates_) pairwise_ = pairwise_ && Size(p.relations) == 2;
   if (!pairwise_) return;
   partners_.assign(rows_.size(), 0);
@@ -41,6 +43,48 @@ Cardinality::Cardinality(const Query& query)
     pair_selectivity_[u * kMaxRelations + v] *= p.selectivity;
     pair_selectivity_[v * kMaxRelations + u] *= p.selectivity;
   }
+}
+
+RelSet Cardinality::ComponentOf(RelSet x, RelSet seed) const {
+  RelSet reached = seed;
+  for (bool grew = true; grew;) {
+    grew = false;
+    for (const Predicate& p : predicates_) {
+      if ((p.relations & reached) != 0 && (p.relations & ~reached) != 0 &&
+          IsSubset(p.relations, x)) {
+        reached |= p.relations;
+        grew = true;
+      }
+    }
+  }
+  return reached;
+}
+
+double Cardinality::LogSelectivityCompletedBy(RelSet v, RelSet x) const {
+  double sum = 0;
+  for (size_t j = 0; j < predicates_.size(); ++j) {
+    const RelSet r = predicates_[j].relations;
+    if ((r & v) != 0 && IsSubset(r, x)) sum += log_selectivities_[j];
+  }
+  return sum;
+}
+
+double Cardinality::OfListed(RelSet x) const {
+  if (const auto rows = listed_->Find(x)) return Saturate(*rows);
+  if ((x & (x - 1)) == 0) return rows_[std::countr_zero(x)];
+  const RelSet first = ComponentOf(x, LowestBit(x));
+  if (first != x) {
+    // No predicate spans two components: the product of theirs.
+    return Saturate(std::exp(std::log(OfListed(first)) + std::log(OfListed(x ^ first))));
+  }
+  RelSet v = 0;
+  for (RelSet m = x; m != 0 && v == 0; m &= m - 1) {
+    if (listed_->Find(x ^ LowestBit(m))) v = LowestBit(m);
+  }
+  if (v == 0) v = RelSet{1} << (63 - std::countl_zero(x));
+  const double log_card =
+      std::log(OfListed(x ^ v)) + std::log(OfListed(v)) + LogSelectivityCompletedBy(v, x);
+  return Saturate(std::exp(log_card));
 }
 
 double Cardinality::OfByProduct(RelSet x) const {

@@ -6,10 +6,20 @@
 // product of the query's factors stays inside [1e-290, 1e300], the plain
 // product is used (exact as before); otherwise card is computed through
 // logarithms, so no intermediate overflows or underflows.
+//
+// With the engine's own estimates (Query::listed()), a listed set's rows
+// are its cardinality, and a set not listed follows the rule of
+// docs/cost-models.md, "Engine estimates": a set of several connected
+// components is the product of theirs; a connected one is built by
+// peeling one relation v (the lowest whose removal leaves a listed set,
+// else the highest), card(X) = card(X \ v) * card(v) * the selectivities v
+// completes; so each listed subset's correction of the model is carried
+// to the sets above it. O(|X| (|X| + predicates)) per unlisted set.
 #ifndef SLICEPLAN_CORE_MODEL_CARDINALITY_H_
 #define SLICEPLAN_CORE_MODEL_CARDINALITY_H_
 
 #include <bit>
+#include <memory>
 #include <vector>
 
 #include "core/model/query.h"
@@ -22,7 +32,7 @@ class Cardinality {
 
   // card(X), saturated. Cost: O(|X| + predicates). REQUIRES: X within the
   // query.
-  double Of(RelSet x) const { return wide_range_ ? OfByLogs(x) : OfByProduct(x); }
+  double Of(RelSet x) const { return listed_ ? OfListed(x) : Model(x); }
   // card(L u R) for disjoint L and R from their cardinalities: their
   // product times the selectivity of each binary predicate between them.
   // Cost O(|smaller side| + predicates between them), Of's value up to
@@ -47,8 +57,19 @@ class Cardinality {
   double Rows(RelationId r) const { return rows_[r.value]; }
   // True when products of this query's factors could leave double's range.
   bool wide_range() const { return wide_range_; }
+  // The engine's listed estimates this cardinality honours, or null.
+  const ListedRows* listed() const { return listed_.get(); }
 
  private:
+  // The model's card(X), listed estimates aside.
+  double Model(RelSet x) const { return wide_range_ ? OfByLogs(x) : OfByProduct(x); }
+  double OfListed(RelSet x) const;
+  // The connected component of `x` holding `seed` (predicates inside x).
+  RelSet ComponentOf(RelSet x, RelSet seed) const;
+  // log of the product of the selectivities of the predicates inside x
+  // that name v.
+  double LogSelectivityCompletedBy(RelSet v, RelSet x) const;
+
   double OfByProduct(RelSet x) const;
   double OfByLogs(RelSet x) const;
 
@@ -59,8 +80,9 @@ class Cardinality {
   bool wide_range_ = false;
   // OfJoin's tables: every predicate binary and the product in range.
   bool pairwise_ = false;
-  std::vector<RelSet> partners_;          // relation -> binary-predicate partners
-  std::vector<double> pair_selectivity_;  // [u * 64 + v]: their predicates' product
+  std::vector<RelSet> partners_;              // relation -> binary-predicate partners
+  std::vector<double> pair_selectivity_;      // [u * 64 + v]: their predicates' product
+  std::shared_ptr<const ListedRows> listed_;  // null: the model alone
 };
 
 }  // namespace sliceplan

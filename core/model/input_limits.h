@@ -16,6 +16,7 @@ namespace sliceplan {
 struct InputLimits {
   int64_t max_relations = 10000;                // per query (the exact search takes 64)
   int64_t max_predicates = 100000;              // per query, before merging equal ones
+  int64_t max_cardinalities = 1000000;          // the engine's listed estimates per query
   int64_t max_query_bytes = int64_t{16} << 20;  // a query file or request
   int64_t max_node_counts = 16;                 // cluster model: node counts to try
   int64_t max_sample_rates = 16;                // cluster model: sample rates to try

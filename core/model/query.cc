@@ -141,7 +141,15 @@ Query Query::Permuted(std::span<const RelationId> perm) const {
   }
   std::vector<Predicate> preds = predicates_;
   for (Predicate& p : preds) p.relations = PermuteSet(p.relations, perm);
-  return Query(std::move(rels), std::move(preds));
+  Query out(std::move(rels), std::move(preds));
+  if (listed_) out.listed_ = std::make_shared<const ListedRows>(listed_->Permuted(perm));
+  return out;
+}
+
+Query Query::WithListed(std::shared_ptr<const ListedRows> listed) const {
+  Query out = *this;
+  out.listed_ = listed && !listed->empty() ? std::move(listed) : nullptr;
+  return out;
 }
 
 }  // namespace sliceplan

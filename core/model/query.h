@@ -8,12 +8,14 @@
 #ifndef SLICEPLAN_CORE_MODEL_QUERY_H_
 #define SLICEPLAN_CORE_MODEL_QUERY_H_
 
+#include <memory>
 #include <span>
 #include <string>
 #include <string_view>
 #include <vector>
 
 #include "absl/status/statusor.h"
+#include "core/model/listed_rows.h"
 #include "core/model/relation_set.h"
 
 namespace sliceplan {
@@ -51,9 +53,17 @@ class Query {
   std::span<const Predicate> predicates() const { return predicates_; }
 
   // The same query with relation i renamed to position perm[i] (relations,
-  // then predicate masks, are permuted). REQUIRES: perm is a permutation of
-  // 0..size()-1.
+  // then predicate masks and listed sets, are permuted). REQUIRES: perm is
+  // a permutation of 0..size()-1.
   Query Permuted(std::span<const RelationId> perm) const;
+
+  // The engine's listed row estimates (`cardinalities`), or null when none
+  // are listed.
+  const ListedRows* listed() const { return listed_.get(); }
+  const std::shared_ptr<const ListedRows>& shared_listed() const { return listed_; }
+  // The same query with `listed` (over its relations) as its estimates;
+  // an empty list is none.
+  Query WithListed(std::shared_ptr<const ListedRows> listed) const;
 
  private:
   Query(std::vector<Relation> relations, std::vector<Predicate> predicates)
@@ -61,6 +71,7 @@ class Query {
 
   std::vector<Relation> relations_;
   std::vector<Predicate> predicates_;
+  std::shared_ptr<const ListedRows> listed_;  // null: none listed
 };
 
 // Maps a set through a permutation: bit i of `s` becomes bit perm[i].

@@ -87,7 +87,15 @@ WideQuery WideQuery::FromExact(const Query& query) {
     ForEachMember(p.relations, [&](RelationId r) { w.relations.push_back(r.value); });
     predicates.push_back(std::move(w));
   }
-  return WideQuery({query.relations().begin(), query.relations().end()}, std::move(predicates));
+  WideQuery out({query.relations().begin(), query.relations().end()}, std::move(predicates));
+  out.listed_ = query.shared_listed();
+  return out;
+}
+
+WideQuery WideQuery::WithListed(std::shared_ptr<const ListedRows> listed) const {
+  WideQuery out = *this;
+  out.listed_ = listed && !listed->empty() ? std::move(listed) : nullptr;
+  return out;
 }
 
 absl::StatusOr<Query> ToExactQuery(const WideQuery& query) {
@@ -103,7 +111,10 @@ absl::StatusOr<Query> ToExactQuery(const WideQuery& query) {
     for (const int32_t r : p.relations) out.relations |= Singleton(RelationId{uint8_t(r)});
     predicates.push_back(out);
   }
-  return Query::Create({query.relations().begin(), query.relations().end()}, std::move(predicates));
+  ASSIGN_OR_RETURN(Query exact, Query::Create({query.relations().begin(), query.relations().end()},
+                                              std::move(predicates)));
+  if (query.listed() != nullptr) return exact.WithListed(query.shared_listed());
+  return exact;
 }
 
 }  // namespace sliceplan

@@ -9,10 +9,12 @@
 #define SLICEPLAN_CORE_MODEL_WIDE_QUERY_H_
 
 #include <cstdint>
+#include <memory>
 #include <span>
 #include <vector>
 
 #include "absl/status/statusor.h"
+#include "core/model/listed_rows.h"
 #include "core/model/query.h"
 
 namespace sliceplan {
@@ -38,6 +40,14 @@ class WideQuery {
   const Relation& relation(int32_t r) const { return relations_[r]; }
   std::span<const Relation> relations() const { return relations_; }
   std::span<const WidePredicate> predicates() const { return predicates_; }
+  // The engine's listed row estimates over relation masks (at most 64
+  // relations take them), or null when none are listed.
+  const ListedRows* listed() const { return listed_.get(); }
+  const std::shared_ptr<const ListedRows>& shared_listed() const { return listed_; }
+  // The same query with `listed` as its estimates; an empty list is none.
+  // REQUIRES: size() <= kMaxRelations, the sets within the query.
+  WideQuery WithListed(std::shared_ptr<const ListedRows> listed) const;
+
   // Indices into predicates() of those naming relation r, ascending.
   std::span<const int32_t> incident(int32_t r) const {
     return {incident_.data() + incident_start_[r], incident_.data() + incident_start_[r + 1]};
@@ -50,6 +60,7 @@ class WideQuery {
   std::vector<WidePredicate> predicates_;
   std::vector<int32_t> incident_start_;  // size() + 1 offsets into incident_
   std::vector<int32_t> incident_;
+  std::shared_ptr<const ListedRows> listed_;  // null: none listed
 };
 
 // The exact engine's form of `query`. More than kMaxRelations relations is
