@@ -1,11 +1,13 @@
 #include "cli/render.h"
 
 #include <algorithm>
+#include <optional>
 #include <vector>
 
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_format.h"
 #include "core/cost/pareto.h"
+#include "core/graph/connected_sets.h"
 
 namespace sliceplan::cli {
 namespace {
@@ -149,6 +151,32 @@ SliceBalance Balance(const OptimizeResult& result) {
 
 namespace {
 
+// How many of the engine's listed estimates the answer used: those the
+// exact search held in its memo (every listed set with cross products,
+// the connected ones without) when it ran, else those among the returned
+// plan's nodes. Null when none are listed.
+struct ListedUse {
+  size_t listed = 0;
+  uint64_t used = 0;
+};
+std::optional<ListedUse> ListedUsed(const TieredOutcome& outcome, const RunInfo& info) {
+  if (info.exact == nullptr || info.exact->listed() == nullptr) return std::nullopt;
+  const ListedRows& listed = *info.exact->listed();
+  ListedUse use{listed.size(), 0};
+  if (outcome.exact_ran) {
+    use.used = info.search.cross_products ? listed.size() : CountListedConnected(*info.exact);
+    return use;
+  }
+  std::vector<RelSet> sets(outcome.plan.nodes.size());
+  for (size_t i = 0; i < sets.size(); ++i) {
+    const WideNode& node = outcome.plan.nodes[i];
+    sets[i] = node.is_leaf() ? Singleton(RelationId{static_cast<uint8_t>(node.relation)})
+                             : sets[node.left] | sets[node.right];
+    use.used += listed.Find(sets[i]) ? 1 : 0;
+  }
+  return use;
+}
+
 // The cluster model's report: the Pareto frontier, one line per plan, and
 // the chosen plan's tree (or why there is none).
 void AppendFrontierReport(const OptimizeResult& result, const RunInfo& info, std::string& out) {
@@ -197,6 +225,12 @@ void AppendBestPlanReport(const TieredOutcome& outcome, const RunInfo& info, std
                           "NOT PROVEN OPTIMAL: the deadline passed with %.0f%% of the slices "
                           "solved; this is the best plan found so far\n\n",
                           100 * outcome.coverage);
+  }
+  if (const auto use = ListedUsed(outcome, info)) {
+    absl::StrAppendFormat(&out, "engine estimates: %u of %u listed sets used (%s)\n\n", use->used,
+                          use->listed,
+                          outcome.exact_ran ? "held by the exact search"
+                                            : "nodes of this plan; the tier searched on the model");
   }
   out += WideTreeString(outcome.plan, wide) + "\n\n";
   if (wide.size() <= kMaxTextTableRelations) {
@@ -303,6 +337,10 @@ std::string RenderJson(const TieredOutcome& outcome, const RunInfo& info) {
                   ",\n    \"wall_seconds\": ", JsonNumber(outcome.wall_seconds),
                   ",\n    \"retries\": ", outcome.schedule.retries,
                   ",\n    \"hedges\": ", outcome.schedule.hedges);
+  if (const auto use = ListedUsed(outcome, info)) {
+    absl::StrAppend(&out, ",\n    \"cardinalities\": {\"listed\": ", use->listed,
+                    ", \"used\": ", use->used, "}");
+  }
   if (outcome.idp.blocks > 0) {
     absl::StrAppend(&out, ",\n    \"idp\": {\"blocks\": ", outcome.idp.blocks,
                     ", \"reused\": ", outcome.idp.reused, ", \"improved\": ", outcome.idp.improved,

@@ -75,4 +75,19 @@ void MarkConnectedSets(const Query& query, DirectMemo& memo) {
   });
 }
 
+uint64_t CountListedConnected(const Query& query) {
+  if (query.listed() == nullptr) return 0;
+  const JoinGraph graph(query);
+  uint64_t count = 0;
+  for (const ListedSet& set : query.listed()->sets()) {
+    RelSet reached = LowestBit(set.relations);
+    for (RelSet grown = reached; grown != 0;) {
+      grown = graph.Around(reached) & set.relations & ~reached;
+      reached |= grown;
+    }
+    count += reached == set.relations ? 1 : 0;
+  }
+  return count;
+}
+
 }  // namespace sliceplan

@@ -21,6 +21,12 @@ std::vector<RelSet> ConnectedSets(const Query& query, uint64_t cap);
 // there), with no list kept: memory O(n) whatever the cap.
 uint64_t CountConnectedSets(const Query& query, uint64_t cap);
 
+// How many of the query's listed estimates (Query::listed) are of
+// connected sets: the listed sets a connected-only search holds in its
+// memo (with cross products every listed set is one). 0 when none are
+// listed. O(listed x n).
+uint64_t CountListedConnected(const Query& query);
+
 // Adds every connected set to `memo`. REQUIRES: memo over query.size()
 // relations.
 void MarkConnectedSets(const Query& query, DirectMemo& memo);

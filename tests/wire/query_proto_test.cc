@@ -122,6 +122,36 @@ const BadCase kBadCases[] = {
      "query JSON: not valid UTF-8"},
     {"row width past the bound", R"({"relations": [{"name": "a", "rows": 1, "row_bytes": 1e300}]})",
      "relations[0] (a).row_bytes: must be a number in (0, 1e+12], got 1e+300"},
+    {"estimate naming an unknown relation",
+     R"({"relations": [{"name": "a", "rows": 1}, {"name": "b", "rows": 1}],
+         "cardinalities": [{"relations": ["a", "c"], "rows": 5}]})",
+     "cardinalities[0].relations[1]: unknown relation \"c\""},
+    {"estimate naming a relation twice",
+     R"({"relations": [{"name": "a", "rows": 1}, {"name": "b", "rows": 1}],
+         "cardinalities": [{"relations": ["b", "b"], "rows": 5}]})",
+     "cardinalities[0].relations[1]: relation \"b\" is named twice"},
+    {"estimate without rows",
+     R"({"relations": [{"name": "a", "rows": 1}, {"name": "b", "rows": 1}],
+         "cardinalities": [{"relations": ["a", "b"]}]})",
+     "cardinalities[0].rows: missing"},
+    {"estimate of no relations",
+     R"({"relations": [{"name": "a", "rows": 1}],
+         "cardinalities": [{"relations": [], "rows": 5}]})",
+     "cardinalities[0].relations: empty"},
+    {"estimate of negative rows",
+     R"({"relations": [{"name": "a", "rows": 1}, {"name": "b", "rows": 1}],
+         "cardinalities": [{"relations": ["a", "b"], "rows": 5},
+                           {"relations": ["b"], "rows": -2}]})",
+     "cardinalities[1].rows: must be finite and > 0, got -2"},
+    {"estimate of infinite rows",
+     R"({"relations": [{"name": "a", "rows": 1}],
+         "cardinalities": [{"relations": ["a"], "rows": "Infinity"}]})",
+     "cardinalities[0].rows: must be finite and > 0, got inf"},
+    {"one set estimated twice apart",
+     R"({"relations": [{"name": "a", "rows": 1}, {"name": "b", "rows": 1}],
+         "cardinalities": [{"relations": ["a", "b"], "rows": 5},
+                           {"relations": ["b", "a"], "rows": 6}]})",
+     "cardinalities[1]: the same relations are listed again with other rows (6 against 5)"},
 };
 
 INSTANTIATE_TEST_SUITE_P(Files, QueryProtoBadInputTest, ::testing::ValuesIn(kBadCases),
@@ -132,6 +162,52 @@ INSTANTIATE_TEST_SUITE_P(Files, QueryProtoBadInputTest, ::testing::ValuesIn(kBad
                            }
                            return name;
                          });
+
+TEST(QueryProtoTest, EstimatesRoundTripAndKeepTheirSets) {
+  const std::string json = R"({
+    "relations": [{"name": "quays", "rows": 40}, {"name": "berths", "rows": 300},
+                  {"name": "cranes", "rows": 90}],
+    "predicates": [{"relations": ["quays", "berths"], "selectivity": 0.02},
+                   {"relations": ["berths", "cranes"], "selectivity": 0.01}],
+    "cardinalities": [{"relations": ["berths", "quays"], "rows": 410},
+                      {"relations": ["cranes"], "rows": 88},
+                      {"relations": ["cranes"], "rows": 88}]})";
+  auto q = ParseQueryJson(json);
+  ASSERT_TRUE(q.ok()) << q.status();
+  ASSERT_NE(q->listed(), nullptr);
+  EXPECT_EQ(q->listed()->size(), 2u);  // the repeat with the same rows is one
+  EXPECT_EQ(q->listed()->Find(0b011), 410);
+  EXPECT_EQ(q->listed()->Find(0b100), 88);
+  auto back = QueryFromProto(QueryToProto(*q));
+  ASSERT_TRUE(back.ok()) << back.status();
+  ASSERT_NE(back->listed(), nullptr);
+  EXPECT_EQ(back->listed()->size(), 2u);
+  EXPECT_EQ(back->listed()->Find(0b011), 410);
+}
+
+TEST(QueryProtoTest, EstimatesAreLimitedBeforeAnythingIsBuilt) {
+  const std::string json = R"({"relations": [{"name": "a", "rows": 1}, {"name": "b", "rows": 1}],
+      "cardinalities": [{"relations": ["a"], "rows": 1}, {"relations": ["b"], "rows": 2},
+                        {"relations": ["a", "b"], "rows": 3}]})";
+  InputLimits limits;
+  limits.max_cardinalities = 2;
+  auto q = ParseQueryJson(json, limits);
+  ASSERT_FALSE(q.ok());
+  EXPECT_EQ(q.status().code(), absl::StatusCode::kResourceExhausted);
+  EXPECT_EQ(q.status().message(), "cardinalities: 3 listed sets given; the limit is 2");
+  // Past 64 relations the estimates are refused by name.
+  std::string wide = R"({"relations": [)";
+  for (int i = 0; i < 65; ++i) {
+    wide +=
+        (i ? "," : "") + std::string(R"({"name": "r)") + std::to_string(i) + R"(", "rows": 10})";
+  }
+  wide += R"(], "cardinalities": [{"relations": ["r0"], "rows": 3}]})";
+  auto w = ParseWideQueryJson(wide);
+  ASSERT_FALSE(w.ok());
+  EXPECT_EQ(w.status().message(),
+            "cardinalities: the engine's estimates are taken for queries of up to 64 relations; "
+            "this one has 65");
+}
 
 TEST(QueryProtoTest, RefusesMoreThanSixtyFourRelations) {
   std::string json = R"({"relations": [)";
