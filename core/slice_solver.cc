@@ -37,17 +37,20 @@ absl::Status CheckDenseMemo(int n, PlanShape shape, int k, size_t bytes_per_slot
       slots >= static_cast<double>(kNoSlot) ? "and 2^32 slots" : "memo bytes", advice));
 }
 
-absl::Status CheckCoutInRange(const Query& query) {
-  const double card = Cardinality(query).Of(query.all());
-  if (!IsSaturated(card)) return absl::OkStatus();
-  std::vector<RelationId> by_rows;
-  for (int i = 0; i < query.size(); ++i) by_rows.push_back(RelationId{static_cast<uint8_t>(i)});
-  std::sort(by_rows.begin(), by_rows.end(), [&](RelationId a, RelationId b) {
-    return query.relation(a).rows > query.relation(b).rows;
-  });
+namespace {
+
+// OUT_OF_RANGE for a join of all relations that saturates, naming the
+// largest relations.
+absl::Status AllRelationsSaturate(std::span<const Relation> relations) {
+  std::vector<size_t> by_rows(relations.size());
+  for (size_t i = 0; i < by_rows.size(); ++i) by_rows[i] = i;
+  const size_t shown = std::min<size_t>(3, by_rows.size());
+  std::partial_sort(by_rows.begin(), by_rows.begin() + static_cast<std::ptrdiff_t>(shown),
+                    by_rows.end(),
+                    [&](size_t a, size_t b) { return relations[a].rows > relations[b].rows; });
   std::string largest;
-  for (size_t i = 0; i < std::min<size_t>(3, by_rows.size()); ++i) {
-    const Relation& rel = query.relation(by_rows[i]);
+  for (size_t i = 0; i < shown; ++i) {
+    const Relation& rel = relations[by_rows[i]];
     absl::StrAppend(&largest, i == 0 ? "" : ", ", ShortName(rel.name), " ",
                     absl::StrFormat("%g", rel.rows));
   }
@@ -55,7 +58,29 @@ absl::Status CheckCoutInRange(const Query& query) {
       "the join of all %d relations has at least %g rows (the largest value the engine "
       "represents), so every plan's cout passes it; the largest relations: %s rows; "
       "scale the row estimates down",
-      query.size(), kValueCeiling, largest));
+      relations.size(), kValueCeiling, largest));
+}
+
+}  // namespace
+
+absl::Status CheckCoutInRange(const Query& query) {
+  const double card = Cardinality(query).Of(query.all());
+  if (!IsSaturated(card)) return absl::OkStatus();
+  return AllRelationsSaturate(query.relations());
+}
+
+absl::Status CheckCoutInRange(const WideQuery& query) {
+  if (query.size() <= kMaxRelations) {
+    ASSIGN_OR_RETURN(const Query exact, ToExactQuery(query));
+    return CheckCoutInRange(exact);
+  }
+  // Every predicate lies inside the whole query: its log cardinality is the
+  // sum of the logs of every row count and selectivity.
+  double log_card = 0;
+  for (const Relation& rel : query.relations()) log_card += std::log(rel.rows);
+  for (const WidePredicate& p : query.predicates()) log_card += std::log(p.selectivity);
+  if (log_card < std::log(kValueCeiling)) return absl::OkStatus();
+  return AllRelationsSaturate(query.relations());
 }
 
 namespace {

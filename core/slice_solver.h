@@ -12,6 +12,7 @@
 #include "absl/status/statusor.h"
 #include "core/model/plan.h"
 #include "core/model/query.h"
+#include "core/model/wide_query.h"
 #include "core/search/search_control.h"
 #include "core/search/search_stats.h"
 #include "core/search_options.h"
@@ -22,6 +23,8 @@ namespace sliceplan {
 // OUT_OF_RANGE, naming the largest relations, when the join of all
 // relations saturates (value_range.h): every cout plan's cost would.
 absl::Status CheckCoutInRange(const Query& query);
+// The same for a query of any size (every tier, docs/numeric-range.md).
+absl::Status CheckCoutInRange(const WideQuery& query);
 
 struct SliceResult {
   SliceSpec slice;

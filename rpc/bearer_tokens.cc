@@ -1,13 +1,16 @@
 #include "rpc/bearer_tokens.h"
 
-#include <fstream>
-
 #include "absl/strings/ascii.h"
 #include "absl/strings/str_cat.h"
+#include "absl/strings/str_split.h"
 #include "core/model/user_text.h"
+#include "wire/bounded_file.h"
 
 namespace sliceplan {
 namespace {
+
+// A token file holds a few tokens; past this it is no token file.
+constexpr int64_t kMaxTokenFileBytes = int64_t{1} << 20;
 
 // Equal in time that depends only on the lengths, not on where they differ.
 bool ConstantTimeEqual(std::string_view a, std::string_view b) {
@@ -20,16 +23,10 @@ bool ConstantTimeEqual(std::string_view a, std::string_view b) {
 }  // namespace
 
 absl::StatusOr<BearerTokens> BearerTokens::Load(const std::string& path) {
-  std::ifstream in(path, std::ios::binary | std::ios::ate);
-  if (!in)
-    return absl::InvalidArgumentError(absl::StrCat("--token-file: cannot read ", ShortName(path)));
-  if (in.tellg() > (int64_t{1} << 20)) {
-    return absl::InvalidArgumentError("--token-file: over 1 MiB");
-  }
-  in.seekg(0);
+  absl::StatusOr<std::string> text = ReadBoundedFile(path, kMaxTokenFileBytes, "--token-file");
+  if (!text.ok()) return absl::InvalidArgumentError(text.status().message());
   std::vector<std::string> tokens;
-  std::string line;
-  while (std::getline(in, line)) {
+  for (absl::string_view line : absl::StrSplit(*text, '\n')) {
     const std::string token(absl::StripAsciiWhitespace(line));
     if (!token.empty() && token[0] != '#') tokens.push_back(token);
   }

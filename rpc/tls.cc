@@ -1,8 +1,5 @@
 #include "rpc/tls.h"
 
-#include <fstream>
-#include <sstream>
-
 #include "absl/strings/str_cat.h"
 #include "core/model/input_limits.h"
 #include "core/model/status_macros.h"
@@ -10,26 +7,26 @@
 #include "grpcpp/security/tls_certificate_provider.h"
 #include "grpcpp/security/tls_certificate_verifier.h"
 #include "grpcpp/security/tls_credentials_options.h"
+#include "wire/bounded_file.h"
 
 namespace sliceplan {
 namespace {
 
+// PEM files are a few KiB; past this a file is no certificate or key.
+constexpr int64_t kMaxPemBytes = int64_t{1} << 20;
+
 // The PEM text of `path`, or "" when `path` is "".
 absl::StatusOr<std::string> ReadPem(const std::string& path, const char* flag) {
   if (path.empty()) return std::string();
-  std::ifstream in(path, std::ios::binary | std::ios::ate);
-  if (!in) return absl::InvalidArgumentError(absl::StrCat(flag, ": cannot read ", ShortName(path)));
-  if (in.tellg() > (int64_t{1} << 20)) {
-    return absl::InvalidArgumentError(absl::StrCat(flag, ": ", ShortName(path), " is over 1 MiB"));
+  absl::StatusOr<std::string> text = ReadBoundedFile(path, kMaxPemBytes, flag);
+  if (!text.ok()) {
+    return absl::InvalidArgumentError(text.status().message());  // a flag's value is bad
   }
-  in.seekg(0);
-  std::ostringstream text;
-  text << in.rdbuf();
-  if (text.str().find("-----BEGIN ") == std::string::npos) {
+  if (text->find("-----BEGIN ") == std::string::npos) {
     return absl::InvalidArgumentError(
         absl::StrCat(flag, ": ", ShortName(path), " holds no PEM block"));
   }
-  return text.str();
+  return text;
 }
 
 absl::Status CheckPair(const TlsFiles& files) {

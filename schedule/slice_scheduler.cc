@@ -13,6 +13,7 @@
 #include "absl/synchronization/mutex.h"
 #include "absl/time/time.h"
 #include "core/model/status_macros.h"
+#include "core/slice_check.h"
 #include "core/slicing/search_estimate.h"
 
 namespace sliceplan {
@@ -213,6 +214,14 @@ class Run {
   }
 
   void Finish(Attempt* a, absl::StatusOr<SliceResult> r) ABSL_LOCKS_EXCLUDED(mu_) {
+    // No worker's answer is trusted: a tree that is not the slice's, or
+    // figures the query does not give, is a worker fault (DATA_LOSS): the
+    // slice goes to another worker and the client is never blamed.
+    if (r.ok()) {
+      if (absl::Status check = CheckSliceResult(query_, options_, *r); !check.ok()) {
+        r = absl::DataLossError(absl::StrCat(workers_[a->worker]->Name(), ": ", check.message()));
+      }
+    }
     std::optional<ScheduleProgress> progress;
     {
       absl::MutexLock lock(&mu_);

@@ -12,6 +12,7 @@
 #include "core/model/input_limits.h"
 #include "core/model/status_macros.h"
 #include "core/slice_planner.h"
+#include "core/slice_solver.h"
 #include "tiers/greedy.h"
 #include "tiers/join_forest.h"
 #include "tiers/linear_dp.h"
@@ -92,6 +93,9 @@ class TierRun {
     if (options_.cost == CostModelKind::kCluster || tier == SearchTier::kExact) {
       return ExactAlone();
     }
+    // A join that saturates makes every plan's cost the ceiling: refused
+    // at any size, as the exact tier refuses it (docs/numeric-range.md).
+    RETURN_IF_ERROR(CheckCoutInRange(query_));
     Offer(GreedyPlan(query_, options_.shape), SearchTier::kGreedy);
     out_.start_cost = out_.plan.cost();
     if (query_.size() <= 2) out_.proven_optimal = true;  // one plan (up to sides)

@@ -74,8 +74,54 @@ class ShapeScanner {
     Frame& top = stack_.back();
     top.want_key = false;
     top.key = text;
-    if (!top.keys.insert(text).second) return Error("given twice in one object");
+    if (!top.keys.insert(FieldName(text)).second) return Error("given twice in one object");
     return absl::OkStatus();
+  }
+
+  // The field a key names, whatever its spelling: escapes decoded
+  // ("r\u006fws" is "rows"), and the parser's two spellings of a field
+  // ("row_bytes", "rowBytes") made one by dropping underscores and case.
+  static std::string FieldName(std::string_view raw) {
+    std::string out;
+    for (size_t i = 0; i < raw.size(); ++i) {
+      char c = raw[i];
+      if (c == '\\' && i + 1 < raw.size()) {
+        const char e = raw[++i];
+        if (e == 'u' && i + 4 < raw.size()) {  // four hex digits follow
+          uint32_t code = 0;
+          for (int d = 1; d <= 4; ++d) {
+            const char h = raw[i + d];
+            code = code * 16 + static_cast<uint32_t>(h <= '9' ? h - '0' : (h | 0x20) - 'a' + 10);
+          }
+          i += 4;
+          AppendUtf8(code, out);
+          continue;
+        }
+        // Other escapes: \" \\ \/ stand for themselves; control characters
+        // (\n, \t, ...) never make a valid field name either way.
+        c = e;
+      }
+      if (c == '_') continue;
+      out += static_cast<char>(c >= 'A' && c <= 'Z' ? c | 0x20 : c);
+    }
+    return out;
+  }
+
+  // A code unit as UTF-8 (surrogates kept as their own three bytes: two
+  // spellings of one key still compare equal).
+  static void AppendUtf8(uint32_t code, std::string& out) {
+    if (code < 0x80) {
+      const char c = static_cast<char>(code);
+      if (c == '_') return;
+      out += static_cast<char>(c >= 'A' && c <= 'Z' ? c | 0x20 : c);
+    } else if (code < 0x800) {
+      out += static_cast<char>(0xC0 | (code >> 6));
+      out += static_cast<char>(0x80 | (code & 0x3F));
+    } else {
+      out += static_cast<char>(0xE0 | (code >> 12));
+      out += static_cast<char>(0x80 | ((code >> 6) & 0x3F));
+      out += static_cast<char>(0x80 | (code & 0x3F));
+    }
   }
 
   absl::Status Error(const std::string& what) const {

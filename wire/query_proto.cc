@@ -1,17 +1,14 @@
 #include "wire/query_proto.h"
 
 #include <algorithm>
-#include <cerrno>
-#include <cstring>
-#include <fstream>
 #include <memory>
-#include <sstream>
 
 #include "absl/container/flat_hash_map.h"
 #include "absl/strings/str_cat.h"
 #include "core/model/status_macros.h"
 #include "core/model/user_text.h"
 #include "google/protobuf/util/json_util.h"
+#include "wire/bounded_file.h"
 #include "wire/json_shape.h"
 
 namespace sliceplan {
@@ -220,22 +217,9 @@ absl::StatusOr<Query> ParseQueryJson(std::string_view json, const InputLimits& l
 }
 
 absl::StatusOr<WideQuery> ReadWideQueryFile(const std::string& path, const InputLimits& limits) {
-  std::ifstream in(path, std::ios::binary | std::ios::ate);
-  if (!in) {
-    const int err = errno;
-    const std::string why = absl::StrCat(path, ": ", std::strerror(err));
-    return err == EACCES ? absl::PermissionDeniedError(why) : absl::NotFoundError(why);
-  }
-  // Sized before it is read: a file past the limit is never loaded.
-  const std::streamoff size = in.tellg();
-  if (size > limits.max_query_bytes) {
-    return absl::ResourceExhaustedError(
-        absl::StrCat(path, ": ", size, " bytes; the query size limit is ", limits.max_query_bytes));
-  }
-  in.seekg(0);
-  std::ostringstream text;
-  text << in.rdbuf();
-  auto query = ParseWideQueryJson(text.str(), limits);
+  ASSIGN_OR_RETURN(const std::string text,
+                   ReadBoundedFile(path, limits.max_query_bytes, "the query file"));
+  auto query = ParseWideQueryJson(text, limits);
   if (!query.ok()) {
     return absl::Status(query.status().code(), absl::StrCat(path, ": ", query.status().message()));
   }

@@ -42,9 +42,11 @@ v1::Query WideQueryToProto(const WideQuery& query);
 absl::StatusOr<WideQuery> ParseWideQueryJson(std::string_view json, const InputLimits& limits = {});
 absl::StatusOr<Query> ParseQueryJson(std::string_view json, const InputLimits& limits = {});
 
-// Reads and parses a query file. A file that cannot be read is NOT_FOUND
-// (or PERMISSION_DENIED) with the path in the message; a file larger than
-// limits.max_query_bytes is RESOURCE_EXHAUSTED before it is read.
+// Reads (ReadBoundedFile: regular files only, at most
+// limits.max_query_bytes read) and parses a query file. A file that cannot
+// be read is NOT_FOUND (or PERMISSION_DENIED), a directory or device
+// INVALID_ARGUMENT, a file past the limit RESOURCE_EXHAUSTED, each with the
+// path in the message.
 absl::StatusOr<WideQuery> ReadWideQueryFile(const std::string& path,
                                             const InputLimits& limits = {});
 absl::StatusOr<Query> ReadQueryFile(const std::string& path, const InputLimits& limits = {});

@@ -53,6 +53,35 @@ class FaultyWorker : public SliceWorker {
   std::chrono::milliseconds delay_;
 };
 
+// Answers every call with the true answer of an in-process worker,
+// altered: its costs made up (a thousandth of the truth) or its plan
+// dropped (a hostile or broken worker).
+class LyingWorker : public SliceWorker {
+ public:
+  enum class Lie { kCosts, kNoPlan };
+  LyingWorker(std::string name, Lie lie) : name_(std::move(name)), lie_(lie), inner_(name_) {}
+  std::string Name() const override { return name_; }
+  std::unique_ptr<SliceCall> Start(const SliceTask& task, SliceDone done) override {
+    ++calls;
+    return inner_.Start(task, [this, done = std::move(done)](absl::StatusOr<SliceResult> r) {
+      if (r.ok() && r->plan) {
+        if (lie_ == Lie::kNoPlan) {
+          r->plan.reset();
+        } else {
+          for (PlanNode& node : r->plan->nodes) node.cost *= 1e-3;
+        }
+      }
+      done(std::move(r));
+    });
+  }
+  std::atomic<int> calls{0};
+
+ private:
+  std::string name_;
+  Lie lie_;
+  LocalWorker inner_;
+};
+
 Query TestQuery() { return testing::MakeQuery(testing::GraphShape::kRandom, 10, 7); }
 
 // From the independent subset DP, not from the engine under test.
@@ -70,6 +99,22 @@ TEST(SliceSchedulerTest, FailedWorkerSlicesAreRedispatched) {
   EXPECT_EQ(broken.calls, 1);  // not used again after its failure
   EXPECT_TRUE(out->proven_optimal);
   EXPECT_EQ(out->result.slices.size(), 8u);
+}
+
+TEST(SliceSchedulerTest, AWorkersMadeUpAnswerIsCheckedAndRedispatched) {
+  const Query q = TestQuery();
+  for (LyingWorker::Lie lie : {LyingWorker::Lie::kCosts, LyingWorker::Lie::kNoPlan}) {
+    LyingWorker liar("liar", lie);
+    LocalWorker good("good");
+    SliceWorker* workers[] = {&liar, &good};
+    auto out = RunSlices(q, {}, 8, workers, {});
+    ASSERT_TRUE(out.ok()) << out.status();
+    // The optimum, not the liar's cheaper figure, and proven.
+    EXPECT_NEAR(out->result.plan.root().cost, Optimum(q), 1e-12 * Optimum(q));
+    EXPECT_TRUE(out->proven_optimal);
+    EXPECT_GE(out->retries, 1u);
+    EXPECT_EQ(liar.calls, 1);  // a fault: not used again
+  }
 }
 
 TEST(SliceSchedulerTest, AllWorkersDownIsUnavailableNamingThem) {

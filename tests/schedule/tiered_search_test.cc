@@ -97,6 +97,21 @@ TEST(TieredSearchTest, AutoMeasuresTheRatesBeforeGivingTheExactSearchUp) {
   EXPECT_LE(out->plan.cost(), cautious->plan.cost());
 }
 
+TEST(TieredSearchTest, ASaturatingJoinIsRefusedAtAnySize) {
+  // 100 relations of 1e300 rows and no predicate: every plan's cost is the
+  // ceiling, whichever tier builds it (docs/numeric-range.md).
+  std::vector<Relation> relations;
+  for (int i = 0; i < 100; ++i) relations.push_back({"r" + std::to_string(i), 1e300});
+  auto q = WideQuery::Create(std::move(relations), {});
+  ASSERT_TRUE(q.ok());
+  for (SearchTier tier : {SearchTier::kAuto, SearchTier::kGreedy, SearchTier::kIdp}) {
+    auto out = Tiers(*q, Bushy(true), tier);
+    ASSERT_FALSE(out.ok()) << TierName(tier);
+    EXPECT_EQ(out.status().code(), absl::StatusCode::kOutOfRange) << out.status();
+    EXPECT_NE(out.status().message().find("the join of all 100 relations"), std::string::npos);
+  }
+}
+
 TEST(TieredSearchTest, AutoPastTheExactReachIsNeverCostlierThanGreedy) {
   const WideQuery q = testing::MakeWideQuery(testing::WideShape::kSnowflake, 120, 3);
   auto out = Tiers(q, Bushy(true), SearchTier::kAuto, 2);

@@ -244,7 +244,10 @@ TEST_F(TlsTest, TlsListenerMayBeOffHostAndBadFilesAreRefused) {
   const std::string bin = SLICEPLAN_WORKER_BIN;
   for (const auto& [args, part] : std::vector<std::pair<std::string, std::string>>{
            {" --tls-cert=" + File("server.pem"), "give both"},
-           {" --tls-cert=/nonexistent.pem --tls-key=" + File("server.key"), "cannot read"},
+           {" --tls-cert=/nonexistent.pem --tls-key=" + File("server.key"),
+            "--tls-cert: /nonexistent.pem: No such file or directory"},
+           {" --tls-cert=/dev/zero --tls-key=" + File("server.key"),
+            "--tls-cert: /dev/zero is not a regular file"},
            {" --tls-cert=" + File("tokens") + " --tls-key=" + File("server.key"), "no PEM block"},
            {" --tls-cert=" + File("server.pem") + " --tls-key=" + File("server.key") +
                 " --tls-reload-seconds=-1",

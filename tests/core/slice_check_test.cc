@@ -1,0 +1,118 @@
+// Checking a slice's answer (core/slice_check.h): every true answer of
+// every slice passes, for both shapes, with and without cross products;
+// each kind of made-up answer is caught, named, and DATA_LOSS.
+#include "core/slice_check.h"
+
+#include <string>
+
+#include "core/cost/cout_model.h"
+#include "core/model/cardinality.h"
+#include "gtest/gtest.h"
+#include "tests/support/test_queries.h"
+
+namespace sliceplan {
+namespace {
+
+using testing::GraphShape;
+
+SliceResult Solve(const Query& q, const SearchOptions& options, SliceSpec slice) {
+  SearchControl control;
+  auto r = SolveSlice(q, options, slice, control);
+  EXPECT_TRUE(r.ok()) << r.status();
+  return *std::move(r);
+}
+
+std::string Refusal(const Query& q, const SearchOptions& options, const SliceResult& r) {
+  const absl::Status s = CheckSliceResult(q, options, r);
+  if (s.ok()) return "accepted";
+  EXPECT_EQ(s.code(), absl::StatusCode::kDataLoss) << s;
+  return std::string(s.message());
+}
+
+TEST(SliceCheckTest, EveryTrueAnswerPasses) {
+  const Query q = testing::MakeQuery(GraphShape::kRandom, 9, 3);
+  for (PlanShape shape : {PlanShape::kBushy, PlanShape::kLeftDeep}) {
+    for (bool cross : {true, false}) {
+      SearchOptions options;
+      options.shape = shape;
+      options.cross_products = cross;
+      for (uint32_t p : {1u, 4u, 8u}) {
+        for (uint32_t i = 0; i < p; ++i) {
+          const SliceResult r = Solve(q, options, {i, p});
+          EXPECT_TRUE(CheckSliceResult(q, options, r).ok())
+              << CheckSliceResult(q, options, r) << " P=" << p << " i=" << i;
+        }
+      }
+    }
+  }
+}
+
+TEST(SliceCheckTest, MadeUpAnswersAreCaughtAndNamed) {
+  const Query q = testing::MakeQuery(GraphShape::kChain, 8, 1);
+  SearchOptions options;  // bushy, cross products, cout
+  const SliceResult truth = Solve(q, options, {1, 4});
+  ASSERT_TRUE(truth.plan);
+
+  SliceResult cheap = truth;  // a cost the query does not give
+  cheap.plan->nodes.back().cost *= 0.5;
+  EXPECT_NE(Refusal(q, options, cheap).find("says cardinality"), std::string::npos);
+
+  SliceResult rows = truth;  // a cardinality the query does not give
+  rows.plan->nodes.back().cardinality += 1;
+  EXPECT_NE(Refusal(q, options, rows).find("the query gives"), std::string::npos);
+
+  SliceResult none = truth;  // no plan, where every slice has one
+  none.plan.reset();
+  EXPECT_NE(Refusal(q, options, none).find("no plan"), std::string::npos);
+
+  SliceResult short_tree = truth;  // a relation missing
+  short_tree.plan->nodes.back().relations ^= 1;
+  EXPECT_NE(Refusal(q, options, short_tree).find("not the disjoint union"), std::string::npos);
+
+  // The true plan of one slice sent as another's answer: some slice of the
+  // four does not admit it.
+  int outside = 0;
+  for (uint32_t i = 0; i < 4; ++i) {
+    SliceResult moved = truth;
+    moved.slice = {i, 4};
+    outside += Refusal(q, options, moved).find("outside the slice") != std::string::npos;
+  }
+  EXPECT_GE(outside, 1);
+
+  // A bushy plan where left-deep plans were asked for.
+  SearchOptions left_deep = options;
+  left_deep.shape = PlanShape::kLeftDeep;
+  const SliceResult bushy = Solve(q, options, {0, 1});
+  ASSERT_FALSE(IsLeftDeep(*bushy.plan));
+  EXPECT_NE(Refusal(q, left_deep, bushy).find("left-deep"), std::string::npos);
+}
+
+TEST(SliceCheckTest, ACrossProductIsCaughtWhereTheyAreExcluded) {
+  const Query q = testing::MakeQuery(GraphShape::kChain, 6, 1);
+  SearchOptions with;  // the optimum of a chain with cross products allowed
+  SearchOptions without = with;
+  without.cross_products = false;
+  // A left-deep order joining the two ends first: (r0 r5) is a cross product.
+  Plan plan;
+  plan.nodes.push_back({RelSet{1}, -1, -1});
+  plan.nodes.push_back({RelSet{32}, -1, -1});
+  plan.nodes.push_back({RelSet{33}, 0, 1});
+  int last = 2;
+  for (int r = 1; r <= 4; ++r) {
+    plan.nodes.push_back({RelSet{1} << r, -1, -1});
+    const RelSet joined = plan.nodes[last].relations | (RelSet{1} << r);
+    plan.nodes.push_back({joined, last, static_cast<int>(plan.nodes.size()) - 1});
+    last = static_cast<int>(plan.nodes.size()) - 1;
+  }
+  const Cardinality card(q);
+  for (PlanNode& node : plan.nodes) node.cardinality = card.Of(node.relations);
+  CostWithCout(plan);
+  SliceResult r;
+  r.slice = {0, 1};
+  r.plan = plan;
+  EXPECT_EQ(Refusal(q, with, r), "accepted");
+  EXPECT_NE(Refusal(q, without, r).find("a cross product"), std::string::npos);
+}
+
+}  // namespace
+}  // namespace sliceplan
