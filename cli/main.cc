@@ -1,6 +1,5 @@
 // sliceplan: the command-line front end. Parses flags into a config, runs
 // the embedded coordinator or calls a remote one, and prints the result.
-#include <fstream>
 #include <iostream>
 #include <optional>
 #include <string>
@@ -12,6 +11,7 @@
 #include "cli/capacity_render.h"
 #include "cli/cli_config.h"
 #include "cli/frontier_plot.h"
+#include "cli/output_file.h"
 #include "cli/progress_bar.h"
 #include "cli/render.h"
 #include "cli/rpc_client.h"
@@ -104,6 +104,13 @@ int Optimize(const std::vector<std::string>& args) {
   auto query = ReadWideQueryFile(config->query_path, config->limits);
   if (!query.ok()) return Fail(query.status());
   if (auto s = CheckSlicesFlag(*config, *query); !s.ok()) return Fail(s);
+  // Checked before the search: an unwritable plot must cost no search.
+  std::optional<OutputFile> plot;
+  if (!config->plot_path.empty()) {
+    auto prepared = OutputFile::Prepare(config->plot_path, "--plot", {config->query_path});
+    if (!prepared.ok()) return Fail(prepared.status());
+    plot.emplace(*std::move(prepared));
+  }
   std::optional<Query> exact;
   if (query->size() <= kMaxRelations) exact = *ToExactQuery(*query);
   absl::StatusOr<TieredOutcome> outcome;
@@ -112,13 +119,6 @@ int Optimize(const std::vector<std::string>& args) {
     outcome = Solve(*config, *query, bar);
   }
   if (!outcome.ok()) return Fail(outcome.status());
-  if (!config->plot_path.empty()) {
-    std::ofstream plot(config->plot_path);
-    plot << FrontierSvg(outcome->schedule.result.frontier, *exact, outcome->schedule.result.chosen);
-    if (!plot) {
-      return Fail(absl::UnavailableError(absl::StrCat("--plot: cannot write ", config->plot_path)));
-    }
-  }
   RunInfo info{&*query, exact ? &*exact : nullptr, config->search, config->workers,
                !config->slices};
   if (config->coordinator) info.workers = static_cast<int>(outcome->schedule.workers_used);
@@ -133,6 +133,13 @@ int Optimize(const std::vector<std::string>& args) {
       std::cout << RenderDot(*outcome, info);
       break;
   }
+  // The answer is printed first: a plot that fails to write loses nothing.
+  if (plot) {
+    std::cout.flush();
+    const absl::Status written = plot->Commit(
+        FrontierSvg(outcome->schedule.result.frontier, *exact, outcome->schedule.result.chosen));
+    if (!written.ok()) return Fail(written);
+  }
   std::cout.flush();
   return std::cout ? kExitOk : kExitFailure;
 }
@@ -143,6 +150,12 @@ int Capacity(const std::vector<std::string>& args) {
   if (auto s = ValidateSearchOptions(config->search); !s.ok()) return Fail(s);
   auto query = ReadWideQueryFile(config->query_path);
   if (!query.ok()) return Fail(query.status());
+  std::optional<OutputFile> plot;
+  if (!config->plot_path.empty()) {
+    auto prepared = OutputFile::Prepare(config->plot_path, "--plot", {config->query_path});
+    if (!prepared.ok()) return Fail(prepared.status());
+    plot.emplace(*std::move(prepared));
+  }
   if (!config->search.cross_products && !IsConnected(*query)) {
     return Fail(absl::InvalidArgumentError(
         "the join graph is not connected, so every plan has a cross product; plan with "
@@ -168,15 +181,13 @@ int Capacity(const std::vector<std::string>& args) {
   }
   if (query->size() > kMaxRelations) info.calibrated = false;
   if (!table.ok()) return Fail(table.status());
-  if (!config->plot_path.empty()) {
-    std::ofstream plot(config->plot_path);
-    plot << CapacitySvg(*table, info);
-    if (!plot) {
-      return Fail(absl::UnavailableError(absl::StrCat("--plot: cannot write ", config->plot_path)));
-    }
-  }
   std::cout << (config->json ? RenderCapacityJson(*table, info) : RenderCapacityText(*table, info));
   std::cout.flush();
+  if (plot) {
+    if (const absl::Status written = plot->Commit(CapacitySvg(*table, info)); !written.ok()) {
+      return Fail(written);
+    }
+  }
   return std::cout ? kExitOk : kExitFailure;
 }
 
