@@ -441,9 +441,9 @@ std::string Usage() {
       "Finds optimal join orders of large queries by slicing the plan space over workers.\n\n",
       "commands:\n", "  optimize QUERY.json [flags]                  the best plan of a query\n",
       "  capacity QUERY.json --deadline-seconds=S     the pool a deadline needs\n",
-      "  workers --coordinator=HOST:PORT              a coordinator's worker pool\n\n",
-      CommandUsage("optimize"), "\n", CommandUsage("capacity"), "\n", CommandUsage("workers"),
-      "\nExit status: 0 success, 2 bad input, 1 any other failure.\n");
+      "  workers --coordinator=HOST:PORT              a coordinator's worker pool\n",
+      "  --version                                    the version and build type\n\n",
+      "Exit status: 0 success, 2 bad input, 1 any other failure.\n");
 }
 
 }  // namespace sliceplan::cli

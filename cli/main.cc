@@ -23,6 +23,7 @@
 #include "schedule/embedded_pool.h"
 #include "tiers/join_forest.h"
 #include "wire/query_proto.h"
+#include "wire/version.h"
 
 namespace sliceplan::cli {
 namespace {
@@ -216,6 +217,10 @@ int Workers(const std::vector<std::string>& args) {
 int main(int argc, char** argv) {
   using namespace sliceplan::cli;
   std::vector<std::string> args(argv + 1, argv + argc);
+  if (!args.empty() && (args[0] == "--version" || args[0] == "version")) {
+    std::cout << sliceplan::VersionLine("sliceplan") << "\n";
+    return kExitOk;
+  }
   if (args.empty() || args[0] == "--help" || args[0] == "help") {
     (args.empty() ? std::cerr : std::cout) << Usage();
     return args.empty() ? kExitBadInput : kExitOk;

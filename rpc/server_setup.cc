@@ -1,19 +1,71 @@
 #include "rpc/server_setup.h"
 
+#include <algorithm>
+#include <cstdlib>
+#include <iostream>
+#include <string>
 #include <vector>
 
+#include "absl/flags/commandlineflag.h"
 #include "absl/flags/parse.h"
+#include "absl/flags/reflection.h"
 #include "absl/flags/usage.h"
 #include "absl/flags/usage_config.h"
 #include "absl/strings/match.h"
+#include "absl/strings/str_cat.h"
+#include "absl/strings/str_replace.h"
 #include "core/model/status_macros.h"
 #include "rpc/flag_names.h"
 #include "rpc/server_flags.h"
 #include "spdlog/spdlog.h"
+#include "wire/version.h"
 
 namespace sliceplan {
 
+namespace {
+
+// The server's own flags and the shared ones, dashed, sorted, without the
+// test-only ones: what --help prints.
+std::string ServerHelp(const char* usage, const std::string& main_file) {
+  std::vector<const absl::CommandLineFlag*> flags;
+  for (const auto& [name, flag] : absl::GetAllFlags()) {
+    const std::string file = flag->Filename();
+    if (!absl::StrContains(file, main_file) && !absl::StrContains(file, kServerFlagsFile)) continue;
+    if (absl::StartsWith(name, "test_only")) continue;
+    flags.push_back(flag);
+  }
+  std::sort(flags.begin(), flags.end(),
+            [](const auto* a, const auto* b) { return a->Name() < b->Name(); });
+  std::string out = absl::StrCat("usage: ", usage, "\n\nflags:\n");
+  for (const absl::CommandLineFlag* flag : flags) {
+    const std::string name = absl::StrReplaceAll(flag->Name(), {{"_", "-"}});
+    const std::string value = flag->DefaultValue();
+    absl::StrAppend(&out, "  --", name, "\n      ", flag->Help(),
+                    value.empty() ? "" : absl::StrCat(" (default: ", value, ")"), "\n");
+  }
+  absl::StrAppend(&out, "  --version\n      the version and build type\n");
+  return out;
+}
+
+}  // namespace
+
 void ParseServerCommandLine(int argc, char** argv, const char* usage, const char* main_file) {
+  // --help and --version are answered here, exit status 0: Abseil's own
+  // exit 1 and print its build paths and every linked library's flags.
+  const std::string binary =
+      absl::StrCat("sliceplan-", absl::StrContains(main_file, "worker") ? "worker" : "coordinator");
+  for (int i = 1; i < argc; ++i) {
+    const std::string_view arg = argv[i];
+    if (arg == "--") break;
+    if (arg == "--help" || arg == "-h" || arg == "--helpfull" || arg == "--helpshort") {
+      std::cout << ServerHelp(usage, main_file);
+      std::exit(0);
+    }
+    if (arg == "--version") {
+      std::cout << VersionLine(binary) << "\n";
+      std::exit(0);
+    }
+  }
   absl::SetProgramUsageMessage(usage);
   absl::FlagsUsageConfig config;
   const std::string file = main_file;

@@ -33,6 +33,17 @@ check() {  # NAME WANT_STATUS WANT_STDERR_PART ARGS...
   fi
 }
 
+# Files that are no query file: refused by name at once (a device never
+# ends, a directory has no size).
+check query_device 2 "the query file: /dev/zero is not a regular file" optimize /dev/zero
+check query_directory 2 "is a directory" optimize "$tmp"
+# --version: the project's version and build type, exit 0.
+if "$bin" --version >"$tmp/version" 2>&1 && grep -qE '^sliceplan [0-9]+\.[0-9]+\.[0-9]+ \(.* build\)$' "$tmp/version"; then
+  passed=$((passed + 1))
+else
+  failed=$((failed + 1)); echo "FAIL version: $(cat "$tmp/version")"
+fi
+
 check unknown_field 2 "(relations[0]) depth" optimize "$bad/unknown_field.json"
 check duplicate_name 2 "relations[1].name: duplicate relation name" optimize "$bad/duplicate_name.json"
 check missing_rows 2 "relations[1] (cranes).rows: missing" optimize "$bad/missing_rows.json"

@@ -98,6 +98,23 @@ TEST(HostileClientTest, EachServerListensOnExactlyTheAnnouncedPort) {
   }
 }
 
+TEST(HostileClientTest, HelpAndVersionExitZeroAndShowOnlyTheServersFlags) {
+  for (const std::string& bin :
+       {std::string(SLICEPLAN_WORKER_BIN), std::string(SLICEPLAN_COORDINATOR_BIN)}) {
+    const testing::CommandResult help = testing::RunCommand(bin + " --help 2>&1");
+    EXPECT_EQ(help.exit_status, 0) << bin;
+    EXPECT_NE(help.output.find("--tls-cert"), std::string::npos) << help.output;  // dashed
+    EXPECT_EQ(help.output.find("tls_cert"), std::string::npos) << help.output;
+    EXPECT_EQ(help.output.find("Flags from"), std::string::npos) << help.output;  // no paths
+    EXPECT_EQ(help.output.find("test-only"), std::string::npos) << help.output;
+    EXPECT_EQ(help.output.find("test_only"), std::string::npos) << help.output;
+    const testing::CommandResult version = testing::RunCommand(bin + " --version 2>&1");
+    EXPECT_EQ(version.exit_status, 0) << bin;
+    EXPECT_NE(version.output.find(" 0."), std::string::npos) << version.output;
+    EXPECT_NE(version.output.find(" build)"), std::string::npos) << version.output;
+  }
+}
+
 TEST(HostileClientTest, PortOutsideTheRangeIsRefusedAtStart) {
   for (const std::string& bin :
        {std::string(SLICEPLAN_WORKER_BIN),
