@@ -442,6 +442,8 @@ std::string Usage() {
       "commands:\n", "  optimize QUERY.json [flags]                  the best plan of a query\n",
       "  capacity QUERY.json --deadline-seconds=S     the pool a deadline needs\n",
       "  workers --coordinator=HOST:PORT              a coordinator's worker pool\n",
+      "  prepare TEMPLATE.json --out=PLANS            a prepared query's plan set\n",
+      "  choose PLANS --set=NAME=VALUE,...            its plan for given values\n",
       "  --version                                    the version and build type\n\n",
       "Exit status: 0 success, 2 bad input, 1 any other failure.\n");
 }

@@ -15,6 +15,7 @@
 #include "cli/progress_bar.h"
 #include "cli/render.h"
 #include "cli/rpc_client.h"
+#include "cli/template_commands.h"
 #include "core/capacity/capacity_table.h"
 #include "core/model/input_limits.h"
 #include "core/model/status_macros.h"
@@ -229,7 +230,8 @@ int main(int argc, char** argv) {
   args.erase(args.begin());
   for (const std::string& a : args) {
     if (a == "--help" || a == "-h") {
-      const std::string help = CommandUsage(command);
+      std::string help = CommandUsage(command);
+      if (help.empty()) help = TemplateCommandUsage(command);
       std::cout << (help.empty() ? Usage() : help);
       return kExitOk;
     }
@@ -237,6 +239,14 @@ int main(int argc, char** argv) {
   if (command == "optimize") return Optimize(args);
   if (command == "workers") return Workers(args);
   if (command == "capacity") return Capacity(args);
+  if (command == "prepare" || command == "choose") {
+    const int cores = static_cast<int>(std::max(1u, std::thread::hardware_concurrency()));
+    auto out = command == "prepare" ? RunPrepare(args, cores) : RunChoose(args);
+    if (!out.ok()) return Fail(out.status());
+    std::cout << *out;
+    std::cout.flush();
+    return std::cout ? kExitOk : kExitFailure;
+  }
   std::cerr << "sliceplan: unknown command \"" << command << "\"\n" << Usage();
   return kExitBadInput;
 }

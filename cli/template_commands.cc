@@ -1,0 +1,208 @@
+#include "cli/template_commands.h"
+
+#include <unistd.h>
+
+#include <algorithm>
+#include <iostream>
+#include <optional>
+
+#include "absl/strings/numbers.h"
+#include "absl/strings/str_cat.h"
+#include "absl/strings/str_format.h"
+#include "absl/strings/str_split.h"
+#include "cli/command_table.h"
+#include "cli/output_file.h"
+#include "core/model/json_text.h"
+#include "core/model/status_macros.h"
+#include "templates/plan_set.h"
+#include "templates/template_prepare.h"
+#include "tiers/wide_plan.h"
+#include "wire/bounded_file.h"
+
+namespace sliceplan::cli {
+namespace {
+
+struct PrepareConfig {
+  std::string template_path;
+  std::string out;
+  PrepareOptions options;
+  bool json = false;
+  bool quiet = false;
+};
+
+struct ChooseConfig {
+  std::string plans_path;
+  std::vector<std::pair<std::string, double>> values;
+  bool robust = false;
+  bool json = false;
+};
+
+absl::Status BadFlag(const std::string& flag, const std::string& value, const std::string& want) {
+  return absl::InvalidArgumentError(absl::StrCat("--", flag, "=", value, ": expected ", want));
+}
+
+std::function<absl::Status(const std::string&)> Format(bool& json) {
+  return [&json](const std::string& v) {
+    if (v != "text" && v != "json") return BadFlag("format", v, "text or json");
+    json = v == "json";
+    return absl::OkStatus();
+  };
+}
+
+CommandTable PrepareTable(PrepareConfig& c, int cores) {
+  c.options.workers = cores;
+  return {"prepare",
+          "Optimizes a query template exactly at every point of a log-spaced grid over its "
+          "parameters and keeps the fewest plans such that at every point one costs at most "
+          "--max-ratio times the optimum.",
+          "TEMPLATE.json",
+          "template file",
+          [&c](const std::string& path) { c.template_path = path; },
+          {{"out", "PLANS", "", "the plan set file to write (required)",
+            [&c](const std::string& v) {
+              if (v.empty()) return BadFlag("out", v, "a file name");
+              c.out = v;
+              return absl::OkStatus();
+            }},
+           {"max-ratio", "R", "1.2", "the guarantee: at every grid point a kept plan within R",
+            [&c](const std::string& v) {
+              double r = 0;
+              if (!absl::SimpleAtod(v, &r) || !(r >= 1) || r > 1e6) {
+                return BadFlag("max-ratio", v, "a number in [1, 1e6]");
+              }
+              c.options.max_ratio = r;
+              return absl::OkStatus();
+            }},
+           {"grid", "G", "8", "values per parameter, log-spaced from min to max",
+            [&c](const std::string& v) {
+              int g = 0;
+              if (!absl::SimpleAtoi(v, &g) || g < kMinGrid || g > kMaxGrid) {
+                return BadFlag("grid", v, absl::StrCat("a number in ", kMinGrid, "..", kMaxGrid));
+              }
+              c.options.grid = g;
+              return absl::OkStatus();
+            }},
+           {"workers", "N", "the cores", "grid points optimized at once (in-process workers)",
+            [&c](const std::string& v) {
+              int w = 0;
+              if (!absl::SimpleAtoi(v, &w) || w < 1 || w > 1024) {
+                return BadFlag("workers", v, "a number in 1..1024");
+              }
+              c.options.workers = w;
+              return absl::OkStatus();
+            }},
+           {"format", "text|json", "text", "output", Format(c.json)},
+           {"quiet", "", "", "no progress bar on stderr", [&c](const std::string& v) {
+              c.quiet = v == "true";
+              return absl::OkStatus();
+            }}}};
+}
+
+CommandTable ChooseTable(ChooseConfig& c) {
+  return {"choose",
+          "Costs every plan of a plan set at the given parameter values and prints the "
+          "cheapest (or, with --robust, the one whose largest ratio on the grid is least).",
+          "PLANS",
+          "plan set file",
+          [&c](const std::string& path) { c.plans_path = path; },
+          {{"set", "NAME=VALUE,...", "", "the parameters' values (every parameter, once)",
+            [&c](const std::string& v) {
+              for (const absl::string_view part : absl::StrSplit(v, ',')) {
+                const std::pair<std::string, std::string> kv = absl::StrSplit(part, '=');
+                double value = 0;
+                if (kv.first.empty() || !absl::SimpleAtod(kv.second, &value)) {
+                  return BadFlag("set", v, "NAME=VALUE pairs, comma-separated");
+                }
+                c.values.emplace_back(kv.first, value);
+              }
+              return absl::OkStatus();
+            }},
+           {"robust", "", "", "the plan whose worst ratio on the grid is least",
+            [&c](const std::string& v) {
+              c.robust = v == "true";
+              return absl::OkStatus();
+            }},
+           {"format", "text|json", "text", "output", Format(c.json)}}};
+}
+
+// A one-line progress report on a terminal's stderr, rewritten in place
+// at most every 1% of the points (never into a file or a pipe).
+void DrawProgress(size_t done, size_t total) {
+  static const bool terminal = isatty(STDERR_FILENO) != 0;
+  if (!terminal || (done != total && done % std::max<size_t>(1, total / 100) != 0)) return;
+  std::cerr << absl::StrFormat("\rprepare: %u of %u grid points optimized", done, total)
+            << (done == total ? "\r\033[K" : "") << std::flush;
+}
+
+}  // namespace
+
+absl::StatusOr<std::string> RunPrepare(const std::vector<std::string>& args, int cores) {
+  PrepareConfig c;
+  RETURN_IF_ERROR(ParseCommand(PrepareTable(c, cores), args));
+  if (c.out.empty()) return absl::InvalidArgumentError("--out=PLANS: missing (the file to write)");
+  ASSIGN_OR_RETURN(const std::string text,
+                   ReadBoundedFile(c.template_path, InputLimits{}.max_query_bytes, "the template"));
+  ASSIGN_OR_RETURN(const QueryTemplate t, QueryTemplate::Parse(text));
+  ASSIGN_OR_RETURN(OutputFile out, OutputFile::Prepare(c.out, "--out", {c.template_path}));
+  if (!c.quiet) c.options.on_progress = DrawProgress;
+  ASSIGN_OR_RETURN(const PreparedPlans prepared, PrepareTemplate(t, c.options));
+  RETURN_IF_ERROR(out.Commit(PlanSetJson(t, prepared)));
+  if (c.json) {
+    return absl::StrCat("{\"stored_plans\": ", prepared.plans.size(),
+                        ", \"grid_points\": ", prepared.grid_points,
+                        ", \"max_ratio_on_grid\": ", JsonNumber(prepared.worst_ratio),
+                        ", \"seconds\": ", JsonNumber(prepared.seconds), "}\n");
+  }
+  std::string report = absl::StrFormat(
+      "prepared %s: %u grid points (%d per parameter), %u distinct optima, %u plans kept; "
+      "at every grid point a kept plan costs at most %.4g times the optimum (asked: %.4g); "
+      "%.2f s\nwrote %s\n",
+      c.template_path, prepared.grid_points, prepared.grid, prepared.distinct_optima,
+      prepared.plans.size(), prepared.worst_ratio, prepared.max_ratio, prepared.seconds, c.out);
+  return report;
+}
+
+absl::StatusOr<std::string> RunChoose(const std::vector<std::string>& args) {
+  ChooseConfig c;
+  RETURN_IF_ERROR(ParseCommand(ChooseTable(c), args));
+  ASSIGN_OR_RETURN(const std::string text,
+                   ReadBoundedFile(c.plans_path, InputLimits{}.max_query_bytes, "the plan set"));
+  ASSIGN_OR_RETURN(const PlanSet set, ParsePlanSet(text));
+  ASSIGN_OR_RETURN(const std::vector<double> values, set.query_template.Values(c.values));
+  ASSIGN_OR_RETURN(const StoredChoice choice,
+                   ChooseStoredPlan(set.query_template, set.prepared, values, c.robust));
+  ASSIGN_OR_RETURN(const Query q, set.query_template.At(values));
+  const WideQuery wide = WideQuery::FromExact(q);
+  const WidePlan plan = FromExactPlan(choice.plan);
+  const std::string tree = WideTreeString(plan, wide);
+  if (c.json) {
+    return absl::StrCat("{\n  \"plans\": [\n    {\"tree\": ", JsonString(tree),
+                        ", \"costs\": {\"cout\": ", JsonNumber(plan.cost()),
+                        "}, \"cardinality\": ", JsonNumber(plan.root().cardinality),
+                        "}\n  ],\n  \"shape\": \"bushy\",\n  \"tier\": \"prepared\",\n"
+                        "  \"proven_optimal\": false,\n  \"stored_plans\": ",
+                        set.prepared.plans.size(), ",\n  \"chosen_plan\": ", choice.index,
+                        ",\n  \"worst_ratio_on_grid\": ",
+                        JsonNumber(set.prepared.plan_worst[choice.index]), "\n}\n");
+  }
+  return absl::StrFormat(
+      "stored plan %u of %u%s: cout %.6g at these values\n%s\n\n%s\n", choice.index,
+      set.prepared.plans.size(), c.robust ? " (robust)" : " (the cheapest here)", plan.cost(),
+      c.robust ? absl::StrFormat("this plan costs at most %.4g times the optimum at every "
+                                 "grid point",
+                                 set.prepared.plan_worst[choice.index])
+               : absl::StrFormat("at every grid point the cheapest stored plan costs at most "
+                                 "%.4g times the optimum",
+                                 set.prepared.worst_ratio),
+      tree);
+}
+
+std::string TemplateCommandUsage(const std::string& command) {
+  PrepareConfig p;
+  ChooseConfig c;
+  if (command == "prepare") return CommandHelp(PrepareTable(p, 1));
+  if (command == "choose") return CommandHelp(ChooseTable(c));
+  return "";
+}
+
+}  // namespace sliceplan::cli

@@ -1,0 +1,167 @@
+#include "templates/template_prepare.h"
+
+#include <atomic>
+#include <chrono>
+#include <cmath>
+#include <map>
+#include <mutex>
+#include <thread>
+
+#include "absl/strings/str_cat.h"
+#include "absl/strings/str_join.h"
+#include "core/model/status_macros.h"
+#include "core/plan_cover.h"
+#include "core/slice_solver.h"
+
+namespace sliceplan {
+namespace {
+
+// A plan's shape as a key: each node's set and children.
+std::string ShapeKey(const Plan& plan) {
+  std::string key;
+  for (const PlanNode& n : plan.nodes) absl::StrAppend(&key, n.relations, ",", n.left, ",", n.right, ";");
+  return key;
+}
+
+// The grid point of index `x`, parameter 0 varying fastest.
+std::vector<double> PointAt(size_t x, const std::vector<std::vector<double>>& axes) {
+  std::vector<double> values;
+  for (const auto& axis : axes) {
+    values.push_back(axis[x % axis.size()]);
+    x /= axis.size();
+  }
+  return values;
+}
+
+absl::Status CheckOptions(const QueryTemplate& t, const PrepareOptions& o, size_t& points) {
+  if (o.grid < kMinGrid || o.grid > kMaxGrid) {
+    return absl::InvalidArgumentError(
+        absl::StrCat("--grid: ", o.grid, " is outside ", kMinGrid, "..", kMaxGrid));
+  }
+  if (!(o.max_ratio >= 1) || !std::isfinite(o.max_ratio)) {
+    return absl::InvalidArgumentError(absl::StrCat("--max-ratio: must be >= 1, got ", o.max_ratio));
+  }
+  if (o.search.cost != CostModelKind::kCout) {
+    return absl::InvalidArgumentError(
+        "prepare: the cout model only (a Pareto set per grid point is not stored yet)");
+  }
+  points = 1;
+  for (size_t i = 0; i < t.parameters().size(); ++i) {
+    points *= static_cast<size_t>(o.grid);
+    if (points > kMaxGridPoints) {
+      return absl::ResourceExhaustedError(absl::StrCat(
+          "--grid: ", o.grid, " values for each of ", t.parameters().size(),
+          " parameters is more than ", kMaxGridPoints, " grid points; use a smaller grid"));
+    }
+  }
+  return absl::OkStatus();
+}
+
+}  // namespace
+
+std::vector<double> GridValues(const TemplateParameter& p, int grid) {
+  std::vector<double> out;
+  for (int i = 0; i < grid; ++i) {
+    out.push_back(i == grid - 1 ? p.max
+                                : p.min * std::pow(p.max / p.min, static_cast<double>(i) / (grid - 1)));
+  }
+  return out;
+}
+
+absl::StatusOr<PreparedPlans> PrepareTemplate(const QueryTemplate& t, const PrepareOptions& options) {
+  const auto start = std::chrono::steady_clock::now();
+  size_t points = 0;
+  RETURN_IF_ERROR(CheckOptions(t, options, points));
+  std::vector<std::vector<double>> axes;
+  for (const TemplateParameter& p : t.parameters()) axes.push_back(GridValues(p, options.grid));
+  std::vector<Query> queries;
+  queries.reserve(points);
+  for (size_t x = 0; x < points; ++x) {
+    ASSIGN_OR_RETURN(Query q, t.At(PointAt(x, axes)));
+    queries.push_back(std::move(q));
+  }
+  // Every point's exact optimum, `workers` points at a time.
+  std::vector<std::optional<Plan>> optima(points);
+  std::vector<absl::Status> errors(points);
+  std::atomic<size_t> next{0}, done{0};
+  std::mutex progress_mu;
+  const auto work = [&] {
+    for (size_t x; (x = next.fetch_add(1)) < points;) {
+      SearchControl control;
+      auto r = SolveSlice(queries[x], options.search, {0, 1}, control);
+      if (!r.ok()) {
+        errors[x] = r.status();
+      } else if (!r->plan) {
+        errors[x] = absl::NotFoundError("no plan joins all relations without a cross product");
+      } else {
+        optima[x] = std::move(r->plan);
+      }
+      const size_t d = done.fetch_add(1) + 1;
+      if (options.on_progress) {
+        std::lock_guard<std::mutex> lock(progress_mu);
+        options.on_progress(d, points);
+      }
+    }
+  };
+  std::vector<std::thread> threads;
+  for (int w = 1; w < std::max(1, options.workers); ++w) threads.emplace_back(work);
+  work();
+  for (std::thread& th : threads) th.join();
+  for (size_t x = 0; x < points; ++x) {
+    if (!errors[x].ok()) {
+      return absl::Status(errors[x].code(),
+                          absl::StrCat("grid point (", absl::StrJoin(PointAt(x, axes), ", "),
+                                       "): ", errors[x].message()));
+    }
+  }
+  // The distinct optima, each costed at every point.
+  std::map<std::string, size_t> index;
+  std::vector<Plan> candidates;
+  std::vector<double> optimum(points);
+  for (size_t x = 0; x < points; ++x) {
+    optimum[x] = optima[x]->root().cost;
+    if (index.emplace(ShapeKey(*optima[x]), candidates.size()).second) {
+      candidates.push_back(*optima[x]);
+    }
+  }
+  std::vector<std::vector<double>> costs(candidates.size(), std::vector<double>(points));
+  for (size_t p = 0; p < candidates.size(); ++p) {
+    for (size_t x = 0; x < points; ++x) {
+      Plan copy = candidates[p];
+      costs[p][x] = CostPlanOn(copy, queries[x]);
+    }
+  }
+  const GridCover cover = CoverGrid(costs, optimum, options.max_ratio);
+  PreparedPlans out;
+  out.grid = options.grid;
+  out.max_ratio = options.max_ratio;
+  for (size_t p : cover.kept) out.plans.push_back(candidates[p]);
+  out.plan_worst = cover.kept_worst;
+  out.worst_ratio = cover.worst_ratio;
+  out.grid_points = points;
+  out.distinct_optima = candidates.size();
+  out.seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
+  return out;
+}
+
+absl::StatusOr<StoredChoice> ChooseStoredPlan(const QueryTemplate& t, const PreparedPlans& prepared,
+                                              std::span<const double> values, bool robust) {
+  ASSIGN_OR_RETURN(const Query q, t.At(values));
+  if (prepared.plans.empty()) return absl::FailedPreconditionError("the plan set holds no plan");
+  StoredChoice best;
+  double best_cost = 0;
+  for (size_t p = 0; p < prepared.plans.size(); ++p) {
+    Plan plan = prepared.plans[p];
+    const double cost = CostPlanOn(plan, q);
+    const bool better = robust ? prepared.plan_worst[p] < prepared.plan_worst[best.index]
+                               : cost < best_cost;
+    if (p == 0 || better) {
+      best.index = p;
+      best.plan = std::move(plan);
+      best_cost = cost;
+    }
+  }
+  return best;
+}
+
+}  // namespace sliceplan

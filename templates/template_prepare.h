@@ -1,0 +1,68 @@
+// Preparing a query template (docs/templates.md): the template optimized
+// exactly at every point of a log-spaced grid over its parameter box, the
+// distinct optima costed at every point, and the fewest of them kept such
+// that at every point a kept plan costs at most max_ratio times the
+// optimum (core/plan_cover.h); choosing one of the kept plans for given
+// values. Thread-safe: calls share nothing.
+#ifndef SLICEPLAN_TEMPLATES_TEMPLATE_PREPARE_H_
+#define SLICEPLAN_TEMPLATES_TEMPLATE_PREPARE_H_
+
+#include <cstddef>
+#include <functional>
+#include <span>
+#include <vector>
+
+#include "absl/status/statusor.h"
+#include "core/model/plan.h"
+#include "core/search_options.h"
+#include "wire/query_template.h"
+
+namespace sliceplan {
+
+inline constexpr int kMinGrid = 2;
+inline constexpr int kMaxGrid = 64;
+// The most grid points one prepare optimizes (each is an exact search).
+inline constexpr size_t kMaxGridPoints = 65536;
+
+struct PrepareOptions {
+  int grid = 8;            // G values per parameter
+  double max_ratio = 1.2;  // the guarantee asked for, >= 1
+  int workers = 1;         // grid points optimized at once, in this process
+  SearchOptions search;    // the cout model
+  std::function<void(size_t done, size_t total)> on_progress;  // may be empty
+};
+
+struct PreparedPlans {
+  int grid = 0;
+  double max_ratio = 0;
+  std::vector<Plan> plans;         // the kept plans (relations and shape only)
+  std::vector<double> plan_worst;  // each kept plan's largest ratio on the grid
+  double worst_ratio = 1;          // the grid guarantee achieved
+  size_t grid_points = 0;
+  size_t distinct_optima = 0;
+  double seconds = 0;
+};
+
+// v_i = min (max / min)^(i / (G - 1)), i = 0 .. G-1 (docs/interfaces.md).
+std::vector<double> GridValues(const TemplateParameter& p, int grid);
+
+// Errors: INVALID_ARGUMENT for a grid outside [kMinGrid, kMaxGrid], a
+// max_ratio below 1, the cluster model; RESOURCE_EXHAUSTED, with the
+// numbers, for more than kMaxGridPoints points (checked first); a search's
+// error at a point, naming the point.
+absl::StatusOr<PreparedPlans> PrepareTemplate(const QueryTemplate& t, const PrepareOptions& options);
+
+struct StoredChoice {
+  size_t index = 0;  // into PreparedPlans::plans
+  Plan plan;         // costed at the values
+};
+
+// The kept plan cheapest at `values` (each plan costed there), or with
+// `robust` the one whose largest ratio on the grid is least, costed at the
+// values. Errors: the template's for values (At).
+absl::StatusOr<StoredChoice> ChooseStoredPlan(const QueryTemplate& t, const PreparedPlans& prepared,
+                                              std::span<const double> values, bool robust);
+
+}  // namespace sliceplan
+
+#endif  // SLICEPLAN_TEMPLATES_TEMPLATE_PREPARE_H_
