@@ -53,9 +53,8 @@ absl::StatusOr<Plan> PlanFrom(const google::protobuf::ListValue& nodes, int n, i
 
 std::string PlanSetJson(const QueryTemplate& t, const PreparedPlans& prepared) {
   std::string out = absl::StrCat(
-      "{\n  \"sliceplan_plan_set\": ", kPlanSetVersion, ",\n  \"template\": ",
-      JsonString(t.text()), ",\n  \"grid\": ", prepared.grid,
-      ",\n  \"max_ratio\": ", JsonNumber(prepared.max_ratio),
+      "{\n  \"sliceplan_plan_set\": ", kPlanSetVersion, ",\n  \"template\": ", JsonString(t.text()),
+      ",\n  \"grid\": ", prepared.grid, ",\n  \"max_ratio\": ", JsonNumber(prepared.max_ratio),
       ",\n  \"max_ratio_on_grid\": ", JsonNumber(prepared.worst_ratio),
       ",\n  \"grid_points\": ", prepared.grid_points, ",\n  \"plans\": [\n");
   for (size_t p = 0; p < prepared.plans.size(); ++p) {

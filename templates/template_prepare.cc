@@ -19,7 +19,8 @@ namespace {
 // A plan's shape as a key: each node's set and children.
 std::string ShapeKey(const Plan& plan) {
   std::string key;
-  for (const PlanNode& n : plan.nodes) absl::StrAppend(&key, n.relations, ",", n.left, ",", n.right, ";");
+  for (const PlanNode& n : plan.nodes)
+    absl::StrAppend(&key, n.relations, ",", n.left, ",", n.right, ";");
   return key;
 }
 
@@ -62,13 +63,15 @@ absl::Status CheckOptions(const QueryTemplate& t, const PrepareOptions& o, size_
 std::vector<double> GridValues(const TemplateParameter& p, int grid) {
   std::vector<double> out;
   for (int i = 0; i < grid; ++i) {
-    out.push_back(i == grid - 1 ? p.max
-                                : p.min * std::pow(p.max / p.min, static_cast<double>(i) / (grid - 1)));
+    out.push_back(i == grid - 1
+                      ? p.max
+                      : p.min * std::pow(p.max / p.min, static_cast<double>(i) / (grid - 1)));
   }
   return out;
 }
 
-absl::StatusOr<PreparedPlans> PrepareTemplate(const QueryTemplate& t, const PrepareOptions& options) {
+absl::StatusOr<PreparedPlans> PrepareTemplate(const QueryTemplate& t,
+                                              const PrepareOptions& options) {
   const auto start = std::chrono::steady_clock::now();
   size_t points = 0;
   RETURN_IF_ERROR(CheckOptions(t, options, points));
@@ -153,8 +156,8 @@ absl::StatusOr<StoredChoice> ChooseStoredPlan(const QueryTemplate& t, const Prep
   for (size_t p = 0; p < prepared.plans.size(); ++p) {
     Plan plan = prepared.plans[p];
     const double cost = CostPlanOn(plan, q);
-    const bool better = robust ? prepared.plan_worst[p] < prepared.plan_worst[best.index]
-                               : cost < best_cost;
+    const bool better =
+        robust ? prepared.plan_worst[p] < prepared.plan_worst[best.index] : cost < best_cost;
     if (p == 0 || better) {
       best.index = p;
       best.plan = std::move(plan);

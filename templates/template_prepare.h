@@ -50,7 +50,8 @@ std::vector<double> GridValues(const TemplateParameter& p, int grid);
 // max_ratio below 1, the cluster model; RESOURCE_EXHAUSTED, with the
 // numbers, for more than kMaxGridPoints points (checked first); a search's
 // error at a point, naming the point.
-absl::StatusOr<PreparedPlans> PrepareTemplate(const QueryTemplate& t, const PrepareOptions& options);
+absl::StatusOr<PreparedPlans> PrepareTemplate(const QueryTemplate& t,
+                                              const PrepareOptions& options);
 
 struct StoredChoice {
   size_t index = 0;  // into PreparedPlans::plans

@@ -30,8 +30,8 @@ absl::StatusOr<std::vector<TemplateParameter>> ReadParameters(const Struct& doc)
   }
   const auto& list = it->second.list_value().values();
   if (list.size() > kMaxTemplateParameters) {
-    return Bad(absl::StrCat("parameters: ", list.size(), " given; the limit is ",
-                            kMaxTemplateParameters));
+    return Bad(
+        absl::StrCat("parameters: ", list.size(), " given; the limit is ", kMaxTemplateParameters));
   }
   std::vector<TemplateParameter> out;
   for (int i = 0; i < list.size(); ++i) {
@@ -58,11 +58,13 @@ absl::StatusOr<std::vector<TemplateParameter>> ReadParameters(const Struct& doc)
       *out_value = v->second.number_value();
     }
     if (!std::isfinite(p.min) || !std::isfinite(p.max) || !(p.min > 0) || p.min > p.max) {
-      return Bad(absl::StrCat(at, " (", p.name, "): the range must be finite with 0 < min <= max, got [",
-                              p.min, ", ", p.max, "]"));
+      return Bad(absl::StrCat(at, " (", p.name,
+                              "): the range must be finite with 0 < min <= max, got [", p.min, ", ",
+                              p.max, "]"));
     }
     for (const TemplateParameter& q : out) {
-      if (q.name == p.name) return Bad(absl::StrCat(at, ": parameter \"", p.name, "\" named twice"));
+      if (q.name == p.name)
+        return Bad(absl::StrCat(at, ": parameter \"", p.name, "\" named twice"));
     }
     out.push_back(std::move(p));
   }
@@ -74,9 +76,8 @@ absl::StatusOr<std::vector<TemplateParameter>> ReadParameters(const Struct& doc)
 absl::StatusOr<QueryTemplate> QueryTemplate::Parse(std::string_view json,
                                                    const InputLimits& limits) {
   if (static_cast<int64_t>(json.size()) > limits.max_query_bytes) {
-    return absl::ResourceExhaustedError(absl::StrCat("template: ", json.size(),
-                                                     " bytes; the limit is ",
-                                                     limits.max_query_bytes));
+    return absl::ResourceExhaustedError(
+        absl::StrCat("template: ", json.size(), " bytes; the limit is ", limits.max_query_bytes));
   }
   if (!IsValidUtf8(json)) return Bad("not valid UTF-8");
   RETURN_IF_ERROR(CheckJsonShape(json));
@@ -89,7 +90,8 @@ absl::StatusOr<QueryTemplate> QueryTemplate::Parse(std::string_view json,
   t.text_ = std::string(json);
   ASSIGN_OR_RETURN(t.parameters_, ReadParameters(doc));
   absl::flat_hash_map<std::string, int> ids;
-  for (size_t i = 0; i < t.parameters_.size(); ++i) ids[t.parameters_[i].name] = static_cast<int>(i);
+  for (size_t i = 0; i < t.parameters_.size(); ++i)
+    ids[t.parameters_[i].name] = static_cast<int>(i);
   std::vector<bool> used(t.parameters_.size(), false);
   std::vector<bool> selectivity(t.parameters_.size(), false);
   // Each {"parameter": NAME} is replaced by its parameter's minimum.
@@ -125,7 +127,8 @@ absl::StatusOr<QueryTemplate> QueryTemplate::Parse(std::string_view json,
   for (size_t i = 0; i < t.parameters_.size(); ++i) {
     const TemplateParameter& p = t.parameters_[i];
     if (!used[i]) {
-      return Bad(absl::StrCat("parameters[", i, "] (", p.name, "): used by no rows or selectivity"));
+      return Bad(
+          absl::StrCat("parameters[", i, "] (", p.name, "): used by no rows or selectivity"));
     }
     if (selectivity[i] && p.max > 1) {
       return Bad(absl::StrCat("parameters[", i, "] (", p.name,
@@ -151,16 +154,14 @@ absl::StatusOr<QueryTemplate> QueryTemplate::Parse(std::string_view json,
 
 absl::StatusOr<Query> QueryTemplate::At(std::span<const double> values) const {
   if (values.size() != parameters_.size()) {
-    return absl::InvalidArgumentError(absl::StrCat("template: ", values.size(),
-                                                   " values for ", parameters_.size(),
-                                                   " parameters"));
+    return absl::InvalidArgumentError(absl::StrCat("template: ", values.size(), " values for ",
+                                                   parameters_.size(), " parameters"));
   }
   for (size_t i = 0; i < values.size(); ++i) {
     const TemplateParameter& p = parameters_[i];
     if (!(values[i] >= p.min && values[i] <= p.max)) {
-      return absl::InvalidArgumentError(absl::StrCat(p.name, "=", values[i],
-                                                     ": outside the template's range [", p.min,
-                                                     ", ", p.max, "]"));
+      return absl::InvalidArgumentError(absl::StrCat(
+          p.name, "=", values[i], ": outside the template's range [", p.min, ", ", p.max, "]"));
     }
   }
   v1::Query m = message_;

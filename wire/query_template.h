@@ -40,8 +40,7 @@ class QueryTemplate {
   // finite, not > 0, min > max, or outside (0, 1] where a selectivity
   // uses it; no parameter at all; more than kMaxTemplateParameters or
   // more than 64 relations.
-  static absl::StatusOr<QueryTemplate> Parse(std::string_view json,
-                                             const InputLimits& limits = {});
+  static absl::StatusOr<QueryTemplate> Parse(std::string_view json, const InputLimits& limits = {});
 
   std::span<const TemplateParameter> parameters() const { return parameters_; }
   // The JSON the template was parsed from.

@@ -140,12 +140,11 @@ TEST(TemplatePrepareTest, BadTemplatesAndValuesAreRefusedByName) {
                                         {"name": "z", "min": 1, "max": 2}]})")
                 .find("parameters[1] (z): used by no rows or selectivity"),
             std::string::npos);
-  EXPECT_NE(
-      refusal(R"({"relations": [{"name": "a", "rows": 3}, {"name": "b", "rows": 5}],
+  EXPECT_NE(refusal(R"({"relations": [{"name": "a", "rows": 3}, {"name": "b", "rows": 5}],
                   "predicates": [{"relations": ["a", "b"], "selectivity": {"parameter": "s"}}],
                   "parameters": [{"name": "s", "min": 0.1, "max": 2}]})")
-          .find("a selectivity's range must lie in (0, 1]"),
-      std::string::npos);
+                .find("a selectivity's range must lie in (0, 1]"),
+            std::string::npos);
   const QueryTemplate t = Yard();
   const auto value_refusal = [&](std::vector<std::pair<std::string, double>> named) {
     auto v = t.Values(named);
