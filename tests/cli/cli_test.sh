@@ -137,6 +137,16 @@ assert [s["index"] for s in slices] == [0, 1, 2, 3], slices
 for s in slices:
     assert s["subsets"] == 7 ** 2 * 2 ** 0 and s["splits"] > 0 and s["seconds"] >= 0, s
 assert doc["tier"] == "exact" and doc["proven_optimal"] is True, doc
+# Every node, children before parents, the root last and the plan's rows.
+nodes = plans[0]["nodes"]
+assert len(nodes) == 11, nodes
+leaves = [n["relation"] for n in nodes if "relation" in n]
+assert sorted(leaves) == sorted(["shipments", "containers", "voyages", "vessels", "ports", "customers"])
+for i, n in enumerate(nodes):
+    assert n["cardinality"] > 0, n
+    if "type" in n:
+        assert n["type"] == "inner" and 0 <= n["left"] < i and 0 <= n["right"] < i, (i, n)
+assert nodes[-1]["cardinality"] == plans[0]["cardinality"], nodes[-1]
 PY
 then passed=$((passed + 1)); else failed=$((failed + 1)); echo "FAIL json_fields"; fi
 
