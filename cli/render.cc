@@ -151,25 +151,6 @@ SliceBalance Balance(const OptimizeResult& result) {
 
 namespace {
 
-// A plan's `nodes` (docs/interfaces.md): children before parents, the
-// root last; a leaf {"relation": NAME, "cardinality": C}, a join {"type":
-// "inner", "left": I, "right": J, "cardinality": C}.
-std::string NodesJson(const WidePlan& plan, const WideQuery& query) {
-  std::string out = "[";
-  for (size_t i = 0; i < plan.nodes.size(); ++i) {
-    const WideNode& n = plan.nodes[i];
-    absl::StrAppend(&out, i ? ", " : "");
-    if (n.is_leaf()) {
-      absl::StrAppend(&out, "{\"relation\": ", JsonString(query.relation(n.relation).name),
-                      ", \"cardinality\": ", JsonNumber(n.cardinality), "}");
-    } else {
-      absl::StrAppend(&out, "{\"type\": \"inner\", \"left\": ", n.left, ", \"right\": ", n.right,
-                      ", \"cardinality\": ", JsonNumber(n.cardinality), "}");
-    }
-  }
-  return out + "]";
-}
-
 // How many of the engine's listed estimates the answer used: those the
 // exact search held in its memo (every listed set with cross products,
 // the connected ones without) when it ran, else those among the returned
@@ -310,6 +291,22 @@ void AppendRunSummary(const TieredOutcome& outcome, const RunInfo& info, std::st
 
 }  // namespace
 
+std::string PlanNodesJson(const WidePlan& plan, const WideQuery& query) {
+  std::string out = "[";
+  for (size_t i = 0; i < plan.nodes.size(); ++i) {
+    const WideNode& n = plan.nodes[i];
+    absl::StrAppend(&out, i ? ", " : "");
+    if (n.is_leaf()) {
+      absl::StrAppend(&out, "{\"relation\": ", JsonString(query.relation(n.relation).name),
+                      ", \"cardinality\": ", JsonNumber(n.cardinality), "}");
+    } else {
+      absl::StrAppend(&out, "{\"type\": \"inner\", \"left\": ", n.left, ", \"right\": ", n.right,
+                      ", \"cardinality\": ", JsonNumber(n.cardinality), "}");
+    }
+  }
+  return out + "]";
+}
+
 std::string RenderText(const TieredOutcome& outcome, const RunInfo& info) {
   std::string out;
   if (info.search.cost == CostModelKind::kCluster) {
@@ -330,7 +327,7 @@ std::string RenderJson(const TieredOutcome& outcome, const RunInfo& info) {
       const ClusterCosts& m = result.frontier[i].root().metrics;
       absl::StrAppend(&out, "    {\"tree\": ", JsonString(TreeString(result.frontier[i], query)),
                       ", \"nodes\": ",
-                      NodesJson(FromExactPlan(result.frontier[i]), WideQuery::FromExact(query)),
+                      PlanNodesJson(FromExactPlan(result.frontier[i]), WideQuery::FromExact(query)),
                       ", \"physical\": ", JsonString(PhysicalTreeString(result.frontier[i], query)),
                       ", \"costs\": {\"latency_s\": ", JsonNumber(m.latency_s),
                       ", \"node_seconds\": ", JsonNumber(m.node_seconds),
@@ -341,7 +338,7 @@ std::string RenderJson(const TieredOutcome& outcome, const RunInfo& info) {
                     result.chosen ? absl::StrCat(*result.chosen) : std::string("null"), ",\n");
   } else {
     absl::StrAppend(&out, "    {\"tree\": ", JsonString(WideTreeString(outcome.plan, *info.query)),
-                    ", \"nodes\": ", NodesJson(outcome.plan, *info.query), ", \"costs\": {",
+                    ", \"nodes\": ", PlanNodesJson(outcome.plan, *info.query), ", \"costs\": {",
                     JsonString(MetricName(info.search.cost)), ": ", JsonNumber(outcome.plan.cost()),
                     "}, \"cardinality\": ", JsonNumber(outcome.plan.root().cardinality));
     if (outcome.exact_ran) absl::StrAppend(&out, ", \"slice\": ", result.best_slice);

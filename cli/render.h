@@ -24,6 +24,11 @@ struct RunInfo {
   bool slices_chosen = false;  // by the planner, not by --slices
 };
 
+// A plan's `nodes` (docs/interfaces.md): children before parents, the
+// root last; a leaf {"relation": NAME, "cardinality": C}, a join {"type":
+// "inner", "left": I, "right": J, "cardinality": C}.
+std::string PlanNodesJson(const WidePlan& plan, const WideQuery& query);
+
 // The cluster model's outputs need info.exact.
 std::string RenderText(const TieredOutcome& outcome, const RunInfo& info);
 std::string RenderJson(const TieredOutcome& outcome, const RunInfo& info);

@@ -12,6 +12,7 @@
 #include "absl/strings/str_split.h"
 #include "cli/command_table.h"
 #include "cli/output_file.h"
+#include "cli/render.h"
 #include "core/model/json_text.h"
 #include "core/model/status_macros.h"
 #include "templates/plan_set.h"
@@ -177,6 +178,7 @@ absl::StatusOr<std::string> RunChoose(const std::vector<std::string>& args) {
   const std::string tree = WideTreeString(plan, wide);
   if (c.json) {
     return absl::StrCat("{\n  \"plans\": [\n    {\"tree\": ", JsonString(tree),
+                        ", \"nodes\": ", PlanNodesJson(plan, wide),
                         ", \"costs\": {\"cout\": ", JsonNumber(plan.cost()),
                         "}, \"cardinality\": ", JsonNumber(plan.root().cardinality),
                         "}\n  ],\n  \"shape\": \"bushy\",\n  \"tier\": \"prepared\",\n"
