@@ -1,6 +1,7 @@
 #include "rpc/bearer_tokens.h"
 
 #include "absl/strings/ascii.h"
+#include "absl/strings/match.h"
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_split.h"
 #include "core/model/user_text.h"
@@ -49,7 +50,9 @@ absl::Status BearerTokens::Check(const grpc::ServerContext& context) const {
   constexpr std::string_view kPrefix = "Bearer ";
   if (it != metadata.end()) {
     const std::string_view value(it->second.data(), it->second.size());
-    if (value.substr(0, kPrefix.size()) == kPrefix) {
+    // The scheme is case-insensitive (RFC 7235, section 2.1): "bearer"
+    // and "BEARER" name it too.
+    if (absl::EqualsIgnoreCase(value.substr(0, kPrefix.size()), kPrefix)) {
       const std::string_view token = value.substr(kPrefix.size());
       bool known = false;
       for (const std::string& t : tokens_) known |= ConstantTimeEqual(token, t);

@@ -40,7 +40,9 @@ def main():
         credentials = grpc.ssl_channel_credentials(ca, key, cert)
         channel = grpc.secure_channel(address, credentials)
         token = [t for t in tokens.decode().split() if t and not t.startswith("#")][0]
-        metadata = (("authorization", "Bearer " + token),)
+        # The scheme in lower case: auth schemes are case-insensitive
+        # (RFC 7235, section 2.1), and the coordinator must take it so.
+        metadata = (("authorization", "bearer " + token),)
     else:
         channel = grpc.insecure_channel(address)
     with channel:
