@@ -52,7 +52,9 @@ absl::Status BearerTokens::Check(const grpc::ServerContext& context) const {
     const std::string_view value(it->second.data(), it->second.size());
     // The scheme is case-insensitive (RFC 7235, section 2.1): "bearer"
     // and "BEARER" name it too.
-    if (absl::EqualsIgnoreCase(value.substr(0, kPrefix.size()), kPrefix)) {
+    const std::string_view scheme = value.substr(0, kPrefix.size());
+    if (absl::EqualsIgnoreCase(absl::string_view(scheme.data(), scheme.size()),
+                               absl::string_view(kPrefix.data(), kPrefix.size()))) {
       const std::string_view token = value.substr(kPrefix.size());
       bool known = false;
       for (const std::string& t : tokens_) known |= ConstantTimeEqual(token, t);
