@@ -7,6 +7,7 @@
 #include "grpcpp/security/tls_certificate_provider.h"
 #include "grpcpp/security/tls_certificate_verifier.h"
 #include "grpcpp/security/tls_credentials_options.h"
+#include "rpc/pem_check.h"
 #include "wire/bounded_file.h"
 
 namespace sliceplan {
@@ -90,6 +91,9 @@ absl::StatusOr<std::shared_ptr<grpc::ServerCredentials>> ServerCredentialsFor(
   ASSIGN_OR_RETURN(const std::string cert, ReadPem(files.cert, "--tls-cert"));
   ASSIGN_OR_RETURN(const std::string key, ReadPem(files.key, "--tls-key"));
   ASSIGN_OR_RETURN(const std::string ca, ReadPem(files.ca, "--tls-ca"));
+  // Checked before anything listens: a mismatched pair fails every handshake.
+  RETURN_IF_ERROR(CheckKeyPair(cert, key));
+  if (!ca.empty()) RETURN_IF_ERROR(CheckCaFile(ca));
   if (files.reload_seconds > 0) return WatchedServerCredentials(files);
   grpc::SslServerCredentialsOptions options(
       ca.empty() ? GRPC_SSL_DONT_REQUEST_CLIENT_CERTIFICATE
@@ -107,6 +111,10 @@ absl::StatusOr<std::shared_ptr<grpc::ChannelCredentials>> ChannelCredentialsFor(
   ASSIGN_OR_RETURN(options.pem_root_certs, ReadPem(files.ca, "--tls-ca"));
   ASSIGN_OR_RETURN(options.pem_cert_chain, ReadPem(files.cert, "--tls-cert"));
   ASSIGN_OR_RETURN(options.pem_private_key, ReadPem(files.key, "--tls-key"));
+  if (!options.pem_cert_chain.empty()) {
+    RETURN_IF_ERROR(CheckKeyPair(options.pem_cert_chain, options.pem_private_key));
+  }
+  if (!options.pem_root_certs.empty()) RETURN_IF_ERROR(CheckCaFile(options.pem_root_certs));
   if (files.reload_seconds > 0) return WatchedChannelCredentials(files);
   return grpc::SslCredentials(options);
 }

@@ -248,6 +248,8 @@ TEST_F(TlsTest, TlsListenerMayBeOffHostAndBadFilesAreRefused) {
             "--tls-cert: /nonexistent.pem: No such file or directory"},
            {" --tls-cert=/dev/zero --tls-key=" + File("server.key"),
             "--tls-cert: /dev/zero is not a regular file"},
+           {" --tls-cert=" + File("server.pem") + " --tls-key=" + File("client.key"),
+            "--tls-cert and --tls-key: the key is not the certificate's private key"},
            {" --tls-cert=" + File("tokens") + " --tls-key=" + File("server.key"), "no PEM block"},
            {" --tls-cert=" + File("server.pem") + " --tls-key=" + File("server.key") +
                 " --tls-reload-seconds=-1",
