@@ -145,7 +145,19 @@ class TierRun {
     const uint32_t p = request_.slice_count != 0
                            ? request_.slice_count
                            : ChooseSliceCount(exact, options_, concurrent_slices_);
-    ASSIGN_OR_RETURN(ScheduleOutcome outcome, RunSlices(exact, options_, p, workers_, schedule_));
+    absl::StatusOr<ScheduleOutcome> run = RunSlices(exact, options_, p, workers_, schedule_);
+    if (absl::IsDeadlineExceeded(run.status()) && schedule_.partial_on_deadline &&
+        options_.cost == CostModelKind::kCout) {
+      // Not one slice by the deadline: the best plan so far is greedy's
+      // (milliseconds), marked unproven, never nothing.
+      out_.plan = GreedyPlan(query_, options_.shape);
+      out_.tier = SearchTier::kGreedy;
+      out_.proven_optimal = false;
+      out_.coverage = 0;
+      return Finish(absl::StrCat("exact: ", run.status().message(),
+                                 "; the greedy plan stands, not proven optimal"));
+    }
+    ASSIGN_OR_RETURN(ScheduleOutcome outcome, std::move(run));
     out_.tier = SearchTier::kExact;
     out_.proven_optimal = outcome.proven_optimal;
     out_.coverage = outcome.coverage;

@@ -97,6 +97,29 @@ TEST(TieredSearchTest, AutoMeasuresTheRatesBeforeGivingTheExactSearchUp) {
   EXPECT_LE(out->plan.cost(), cautious->plan.cost());
 }
 
+TEST(TieredSearchTest, APartialExactRunWithNoSliceSolvedStillAnswers) {
+  // The exact tier forced, a deadline no slice can meet, the best plan so
+  // far asked for: greedy's plan, marked unproven, never an error.
+  const Query exact = testing::MakeQuery(GraphShape::kClique, 18, 2);
+  const WideQuery q = WideQuery::FromExact(exact);
+  TierRequest request;
+  request.tier = SearchTier::kExact;
+  ScheduleOptions schedule;
+  schedule.partial_on_deadline = true;
+  schedule.deadline = SteadyAfter(0.001);
+  auto out = RunEmbeddedTiers(q, Bushy(true), request, 1, schedule);
+  ASSERT_TRUE(out.ok()) << out.status();
+  EXPECT_FALSE(out->proven_optimal);
+  EXPECT_EQ(out->tier, SearchTier::kGreedy) << out->reason;
+  EXPECT_TRUE(CheckWidePlan(out->plan, q.size()).ok());
+  EXPECT_NE(out->reason.find("not proven optimal"), std::string::npos) << out->reason;
+  // Without partial answers the deadline is still an error.
+  schedule.partial_on_deadline = false;
+  schedule.deadline = SteadyAfter(0.001);
+  EXPECT_EQ(RunEmbeddedTiers(q, Bushy(true), request, 1, schedule).status().code(),
+            absl::StatusCode::kDeadlineExceeded);
+}
+
 TEST(TieredSearchTest, ASaturatingJoinIsRefusedAtAnySize) {
   // 100 relations of 1e300 rows and no predicate: every plan's cost is the
   // ceiling, whichever tier builds it (docs/numeric-range.md).
