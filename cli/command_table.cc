@@ -1,5 +1,6 @@
 #include "cli/command_table.h"
 
+#include <algorithm>
 #include <map>
 #include <memory>
 
@@ -103,6 +104,45 @@ absl::Status CheckOperands(const CommandTable& table, const std::vector<std::str
   return absl::OkStatus();
 }
 
+// Edits (insertions, deletions, substitutions) between a and b.
+size_t EditDistance(const std::string& a, const std::string& b) {
+  std::vector<size_t> row(b.size() + 1);
+  for (size_t j = 0; j <= b.size(); ++j) row[j] = j;
+  for (size_t i = 1; i <= a.size(); ++i) {
+    size_t diagonal = row[0];
+    row[0] = i;
+    for (size_t j = 1; j <= b.size(); ++j) {
+      const size_t up = row[j];
+      row[j] = std::min({row[j] + 1, row[j - 1] + 1, diagonal + (a[i - 1] != b[j - 1])});
+      diagonal = up;
+    }
+  }
+  return row[b.size()];
+}
+
+// "--shap: unknown flag; did you mean --shape?", or for a switch given a
+// value, how to give it.
+absl::Status UnknownFlag(const CommandTable& table, const std::string& given) {
+  const std::string name = given.substr(given.find_first_not_of('-'));
+  const FlagRow* nearest = nullptr;
+  size_t best = 0;
+  for (const FlagRow& row : table.flags) {
+    if (row.name == name && row.value.empty()) {
+      return absl::InvalidArgumentError(
+          absl::StrCat(given, ": a switch takes no value; give --", name, " alone"));
+    }
+    const size_t d = EditDistance(name, row.name);
+    if (nearest == nullptr || d < best) nearest = &row, best = d;
+  }
+  // A suggestion only when it is close: at most 2 edits, and at most a
+  // third of the name.
+  if (nearest != nullptr && best <= 2 && 3 * best <= name.size()) {
+    return absl::InvalidArgumentError(
+        absl::StrCat(given, ": unknown flag; did you mean --", nearest->name, "?"));
+  }
+  return absl::InvalidArgumentError(absl::StrCat(given, ": unknown flag (see --help)"));
+}
+
 }  // namespace
 
 absl::Status ParseCommand(const CommandTable& table, const std::vector<std::string>& args) {
@@ -121,10 +161,7 @@ absl::Status ParseCommand(const CommandTable& table, const std::vector<std::stri
   std::vector<std::string> operands;
   if (!built->operand.empty()) operands.push_back(built->operand);
   for (const std::string& extra : built->app->remaining()) {
-    if (extra.rfind("-", 0) == 0) {
-      return absl::InvalidArgumentError(
-          absl::StrCat(extra.substr(0, extra.find('=')), ": unknown flag"));
-    }
+    if (extra.rfind("-", 0) == 0) return UnknownFlag(table, extra.substr(0, extra.find('=')));
     operands.push_back(extra);
   }
   if (absl::Status s = CheckOperands(table, operands); !s.ok()) return s;

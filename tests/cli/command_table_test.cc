@@ -51,8 +51,11 @@ TEST(CommandTableTest, AnEmptyValueReachesTheSetter) {
 TEST(CommandTableTest, RefusalsNameTheProblem) {
   const std::pair<std::vector<std::string>, std::string> cases[] = {
       {{"f", "--mode=bad"}, "--mode=bad: expected good"},
-      {{"f", "--speed=3"}, "--speed: unknown flag"},
-      {{"f", "-x"}, "-x: unknown flag"},
+      {{"f", "--speed=3"}, "--speed: unknown flag (see --help)"},
+      {{"f", "-x"}, "-x: unknown flag (see --help)"},
+      // A near miss gets a suggestion: one edit from "mode", two from "bound".
+      {{"f", "--mod=a"}, "--mod: unknown flag; did you mean --mode?"},
+      {{"f", "--bond=2"}, "--bond: unknown flag; did you mean --bound?"},
       {{"f", "--mode"}, "--mode: flags take a value, as in --mode=VALUE"},
       {{"f", "g"}, "FILE: a second input file \"g\" was given"},
       {{"--quiet"}, "FILE: no input file given"},
