@@ -7,6 +7,7 @@
 #include "core/cost/cout_model.h"
 #include "core/model/cardinality.h"
 #include "core/model/status_macros.h"
+#include "core/slicing/constraint_choice.h"
 #include "core/slicing/slice_constraints.h"
 
 namespace sliceplan {
@@ -98,15 +99,29 @@ absl::Status CheckCout(const Cardinality& card, const Plan& plan) {
 
 absl::Status CheckSliceResult(const Query& query, const SearchOptions& options,
                               const SliceResult& result) {
+  if (!ValidateSlice(result.slice, query.size(), options.shape).ok()) {
+    return Fault("an answer for no slice of this query");
+  }
+  return CheckSliceResult(
+      query, options, result,
+      ChooseConstraintRelations(query, options.shape, result.slice.bits(), options.cross_products));
+}
+
+absl::Status CheckSliceResult(const Query& query, const SearchOptions& options,
+                              const SliceResult& result,
+                              const std::vector<ConstraintRelations>& chosen) {
   if (!result.plan) {
     if (options.cross_products) {
       return Fault("no plan, though every slice of the space with cross products holds one");
     }
     return absl::OkStatus();
   }
-  ASSIGN_OR_RETURN(
-      const SliceConstraints constraints,
-      SliceConstraints::ForSlice(query, options.shape, result.slice, options.cross_products));
+  if (!ValidateSlice(result.slice, query.size(), options.shape).ok() ||
+      static_cast<int>(chosen.size()) != result.slice.bits()) {
+    return Fault("an answer for no slice of this query and slice count");
+  }
+  const SliceConstraints constraints =
+      SliceConstraints::FromRelations(options.shape, result.slice, chosen);
   const Cardinality card(query);
   const auto check = [&](const Plan& plan) -> absl::Status {
     RETURN_IF_ERROR(CheckTree(query, plan));

@@ -14,6 +14,7 @@
 #include "absl/time/time.h"
 #include "core/model/status_macros.h"
 #include "core/slice_check.h"
+#include "core/slicing/constraint_choice.h"
 #include "core/slicing/search_estimate.h"
 
 namespace sliceplan {
@@ -71,6 +72,8 @@ class Run {
       : query_(query),
         options_(options),
         count_(slice_count),
+        chosen_(ChooseConstraintRelations(query, options.shape, std::countr_zero(slice_count),
+                                          options.cross_products)),
         workers_(workers.begin(), workers.end()),
         schedule_(schedule),
         busy_(workers_.size(), 0),
@@ -218,7 +221,12 @@ class Run {
     // figures the query does not give, is a worker fault (DATA_LOSS): the
     // slice goes to another worker and the client is never blamed.
     if (r.ok()) {
-      if (absl::Status check = CheckSliceResult(query_, options_, *r); !check.ok()) {
+      absl::Status check = r->slice.index == a->slice && r->slice.count == count_
+                               ? CheckSliceResult(query_, options_, *r, chosen_)
+                               : absl::DataLossError(absl::StrCat(
+                                     "an answer for slice ", r->slice.index, " of ", r->slice.count,
+                                     ", not ", a->slice, " of ", count_));
+      if (!check.ok()) {
         r = absl::DataLossError(absl::StrCat(workers_[a->worker]->Name(), ": ", check.message()));
       }
     }
@@ -360,6 +368,8 @@ class Run {
   const Query& query_;
   const SearchOptions options_;
   const uint32_t count_;
+  // The slices' constraint relations, chosen once to check every answer.
+  const std::vector<ConstraintRelations> chosen_;
   const std::vector<SliceWorker*> workers_;
   const ScheduleOptions& schedule_;
   const Clock::time_point start_ = Clock::now();
