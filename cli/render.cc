@@ -167,13 +167,7 @@ std::optional<ListedUse> ListedUsed(const TieredOutcome& outcome, const RunInfo&
     use.used = info.search.cross_products ? listed.size() : CountListedConnected(*info.exact);
     return use;
   }
-  std::vector<RelSet> sets(outcome.plan.nodes.size());
-  for (size_t i = 0; i < sets.size(); ++i) {
-    const WideNode& node = outcome.plan.nodes[i];
-    sets[i] = node.is_leaf() ? Singleton(RelationId{static_cast<uint8_t>(node.relation)})
-                             : sets[node.left] | sets[node.right];
-    use.used += listed.Find(sets[i]) ? 1 : 0;
-  }
+  for (const RelSet set : WideNodeSets(outcome.plan)) use.used += listed.Find(set) ? 1 : 0;
   return use;
 }
 

@@ -56,23 +56,28 @@ namespace {
 double CostWithListed(WidePlan& plan, const WideQuery& query) {
   const Query exact = *ToExactQuery(query);
   const Cardinality card(exact);
-  std::vector<RelSet> sets(plan.nodes.size());
+  const std::vector<RelSet> sets = WideNodeSets(plan);
   for (size_t i = 0; i < plan.nodes.size(); ++i) {
     WideNode& node = plan.nodes[i];
-    if (node.is_leaf()) {
-      sets[i] = Singleton(RelationId{static_cast<uint8_t>(node.relation)});
-      node.cardinality = card.Of(sets[i]);
-      node.cost = 0;
-      continue;
-    }
-    sets[i] = sets[node.left] | sets[node.right];
     node.cardinality = card.Of(sets[i]);
-    node.cost = CoutJoin(node.cardinality, plan.nodes[node.left].cost, plan.nodes[node.right].cost);
+    node.cost = node.is_leaf() ? 0
+                               : CoutJoin(node.cardinality, plan.nodes[node.left].cost,
+                                          plan.nodes[node.right].cost);
   }
   return plan.cost();
 }
 
 }  // namespace
+
+std::vector<RelSet> WideNodeSets(const WidePlan& plan) {
+  std::vector<RelSet> sets(plan.nodes.size());
+  for (size_t i = 0; i < plan.nodes.size(); ++i) {
+    const WideNode& node = plan.nodes[i];
+    sets[i] = node.is_leaf() ? Singleton(RelationId{static_cast<uint8_t>(node.relation)})
+                             : sets[node.left] | sets[node.right];
+  }
+  return sets;
+}
 
 double CostWidePlan(WidePlan& plan, const WideQuery& query) {
   if (query.listed() != nullptr) return CostWithListed(plan, query);

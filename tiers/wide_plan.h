@@ -47,6 +47,10 @@ absl::Status CheckWidePlan(const WidePlan& plan, int n, bool left_deep = false);
 // same numbers. REQUIRES: CheckWidePlan is OK.
 double CostWidePlan(WidePlan& plan, const WideQuery& query);
 
+// Each node's relations as a mask, by node index. REQUIRES: CheckWidePlan
+// is OK and the query has at most 64 relations.
+std::vector<RelSet> WideNodeSets(const WidePlan& plan);
+
 // True when some join of the plan is a cross product (no predicate spans
 // its two inputs). REQUIRES: CheckWidePlan is OK.
 bool HasCrossProduct(const WidePlan& plan, const WideQuery& query);
