@@ -170,9 +170,8 @@ absl::StatusOr<std::string> RunChoose(const std::vector<std::string>& args) {
                    ReadBoundedFile(c.plans_path, InputLimits{}.max_query_bytes, "the plan set"));
   ASSIGN_OR_RETURN(const PlanSet set, ParsePlanSet(text));
   ASSIGN_OR_RETURN(const std::vector<double> values, set.query_template.Values(c.values));
-  ASSIGN_OR_RETURN(const StoredChoice choice,
-                   ChooseStoredPlan(set.query_template, set.prepared, values, c.robust));
   ASSIGN_OR_RETURN(const Query q, set.query_template.At(values));
+  const StoredChoice choice = ChooseStoredPlan(set.prepared, q, c.robust);
   const WideQuery wide = WideQuery::FromExact(q);
   const WidePlan plan = FromExactPlan(choice.plan);
   const std::string tree = WideTreeString(plan, wide);

@@ -147,24 +147,33 @@ absl::StatusOr<PreparedPlans> PrepareTemplate(const QueryTemplate& t,
   return out;
 }
 
-absl::StatusOr<StoredChoice> ChooseStoredPlan(const QueryTemplate& t, const PreparedPlans& prepared,
-                                              std::span<const double> values, bool robust) {
-  ASSIGN_OR_RETURN(const Query q, t.At(values));
-  if (prepared.plans.empty()) return absl::FailedPreconditionError("the plan set holds no plan");
+StoredChoice ChooseStoredPlan(const PreparedPlans& prepared, const Query& at_values, bool robust) {
   StoredChoice best;
-  double best_cost = 0;
+  if (robust) {
+    // The least worst ratio on the grid, whatever the values: costed once.
+    for (size_t p = 1; p < prepared.plans.size(); ++p) {
+      if (prepared.plan_worst[p] < prepared.plan_worst[best.index]) best.index = p;
+    }
+    best.plan = prepared.plans[best.index];
+    CostPlanOn(best.plan, at_values);
+    return best;
+  }
   for (size_t p = 0; p < prepared.plans.size(); ++p) {
     Plan plan = prepared.plans[p];
-    const double cost = CostPlanOn(plan, q);
-    const bool better =
-        robust ? prepared.plan_worst[p] < prepared.plan_worst[best.index] : cost < best_cost;
-    if (p == 0 || better) {
+    const double cost = CostPlanOn(plan, at_values);
+    if (p == 0 || cost < best.plan.root().cost) {
       best.index = p;
       best.plan = std::move(plan);
-      best_cost = cost;
     }
   }
   return best;
+}
+
+absl::StatusOr<StoredChoice> ChooseStoredPlan(const QueryTemplate& t, const PreparedPlans& prepared,
+                                              std::span<const double> values, bool robust) {
+  if (prepared.plans.empty()) return absl::FailedPreconditionError("the plan set holds no plan");
+  ASSIGN_OR_RETURN(const Query q, t.At(values));
+  return ChooseStoredPlan(prepared, q, robust);
 }
 
 }  // namespace sliceplan

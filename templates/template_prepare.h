@@ -63,6 +63,9 @@ struct StoredChoice {
 // values. Errors: the template's for values (At).
 absl::StatusOr<StoredChoice> ChooseStoredPlan(const QueryTemplate& t, const PreparedPlans& prepared,
                                               std::span<const double> values, bool robust);
+// The same on the query already made at the values (QueryTemplate::At).
+// REQUIRES: prepared.plans is not empty.
+StoredChoice ChooseStoredPlan(const PreparedPlans& prepared, const Query& at_values, bool robust);
 
 }  // namespace sliceplan
 

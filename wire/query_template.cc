@@ -152,7 +152,7 @@ absl::StatusOr<QueryTemplate> QueryTemplate::Parse(std::string_view json,
   return t;
 }
 
-absl::StatusOr<Query> QueryTemplate::At(std::span<const double> values) const {
+absl::Status QueryTemplate::CheckRanges(std::span<const double> values) const {
   if (values.size() != parameters_.size()) {
     return absl::InvalidArgumentError(absl::StrCat("template: ", values.size(), " values for ",
                                                    parameters_.size(), " parameters"));
@@ -164,6 +164,11 @@ absl::StatusOr<Query> QueryTemplate::At(std::span<const double> values) const {
           p.name, "=", values[i], ": outside the template's range [", p.min, ", ", p.max, "]"));
     }
   }
+  return absl::OkStatus();
+}
+
+absl::StatusOr<Query> QueryTemplate::At(std::span<const double> values) const {
+  RETURN_IF_ERROR(CheckRanges(values));
   v1::Query m = message_;
   for (const Use& u : uses_) {
     const double v = values[u.parameter];
@@ -197,7 +202,7 @@ absl::StatusOr<std::vector<double>> QueryTemplate::Values(
           absl::StrCat("--set: no value for parameter \"", parameters_[i].name, "\""));
     }
   }
-  RETURN_IF_ERROR(At(out).status());  // the ranges, named
+  RETURN_IF_ERROR(CheckRanges(out));
   return out;
 }
 

@@ -62,6 +62,9 @@ class QueryTemplate {
     int parameter = 0;
   };
 
+  // INVALID_ARGUMENT naming a value outside its range (or a wrong count).
+  absl::Status CheckRanges(std::span<const double> values) const;
+
   v1::Query message_;  // the query with each parameter's minimum in place
   std::vector<Use> uses_;
   std::vector<TemplateParameter> parameters_;
