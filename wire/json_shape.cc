@@ -4,6 +4,7 @@
 #include <vector>
 
 #include "absl/container/flat_hash_set.h"
+#include "absl/strings/ascii.h"
 #include "absl/strings/str_cat.h"
 #include "core/model/user_text.h"
 
@@ -101,9 +102,11 @@ class ShapeScanner {
         // (\n, \t, ...) never make a valid field name either way.
         c = e;
       }
-      if (c == '_') continue;
-      out += static_cast<char>(c >= 'A' && c <= 'Z' ? c | 0x20 : c);
+      out += c;
     }
+    // One field, two spellings: folded once the escapes are decoded.
+    std::erase(out, '_');
+    absl::AsciiStrToLower(&out);
     return out;
   }
 
@@ -111,9 +114,7 @@ class ShapeScanner {
   // spellings of one key still compare equal).
   static void AppendUtf8(uint32_t code, std::string& out) {
     if (code < 0x80) {
-      const char c = static_cast<char>(code);
-      if (c == '_') return;
-      out += static_cast<char>(c >= 'A' && c <= 'Z' ? c | 0x20 : c);
+      out += static_cast<char>(code);
     } else if (code < 0x800) {
       out += static_cast<char>(0xC0 | (code >> 6));
       out += static_cast<char>(0x80 | (code & 0x3F));
