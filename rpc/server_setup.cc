@@ -24,13 +24,19 @@ namespace sliceplan {
 
 namespace {
 
+// A flag of the server's own (defined in `main_file`) or shared by both
+// servers (server_flags.h): the flags its help lists.
+bool IsServerFlagFile(absl::string_view file, absl::string_view main_file) {
+  return absl::StrContains(file, main_file) || absl::StrContains(file, kServerFlagsFile);
+}
+
 // The server's own flags and the shared ones, dashed, sorted, without the
 // test-only ones: what --help prints.
 std::string ServerHelp(const char* usage, const std::string& main_file) {
   std::vector<const absl::CommandLineFlag*> flags;
   for (const auto& [name, flag] : absl::GetAllFlags()) {
     const std::string file = flag->Filename();
-    if (!absl::StrContains(file, main_file) && !absl::StrContains(file, kServerFlagsFile)) continue;
+    if (!IsServerFlagFile(file, main_file)) continue;
     if (absl::StartsWith(name, "test_only")) continue;
     flags.push_back(flag);
   }
@@ -70,9 +76,7 @@ void ParseServerCommandLine(int argc, char** argv, const char* usage, const char
   absl::FlagsUsageConfig config;
   const std::string file = main_file;
   // The server's own flags and those both servers share (server_flags.cc).
-  config.contains_help_flags = [file](absl::string_view f) {
-    return absl::StrContains(f, file) || absl::StrContains(f, kServerFlagsFile);
-  };
+  config.contains_help_flags = [file](absl::string_view f) { return IsServerFlagFile(f, file); };
   config.contains_helpshort_flags = config.contains_help_flags;
   absl::SetFlagsUsageConfig(config);
   std::vector<std::string> storage;  // flag values are copied by the parse
