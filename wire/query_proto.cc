@@ -25,24 +25,34 @@ absl::StatusOr<Relation> RelationFromProto(const v1::Relation& m, int i) {
   return rel;
 }
 
+// The ids of `names` (the list at `field`, e.g. "predicates[2].relations").
+// INVALID_ARGUMENT naming the entry: an unknown relation, one named twice.
+absl::StatusOr<std::vector<int32_t>> ResolveNames(
+    const google::protobuf::RepeatedPtrField<std::string>& names, const std::string& field,
+    const absl::flat_hash_map<std::string_view, int32_t>& ids) {
+  std::vector<int32_t> out;
+  out.reserve(names.size());
+  for (int k = 0; k < names.size(); ++k) {
+    const std::string& name = names[k];
+    const auto it = ids.find(name);
+    if (it == ids.end()) {
+      return absl::InvalidArgumentError(
+          absl::StrCat(field, "[", k, "]: unknown relation \"", ShortName(name), "\""));
+    }
+    if (std::find(out.begin(), out.end(), it->second) != out.end()) {
+      return absl::InvalidArgumentError(
+          absl::StrCat(field, "[", k, "]: relation \"", ShortName(name), "\" is named twice"));
+    }
+    out.push_back(it->second);
+  }
+  return out;
+}
+
 absl::StatusOr<WidePredicate> PredicateFromProto(
     const v1::Predicate& m, int j, const absl::flat_hash_map<std::string_view, int32_t>& ids) {
   WidePredicate p;
-  p.relations.reserve(m.relations_size());
-  for (int k = 0; k < m.relations_size(); ++k) {
-    const std::string& name = m.relations(k);
-    const auto it = ids.find(name);
-    if (it == ids.end()) {
-      return absl::InvalidArgumentError(absl::StrCat(
-          "predicates[", j, "].relations[", k, "]: unknown relation \"", ShortName(name), "\""));
-    }
-    if (std::find(p.relations.begin(), p.relations.end(), it->second) != p.relations.end()) {
-      return absl::InvalidArgumentError(absl::StrCat("predicates[", j, "].relations[", k,
-                                                     "]: relation \"", ShortName(name),
-                                                     "\" is named twice"));
-    }
-    p.relations.push_back(it->second);
-  }
+  ASSIGN_OR_RETURN(p.relations,
+                   ResolveNames(m.relations(), absl::StrCat("predicates[", j, "].relations"), ids));
   if (!m.has_selectivity()) {
     return absl::InvalidArgumentError(absl::StrCat("predicates[", j, "].selectivity: missing"));
   }
@@ -57,22 +67,11 @@ absl::StatusOr<ListedRows> ListedFromProto(
   sets.reserve(message.cardinalities_size());
   for (int i = 0; i < message.cardinalities_size(); ++i) {
     const v1::SetRows& m = message.cardinalities(i);
+    ASSIGN_OR_RETURN(
+        const std::vector<int32_t> members,
+        ResolveNames(m.relations(), absl::StrCat("cardinalities[", i, "].relations"), ids));
     ListedSet set;
-    for (int k = 0; k < m.relations_size(); ++k) {
-      const auto it = ids.find(m.relations(k));
-      if (it == ids.end()) {
-        return absl::InvalidArgumentError(absl::StrCat("cardinalities[", i, "].relations[", k,
-                                                       "]: unknown relation \"",
-                                                       ShortName(m.relations(k)), "\""));
-      }
-      const RelSet bit = Singleton(RelationId{static_cast<uint8_t>(it->second)});
-      if ((set.relations & bit) != 0) {
-        return absl::InvalidArgumentError(absl::StrCat("cardinalities[", i, "].relations[", k,
-                                                       "]: relation \"", ShortName(m.relations(k)),
-                                                       "\" is named twice"));
-      }
-      set.relations |= bit;
-    }
+    for (const int32_t r : members) set.relations |= Singleton(RelationId{static_cast<uint8_t>(r)});
     if (!m.has_rows()) {
       return absl::InvalidArgumentError(absl::StrCat("cardinalities[", i, "].rows: missing"));
     }
