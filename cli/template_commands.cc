@@ -42,6 +42,19 @@ absl::Status BadFlag(const std::string& flag, const std::string& value, const st
   return absl::InvalidArgumentError(absl::StrCat("--", flag, "=", value, ": expected ", want));
 }
 
+// A whole number in [lo, hi], into `out`.
+std::function<absl::Status(const std::string&)> IntIn(const std::string& flag, int lo, int hi,
+                                                      int& out) {
+  return [flag, lo, hi, &out](const std::string& v) {
+    int n = 0;
+    if (!absl::SimpleAtoi(v, &n) || n < lo || n > hi) {
+      return BadFlag(flag, v, absl::StrCat("a number in ", lo, "..", hi));
+    }
+    out = n;
+    return absl::OkStatus();
+  };
+}
+
 std::function<absl::Status(const std::string&)> Format(bool& json) {
   return [&json](const std::string& v) {
     if (v != "text" && v != "json") return BadFlag("format", v, "text or json");
@@ -75,23 +88,9 @@ CommandTable PrepareTable(PrepareConfig& c, int cores) {
               return absl::OkStatus();
             }},
            {"grid", "G", "8", "values per parameter, log-spaced from min to max",
-            [&c](const std::string& v) {
-              int g = 0;
-              if (!absl::SimpleAtoi(v, &g) || g < kMinGrid || g > kMaxGrid) {
-                return BadFlag("grid", v, absl::StrCat("a number in ", kMinGrid, "..", kMaxGrid));
-              }
-              c.options.grid = g;
-              return absl::OkStatus();
-            }},
+            IntIn("grid", kMinGrid, kMaxGrid, c.options.grid)},
            {"workers", "N", "the cores", "grid points optimized at once (in-process workers)",
-            [&c](const std::string& v) {
-              int w = 0;
-              if (!absl::SimpleAtoi(v, &w) || w < 1 || w > 1024) {
-                return BadFlag("workers", v, "a number in 1..1024");
-              }
-              c.options.workers = w;
-              return absl::OkStatus();
-            }},
+            IntIn("workers", 1, 1024, c.options.workers)},
            {"format", "text|json", "text", "output", Format(c.json)},
            {"quiet", "", "", "no progress bar on stderr", [&c](const std::string& v) {
               c.quiet = v == "true";
