@@ -29,8 +29,9 @@ Cardinality::Cardinality(const Query& query)
     below *= p.selectivity;
   }
   wide_range_ = !(above < kValueCeiling && below > kSmallest);
+  if (query.has_joins()) tree_ = std::make_shared<const JoinTree>(query);
   // OfJoin composes the model's product; listed estimates do not compose.
-  pairwise_ = !wide_range_ && !listed_;
+  pairwise_ = !wide_range_ && !listed_ && !tree_;
   for (const Predicate& p : predicates_) pairwise_ = pairwise_ && Size(p.relations) == 2;
   if (!pairwise_) return;
   partners_.assign(rows_.size(), 0);
@@ -71,6 +72,7 @@ double Cardinality::LogSelectivityCompletedBy(RelSet v, RelSet x) const {
 
 double Cardinality::OfListed(RelSet x) const {
   if (const auto rows = listed_->Find(x)) return Saturate(*rows);
+  if (tree_) return tree_->Estimate(x);
   if ((x & (x - 1)) == 0) return rows_[std::countr_zero(x)];
   const RelSet first = ComponentOf(x, LowestBit(x));
   if (first != x) {

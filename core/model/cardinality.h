@@ -15,6 +15,10 @@
 // else the highest), card(X) = card(X \ v) * card(v) * the selectivities v
 // completes; so each listed subset's correction of the model is carried
 // to the sets above it. O(|X| (|X| + predicates)) per unlisted set.
+//
+// With non-inner joins (Query::joins()), card(X) is the original tree
+// restricted to X (JoinTree::Estimate, docs/cost-models.md); a listed set's
+// rows replace it for that set alone.
 #ifndef SLICEPLAN_CORE_MODEL_CARDINALITY_H_
 #define SLICEPLAN_CORE_MODEL_CARDINALITY_H_
 
@@ -22,6 +26,7 @@
 #include <memory>
 #include <vector>
 
+#include "core/model/join_tree.h"
 #include "core/model/query.h"
 
 namespace sliceplan {
@@ -62,7 +67,10 @@ class Cardinality {
 
  private:
   // The model's card(X), listed estimates aside.
-  double Model(RelSet x) const { return wide_range_ ? OfByLogs(x) : OfByProduct(x); }
+  double Model(RelSet x) const {
+    if (tree_) return tree_->Estimate(x);
+    return wide_range_ ? OfByLogs(x) : OfByProduct(x);
+  }
   double OfListed(RelSet x) const;
   // The connected component of `x` holding `seed` (predicates inside x).
   RelSet ComponentOf(RelSet x, RelSet seed) const;
@@ -83,6 +91,7 @@ class Cardinality {
   std::vector<RelSet> partners_;              // relation -> binary-predicate partners
   std::vector<double> pair_selectivity_;      // [u * 64 + v]: their predicates' product
   std::shared_ptr<const ListedRows> listed_;  // null: the model alone
+  std::shared_ptr<const JoinTree> tree_;      // null: inner joins only
 };
 
 }  // namespace sliceplan

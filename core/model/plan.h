@@ -19,6 +19,9 @@ struct PlanNode {
   RelSet relations = 0;
   int left = -1;  // child node index; -1 for a leaf
   int right = -1;
+  // The join's type; for left, semi and anti joins `left` is the
+  // preserved or filtered input.
+  JoinType type = JoinType::kInner;
   double cardinality = 0;
   double cost = 0;  // the cost model's primary metric of the subtree
   // The cluster model's physical choices and metrics (cost = latency_s).

@@ -143,12 +143,25 @@ Query Query::Permuted(std::span<const RelationId> perm) const {
   for (Predicate& p : preds) p.relations = PermuteSet(p.relations, perm);
   Query out(std::move(rels), std::move(preds));
   if (listed_) out.listed_ = std::make_shared<const ListedRows>(listed_->Permuted(perm));
+  out.joins_ = joins_;
+  for (JoinOp& op : out.joins_) {
+    op.left = PermuteSet(op.left, perm);
+    op.right = PermuteSet(op.right, perm);
+    op.predicate = PermuteSet(op.predicate, perm);
+  }
   return out;
 }
 
 Query Query::WithListed(std::shared_ptr<const ListedRows> listed) const {
   Query out = *this;
   out.listed_ = listed && !listed->empty() ? std::move(listed) : nullptr;
+  return out;
+}
+
+absl::StatusOr<Query> Query::WithJoins(std::vector<JoinOp> joins) const {
+  RETURN_IF_ERROR(ValidateJoinOps(relations_, predicates_, joins));
+  Query out = *this;
+  out.joins_ = std::move(joins);
   return out;
 }
 

@@ -15,6 +15,7 @@
 #include <vector>
 
 #include "absl/status/statusor.h"
+#include "core/model/join_ops.h"
 #include "core/model/listed_rows.h"
 #include "core/model/relation_set.h"
 
@@ -65,6 +66,14 @@ class Query {
   // an empty list is none.
   Query WithListed(std::shared_ptr<const ListedRows> listed) const;
 
+  // The non-inner operators of the engine's original tree (`joins`);
+  // empty when every join is inner.
+  std::span<const JoinOp> joins() const { return joins_; }
+  bool has_joins() const { return !joins_.empty(); }
+  // The same query with `joins` as its non-inner operators, checked by
+  // ValidateJoinOps (INVALID_ARGUMENT naming the entry).
+  absl::StatusOr<Query> WithJoins(std::vector<JoinOp> joins) const;
+
  private:
   Query(std::vector<Relation> relations, std::vector<Predicate> predicates)
       : relations_(std::move(relations)), predicates_(std::move(predicates)) {}
@@ -72,6 +81,7 @@ class Query {
   std::vector<Relation> relations_;
   std::vector<Predicate> predicates_;
   std::shared_ptr<const ListedRows> listed_;  // null: none listed
+  std::vector<JoinOp> joins_;
 };
 
 // Maps a set through a permutation: bit i of `s` becomes bit perm[i].

@@ -1,0 +1,203 @@
+#include "core/graph/join_conflicts.h"
+
+namespace sliceplan {
+namespace {
+
+using enum JoinType;
+
+// The transformation tables of docs/joins.md for predicates that reject
+// nulls (every predicate of a query does). assoc(a, b):
+// (e1 a e2) b e3 == e1 a (e2 b e3).
+bool Assoc(JoinType a, JoinType b) {
+  switch (a) {
+    case kInner:
+      return b != kFull;
+    case kSemi:
+    case kAnti:
+      return false;
+    case kLeft:
+      return b == kLeft;
+    case kFull:
+      return b == kLeft || b == kFull;
+  }
+  return false;
+}
+
+// l-asscom(a, b): (e1 a e2) b e3 == (e1 b e3) a e2.
+bool LeftAsscom(JoinType a, JoinType b) {
+  switch (a) {
+    case kInner:
+    case kSemi:
+    case kAnti:
+      return b != kFull;
+    case kLeft:
+      return true;
+    case kFull:
+      return b == kLeft || b == kFull;
+  }
+  return false;
+}
+
+// r-asscom(a, b): e1 a (e2 b e3) == e2 b (e1 a e3).
+bool RightAsscom(JoinType a, JoinType b) {
+  return (a == kInner && b == kInner) || (a == kFull && b == kFull);
+}
+
+}  // namespace
+
+JoinConflicts::JoinConflicts(const Query& query)
+    : tree_(query), predicates_(query.predicates().begin(), query.predicates().end()) {
+  const auto& nodes = tree_.nodes();
+  ops_.resize(query.joins().size());
+  inner_ops_.resize(nodes.size());
+  // Each node's core: what stays with it in every equivalent tree (the
+  // right input of a left, semi or anti join may move above it).
+  visible_.resize(nodes.size());
+  for (size_t i = 0; i < nodes.size(); ++i) {
+    const JoinTreeNode& node = nodes[i];
+    if (node.leaf()) {
+      visible_[i] = node.set;
+    } else if (node.type == kInner) {
+      visible_[i] = visible_[node.left] | visible_[node.right];
+    } else {
+      visible_[i] =
+          node.type == kFull ? visible_[node.left] | visible_[node.right] : visible_[node.left];
+    }
+  }
+  for (size_t i = 0; i < nodes.size(); ++i) {
+    if (!nodes[i].leaf()) AddRules(static_cast<int>(i));
+  }
+  for (size_t j = 0; j < predicates_.size(); ++j) predicate_owner_.push_back(tree_.owner(j));
+  // A cross product is an inner join with no predicate to tell which
+  // operator of the original tree it is: one that holds part of a
+  // non-inner operator's right side (either side of a full join) and
+  // reaches outside what that operator's right input may hold lies above
+  // the operator, so it holds all the operator reads.
+  for (size_t i = 0; i < nodes.size(); ++i) {
+    const JoinTreeNode& a = nodes[i];
+    if (a.leaf() || a.op < 0) continue;
+    const RelSet left = nodes[a.left].set, right = nodes[a.right].set;
+    cross_rules_.push_back({right, Reach(static_cast<int>(i), true), a.reads});
+    if (a.type == kFull) cross_rules_.push_back({left, Reach(static_cast<int>(i), false), a.reads});
+  }
+}
+
+RelSet JoinConflicts::Reach(int a, bool right_side) const {
+  const auto& nodes = tree_.nodes();
+  const JoinTreeNode& node = nodes[a];
+  const RelSet left = nodes[node.left].set, right = nodes[node.right].set;
+  // The side's other input: what an operator moving in may not read.
+  const RelSet other = right_side ? left : right;
+  RelSet reach = right_side ? right : left;
+  // Operators above `a` whose other input may move into this side:
+  //   right: (e1 a e2) c e3 == e1 a (e2 c e3)   (assoc(a, c)),
+  //          e1 c (e2 a e3) == e2 a (e1 c e3)   (r-asscom(c, a));
+  //   left:  (e1 a e2) c e3 == (e1 c e3) a e2   (l-asscom(a, c)),
+  //          e1 c (e2 a e3) == (e1 c e2) a e3   (assoc(c, a)).
+  for (size_t c = static_cast<size_t>(a) + 1; c < nodes.size(); ++c) {
+    const JoinTreeNode& up = nodes[c];
+    if (up.leaf() || up.op < 0 || (up.reads & other) != 0 || (up.reads & reach) == 0) continue;
+    const bool from_left = IsSubset(node.set, nodes[up.left].set);
+    const bool from_right = IsSubset(node.set, nodes[up.right].set);
+    if (from_left && (right_side ? Assoc(node.type, up.type) : LeftAsscom(node.type, up.type))) {
+      reach |= nodes[up.right].set;
+    }
+    if (from_right && (right_side ? RightAsscom(up.type, node.type) : Assoc(up.type, node.type))) {
+      reach |= nodes[up.left].set;
+    }
+  }
+  return reach;
+}
+
+void JoinConflicts::AddRules(int b) {
+  const auto& nodes = tree_.nodes();
+  const JoinTreeNode& node = nodes[b];
+  Operator op;
+  op.type = node.type;
+  op.reads_left = node.reads & nodes[node.left].set;
+  op.reads_right = node.reads & nodes[node.right].set;
+  op.rules_begin = rules_.size();
+  // T1 -> T2 restricted to what the lower operator's predicate reads, as
+  // CD-C does (the whole side when it reads nothing there).
+  const auto add = [&](RelSet trigger, RelSet side, RelSet reads) {
+    rules_.push_back({trigger, 0, (side & reads) != 0 ? side & reads : side});
+  };
+  // A cross product of the original tree reads, for its rules, the cores
+  // of its inputs.
+  const auto reads = [&](const JoinTreeNode& a) {
+    if (a.op >= 0 || a.reads != 0) return a.reads;
+    return visible_[a.left] | visible_[a.right];
+  };
+  const auto below = [&](int root, auto&& fn) {
+    for (int a = 0; a <= root; ++a) {
+      if (!nodes[a].leaf() && IsSubset(nodes[a].set, nodes[root].set)) fn(nodes[a]);
+    }
+  };
+  below(node.left, [&](const JoinTreeNode& a) {
+    const RelSet l = nodes[a.left].set, r = nodes[a.right].set;
+    if (!Assoc(a.type, node.type)) add(r, l, reads(a));
+    if (!LeftAsscom(a.type, node.type)) add(l, r, reads(a));
+  });
+  below(node.right, [&](const JoinTreeNode& a) {
+    const RelSet l = nodes[a.left].set, r = nodes[a.right].set;
+    if (!Assoc(node.type, a.type)) add(l, r, reads(a));
+    if (!RightAsscom(node.type, a.type)) add(r, l, reads(a));
+  });
+  op.rules_end = rules_.size();
+  if (node.op >= 0) {
+    ops_[node.op] = op;
+  } else {
+    inner_ops_[b] = op;
+  }
+}
+
+bool JoinConflicts::RulesHold(const Operator& op, RelSet s) const {
+  for (size_t i = op.rules_begin; i < op.rules_end; ++i) {
+    if (rules_[i].Broken(s)) return false;
+  }
+  return true;
+}
+
+JoinFit JoinConflicts::Fit(RelSet s1, RelSet s2, bool cross_products) const {
+  const RelSet s = s1 | s2;
+  const auto crosses = [&](RelSet reads) {
+    return IsSubset(reads, s) && (reads & s1) != 0 && (reads & s2) != 0;
+  };
+  JoinFit fit;
+  for (size_t k = 0; k < ops_.size(); ++k) {
+    const Operator& op = ops_[k];
+    if (!crosses(op.reads_left | op.reads_right)) continue;
+    if (fit.op >= 0) return {};  // two operators at one join
+    fit.op = static_cast<int>(k);
+    fit.type = op.type;
+  }
+  bool inner_predicate = false;
+  for (size_t j = 0; j < predicates_.size(); ++j) {
+    if (!crosses(predicates_[j].relations)) continue;
+    if (fit.op >= 0) return {};  // an inner predicate at a non-inner join
+    if (!RulesHold(inner_ops_[predicate_owner_[j]], s)) return {};
+    inner_predicate = true;
+  }
+  if (fit.op >= 0) {
+    const Operator& op = ops_[fit.op];
+    if (!RulesHold(op, s)) return {};
+    const bool as_is = IsSubset(op.reads_left, s1) && IsSubset(op.reads_right, s2);
+    const bool swapped = IsSubset(op.reads_left, s2) && IsSubset(op.reads_right, s1);
+    // A full join commutes: either input may be written first.
+    const bool either = IsCommutative(op.type) && (as_is || swapped);
+    fit.forward = as_is || either;
+    fit.backward = swapped || either;
+    if (!IsCommutative(op.type)) fit.backward = swapped;
+    return fit;
+  }
+  if (!inner_predicate) {
+    if (!cross_products) return {};
+    for (const Rule& rule : cross_rules_) {
+      if (rule.Broken(s)) return {};
+    }
+  }
+  fit.forward = fit.backward = true;
+  return fit;
+}
+
+}  // namespace sliceplan

@@ -1,0 +1,88 @@
+// Which operator may join two relation sets when the query has non-inner
+// joins: the conflict detector CD-C of Moerkotte, Fender and Eich ("On the
+// correct and complete enumeration of the core search space", SIGMOD 2013),
+// built once from the original tree (core/model/join_tree.h) and read by
+// every search (docs/joins.md).
+//
+// Each operator o of the original tree gets a syntactic eligibility set
+// (the relations its predicate reads, split by the side they came from)
+// and conflict rules T1 -> T2 ("a join holding any of T1 holds all of
+// T2"), one per pair (o, a below o) that the transformation tables forbid
+// (commutativity, associativity, left- and right-asscom; docs/joins.md).
+// A split (S1, S2) of S is joined by:
+//   - the non-inner operator whose predicate lies in S and reads both
+//     sides (at most one may), when its sides' reads lie in S1 and S2 (or
+//     swapped, for a full join) and its rules hold on S;
+//   - else an inner join: joined by inner predicates whose operators'
+//     rules all hold on S, or (cross products allowed) by none, under the
+//     rules of every non-inner operator from above it.
+// Immutable; thread-safe.
+#ifndef SLICEPLAN_CORE_GRAPH_JOIN_CONFLICTS_H_
+#define SLICEPLAN_CORE_GRAPH_JOIN_CONFLICTS_H_
+
+#include <vector>
+
+#include "core/model/join_tree.h"
+#include "core/model/query.h"
+
+namespace sliceplan {
+
+// The join of a split: its type, and which orders the operator allows.
+struct JoinFit {
+  JoinType type = JoinType::kInner;
+  int op = -1;            // index in Query::joins(); -1 for inner
+  bool forward = false;   // S1 as the left input
+  bool backward = false;  // S2 as the left input
+  bool ok() const { return forward || backward; }
+};
+
+class JoinConflicts {
+ public:
+  // `query` in the search's numbering; REQUIRES: its joins passed
+  // ValidateJoinOps.
+  explicit JoinConflicts(const Query& query);
+
+  // The join of disjoint non-empty S1 and S2; !ok() when none may join
+  // them (or, without cross products, when nothing connects them).
+  JoinFit Fit(RelSet s1, RelSet s2, bool cross_products) const;
+
+  const JoinTree& tree() const { return tree_; }
+
+ private:
+  // "A join over S holding any of `trigger` (and something outside
+  // `exempt`) holds all of `need`".
+  struct Rule {
+    RelSet trigger = 0;
+    RelSet exempt = 0;
+    RelSet need = 0;
+    bool Broken(RelSet s) const {
+      return (s & trigger) != 0 && (s & ~exempt) != 0 && !IsSubset(need, s);
+    }
+  };
+  struct Operator {
+    JoinType type = JoinType::kInner;
+    RelSet reads_left = 0;   // the eligibility set's part from the left input
+    RelSet reads_right = 0;  // ... from the right input
+    size_t rules_begin = 0;  // its rules: rules_[rules_begin, rules_end)
+    size_t rules_end = 0;
+  };
+
+  void AddRules(int node);
+  // What the right (else left) input of non-inner tree node `a` may hold
+  // in some equivalent tree.
+  RelSet Reach(int a, bool right_side) const;
+  bool RulesHold(const Operator& op, RelSet s) const;
+
+  JoinTree tree_;
+  std::vector<Rule> rules_;
+  std::vector<Operator> ops_;        // by Query::joins() index
+  std::vector<Operator> inner_ops_;  // by tree node id (inner nodes only used)
+  std::vector<Predicate> predicates_;
+  std::vector<int> predicate_owner_;  // inner predicate -> tree node id
+  std::vector<Rule> cross_rules_;     // a cross product's rules
+  std::vector<RelSet> visible_;       // tree node -> its core (what never leaves it)
+};
+
+}  // namespace sliceplan
+
+#endif  // SLICEPLAN_CORE_GRAPH_JOIN_CONFLICTS_H_

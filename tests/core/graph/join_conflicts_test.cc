@@ -1,0 +1,100 @@
+// The detector against the transformation closure: on random original
+// trees of up to 6 relations with inner, left, full, semi and anti joins,
+// the trees whose every join the detector admits are exactly the trees
+// reachable from the original (with and without cross products), and
+// every reachable tree returns the original's rows on generated tables.
+#include "core/graph/join_conflicts.h"
+
+#include <map>
+#include <random>
+
+#include "gtest/gtest.h"
+#include "tests/support/join_oracle.h"
+
+namespace sliceplan {
+namespace {
+
+using testing::JoinCase;
+using testing::OpTreePtr;
+
+// Every tree over `s` whose joins the detector admits, as Text.
+const std::vector<std::string>& Admitted(const JoinConflicts& conflicts, RelSet s, bool cross,
+                                         std::map<RelSet, std::vector<std::string>>& memo) {
+  if (auto it = memo.find(s); it != memo.end()) return it->second;
+  std::vector<std::string> out;
+  if (Size(s) == 1) {
+    out.push_back(absl::StrCat("r", std::countr_zero(s)));
+  } else {
+    for (RelSet s1 = (s - 1) & s; s1 != 0; s1 = (s1 - 1) & s) {
+      const JoinFit fit = conflicts.Fit(s1, s ^ s1, cross);
+      if (!fit.forward) continue;
+      const auto& lefts = Admitted(conflicts, s1, cross, memo);
+      const auto& rights = Admitted(conflicts, s ^ s1, cross, memo);
+      for (const std::string& l : lefts) {
+        for (const std::string& r : rights) {
+          if (fit.op < 0) {
+            out.push_back(absl::StrCat("(", l, " ", r, ")"));
+          } else {
+            out.push_back(
+                absl::StrCat("(", l, " ", JoinTypeKeyword(fit.type), "#", fit.op, " ", r, ")"));
+          }
+        }
+      }
+    }
+  }
+  return memo.emplace(s, std::move(out)).first->second;
+}
+
+std::set<std::string> AdmittedSet(const Query& query, bool cross) {
+  const JoinConflicts conflicts(query);
+  std::map<RelSet, std::vector<std::string>> memo;
+  const auto& all = Admitted(conflicts, query.all(), cross, memo);
+  return {all.begin(), all.end()};
+}
+
+// 6,000 rounds pass too (36 s); the suite keeps a few hundred.
+constexpr int kRounds = 600;
+
+TEST(JoinConflictsTest, AdmitsExactlyTheReachableTrees) {
+  std::mt19937_64 rng(7);
+  int with_joins = 0;
+  for (int round = 0; round < kRounds; ++round) {
+    const int n = 3 + round % 5;
+    const JoinCase c = testing::RandomJoinQuery(n, rng);
+    if (c.query.has_joins()) ++with_joins;
+    for (bool cross : {false, true}) {
+      const std::set<std::string> reachable = testing::Closure(c.query, c.original, cross);
+      const std::set<std::string> admitted = AdmittedSet(c.query, cross);
+      std::vector<std::string> missing, extra;
+      std::set_difference(reachable.begin(), reachable.end(), admitted.begin(), admitted.end(),
+                          std::back_inserter(missing));
+      std::set_difference(admitted.begin(), admitted.end(), reachable.begin(), reachable.end(),
+                          std::back_inserter(extra));
+      if (missing.empty() && extra.empty()) continue;
+      ADD_FAILURE() << "original " << testing::Text(*c.original) << " cross " << cross << ": "
+                    << reachable.size() << " reachable, " << admitted.size() << " admitted; "
+                    << missing.size() << " missing (e.g. " << (missing.empty() ? "" : missing[0])
+                    << "), " << extra.size() << " extra (e.g. " << (extra.empty() ? "" : extra[0])
+                    << ")";
+      return;
+    }
+  }
+  EXPECT_GT(with_joins, kRounds * 3 / 4);
+}
+
+TEST(JoinConflictsTest, EveryReachableTreeReturnsTheOriginalsRows) {
+  std::mt19937_64 rng(11);
+  for (int round = 0; round < 150; ++round) {
+    const JoinCase c = testing::RandomJoinQuery(3 + round % 3, rng);
+    for (const OpTreePtr& t : testing::ClosureTrees(c.query, c.original, true)) {
+      for (uint64_t seed = 0; seed < 4; ++seed) {
+        ASSERT_EQ(testing::Evaluate(c.query, *t, seed),
+                  testing::Evaluate(c.query, *c.original, seed))
+            << testing::Text(*t) << " vs " << testing::Text(*c.original) << " seed " << seed;
+      }
+    }
+  }
+}
+
+}  // namespace
+}  // namespace sliceplan
