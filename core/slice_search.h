@@ -17,6 +17,7 @@
 #include "core/cost/cluster_policy.h"
 #include "core/cost/count_policy.h"
 #include "core/cost/cout_policy.h"
+#include "core/graph/join_conflicts.h"
 #include "core/graph/join_graph.h"
 #include "core/memo/connected_memo.h"
 #include "core/memo/memo_allocator.h"
@@ -66,13 +67,15 @@ class SliceSearch {
   SliceSearch(const Query& query, const SearchOptions& options, SliceConstraints constraints)
       : options_(options),
         constraints_(std::move(constraints)),
+        dense_(options_.cross_products && !query.has_joins()),
         layout_(MakeLayout(query)),
         working_(layout_ ? query.Permuted(layout_->perm()) : query),
-        connected_constraints_(layout_ && !options_.cross_products
-                                   ? constraints_.Renumbered(layout_->perm())
-                                   : constraints_),
+        connected_constraints_(layout_ && !dense_ ? constraints_.Renumbered(layout_->perm())
+                                                  : constraints_),
         card_(working_),
-        policy_(MakePolicy<Policy>(working_, card_, options_)) {}
+        policy_(MakePolicy<Policy>(working_, card_, options_)) {
+    if (working_.has_joins()) conflicts_.emplace(working_);
+  }
 
   absl::Status Run(const SearchControl& outer) {
     const auto start = std::chrono::steady_clock::now();
@@ -83,7 +86,9 @@ class SliceSearch {
     }
     constexpr bool kTicksInside = requires(Policy & p) { p.set_control(&control); };
     if constexpr (kTicksInside) policy_.set_control(&control);
-    absl::Status status = options_.cross_products ? RunDense(control) : RunConnected(control);
+    absl::Status status = dense_       ? RunDense(control)
+                          : conflicts_ ? RunWithJoins(control)
+                                       : RunConnected(control);
     if constexpr (kTicksInside) policy_.set_control(nullptr);
     stats_.seconds =
         std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
@@ -100,7 +105,7 @@ class SliceSearch {
   // The slot of the whole query, if the slice holds a plan for it.
   std::optional<Slot> RootSlot() const {
     const RelSet all = working_.all();
-    if (options_.cross_products) {
+    if (dense_) {
       const Slot slot = layout_->SlotOf(all);
       if (!policy_.HasPlan(slot)) return std::nullopt;
       return slot;
@@ -130,8 +135,16 @@ class SliceSearch {
       return absl::InternalError(absl::StrCat("memo entry of ", Size(broken),
                                               " relations has no best split below the root"));
     }
+    if (conflicts_) LabelJoins(plan);
     if (layout_) RenumberPlan(plan, layout_->inverse_perm());
     return plan;
+  }
+
+  // The type of the join of `left` and `right` (the search's numbering):
+  // inner unless the query has non-inner joins.
+  JoinType JoinTypeOf(RelSet left, RelSet right) const {
+    return conflicts_ ? conflicts_->Fit(left, right, options_.cross_products).type
+                      : JoinType::kInner;
   }
 
   const Policy& policy() const { return policy_; }
@@ -145,12 +158,8 @@ class SliceSearch {
     return layout_->inverse_perm();
   }
 
-  Slot SlotOf(RelSet set) const {
-    return options_.cross_products ? layout_->SlotOf(set) : *memo_->Find(set);
-  }
-  RelSet SetOf(Slot slot) const {
-    return options_.cross_products ? layout_->SetOf(slot) : memo_->SetOf(slot);
-  }
+  Slot SlotOf(RelSet set) const { return dense_ ? layout_->SlotOf(set) : *memo_->Find(set); }
+  RelSet SetOf(Slot slot) const { return dense_ ? layout_->SetOf(slot) : memo_->SetOf(slot); }
   // How the connected-only search ran (unset with cross products).
   std::optional<ConnectedMethod> connected_method() const { return method_; }
   // Tests: run the connected-only search with `method` where the limits
@@ -168,7 +177,7 @@ class SliceSearch {
   // sets no plan of the slice holds fill whole blocks of a direct memo that
   // the search never touches (docs/slicing.md, "Connected-only slices").
   std::optional<DenseLayout> MakeLayout(const Query& query) const {
-    if (!options_.cross_products && constraints_.constraints().empty()) return std::nullopt;
+    if (!dense_ && constraints_.constraints().empty()) return std::nullopt;
     return DenseLayout(query.size(), constraints_);
   }
 
@@ -193,7 +202,7 @@ class SliceSearch {
   static constexpr uint64_t kThreadedFromSets = uint64_t{1} << 14;
   bool Threaded(uint64_t sets) const {
     return options_.threads > 1 && sets >= kThreadedFromSets &&
-           (!options_.cross_products || layout_->free_bits() > 0);
+           (!dense_ || layout_->free_bits() > 0);
   }
 
   absl::Status RunConnected(SearchControl& control) {
@@ -289,8 +298,64 @@ class SliceSearch {
                                 memo, control, stats_);
   }
 
+  // A query with non-inner joins: DPhyp over the join graph (with cross
+  // products, over the complete graph), each pair joined as the conflict
+  // detector says (docs/joins.md); one thread.
+  absl::Status RunWithJoins(SearchControl& control) {
+    const int n = working_.size();
+    std::vector<Predicate> edges(working_.predicates().begin(), working_.predicates().end());
+    for (const JoinOp& op : working_.joins()) edges.push_back({op.predicate, 1.0});
+    if (options_.cross_products) {
+      for (int u = 0; u < n; ++u) {
+        for (int v = u + 1; v < n; ++v) edges.push_back({(RelSet{1} << u) | (RelSet{1} << v), 1.0});
+      }
+    }
+    std::vector<Relation> rels(working_.relations().begin(), working_.relations().end());
+    auto walk_query = Query::Create(std::move(rels), std::move(edges));
+    if (!walk_query.ok()) return walk_query.status();
+    const JoinGraph graph(*walk_query);
+    method_ =
+        TakesDirectMemo(n, std::ldexp(1.0, n), kPolicyBytesPerSet, options_.memo_limit_bytes, 1)
+            ? ConnectedMethod::kPushDirect
+            : ConnectedMethod::kPushHashed;
+    if (*method_ == ConnectedMethod::kPushHashed) {
+      memo_.emplace(HashMemo(options_.memo_limit_bytes / kHashBytesPerSet));
+    } else {
+      memo_.emplace(DirectMemo(n));
+    }
+    if constexpr (ScatteredLayout<Policy>) policy_.UseScatteredLayout();
+    std::optional<SmallPagesScope> small_pages;
+    if (layout_) small_pages.emplace();
+    absl::Status status;
+    const JoinFilter filter{&*conflicts_, options_.cross_products,
+                            options_.shape == PlanShape::kLeftDeep};
+    memo_->Visit([&]<class Memo>(Memo& memo) {
+      if constexpr (!Memo::kGrows) policy_.Resize(memo.slot_count());
+      status = ConnectedPush<Policy, Memo>(n, graph, card_, connected_constraints_, policy_, memo,
+                                           control, stats_, &filter)
+                   .Run();
+    });
+    stats_.memo_entries = memo_->size();
+    stats_.memo_bytes = memo_->direct() ? DirectBytes() : memo_->size() * kHashBytesPerSet;
+    return status;
+  }
+
+  // Gives every join of `plan` (the search's numbering) its type, with
+  // the preserved input on the left.
+  void LabelJoins(Plan& plan) const {
+    for (PlanNode& node : plan.nodes) {
+      if (node.is_leaf()) continue;
+      const RelSet l = plan.nodes[node.left].relations, r = plan.nodes[node.right].relations;
+      const JoinFit fit = conflicts_->Fit(l, r, options_.cross_products);
+      node.type = fit.type;
+      if (!fit.forward && fit.backward) std::swap(node.left, node.right);
+    }
+  }
+
   SearchOptions options_;
   SliceConstraints constraints_;
+  // The dense memo with cross products (not for non-inner joins).
+  bool dense_;
   // Set for the dense search, and for a sliced connected-only one (its
   // numbering only).
   std::optional<DenseLayout> layout_;
@@ -299,7 +364,8 @@ class SliceSearch {
   SliceConstraints connected_constraints_;
   Cardinality card_;
   Policy policy_;
-  std::optional<ConnectedMemo> memo_;  // set by a connected-only run
+  std::optional<JoinConflicts> conflicts_;  // set when the query has non-inner joins
+  std::optional<ConnectedMemo> memo_;       // set by a connected-only run
   std::optional<ConnectedMethod> method_;
   std::optional<ConnectedMethod> wanted_;
   SearchStats stats_;

@@ -133,6 +133,7 @@ class ClusterPlanBuilder {
                                    : policy.Plans(e.right_slot)[e.right_index];
       node.left = Add(plan, left, le);
       node.right = Add(plan, right, re);
+      node.type = search_.JoinTypeOf(left, right);
       node.strategy = e.strategy;
       node.nodes = params.node_counts[e.nodes_index];
     }

@@ -89,7 +89,7 @@ std::string ReadsHidden(std::span<const Relation> relations, const JoinOp& o, si
 
 }  // namespace
 
-absl::string_view JoinTypeName(JoinType type) {
+const char* JoinTypeName(JoinType type) {
   switch (type) {
     case JoinType::kInner:
       return "inner";
@@ -105,7 +105,7 @@ absl::string_view JoinTypeName(JoinType type) {
   return "inner";
 }
 
-absl::string_view JoinTypeKeyword(JoinType type) {
+const char* JoinTypeKeyword(JoinType type) {
   switch (type) {
     case JoinType::kInner:
       return "";

@@ -22,12 +22,12 @@ enum class JoinType : uint8_t { kInner, kLeft, kFull, kSemi, kAnti };
 
 // "inner", "left", "full", "semi", "anti": the query's and the result's
 // spelling.
-absl::string_view JoinTypeName(JoinType type);
+const char* JoinTypeName(JoinType type);
 // The type of a spelling; nullopt for any other text.
 std::optional<JoinType> ParseJoinType(absl::string_view name);
 // "LEFT", "FULL", "SEMI", "ANTI" as the tree string writes them; "" for
 // inner.
-absl::string_view JoinTypeKeyword(JoinType type);
+const char* JoinTypeKeyword(JoinType type);
 // Inner and full outer joins may swap their inputs.
 constexpr bool IsCommutative(JoinType type) {
   return type == JoinType::kInner || type == JoinType::kFull;

@@ -26,6 +26,10 @@ void AppendTree(const Plan& plan, int i, const Query& query, std::string& out) {
   out += '(';
   AppendTree(plan, node.left, query, out);
   out += ' ';
+  if (node.type != JoinType::kInner) {
+    out += JoinTypeKeyword(node.type);
+    out += ' ';
+  }
   AppendTree(plan, node.right, query, out);
   out += ')';
 }

@@ -19,9 +19,6 @@ struct PlanNode {
   RelSet relations = 0;
   int left = -1;  // child node index; -1 for a leaf
   int right = -1;
-  // The join's type; for left, semi and anti joins `left` is the
-  // preserved or filtered input.
-  JoinType type = JoinType::kInner;
   double cardinality = 0;
   double cost = 0;  // the cost model's primary metric of the subtree
   // The cluster model's physical choices and metrics (cost = latency_s).
@@ -29,6 +26,9 @@ struct PlanNode {
   int nodes = 0;                                   // joins: rented nodes
   double sample_rate = 1;                          // leaves
   ClusterCosts metrics;
+  // The join's type; for left, semi and anti joins `left` is the
+  // preserved or filtered input.
+  JoinType type = JoinType::kInner;
   bool is_leaf() const { return left < 0; }
 };
 
@@ -46,7 +46,8 @@ Plan BuildPlan(RelSet root, absl::FunctionRef<RelSet(RelSet)> left_of, const Car
 void RenumberPlan(Plan& plan, std::span<const RelationId> perm);
 
 // "((shipments vessels) ports)": relation names, one space between
-// siblings, as docs/interfaces.md fixes it.
+// siblings, as docs/interfaces.md fixes it; a non-inner join writes its
+// keyword between them, "(vessels SEMI reefer_readings)".
 std::string TreeString(const Plan& plan, const Query& query);
 
 // True when the tree is left-deep: every right operand is a base relation.

@@ -16,6 +16,7 @@
 
 #include "absl/status/status.h"
 #include "core/graph/ccp_walk.h"
+#include "core/graph/join_conflicts.h"
 #include "core/graph/join_graph.h"
 #include "core/memo/connected_memo.h"
 #include "core/model/cardinality.h"
@@ -26,6 +27,14 @@
 
 namespace sliceplan {
 
+// Non-inner joins: each pair is joined as the detector says, in the orders
+// it allows (left-deep: with a single relation on the right).
+struct JoinFilter {
+  const JoinConflicts* conflicts;
+  bool cross_products;
+  bool left_deep;
+};
+
 // One run of DPhyp into `policy` and `memo` (both empty; a direct memo's
 // policy already sized). Single use.
 template <SearchPolicy Policy, class Memo>
@@ -33,7 +42,7 @@ class ConnectedPush {
  public:
   ConnectedPush(int n, const JoinGraph& graph, const Cardinality& card,
                 const SliceConstraints& constraints, Policy& policy, Memo& memo,
-                SearchControl& control, SearchStats& stats)
+                SearchControl& control, SearchStats& stats, const JoinFilter* joins = nullptr)
       : n_(n),
         walk_(n, graph),
         card_(card),
@@ -43,14 +52,17 @@ class ConnectedPush {
         control_(control),
         stats_(stats),
         sliced_(!constraints.constraints().empty()),
-        hyper_(graph.has_hyperedges()) {}
+        hyper_(graph.has_hyperedges()),
+        joins_(joins) {}
 
   // OK, or CANCELLED / DEADLINE_EXCEEDED from the control, or
   // RESOURCE_EXHAUSTED when the memo reached its slot limit.
   absl::Status Run() {
     for (int v = 0; v < n_; ++v) {
       const RelSet leaf = RelSet{1} << v;
-      if (!constraints_.Admissible(leaf)) continue;
+      // A left-deep plan's right operands are leaves whatever the slice
+      // (EmitJoin tests a leaf on the left).
+      if (!constraints_.Admissible(leaf) && !(joins_ && joins_->left_deep)) continue;
       const Slot s = Add(leaf);
       if (s != kNoSlot) policy_.InitLeaf(s, Lowest(leaf));
     }
@@ -74,7 +86,11 @@ class ConnectedPush {
 
     bool Stopped() const { return search.Stopped(); }
     void Pair(RelSet s2) {
-      if (const auto slot2 = search.memo_.Find(s2); slot2 && search.Joinable(s1, s2)) {
+      const auto slot2 = search.memo_.Find(s2);
+      if (!slot2) return;
+      if (search.joins_) {
+        search.EmitJoin(s1, slot1, s2, *slot2);
+      } else if (search.Joinable(s1, s2)) {
         search.EmitPair(s1, slot1, s2, *slot2);
       }
     }
@@ -152,6 +168,34 @@ class ConnectedPush {
     if (++pending_ == kFlushPairs) Flush();
   }
 
+  // A pair of a query with non-inner joins: relaxed in each order the
+  // detector allows (a symmetric policy: once, the allowed order first).
+  void EmitJoin(RelSet s1, Slot slot1, RelSet s2, Slot slot2) {
+    const JoinFit fit = joins_->conflicts->Fit(s1, s2, joins_->cross_products);
+    bool forward = fit.forward, backward = fit.backward;
+    if (joins_->left_deep) {
+      const auto opens = [&](RelSet s) { return Size(s) > 1 || constraints_.Admissible(s); };
+      forward = forward && Size(s2) == 1 && opens(s1);
+      backward = backward && Size(s1) == 1 && opens(s2);
+    }
+    if (!forward && !backward) return;
+    const RelSet whole = s1 | s2;
+    if (sliced_ && !constraints_.Admissible(whole)) return;
+    const Slot s = Add(whole, s1, slot1, s2, slot2);
+    if (s == kNoSlot) return;
+    if constexpr (Policy::kSymmetric) {
+      if (forward) {
+        policy_.Relax(s, slot1, slot2);
+      } else {
+        policy_.Relax(s, slot2, slot1);
+      }
+    } else {
+      if (forward) policy_.Relax(s, slot1, slot2);
+      if (backward) policy_.Relax(s, slot2, slot1);
+    }
+    if (++pending_ == kFlushPairs) Flush();
+  }
+
   void Flush() {
     const uint64_t work = Policy::kSymmetric ? pending_ : 2 * pending_;
     pending_ = 0;
@@ -169,6 +213,7 @@ class ConnectedPush {
   SearchStats& stats_;
   const bool sliced_;
   const bool hyper_;
+  const JoinFilter* joins_;
   uint64_t pending_ = 0;
   absl::Status status_;
 };
