@@ -16,9 +16,14 @@ const char* ShapeName(PlanShape shape) {
   return shape == PlanShape::kBushy ? "bushy" : "left-deep";
 }
 
+// "join" for an inner join, "left join", "semi join", ... for the others.
+std::string JoinLabel(JoinType type) {
+  return type == JoinType::kInner ? "join" : absl::StrCat(JoinTypeName(type), " join");
+}
+
 std::string NodeLabel(const PlanNode& node, const Query& query) {
   if (node.is_leaf()) return query.relation(Lowest(node.relations)).name;
-  return "join";
+  return JoinLabel(node.type);
 }
 
 // The cluster model's physical choice at a node.
@@ -28,7 +33,8 @@ std::string PhysicalLabel(const PlanNode& node, const Query& query) {
                ? absl::StrFormat("%s (sample %g)", NodeLabel(node, query), node.sample_rate)
                : NodeLabel(node, query);
   }
-  return absl::StrFormat("%s join, %d nodes", StrategyName(node.strategy), node.nodes);
+  return absl::StrFormat("%s %s, %d nodes", StrategyName(node.strategy), JoinLabel(node.type),
+                         node.nodes);
 }
 
 // A join strategy in a few letters, for one-line plans.
@@ -53,7 +59,9 @@ void AppendPhysical(const Plan& plan, int i, const Query& query, std::string& ou
   }
   out += "(";
   AppendPhysical(plan, node.left, query, out);
-  absl::StrAppendFormat(&out, " [%s %d] ", StrategyShort(node.strategy), node.nodes);
+  absl::StrAppendFormat(
+      &out, " [%s %d]%s ", StrategyShort(node.strategy), node.nodes,
+      node.type == JoinType::kInner ? "" : absl::StrCat(" ", JoinTypeKeyword(node.type)));
   AppendPhysical(plan, node.right, query, out);
   out += ")";
 }
@@ -111,9 +119,10 @@ void AppendWideTree(const WidePlan& plan, const WideQuery& query, std::string& o
     const auto [i, depth] = stack.back();
     stack.pop_back();
     const WideNode& node = plan.nodes[i];
-    lines.push_back({std::string(2 * depth, ' ') +
-                         (node.is_leaf() ? query.relation(node.relation).name : "join"),
-                     &node});
+    lines.push_back(
+        {std::string(2 * depth, ' ') +
+             (node.is_leaf() ? query.relation(node.relation).name : JoinLabel(node.type)),
+         &node});
     if (node.is_leaf()) continue;
     stack.push_back({node.right, depth + 1});
     stack.push_back({node.left, depth + 1});
@@ -294,8 +303,9 @@ std::string PlanNodesJson(const WidePlan& plan, const WideQuery& query) {
       absl::StrAppend(&out, "{\"relation\": ", JsonString(query.relation(n.relation).name),
                       ", \"cardinality\": ", JsonNumber(n.cardinality), "}");
     } else {
-      absl::StrAppend(&out, "{\"type\": \"inner\", \"left\": ", n.left, ", \"right\": ", n.right,
-                      ", \"cardinality\": ", JsonNumber(n.cardinality), "}");
+      absl::StrAppend(&out, "{\"type\": \"", JoinTypeName(n.type), "\", \"left\": ", n.left,
+                      ", \"right\": ", n.right, ", \"cardinality\": ", JsonNumber(n.cardinality),
+                      "}");
     }
   }
   return out + "]";
@@ -377,9 +387,10 @@ std::string RenderDot(const TieredOutcome& outcome, const RunInfo& info) {
   const WidePlan& plan = outcome.plan;
   for (size_t i = 0; i < plan.nodes.size(); ++i) {
     const WideNode& node = plan.nodes[i];
-    absl::StrAppendFormat(&out, "  n%d [label=\"%s\\ncard %.4g\\ncost %.4g\"%s];\n", i,
-                          node.is_leaf() ? info.query->relation(node.relation).name : "join",
-                          node.cardinality, node.cost, node.is_leaf() ? ", shape=ellipse" : "");
+    absl::StrAppendFormat(
+        &out, "  n%d [label=\"%s\\ncard %.4g\\ncost %.4g\"%s];\n", i,
+        node.is_leaf() ? info.query->relation(node.relation).name : JoinLabel(node.type),
+        node.cardinality, node.cost, node.is_leaf() ? ", shape=ellipse" : "");
     if (!node.is_leaf()) {
       absl::StrAppendFormat(&out, "  n%d -> n%d [label=\"L\"];\n  n%d -> n%d [label=\"R\"];\n", i,
                             node.left, i, node.right);

@@ -66,7 +66,8 @@ absl::StatusOr<OptimizeResult> Merge(std::vector<SliceResult> slices, uint32_t s
   if (best == nullptr) {
     return absl::NotFoundError(
         "no plan joins all relations without a cross product; allow cross "
-        "products or add the missing join predicates");
+        "products or add the missing join predicates (with outer, semi or anti joins: no "
+        "tree of this shape is equivalent to the original one; ask for bushy plans)");
   }
   out.plan = *best;
   out.frontier = MergeFrontiers(slices, objectives);

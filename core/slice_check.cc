@@ -1,10 +1,12 @@
 #include "core/slice_check.h"
 
 #include <cmath>
+#include <optional>
 #include <string>
 
 #include "absl/strings/str_cat.h"
 #include "core/cost/cout_model.h"
+#include "core/graph/join_conflicts.h"
 #include "core/model/cardinality.h"
 #include "core/model/status_macros.h"
 #include "core/slicing/constraint_choice.h"
@@ -55,7 +57,7 @@ absl::Status CheckTree(const Query& query, const Plan& plan) {
 // Shape, cross products and the slice's constraints.
 absl::Status CheckSpace(const Query& query, const SearchOptions& options,
                         const SliceConstraints& constraints, const Cardinality& card,
-                        const Plan& plan) {
+                        const JoinConflicts* conflicts, const Plan& plan) {
   if (options.shape == PlanShape::kLeftDeep && !IsLeftDeep(plan)) {
     return Fault("a bushy plan where left-deep plans were asked for");
   }
@@ -71,8 +73,21 @@ absl::Status CheckSpace(const Query& query, const SearchOptions& options,
     if ((!left_deep || node.left >= 0 || prefix_leaf) && !constraints.Admissible(node.relations)) {
       return Fault(absl::StrCat("node ", i, " lies outside the slice"));
     }
-    if (node.left < 0 || options.cross_products) continue;
-    if (!card.Connects(plan.nodes[node.left].relations, plan.nodes[node.right].relations)) {
+    if (node.left < 0) continue;
+    const RelSet l = plan.nodes[node.left].relations, r = plan.nodes[node.right].relations;
+    if (conflicts != nullptr) {
+      const JoinFit fit = conflicts->Fit(l, r, options.cross_products);
+      if (!fit.forward || fit.type != node.type) {
+        return Fault(absl::StrCat("node ", i, " is no ", JoinTypeName(node.type),
+                                  " join the original tree allows there"));
+      }
+      continue;
+    }
+    if (node.type != JoinType::kInner) {
+      return Fault(absl::StrCat("node ", i, " is a ", JoinTypeName(node.type),
+                                " join; the query has inner joins only"));
+    }
+    if (!options.cross_products && !card.Connects(l, r)) {
       return Fault(absl::StrCat("node ", i, " is a cross product, and they were excluded"));
     }
   }
@@ -111,7 +126,9 @@ absl::Status CheckSliceResult(const Query& query, const SearchOptions& options,
                               const SliceResult& result,
                               const std::vector<ConstraintRelations>& chosen) {
   if (!result.plan) {
-    if (options.cross_products) {
+    // With non-inner joins a slice (or the left-deep space) may hold no
+    // valid plan even with cross products.
+    if (options.cross_products && !query.has_joins()) {
       return Fault("no plan, though every slice of the space with cross products holds one");
     }
     return absl::OkStatus();
@@ -123,9 +140,12 @@ absl::Status CheckSliceResult(const Query& query, const SearchOptions& options,
   const SliceConstraints constraints =
       SliceConstraints::FromRelations(options.shape, result.slice, chosen);
   const Cardinality card(query);
+  std::optional<JoinConflicts> conflicts;
+  if (query.has_joins()) conflicts.emplace(query);
   const auto check = [&](const Plan& plan) -> absl::Status {
     RETURN_IF_ERROR(CheckTree(query, plan));
-    RETURN_IF_ERROR(CheckSpace(query, options, constraints, card, plan));
+    RETURN_IF_ERROR(
+        CheckSpace(query, options, constraints, card, conflicts ? &*conflicts : nullptr, plan));
     if (options.cost == CostModelKind::kCout) RETURN_IF_ERROR(CheckCout(card, plan));
     return absl::OkStatus();
   };

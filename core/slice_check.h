@@ -23,7 +23,8 @@ inline constexpr double kCheckTolerance = 1e-9;
 // frontier's) is a binary tree over the query's relations, each once,
 // children before parents; of the requested shape; without cross products
 // when they are excluded; every node set admitted by the slice's
-// constraints (so the plan lies in the slice); and, for the cout model,
+// constraints (so the plan lies in the slice); every join of the type and
+// orientation the original tree allows (core/graph/join_conflicts.h); and, for the cout model,
 // every node's cardinality and cost equal to those recomputed from the
 // query (kCheckTolerance). With cross products every slice has a plan, so
 // "no plan" there is a fault too. DATA_LOSS naming the first fault

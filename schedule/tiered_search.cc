@@ -65,7 +65,14 @@ absl::Status CheckTierFits(const WideQuery& query, const SearchOptions& options,
   if (tier == SearchTier::kExact && query.size() > kMaxRelations) {
     return ToExactQuery(query).status();
   }
-  if (!options.cross_products && !IsConnected(query)) {
+  const bool joins = !query.joins().empty();
+  if (joins && tier != SearchTier::kAuto && tier != SearchTier::kExact) {
+    return absl::InvalidArgumentError(absl::StrCat(
+        "--tier=", TierName(tier),
+        ": the greedy, linear and idp tiers reorder inner joins only; a query with outer, semi "
+        "or anti joins (`joins`) is searched by the exact tier (or auto)"));
+  }
+  if (!joins && !options.cross_products && !IsConnected(query)) {
     return absl::NotFoundError(
         "the join graph is not connected, so every plan has a cross product; allow them "
         "(cross products = true)");
@@ -90,7 +97,8 @@ class TierRun {
 
   absl::StatusOr<TieredOutcome> Run() {
     const SearchTier tier = request_.tier;
-    if (options_.cost == CostModelKind::kCluster || tier == SearchTier::kExact) {
+    if (options_.cost == CostModelKind::kCluster || tier == SearchTier::kExact ||
+        !query_.joins().empty()) {
       return ExactAlone();
     }
     // A join that saturates makes every plan's cost the ceiling: refused
@@ -146,8 +154,9 @@ class TierRun {
                            ? request_.slice_count
                            : ChooseSliceCount(exact, options_, concurrent_slices_);
     absl::StatusOr<ScheduleOutcome> run = RunSlices(exact, options_, p, workers_, schedule_);
+    const bool joins = !query_.joins().empty();
     if (absl::IsDeadlineExceeded(run.status()) && schedule_.partial_on_deadline &&
-        options_.cost == CostModelKind::kCout) {
+        options_.cost == CostModelKind::kCout && !joins) {
       // Not one slice by the deadline: the best plan so far is greedy's
       // (milliseconds), marked unproven, never nothing.
       out_.plan = GreedyPlan(query_, options_.shape);
@@ -164,8 +173,11 @@ class TierRun {
     out_.plan = FromExactPlan(outcome.result.plan);
     out_.schedule = std::move(outcome);
     out_.exact_ran = true;
-    return Finish(request_.tier == SearchTier::kExact ? "exact: requested"
-                                                      : "exact: the cluster model");
+    if (request_.tier == SearchTier::kExact) return Finish("exact: requested");
+    if (options_.cost == CostModelKind::kCluster) return Finish("exact: the cluster model");
+    return Finish(
+        "exact: the query has outer, semi or anti joins, which the greedy, linear and idp "
+        "tiers cannot reorder (they are skipped)");
   }
 
   absl::Status TryLinear(bool forced) {

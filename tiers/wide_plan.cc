@@ -80,7 +80,7 @@ std::vector<RelSet> WideNodeSets(const WidePlan& plan) {
 }
 
 double CostWidePlan(WidePlan& plan, const WideQuery& query) {
-  if (query.listed() != nullptr) return CostWithListed(plan, query);
+  if (query.listed() != nullptr || !query.joins().empty()) return CostWithListed(plan, query);
   JoinForest forest(query);
   std::vector<int32_t> component(plan.nodes.size());
   for (size_t i = 0; i < plan.nodes.size(); ++i) {
@@ -111,6 +111,10 @@ bool HasCrossProduct(const WidePlan& plan, const WideQuery& query) {
     }
     const int32_t a = component[node.left];
     const int32_t b = component[node.right];
+    if (node.type != JoinType::kInner) {  // its own predicate joins it
+      component[i] = forest.Merge(a, b);
+      continue;
+    }
     const int32_t small = forest.Members(a) <= forest.Members(b) ? node.left : node.right;
     const int32_t other = small == node.left ? b : a;
     // Some relation of the smaller input has a predicate into the other.
@@ -158,6 +162,10 @@ std::string WideTreeString(const WidePlan& plan, const WideQuery& query) {
       stack.push_back({node.left, 0});
     } else if (state == 1) {
       out += ' ';
+      if (node.type != JoinType::kInner) {
+        out += JoinTypeKeyword(node.type);
+        out += ' ';
+      }
       state = 2;
       stack.push_back({node.right, 0});
     } else {
@@ -178,6 +186,7 @@ WidePlan FromExactPlan(const Plan& plan) {
     w.right = n.right;
     w.cardinality = n.cardinality;
     w.cost = n.cost;
+    w.type = n.type;
     out.nodes.push_back(w);
   }
   return out;

@@ -21,6 +21,8 @@ struct WideNode {
   int32_t right = -1;
   double cardinality = 0;
   double cost = 0;  // C_out of the subtree
+  // joins: the type (left, semi, anti: `left` is the preserved input)
+  JoinType type = JoinType::kInner;
   bool is_leaf() const { return left < 0; }
 };
 
@@ -42,7 +44,7 @@ absl::Status CheckWidePlan(const WidePlan& plan, int n, bool left_deep = false);
 
 // Fills every node's cardinality and C_out (core/cost/cout_model.h's
 // rounding); returns the root's cost. With the engine's listed estimates
-// (WideQuery::listed) the cardinalities are the exact engine's
+// (WideQuery::listed) or non-inner joins the cardinalities are the exact engine's
 // (core/model/cardinality.h), so every plan of every tier is costed on the
 // same numbers. REQUIRES: CheckWidePlan is OK.
 double CostWidePlan(WidePlan& plan, const WideQuery& query);

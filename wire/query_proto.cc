@@ -81,6 +81,47 @@ absl::StatusOr<ListedRows> ListedFromProto(
   return ListedRows::Create(static_cast<int>(message.relations_size()), std::move(sets));
 }
 
+// A relation list of a joins entry as a mask.
+absl::StatusOr<RelSet> SetFromNames(const google::protobuf::RepeatedPtrField<std::string>& names,
+                                    const std::string& field,
+                                    const absl::flat_hash_map<std::string_view, int32_t>& ids) {
+  ASSIGN_OR_RETURN(const std::vector<int32_t> members, ResolveNames(names, field, ids));
+  RelSet set = 0;
+  for (const int32_t r : members) set |= Singleton(RelationId{static_cast<uint8_t>(r)});
+  return set;
+}
+
+// The non-inner joins, names resolved. Errors name the entry and field;
+// the operators' structure is checked by ValidateJoinOps (ToExactQuery).
+absl::StatusOr<std::vector<JoinOp>> JoinsFromProto(
+    const v1::Query& message, const absl::flat_hash_map<std::string_view, int32_t>& ids) {
+  std::vector<JoinOp> ops;
+  for (int k = 0; k < message.joins_size(); ++k) {
+    const v1::JoinOp& m = message.joins(k);
+    const std::string at = absl::StrCat("joins[", k, "]");
+    const std::optional<JoinType> type = ParseJoinType(m.type());
+    if (!type || *type == JoinType::kInner) {
+      return absl::InvalidArgumentError(
+          absl::StrCat(at, ".type: \"", ShortName(m.type()),
+                       "\" is not a join type; one of left, full, semi, anti (inner joins are "
+                       "the query's predicates)"));
+    }
+    JoinOp op;
+    op.type = *type;
+    ASSIGN_OR_RETURN(op.left, SetFromNames(m.left(), at + ".left", ids));
+    ASSIGN_OR_RETURN(op.right, SetFromNames(m.right(), at + ".right", ids));
+    if (!m.has_predicate()) return absl::InvalidArgumentError(at + ".predicate: missing");
+    ASSIGN_OR_RETURN(op.predicate,
+                     SetFromNames(m.predicate().relations(), at + ".predicate.relations", ids));
+    if (!m.predicate().has_selectivity()) {
+      return absl::InvalidArgumentError(at + ".predicate.selectivity: missing");
+    }
+    op.selectivity = m.predicate().selectivity().value();
+    ops.push_back(op);
+  }
+  return ops;
+}
+
 absl::Status CheckSizes(const v1::Query& message, const InputLimits& limits) {
   if (message.relations_size() > limits.max_relations) {
     return absl::ResourceExhaustedError(absl::StrCat("relations: ", message.relations_size(),
@@ -96,6 +137,15 @@ absl::Status CheckSizes(const v1::Query& message, const InputLimits& limits) {
     return absl::ResourceExhaustedError(
         absl::StrCat("cardinalities: ", message.cardinalities_size(),
                      " listed sets given; the limit is ", limits.max_cardinalities));
+  }
+  if (message.joins_size() > limits.max_predicates) {
+    return absl::ResourceExhaustedError(absl::StrCat(
+        "joins: ", message.joins_size(), " entries given; the limit is ", limits.max_predicates));
+  }
+  if (message.joins_size() > 0 && message.relations_size() > kMaxRelations) {
+    return absl::InvalidArgumentError(
+        absl::StrCat("joins: non-inner joins are taken for queries of up to ", kMaxRelations,
+                     " relations; this one has ", message.relations_size()));
   }
   if (message.cardinalities_size() > 0 && message.relations_size() > kMaxRelations) {
     return absl::InvalidArgumentError(
@@ -154,9 +204,15 @@ absl::StatusOr<WideQuery> WideQueryFromProto(const v1::Query& message, const Inp
   // Names were checked first, so no predicate resolved to the wrong one of
   // two equal names.
   ASSIGN_OR_RETURN(WideQuery query, WideQuery::Create(std::move(relations), std::move(predicates)));
-  if (message.cardinalities_size() == 0) return query;
-  ASSIGN_OR_RETURN(ListedRows listed, ListedFromProto(message, ids));
-  return query.WithListed(std::make_shared<const ListedRows>(std::move(listed)));
+  if (message.cardinalities_size() > 0) {
+    ASSIGN_OR_RETURN(ListedRows listed, ListedFromProto(message, ids));
+    query = query.WithListed(std::make_shared<const ListedRows>(std::move(listed)));
+  }
+  if (message.joins_size() == 0) return query;
+  ASSIGN_OR_RETURN(std::vector<JoinOp> joins, JoinsFromProto(message, ids));
+  query = query.WithJoins(std::move(joins));
+  RETURN_IF_ERROR(ToExactQuery(query).status());  // the operators' structure, by name
+  return query;
 }
 
 absl::StatusOr<Query> QueryFromProto(const v1::Query& message, const InputLimits& limits) {
@@ -186,6 +242,17 @@ v1::Query WideQueryToProto(const WideQuery& query) {
                     [&](RelationId r) { out->add_relations(query.relation(r.value).name); });
       out->mutable_rows()->set_value(set.rows);
     }
+  }
+  for (const JoinOp& op : query.joins()) {
+    v1::JoinOp* out = m.add_joins();
+    out->set_type(JoinTypeName(op.type));
+    const auto names = [&](RelSet s, google::protobuf::RepeatedPtrField<std::string>* to) {
+      ForEachMember(s, [&](RelationId r) { to->Add(std::string(query.relation(r.value).name)); });
+    };
+    names(op.left, out->mutable_left());
+    names(op.right, out->mutable_right());
+    names(op.predicate, out->mutable_predicate()->mutable_relations());
+    out->mutable_predicate()->mutable_selectivity()->set_value(op.selectivity);
   }
   return m;
 }

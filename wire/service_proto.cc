@@ -9,6 +9,7 @@
 #include "core/cost/plan_choice.h"
 #include "core/model/status_macros.h"
 #include "core/model/value_range.h"
+#include "wire/join_kind.h"
 
 namespace sliceplan {
 
@@ -227,6 +228,7 @@ absl::Status ReadJoin(const v1::PlanNode& in, const std::string& at, int i, cons
   }
   node.left = static_cast<int>(l);
   node.right = static_cast<int>(r);
+  ASSIGN_OR_RETURN(node.type, JoinTypeFromProto(in.join(), at));
   node.relations = plan.nodes[l].relations | plan.nodes[r].relations;
   return absl::OkStatus();
 }
@@ -365,6 +367,7 @@ v1::Plan PlanToProto(const Plan& plan, CostModelKind model) {
     } else {
       out->mutable_join()->set_left(static_cast<uint32_t>(node.left));
       out->mutable_join()->set_right(static_cast<uint32_t>(node.right));
+      out->mutable_join()->set_kind(static_cast<v1::JoinKind>(node.type));
       out->set_op(OperatorOf(node, model));
       if (cluster) out->set_nodes(static_cast<uint32_t>(node.nodes));
     }

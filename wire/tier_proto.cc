@@ -3,6 +3,7 @@
 #include "absl/strings/str_cat.h"
 #include "core/model/status_macros.h"
 #include "core/model/value_range.h"
+#include "wire/join_kind.h"
 #include "wire/service_proto.h"
 
 namespace sliceplan {
@@ -51,6 +52,7 @@ v1::Plan WidePlanToProto(const WidePlan& plan) {
     } else {
       out->mutable_join()->set_left(static_cast<uint32_t>(node.left));
       out->mutable_join()->set_right(static_cast<uint32_t>(node.right));
+      out->mutable_join()->set_kind(static_cast<v1::JoinKind>(node.type));
       out->set_op(v1::OPERATOR_JOIN);
     }
     out->set_cardinality(node.cardinality);
@@ -83,6 +85,7 @@ absl::StatusOr<WidePlan> WidePlanFromProto(const v1::Plan& m, const WideQuery& q
       }
       node.left = static_cast<int32_t>(in.join().left());
       node.right = static_cast<int32_t>(in.join().right());
+      ASSIGN_OR_RETURN(node.type, JoinTypeFromProto(in.join(), at));
     } else {
       return absl::InvalidArgumentError(absl::StrCat(at, ": neither relation nor join"));
     }

@@ -89,6 +89,7 @@ WideQuery WideQuery::FromExact(const Query& query) {
   }
   WideQuery out({query.relations().begin(), query.relations().end()}, std::move(predicates));
   out.listed_ = query.shared_listed();
+  out.joins_.assign(query.joins().begin(), query.joins().end());
   return out;
 }
 
@@ -113,8 +114,15 @@ absl::StatusOr<Query> ToExactQuery(const WideQuery& query) {
   }
   ASSIGN_OR_RETURN(Query exact, Query::Create({query.relations().begin(), query.relations().end()},
                                               std::move(predicates)));
-  if (query.listed() != nullptr) return exact.WithListed(query.shared_listed());
+  if (query.listed() != nullptr) exact = exact.WithListed(query.shared_listed());
+  if (!query.joins().empty()) return exact.WithJoins({query.joins().begin(), query.joins().end()});
   return exact;
+}
+
+WideQuery WideQuery::WithJoins(std::vector<JoinOp> joins) const {
+  WideQuery out = *this;
+  out.joins_ = std::move(joins);
+  return out;
 }
 
 }  // namespace sliceplan

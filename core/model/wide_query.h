@@ -47,6 +47,11 @@ class WideQuery {
   // The same query with `listed` as its estimates; an empty list is none.
   // REQUIRES: size() <= kMaxRelations, the sets within the query.
   WideQuery WithListed(std::shared_ptr<const ListedRows> listed) const;
+  // The non-inner joins over relation masks (at most 64 relations take
+  // them); ToExactQuery validates them.
+  std::span<const JoinOp> joins() const { return joins_; }
+  // REQUIRES: size() <= kMaxRelations.
+  WideQuery WithJoins(std::vector<JoinOp> joins) const;
 
   // Indices into predicates() of those naming relation r, ascending.
   std::span<const int32_t> incident(int32_t r) const {
@@ -61,6 +66,7 @@ class WideQuery {
   std::vector<int32_t> incident_start_;  // size() + 1 offsets into incident_
   std::vector<int32_t> incident_;
   std::shared_ptr<const ListedRows> listed_;  // null: none listed
+  std::vector<JoinOp> joins_;
 };
 
 // The exact engine's form of `query`. More than kMaxRelations relations is

@@ -9,6 +9,13 @@
 namespace sliceplan {
 namespace {
 
+// A query of relations a, b, c and d with `joins` as its joins entries.
+std::string JoinsQuery(std::string joins) {
+  return R"({"relations": [{"name": "a", "rows": 1}, {"name": "b", "rows": 1},
+             {"name": "c", "rows": 1}, {"name": "d", "rows": 1}], "joins": [)" +
+         joins + "]}";
+}
+
 constexpr char kValid[] = R"({
   "relations": [
     {"name": "shipments", "rows": 2.1e9, "row_bytes": 96},
@@ -44,9 +51,32 @@ TEST(QueryProtoTest, RoundTripsThroughTheMessage) {
   EXPECT_EQ(back->predicates()[1].relations, q->predicates()[1].relations);
 }
 
+TEST(QueryProtoTest, JoinsRoundTripThroughTheMessage) {
+  auto q =
+      ReadQueryFile(std::string(SLICEPLAN_SOURCE_DIR) + "/examples/port_inspections_joins.json");
+  ASSERT_TRUE(q.ok()) << q.status();
+  ASSERT_EQ(q->joins().size(), 3u);
+  EXPECT_EQ(q->joins()[0].type, JoinType::kSemi);
+  EXPECT_EQ(q->joins()[1].type, JoinType::kLeft);
+  EXPECT_EQ(q->joins()[2].type, JoinType::kAnti);
+  EXPECT_EQ(q->joins()[2].left, RelSet{1} << 6);   // berths
+  EXPECT_EQ(q->joins()[2].right, RelSet{1} << 7);  // bookings
+  EXPECT_DOUBLE_EQ(q->joins()[1].selectivity, 4.8e-7);
+  auto back = QueryFromProto(QueryToProto(*q));
+  ASSERT_TRUE(back.ok()) << back.status();
+  ASSERT_EQ(back->joins().size(), 3u);
+  for (size_t k = 0; k < 3; ++k) {
+    EXPECT_EQ(back->joins()[k].type, q->joins()[k].type);
+    EXPECT_EQ(back->joins()[k].left, q->joins()[k].left);
+    EXPECT_EQ(back->joins()[k].right, q->joins()[k].right);
+    EXPECT_EQ(back->joins()[k].predicate, q->joins()[k].predicate);
+    EXPECT_EQ(back->joins()[k].selectivity, q->joins()[k].selectivity);
+  }
+}
+
 struct BadCase {
   const char* what;
-  const char* json;
+  std::string json;
   const char* message;  // a part the error must contain
 };
 
@@ -65,8 +95,43 @@ const BadCase kBadCases[] = {
     {"not JSON", R"({"relations": [)", "query JSON"},
     {"unknown field", R"({"relations": [{"name": "a", "rows": 1, "size": 2}]})",
      "(relations[0]) size"},
-    {"unknown top-level field", R"({"relations": [{"name": "a", "rows": 1}], "joins": []})",
-     "joins"},
+    {"unknown top-level field", R"({"relations": [{"name": "a", "rows": 1}], "hints": []})",
+     "hints"},
+    // Non-inner joins (docs/joins.md), each refused by entry and field.
+    {"join type", JoinsQuery(R"({"type": "lft", "left": ["a"], "right": ["b"],
+       "predicate": {"relations": ["a", "b"], "selectivity": 0.1}})"),
+     "joins[0].type: \"lft\" is not a join type"},
+    {"inner as a join", JoinsQuery(R"({"type": "inner", "left": ["a"], "right": ["b"],
+       "predicate": {"relations": ["a", "b"], "selectivity": 0.1}})"),
+     "joins[0].type: \"inner\" is not a join type"},
+    {"join unknown relation", JoinsQuery(R"({"type": "left", "left": ["a"], "right": ["x"],
+       "predicate": {"relations": ["a", "b"], "selectivity": 0.1}})"),
+     "joins[0].right[0]: unknown relation \"x\""},
+    {"join relation in both sides", JoinsQuery(R"({"type": "left", "left": ["a", "b"],
+       "right": ["b"], "predicate": {"relations": ["a", "b"], "selectivity": 0.1}})"),
+     "joins[0].right: b also in left"},
+    {"join predicate one side", JoinsQuery(R"({"type": "semi", "left": ["a"], "right": ["b", "c"],
+       "predicate": {"relations": ["b", "c"], "selectivity": 0.1}})"),
+     "joins[0].predicate: must name a relation of each side"},
+    {"join predicate missing", JoinsQuery(R"({"type": "anti", "left": ["a"], "right": ["b"]})"),
+     "joins[0].predicate: missing"},
+    {"joins not nesting", JoinsQuery(R"({"type": "left", "left": ["a"], "right": ["b"],
+       "predicate": {"relations": ["a", "b"], "selectivity": 0.1}},
+      {"type": "left", "left": ["b"], "right": ["c"],
+       "predicate": {"relations": ["b", "c"], "selectivity": 0.1}})"),
+     "joins[1].left: its relations and those of joins[0] do not nest like a tree"},
+    {"join reads a semi join's right side", JoinsQuery(R"({"type": "semi", "left": ["a"],
+       "right": ["b"], "predicate": {"relations": ["a", "b"], "selectivity": 0.1}},
+      {"type": "left", "left": ["a", "b"], "right": ["c"],
+       "predicate": {"relations": ["b", "c"], "selectivity": 0.1}})"),
+     "joins[1].predicate: reads b, the right side of the semi join joins[0], from above it"},
+    {"inner predicate on a null-supplying side",
+     R"({"relations": [{"name": "a", "rows": 1}, {"name": "b", "rows": 1}, {"name": "c", "rows": 1}],
+       "predicates": [{"relations": ["b", "c"], "selectivity": 0.5}],
+       "joins": [{"type": "left", "left": ["a"], "right": ["b"],
+                  "predicate": {"relations": ["a", "b"], "selectivity": 0.1}}]})",
+     "predicates[0]: joins b, the null-supplying side of the left join joins[0], to a relation "
+     "outside it; it rejects the padded nulls, so send that join as inner"},
     {"wrong type", R"({"relations": [{"name": "a", "rows": "many"}]})", "relations[0].rows"},
     {"no relations", R"({"relations": []})", "relations: the query has no relations"},
     {"duplicate name", R"({"relations": [{"name": "a", "rows": 1}, {"name": "a", "rows": 2}]})",
