@@ -1,5 +1,9 @@
 #include "core/graph/join_conflicts.h"
 
+#include <bit>
+#include <cstdint>
+#include <vector>
+
 namespace sliceplan {
 namespace {
 
@@ -68,6 +72,7 @@ JoinConflicts::JoinConflicts(const Query& query)
     if (!nodes[i].leaf()) AddRules(static_cast<int>(i));
   }
   for (size_t j = 0; j < predicates_.size(); ++j) predicate_owner_.push_back(tree_.owner(j));
+  Index();
   // A cross product is an inner join with no predicate to tell which
   // operator of the original tree it is: one that holds part of a
   // non-inner operator's right side (either side of a full join) and
@@ -151,43 +156,111 @@ void JoinConflicts::AddRules(int b) {
   }
 }
 
-bool JoinConflicts::RulesHold(const Operator& op, RelSet s) const {
-  for (size_t i = op.rules_begin; i < op.rules_end; ++i) {
-    if (rules_[i].Broken(s)) return false;
+JoinConflicts::Check JoinConflicts::Simplify(const Operator& op, RelSet known) {
+  Check check;
+  check.begin = checked_.size();
+  std::vector<Rule> rest(rules_.begin() + static_cast<std::ptrdiff_t>(op.rules_begin),
+                         rules_.begin() + static_cast<std::ptrdiff_t>(op.rules_end));
+  // What a join that applies `op` surely holds grows by every rule that
+  // surely fires; a rule whose need is surely held goes.
+  for (bool grew = true; grew;) {
+    grew = false;
+    std::vector<Rule> kept;
+    for (const Rule& rule : rest) {
+      if (IsSubset(rule.need, known)) continue;
+      if (rule.exempt == 0 && (rule.trigger & known) != 0) {
+        known |= rule.need;
+        check.required |= rule.need;
+        grew = true;
+        continue;
+      }
+      kept.push_back(rule);
+    }
+    rest = std::move(kept);
+  }
+  checked_.insert(checked_.end(), rest.begin(), rest.end());
+  check.end = checked_.size();
+  return check;
+}
+
+bool JoinConflicts::Holds(const Check& check, RelSet s) const {
+  if (!IsSubset(check.required, s)) return false;
+  for (size_t i = check.begin; i < check.end; ++i) {
+    if (checked_[i].Broken(s)) return false;
   }
   return true;
 }
 
+void JoinConflicts::Index() {
+  const size_t n = tree_.nodes().empty() ? 0 : static_cast<size_t>(Size(tree_.root().set));
+  touch_ops_.assign(n, 0);
+  partners_.assign(n, 0);
+  pair_predicate_.assign(n * kMaxRelations, -1);
+  for (size_t k = 0; k < ops_.size(); ++k) {
+    Operator& op = ops_[k];
+    op.check = Simplify(op, op.reads_left | op.reads_right);
+    ForEachMember(op.reads_left | op.reads_right,
+                  [&](RelationId v) { touch_ops_[v.value] |= uint64_t{1} << k; });
+  }
+  for (size_t j = 0; j < predicates_.size(); ++j) {
+    const RelSet p = predicates_[j].relations;
+    predicate_checks_.push_back(Simplify(inner_ops_[predicate_owner_[j]], p));
+    if (Size(p) != 2) {
+      hyper_predicates_.push_back(j);
+      continue;
+    }
+    const int u = std::countr_zero(p), v = 63 - std::countl_zero(p);
+    partners_[u] |= RelSet{1} << v;
+    partners_[v] |= RelSet{1} << u;
+    pair_predicate_[u * kMaxRelations + v] = pair_predicate_[v * kMaxRelations + u] =
+        static_cast<int>(j);
+  }
+}
+
 JoinFit JoinConflicts::Fit(RelSet s1, RelSet s2, bool cross_products) const {
   const RelSet s = s1 | s2;
-  const auto crosses = [&](RelSet reads) {
-    return IsSubset(reads, s) && (reads & s1) != 0 && (reads & s2) != 0;
-  };
+  const RelSet small = Size(s1) <= Size(s2) ? s1 : s2;
+  const RelSet other = s ^ small;
+  // The non-inner operator whose predicate lies in s and reads both sides.
+  uint64_t candidates = 0;
+  for (RelSet m = small; m != 0; m &= m - 1) candidates |= touch_ops_[std::countr_zero(m)];
   JoinFit fit;
-  for (size_t k = 0; k < ops_.size(); ++k) {
+  for (; candidates != 0; candidates &= candidates - 1) {
+    const int k = std::countr_zero(candidates);
     const Operator& op = ops_[k];
-    if (!crosses(op.reads_left | op.reads_right)) continue;
+    const RelSet reads = op.reads_left | op.reads_right;
+    if (!IsSubset(reads, s) || (reads & other) == 0) continue;
     if (fit.op >= 0) return {};  // two operators at one join
-    fit.op = static_cast<int>(k);
+    fit.op = k;
     fit.type = op.type;
   }
+  // The inner predicates across the split.
   bool inner_predicate = false;
-  for (size_t j = 0; j < predicates_.size(); ++j) {
-    if (!crosses(predicates_[j].relations)) continue;
-    if (fit.op >= 0) return {};  // an inner predicate at a non-inner join
-    if (!RulesHold(inner_ops_[predicate_owner_[j]], s)) return {};
+  for (RelSet m = small; m != 0; m &= m - 1) {
+    const int v = std::countr_zero(m);
+    for (RelSet across = partners_[v] & other; across != 0; across &= across - 1) {
+      if (fit.op >= 0) return {};  // an inner predicate at a non-inner join
+      const int j = pair_predicate_[v * kMaxRelations + std::countr_zero(across)];
+      if (!Holds(predicate_checks_[j], s)) return {};
+      inner_predicate = true;
+    }
+  }
+  for (const size_t j : hyper_predicates_) {
+    const RelSet p = predicates_[j].relations;
+    if (!IsSubset(p, s) || (p & s1) == 0 || (p & s2) == 0) continue;
+    if (fit.op >= 0) return {};
+    if (!Holds(predicate_checks_[j], s)) return {};
     inner_predicate = true;
   }
   if (fit.op >= 0) {
     const Operator& op = ops_[fit.op];
-    if (!RulesHold(op, s)) return {};
+    if (!Holds(op.check, s)) return {};
     const bool as_is = IsSubset(op.reads_left, s1) && IsSubset(op.reads_right, s2);
     const bool swapped = IsSubset(op.reads_left, s2) && IsSubset(op.reads_right, s1);
     // A full join commutes: either input may be written first.
     const bool either = IsCommutative(op.type) && (as_is || swapped);
     fit.forward = as_is || either;
-    fit.backward = swapped || either;
-    if (!IsCommutative(op.type)) fit.backward = swapped;
+    fit.backward = IsCommutative(op.type) ? either : swapped;
     return fit;
   }
   if (!inner_predicate) {

@@ -59,28 +59,46 @@ class JoinConflicts {
       return (s & trigger) != 0 && (s & ~exempt) != 0 && !IsSubset(need, s);
     }
   };
+  // An operator's rules at a join that surely holds some relations: what
+  // the join must hold, and the rules left to test (checked_[begin, end)).
+  struct Check {
+    RelSet required = 0;
+    size_t begin = 0;
+    size_t end = 0;
+  };
   struct Operator {
     JoinType type = JoinType::kInner;
     RelSet reads_left = 0;   // the eligibility set's part from the left input
     RelSet reads_right = 0;  // ... from the right input
     size_t rules_begin = 0;  // its rules: rules_[rules_begin, rules_end)
     size_t rules_end = 0;
+    Check check;  // non-inner: at a join that holds all it reads
   };
 
   void AddRules(int node);
   // What the right (else left) input of non-inner tree node `a` may hold
   // in some equivalent tree.
   RelSet Reach(int a, bool right_side) const;
-  bool RulesHold(const Operator& op, RelSet s) const;
+  // `op`'s rules at a join known to hold `known`.
+  Check Simplify(const Operator& op, RelSet known);
+  bool Holds(const Check& check, RelSet s) const;
+  // Fit's tables: the checks and the per-relation masks.
+  void Index();
 
   JoinTree tree_;
   std::vector<Rule> rules_;
   std::vector<Operator> ops_;        // by Query::joins() index
   std::vector<Operator> inner_ops_;  // by tree node id (inner nodes only used)
   std::vector<Predicate> predicates_;
-  std::vector<int> predicate_owner_;  // inner predicate -> tree node id
-  std::vector<Rule> cross_rules_;     // a cross product's rules
-  std::vector<RelSet> visible_;       // tree node -> its core (what never leaves it)
+  std::vector<int> predicate_owner_;      // inner predicate -> tree node id
+  std::vector<Rule> cross_rules_;         // a cross product's rules
+  std::vector<RelSet> visible_;           // tree node -> its core (what never leaves it)
+  std::vector<Rule> checked_;             // the rules Checks keep
+  std::vector<Check> predicate_checks_;   // inner predicate -> its operator's check
+  std::vector<uint64_t> touch_ops_;       // relation -> operators whose predicate reads it
+  std::vector<RelSet> partners_;          // relation -> binary inner-predicate partners
+  std::vector<int> pair_predicate_;       // [u * 64 + v] -> their predicate's index
+  std::vector<size_t> hyper_predicates_;  // inner predicates over three or more
 };
 
 }  // namespace sliceplan

@@ -1,6 +1,7 @@
 #include "core/model/join_tree.h"
 
 #include <cmath>
+#include <limits>
 
 #include "core/model/value_range.h"
 
@@ -8,22 +9,25 @@ namespace sliceplan {
 namespace {
 
 // The probability that a row finds no partner among `rows` candidates,
-// each a match with probability s: (1 - s)^rows.
-double NoPartner(double s, double rows) { return std::exp(rows * std::log1p(-s)); }
+// each a match with probability s: (1 - s)^rows, from log_miss =
+// log1p(-s) (-inf when s = 1).
+double NoPartner(double log_miss, double rows) {
+  return rows > 0 ? std::exp(rows * log_miss) : 1.0;
+}
 
-double Combine(JoinType type, double l, double r, double s) {
+double Combine(JoinType type, double l, double r, double s, double log_miss) {
   const double inner = l * r * s;
   switch (type) {
     case JoinType::kInner:
       return inner;
     case JoinType::kSemi:
-      return l * (1 - NoPartner(s, r));
+      return l * (1 - NoPartner(log_miss, r));
     case JoinType::kAnti:
-      return l * NoPartner(s, r);
+      return l * NoPartner(log_miss, r);
     case JoinType::kLeft:
-      return inner + l * NoPartner(s, r);
+      return inner + l * NoPartner(log_miss, r);
     case JoinType::kFull:
-      return inner + l * NoPartner(s, r) + r * NoPartner(s, l);
+      return inner + l * NoPartner(log_miss, r) + r * NoPartner(log_miss, l);
   }
   return inner;
 }
@@ -37,6 +41,7 @@ JoinTree::JoinTree(const Query& query) {
 }
 
 int JoinTree::Add(JoinTreeNode node) {
+  log_miss_.push_back(std::log1p(-node.selectivity));
   nodes_.push_back(node);
   completed_.emplace_back();
   return static_cast<int>(nodes_.size()) - 1;
@@ -129,15 +134,15 @@ double JoinTree::Estimate(RelSet x) const {
       rows[i] = l ? rows[node.left] : rows[node.right];
       continue;
     }
-    double s = 1;
+    double s = 1, log_miss = -std::numeric_limits<double>::infinity();
     if (node.op >= 0) {
-      if (IsSubset(node.reads, x)) s = node.selectivity;
+      if (IsSubset(node.reads, x)) s = node.selectivity, log_miss = log_miss_[i];
     } else {
       for (const Predicate& p : completed_[i]) {
         if (IsSubset(p.relations, x)) s *= p.selectivity;
       }
     }
-    rows[i] = Saturate(Combine(node.type, rows[node.left], rows[node.right], s));
+    rows[i] = Saturate(Combine(node.type, rows[node.left], rows[node.right], s, log_miss));
   }
   return rows[nodes_.size() - 1];
 }

@@ -55,6 +55,7 @@ class JoinTree {
   // per node, the inner predicates it completes
   std::vector<std::vector<Predicate>> completed_;
   std::vector<int> owner_;
+  std::vector<double> log_miss_;  // per node: log1p(-selectivity)
 };
 
 }  // namespace sliceplan
