@@ -54,6 +54,9 @@ check selectivity_zero 2 "predicates[0].selectivity" optimize "$bad/selectivity_
 check unknown_relation 2 "predicates[0].relations[1]: unknown relation \"tugboats\"" optimize "$bad/unknown_relation.json"
 check repeated_relation 2 "predicates[0].relations[1]: relation \"berths\" is named twice" optimize "$bad/repeated_relation.json"
 check truncated 2 "query JSON" optimize "$bad/truncated.json"
+check join_type 2 'joins[0].type: "exists" is not a join type' optimize "$bad/join_type.json"
+check join_null_side 2 "the null-supplying side of the left join joins[0]" optimize "$bad/join_null_side.json"
+check join_greedy 2 "reorder inner joins only" optimize "$examples/port_inspections_joins.json" --tier=greedy
 check too_many_relations 2 "65 relations given; the exact search takes at most 64 (the greedy, linear and idp tiers take more)" optimize "$bad/too_many_relations.json" --tier=exact
 check missing_file 2 "no_such_query.json" optimize "$tmp/no_such_query.json"
 check no_file 2 "QUERY.json: no query file given" optimize

@@ -6,6 +6,7 @@
 
 #include "absl/strings/str_cat.h"
 #include "core/model/cardinality.h"
+#include "core/model/join_tree.h"
 #include "gtest/gtest.h"
 
 namespace sliceplan::testing {
@@ -322,6 +323,16 @@ bool HasCrossProduct(const Query& query, const OpTree& t) {
     if (!joined) return true;
   }
   return HasCrossProduct(query, *t.left) || HasCrossProduct(query, *t.right);
+}
+
+OpTreePtr OriginalTree(const Query& query) {
+  const JoinTree tree(query);
+  std::vector<OpTreePtr> built;
+  for (const JoinTreeNode& node : tree.nodes()) {
+    built.push_back(node.leaf() ? Leaf(std::countr_zero(node.set))
+                                : Join(node.type, node.op, built[node.left], built[node.right]));
+  }
+  return built.back();
 }
 
 OpTreePtr FromPlan(const Query& query, const Plan& plan) {

@@ -57,6 +57,9 @@ std::vector<OpTreePtr> ClosureTrees(const Query& query, const OpTreePtr& origina
 // its inputs.
 bool HasCrossProduct(const Query& query, const OpTree& tree);
 
+// The query's original tree (core/model/join_tree.h) as an OpTree.
+OpTreePtr OriginalTree(const Query& query);
+
 // A plan's tree with its join types (the operator found by its sets).
 OpTreePtr FromPlan(const Query& query, const Plan& plan);
 
