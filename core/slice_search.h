@@ -314,30 +314,72 @@ class SliceSearch {
     auto walk_query = Query::Create(std::move(rels), std::move(edges));
     if (!walk_query.ok()) return walk_query.status();
     const JoinGraph graph(*walk_query);
-    method_ =
-        TakesDirectMemo(n, std::ldexp(1.0, n), kPolicyBytesPerSet, options_.memo_limit_bytes, 1)
-            ? ConnectedMethod::kPushDirect
-            : ConnectedMethod::kPushHashed;
-    if (*method_ == ConnectedMethod::kPushHashed) {
+    const JoinFilter filter{&*conflicts_, options_.cross_products,
+                            options_.shape == PlanShape::kLeftDeep};
+    // Connected-only: the strategies of the inner search over the graph of
+    // all predicates; with cross products, DPhyp over the complete graph.
+    ConnectedStrategy strategy;
+    if (options_.cross_products) {
+      strategy.method =
+          TakesDirectMemo(n, std::ldexp(1.0, n), kPolicyBytesPerSet, options_.memo_limit_bytes, 1)
+              ? ConnectedMethod::kPushDirect
+              : ConnectedMethod::kPushHashed;
+    } else {
+      strategy = ChooseConnectedStrategy(*walk_query, graph, options_.shape, kPolicyBytesPerSet,
+                                         options_.memo_limit_bytes, wanted_);
+    }
+    method_ = strategy.method;
+    const bool pulled = strategy.method == ConnectedMethod::kPullEverySplit ||
+                        strategy.method == ConnectedMethod::kPullSetCcps;
+    std::optional<DirectMemo> graph_sets;
+    std::optional<SetCcpWalk> walk;
+    if (strategy.method == ConnectedMethod::kPullSetCcps) {
+      walk.emplace(n, graph, graph_sets.emplace(*strategy.connected));
+    }
+    if (strategy.method == ConnectedMethod::kPushHashed) {
       memo_.emplace(HashMemo(options_.memo_limit_bytes / kHashBytesPerSet));
     } else {
-      memo_.emplace(DirectMemo(n));
+      memo_.emplace(strategy.connected ? std::move(*strategy.connected) : DirectMemo(n));
     }
-    if constexpr (ScatteredLayout<Policy>) policy_.UseScatteredLayout();
+    if constexpr (ScatteredLayout<Policy>) {
+      if (strategy.method != ConnectedMethod::kPullEverySplit) policy_.UseScatteredLayout();
+    }
     std::optional<SmallPagesScope> small_pages;
     if (layout_) small_pages.emplace();
     absl::Status status;
-    const JoinFilter filter{&*conflicts_, options_.cross_products,
-                            options_.shape == PlanShape::kLeftDeep};
     memo_->Visit([&]<class Memo>(Memo& memo) {
       if constexpr (!Memo::kGrows) policy_.Resize(memo.slot_count());
+      if constexpr (std::is_same_v<Memo, DirectMemo>) {
+        if (pulled) {
+          status = RunPulledJoins(graph, memo, control, walk ? &*walk : nullptr, filter);
+          return;
+        }
+      }
       status = ConnectedPush<Policy, Memo>(n, graph, card_, connected_constraints_, policy_, memo,
                                            control, stats_, &filter)
                    .Run();
     });
     stats_.memo_entries = memo_->size();
-    stats_.memo_bytes = memo_->direct() ? DirectBytes() : memo_->size() * kHashBytesPerSet;
+    stats_.memo_bytes = memo_->direct() ? DirectBytes() + (graph_sets ? graph_sets->bytes() : 0)
+                                        : memo_->size() * kHashBytesPerSet;
     return status;
+  }
+
+  // RunPulled for a query with non-inner joins: each split through the
+  // detector.
+  absl::Status RunPulledJoins(const JoinGraph& graph, DirectMemo& memo, SearchControl& control,
+                              const SetCcpWalk* walk, const JoinFilter& filter) {
+    if (options_.shape == PlanShape::kLeftDeep) {
+      return RunConnectedLeftDeepPull(graph, connected_constraints_, policy_, memo, control, stats_,
+                                      &filter);
+    }
+    if constexpr (Policy::kParallelDense) {
+      if (working_.size() >= 7 && Threaded(memo.slot_count())) {
+        return RunConnectedPullThreaded(working_.size(), connected_constraints_, policy_, memo,
+                                        control, stats_, options_.threads, walk, &filter);
+      }
+    }
+    return RunConnectedPull(connected_constraints_, policy_, memo, control, stats_, walk, &filter);
   }
 
   // Gives every join of `plan` (the search's numbering) its type, with

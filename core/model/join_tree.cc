@@ -38,6 +38,14 @@ JoinTree::JoinTree(const Query& query) {
   for (const Relation& rel : query.relations()) rows_.push_back(rel.rows);
   owner_.assign(query.predicates().size(), -1);
   Build(query, query.all());
+  // Children before parents: each node's whole estimate from its
+  // children's.
+  for (size_t i = 0; i < nodes_.size(); ++i) {
+    const JoinTreeNode& node = nodes_[i];
+    whole_.push_back(node.leaf() ? rows_[std::countr_zero(node.set)]
+                                 : Join(static_cast<int>(i), query.all(), whole_[node.left],
+                                        whole_[node.right]));
+  }
 }
 
 int JoinTree::Add(JoinTreeNode node) {
@@ -117,34 +125,31 @@ int JoinTree::Build(const Query& query, RelSet x) {
   return acc;
 }
 
-double JoinTree::Estimate(RelSet x) const {
-  // Post-order: children come before parents, so one pass suffices.
-  double rows[2 * kMaxRelations];
-  bool present[2 * kMaxRelations];
-  for (size_t i = 0; i < nodes_.size(); ++i) {
-    const JoinTreeNode& node = nodes_[i];
-    if (node.leaf()) {
-      present[i] = (node.set & x) != 0;
-      rows[i] = present[i] ? rows_[std::countr_zero(node.set)] : 0;
-      continue;
+double JoinTree::Join(int i, RelSet x, double l, double r) const {
+  const JoinTreeNode& node = nodes_[i];
+  double s = 1, log_miss = -std::numeric_limits<double>::infinity();
+  if (node.op >= 0) {
+    if (IsSubset(node.reads, x)) s = node.selectivity, log_miss = log_miss_[i];
+  } else {
+    for (const Predicate& p : completed_[i]) {
+      if (IsSubset(p.relations, x)) s *= p.selectivity;
     }
-    const bool l = present[node.left], r = present[node.right];
-    present[i] = l || r;
-    if (!(l && r)) {
-      rows[i] = l ? rows[node.left] : rows[node.right];
-      continue;
-    }
-    double s = 1, log_miss = -std::numeric_limits<double>::infinity();
-    if (node.op >= 0) {
-      if (IsSubset(node.reads, x)) s = node.selectivity, log_miss = log_miss_[i];
-    } else {
-      for (const Predicate& p : completed_[i]) {
-        if (IsSubset(p.relations, x)) s *= p.selectivity;
-      }
-    }
-    rows[i] = Saturate(Combine(node.type, rows[node.left], rows[node.right], s, log_miss));
   }
-  return rows[nodes_.size() - 1];
+  return Saturate(Combine(node.type, l, r, s, log_miss));
+}
+
+double JoinTree::EstimateBelow(int i, RelSet x) const {
+  // A node wholly inside x has its whole estimate; one partly inside
+  // combines its children's (a child outside x gives way to the other).
+  const JoinTreeNode& node = nodes_[i];
+  if (IsSubset(node.set, x)) return whole_[i];
+  const bool l = (nodes_[node.left].set & x) != 0, r = (nodes_[node.right].set & x) != 0;
+  if (!(l && r)) return EstimateBelow(l ? node.left : node.right, x);
+  return Join(i, x, EstimateBelow(node.left, x), EstimateBelow(node.right, x));
+}
+
+double JoinTree::Estimate(RelSet x) const {
+  return EstimateBelow(static_cast<int>(nodes_.size()) - 1, x);
 }
 
 }  // namespace sliceplan

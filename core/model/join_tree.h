@@ -48,6 +48,10 @@ class JoinTree {
 
  private:
   int Build(const Query& query, RelSet x);
+  // Node i's estimate restricted to x. REQUIRES: node i meets x.
+  double EstimateBelow(int i, RelSet x) const;
+  // Node i's join of inputs estimated l and r, restricted to x.
+  double Join(int i, RelSet x, double l, double r) const;
   int Add(JoinTreeNode node);
 
   std::vector<JoinTreeNode> nodes_;
@@ -56,6 +60,7 @@ class JoinTree {
   std::vector<std::vector<Predicate>> completed_;
   std::vector<int> owner_;
   std::vector<double> log_miss_;  // per node: log1p(-selectivity)
+  std::vector<double> whole_;     // per node: its estimate over all it holds
 };
 
 }  // namespace sliceplan

@@ -85,6 +85,7 @@ struct LeftDeepSplits {
   static constexpr bool kScattered = false;
   static constexpr bool kOneWay = true;  // the right input is always the relation
   const JoinGraph& graph;
+  const JoinFilter* joins = nullptr;  // non-inner joins: the prefix must be the left input
 
   template <SearchPolicy Policy>
   bool operator()(const Policy& policy, const DirectMemo& memo, SearchControl&, bool, RelSet set,
@@ -92,6 +93,7 @@ struct LeftDeepSplits {
     for (RelSet rest = set; rest != 0; rest &= rest - 1) {
       const RelSet bit = LowestBit(rest), prefix = set ^ bit;
       if (memo.Contains(prefix) && (graph.Adjacent(bit) & prefix) != 0) {
+        if (joins != nullptr && !joins->conflicts->Fit(prefix, bit, false).forward) continue;
         acc = policy.OfferLeafRight(acc, static_cast<Slot>(prefix), Lowest(bit));
         ++pairs;
       }
@@ -113,10 +115,10 @@ struct LeftDeepSplits {
 template <SearchPolicy Policy>
 absl::Status RunConnectedLeftDeepPull(const JoinGraph& graph, const SliceConstraints& constraints,
                                       Policy& policy, DirectMemo& memo, SearchControl& control,
-                                      SearchStats& stats) {
+                                      SearchStats& stats, const JoinFilter* joins = nullptr) {
   const bool done = connected_pull_internal::SolveWords(
       constraints, policy, memo, control, stats.splits, 0, memo.words().size(),
-      connected_left_deep_internal::LeftDeepSplits{graph});
+      connected_left_deep_internal::LeftDeepSplits{graph, joins});
   return done ? absl::OkStatus() : control.status();
 }
 

@@ -23,6 +23,7 @@
 #include "absl/status/status.h"
 #include "core/graph/set_ccp_walk.h"
 #include "core/memo/direct_memo.h"
+#include "core/search/join_filter.h"
 #include "core/search/level_threads.h"
 #include "core/search/search_control.h"
 #include "core/search/search_policy.h"
@@ -52,6 +53,7 @@ typename Policy::Acc OfferBoth(const Policy& policy, typename Policy::Acc a, Rel
 struct EverySplit {
   static constexpr bool kScattered = false;
   static constexpr bool kOneWay = false;  // a split offered both ways counts twice
+  const JoinFilter* joins = nullptr;      // non-inner joins: each split as it allows
   // Offers `set`'s splits whose parts are both in `memo` into acc,
   // counting them in `pairs`. False once `control` stopped. (`sliced`:
   // the memo may lack connected sets; the bits are tested either way.)
@@ -65,6 +67,7 @@ struct EverySplit {
     const auto test = [&](typename Policy::Acc a, RelSet x) {
       const RelSet left = x | lowest, right = set ^ left;
       if (memo.Contains(left) && memo.Contains(right)) {
+        if (joins != nullptr) return OfferJoined(policy, a, left, right, *joins, pairs);
         a = OfferBoth(policy, a, left, right);
         ++pairs;
       }
@@ -108,6 +111,7 @@ struct WalkedSplits {
   static constexpr bool kScattered = true;
   static constexpr bool kOneWay = false;
   const SetCcpWalk& walk;
+  const JoinFilter* joins = nullptr;  // non-inner joins: each pair as it allows
 
   template <SearchPolicy Policy>
   bool operator()(const Policy& policy, const DirectMemo& memo, SearchControl& control, bool sliced,
@@ -115,8 +119,12 @@ struct WalkedSplits {
     auto a = acc;
     uint64_t offered = 0, walked = 0;
     const bool done = walk.ForEach(set, [&](RelSet left, RelSet right) {
-      // Unsliced, every connected set has a plan: no bit to test.
-      if (!sliced || (memo.Contains(left) && memo.Contains(right))) {
+      // Unsliced and inner, every connected set has a plan: no bit to test.
+      if (joins != nullptr) {
+        if (memo.Contains(left) && memo.Contains(right)) {
+          a = OfferJoined(policy, a, left, right, *joins, offered);
+        }
+      } else if (!sliced || (memo.Contains(left) && memo.Contains(right))) {
         a = OfferBoth(policy, a, left, right);
         ++offered;
       }
@@ -186,11 +194,12 @@ bool SolveWords(const SliceConstraints& constraints, Policy& policy, DirectMemo&
 template <SearchPolicy Policy>
 bool SolveWordsFrom(const SetCcpWalk* walk, const SliceConstraints& constraints, Policy& policy,
                     DirectMemo& memo, SearchControl& control, uint64_t& splits, size_t first,
-                    size_t last) {
+                    size_t last, const JoinFilter* joins) {
   if (walk != nullptr) {
-    return SolveWords(constraints, policy, memo, control, splits, first, last, WalkedSplits{*walk});
+    return SolveWords(constraints, policy, memo, control, splits, first, last,
+                      WalkedSplits{*walk, joins});
   }
-  return SolveWords(constraints, policy, memo, control, splits, first, last, EverySplit{});
+  return SolveWords(constraints, policy, memo, control, splits, first, last, EverySplit{joins});
 }
 
 }  // namespace connected_pull_internal
@@ -204,9 +213,9 @@ bool SolveWordsFrom(const SetCcpWalk* walk, const SliceConstraints& constraints,
 template <SearchPolicy Policy>
 absl::Status RunConnectedPull(const SliceConstraints& constraints, Policy& policy, DirectMemo& memo,
                               SearchControl& control, SearchStats& stats,
-                              const SetCcpWalk* walk = nullptr) {
+                              const SetCcpWalk* walk = nullptr, const JoinFilter* joins = nullptr) {
   const bool done = connected_pull_internal::SolveWordsFrom(
-      walk, constraints, policy, memo, control, stats.splits, 0, memo.words().size());
+      walk, constraints, policy, memo, control, stats.splits, 0, memo.words().size(), joins);
   return done ? absl::OkStatus() : control.status();
 }
 
@@ -219,7 +228,8 @@ template <SearchPolicy Policy>
 absl::Status RunConnectedPullThreaded(int n, const SliceConstraints& constraints, Policy& policy,
                                       DirectMemo& memo, const SearchControl& control,
                                       SearchStats& stats, int threads,
-                                      const SetCcpWalk* walk = nullptr) {
+                                      const SetCcpWalk* walk = nullptr,
+                                      const JoinFilter* joins = nullptr) {
   static_assert(Policy::kParallelDense);
   int h = 0;  // prefix bits per item
   while (h < n - 6 && (uint64_t{1} << h) < 256 * static_cast<uint64_t>(threads)) ++h;
@@ -231,7 +241,7 @@ absl::Status RunConnectedPullThreaded(int n, const SliceConstraints& constraints
         if (Size(prefix) != level) return true;
         return connected_pull_internal::SolveWordsFrom(walk, constraints, policy, memo, ctl,
                                                        splits[t], prefix << word_bits,
-                                                       (prefix + 1) << word_bits);
+                                                       (prefix + 1) << word_bits, joins);
       });
   for (uint64_t s : splits) stats.splits += s;
   return status;

@@ -16,24 +16,16 @@
 
 #include "absl/status/status.h"
 #include "core/graph/ccp_walk.h"
-#include "core/graph/join_conflicts.h"
 #include "core/graph/join_graph.h"
 #include "core/memo/connected_memo.h"
 #include "core/model/cardinality.h"
+#include "core/search/join_filter.h"
 #include "core/search/search_control.h"
 #include "core/search/search_policy.h"
 #include "core/search/search_stats.h"
 #include "core/slicing/slice_constraints.h"
 
 namespace sliceplan {
-
-// Non-inner joins: each pair is joined as the detector says, in the orders
-// it allows (left-deep: with a single relation on the right).
-struct JoinFilter {
-  const JoinConflicts* conflicts;
-  bool cross_products;
-  bool left_deep;
-};
 
 // One run of DPhyp into `policy` and `memo` (both empty; a direct memo's
 // policy already sized). Single use.
