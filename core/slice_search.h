@@ -273,18 +273,18 @@ class SliceSearch {
   // Sets pulled in mask order: every split tested (left-deep: every
   // (S \ {r}, r)), or (walk given) each set's csg-cmp pairs walked.
   absl::Status RunPulled(const JoinGraph& graph, DirectMemo& memo, SearchControl& control,
-                         const SetCcpWalk* walk) {
+                         const SetCcpWalk* walk, const JoinFilter* joins = nullptr) {
     if (options_.shape == PlanShape::kLeftDeep) {
-      return RunConnectedLeftDeepPull(graph, connected_constraints_, policy_, memo, control,
-                                      stats_);
+      return RunConnectedLeftDeepPull(graph, connected_constraints_, policy_, memo, control, stats_,
+                                      joins);
     }
     if constexpr (Policy::kParallelDense) {
       if (working_.size() >= 7 && Threaded(memo.slot_count())) {
         return RunConnectedPullThreaded(working_.size(), connected_constraints_, policy_, memo,
-                                        control, stats_, options_.threads, walk);
+                                        control, stats_, options_.threads, walk, joins);
       }
     }
-    return RunConnectedPull(connected_constraints_, policy_, memo, control, stats_, walk);
+    return RunConnectedPull(connected_constraints_, policy_, memo, control, stats_, walk, joins);
   }
 
   template <class Memo>
@@ -351,7 +351,7 @@ class SliceSearch {
       if constexpr (!Memo::kGrows) policy_.Resize(memo.slot_count());
       if constexpr (std::is_same_v<Memo, DirectMemo>) {
         if (pulled) {
-          status = RunPulledJoins(graph, memo, control, walk ? &*walk : nullptr, filter);
+          status = RunPulled(graph, memo, control, walk ? &*walk : nullptr, &filter);
           return;
         }
       }
@@ -363,23 +363,6 @@ class SliceSearch {
     stats_.memo_bytes = memo_->direct() ? DirectBytes() + (graph_sets ? graph_sets->bytes() : 0)
                                         : memo_->size() * kHashBytesPerSet;
     return status;
-  }
-
-  // RunPulled for a query with non-inner joins: each split through the
-  // detector.
-  absl::Status RunPulledJoins(const JoinGraph& graph, DirectMemo& memo, SearchControl& control,
-                              const SetCcpWalk* walk, const JoinFilter& filter) {
-    if (options_.shape == PlanShape::kLeftDeep) {
-      return RunConnectedLeftDeepPull(graph, connected_constraints_, policy_, memo, control, stats_,
-                                      &filter);
-    }
-    if constexpr (Policy::kParallelDense) {
-      if (working_.size() >= 7 && Threaded(memo.slot_count())) {
-        return RunConnectedPullThreaded(working_.size(), connected_constraints_, policy_, memo,
-                                        control, stats_, options_.threads, walk, &filter);
-      }
-    }
-    return RunConnectedPull(connected_constraints_, policy_, memo, control, stats_, walk, &filter);
   }
 
   // Gives every join of `plan` (the search's numbering) its type, with
