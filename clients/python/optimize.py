@@ -14,7 +14,14 @@ import os
 import sys
 import tempfile
 
-from grpc_tools import protoc
+try:
+    from grpc_tools import protoc
+except ImportError:
+    # Debian's python3-grpcio and python3-grpc-tools are for Debian's own
+    # python3; another python3 first on PATH (a pyenv, a venv) lacks them.
+    if os.path.exists("/usr/bin/python3") and sys.executable != "/usr/bin/python3":
+        os.execv("/usr/bin/python3", ["/usr/bin/python3"] + sys.argv)
+    raise
 
 PROTO_DIR = os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "..", "proto")
 

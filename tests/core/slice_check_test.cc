@@ -116,3 +116,53 @@ TEST(SliceCheckTest, ACrossProductIsCaughtWhereTheyAreExcluded) {
 
 }  // namespace
 }  // namespace sliceplan
+
+namespace sliceplan {
+namespace {
+
+// A query with non-inner joins: true answers of every slice pass; a join
+// given the wrong type or its preserved side put on the right is caught,
+// and so is a left join claimed in an inner-only query.
+TEST(SliceCheckTest, JoinTypesAreCheckedAgainstTheOriginalTree) {
+  auto base = Query::Create({{"a", 100}, {"b", 50}, {"c", 20}, {"d", 30}},
+                            {{0b0011, 0.01}, {0b1001, 0.02}});
+  ASSERT_TRUE(base.ok());
+  // (a b d) LEFT c on b = c
+  auto q = base->WithJoins({{JoinType::kLeft, 0b1011, 0b0100, 0b0110, 0.1}});
+  ASSERT_TRUE(q.ok()) << q.status();
+  SearchOptions options;
+  options.cross_products = false;
+  for (uint32_t p : {1u, 2u}) {
+    for (uint32_t i = 0; i < p; ++i) {
+      const SliceResult r = Solve(*q, options, SliceSpec{i, p});
+      EXPECT_EQ(Refusal(*q, options, r), "accepted") << i << " of " << p;
+    }
+  }
+  SliceResult r = Solve(*q, options, SliceSpec{0, 1});
+  ASSERT_TRUE(r.plan);
+  Plan& plan = *r.plan;
+  int left = -1;
+  for (size_t i = 0; i < plan.nodes.size(); ++i) {
+    if (plan.nodes[i].type == JoinType::kLeft) left = static_cast<int>(i);
+  }
+  ASSERT_GE(left, 0);
+  SliceResult wrong_type = r;
+  wrong_type.plan->nodes[left].type = JoinType::kSemi;
+  EXPECT_NE(Refusal(*q, options, wrong_type).find("is no semi join the original tree allows"),
+            std::string::npos);
+  SliceResult swapped = r;
+  std::swap(swapped.plan->nodes[left].left, swapped.plan->nodes[left].right);
+  EXPECT_NE(Refusal(*q, options, swapped).find("is no left join the original tree allows"),
+            std::string::npos);
+  // The inner-only query (c joins nothing there: cross products on): a
+  // node claimed as a left join.
+  options.cross_products = true;
+  SliceResult inner = Solve(*base, options, SliceSpec{0, 1});
+  ASSERT_TRUE(inner.plan);
+  inner.plan->nodes.back().type = JoinType::kLeft;
+  EXPECT_NE(Refusal(*base, options, inner).find("the query has inner joins only"),
+            std::string::npos);
+}
+
+}  // namespace
+}  // namespace sliceplan
