@@ -1,6 +1,9 @@
 #include "templates/plan_set.h"
 
+#include <optional>
+
 #include "absl/strings/str_cat.h"
+#include "core/graph/join_conflicts.h"
 #include "core/model/json_text.h"
 #include "core/model/status_macros.h"
 #include "google/protobuf/struct.pb.h"
@@ -47,6 +50,26 @@ absl::StatusOr<Plan> PlanFrom(const google::protobuf::ListValue& nodes, int n, i
     return Bad(absl::StrCat("plans[", p, "]: not a tree over the template's relations"));
   }
   return plan;
+}
+
+// A template with outer, semi or anti joins: each stored join gets the
+// type the original tree gives it there (the file keeps the preserved
+// input first); a join no equivalent tree has there is refused.
+absl::Status TypeJoins(const Query& query, int p, Plan& plan) {
+  if (!query.has_joins()) return absl::OkStatus();
+  const JoinConflicts conflicts(query);
+  for (size_t i = 0; i < plan.nodes.size(); ++i) {
+    PlanNode& node = plan.nodes[i];
+    if (node.is_leaf()) continue;
+    const JoinFit fit =
+        conflicts.Fit(plan.nodes[node.left].relations, plan.nodes[node.right].relations, true);
+    if (!fit.forward) {
+      return Bad(absl::StrCat("plans[", p, "].nodes[", i,
+                              "]: no tree equivalent to the template's joins has this join"));
+    }
+    node.type = fit.type;
+  }
+  return absl::OkStatus();
 }
 
 }  // namespace
@@ -120,6 +143,7 @@ absl::StatusOr<PlanSet> ParsePlanSet(std::string_view json) {
       return Bad(absl::StrCat("plans[", p, "]: nodes and worst_ratio expected"));
     }
     ASSIGN_OR_RETURN(Plan plan, PlanFrom(nodes->second.list_value(), lowest.size(), p));
+    RETURN_IF_ERROR(TypeJoins(lowest, p, plan));
     prepared.plans.push_back(std::move(plan));
     prepared.plan_worst.push_back(worst->second.number_value());
   }

@@ -10,6 +10,7 @@
 #include <string>
 
 #include "core/plan_cover.h"
+#include "core/slice_solver.h"
 #include "gtest/gtest.h"
 #include "templates/plan_set.h"
 #include "tests/support/reference_dp.h"
@@ -156,6 +157,55 @@ TEST(TemplatePrepareTest, BadTemplatesAndValuesAreRefusedByName) {
   EXPECT_EQ(value_refusal({{"berth_rows", 100}, {"since", 0.01}, {"draft", 1}}),
             "--set: unknown parameter \"draft\"");
   EXPECT_EQ(value_refusal({{"berth_rows", 100}, {"since", 0.01}}), "accepted");
+}
+
+}  // namespace
+}  // namespace sliceplan
+
+namespace sliceplan {
+namespace {
+
+// A template with a semi and an anti join: the stored plans keep their
+// join types through the plan set file, and the plan chosen at a point
+// costs the exact optimum there (one distinct optimum on this grid).
+TEST(TemplatePrepareTest, JoinsKeepTheirTypesThroughThePlanSet) {
+  auto t = QueryTemplate::Parse(R"({
+    "parameters": [{"name": "alarms", "min": 100, "max": 1e6}],
+    "relations": [{"name": "vessels", "rows": 6500}, {"name": "alarms", "rows": {"parameter": "alarms"}},
+                  {"name": "voyages", "rows": 420000}, {"name": "berths", "rows": 14000},
+                  {"name": "bookings", "rows": 20000}],
+    "predicates": [{"relations": ["voyages", "vessels"], "selectivity": 1.5e-4},
+                   {"relations": ["voyages", "berths"], "selectivity": 7.1e-5}],
+    "joins": [{"type": "semi", "left": ["vessels"], "right": ["alarms"],
+               "predicate": {"relations": ["vessels", "alarms"], "selectivity": 1.5e-4}},
+              {"type": "anti", "left": ["berths"], "right": ["bookings"],
+               "predicate": {"relations": ["berths", "bookings"], "selectivity": 7.1e-5}}]})");
+  ASSERT_TRUE(t.ok()) << t.status();
+  PrepareOptions options;
+  options.grid = 4;
+  auto prepared = PrepareTemplate(*t, options);
+  ASSERT_TRUE(prepared.ok()) << prepared.status();
+  auto back = ParsePlanSet(PlanSetJson(*t, *prepared));
+  ASSERT_TRUE(back.ok()) << back.status();
+  for (size_t p = 0; p < prepared->plans.size(); ++p) {
+    int semi = 0, anti = 0;
+    for (size_t i = 0; i < prepared->plans[p].nodes.size(); ++i) {
+      EXPECT_EQ(back->prepared.plans[p].nodes[i].type, prepared->plans[p].nodes[i].type);
+      semi += back->prepared.plans[p].nodes[i].type == JoinType::kSemi;
+      anti += back->prepared.plans[p].nodes[i].type == JoinType::kAnti;
+    }
+    EXPECT_EQ(semi, 1);
+    EXPECT_EQ(anti, 1);
+  }
+  const std::vector<double> values = {5000};
+  auto choice = ChooseStoredPlan(back->query_template, back->prepared, values, false);
+  ASSERT_TRUE(choice.ok()) << choice.status();
+  auto at = t->At(values);
+  ASSERT_TRUE(at.ok());
+  SearchControl control;
+  auto exact = SolveSlice(*at, SearchOptions{}, SliceSpec{0, 1}, control);
+  ASSERT_TRUE(exact.ok() && exact->plan);
+  EXPECT_NEAR(choice->plan.root().cost, exact->plan->root().cost, 1e-9 * exact->plan->root().cost);
 }
 
 }  // namespace
