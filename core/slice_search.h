@@ -206,9 +206,23 @@ class SliceSearch {
   }
 
   absl::Status RunConnected(SearchControl& control) {
-    const JoinGraph graph(working_);
-    ConnectedStrategy strategy = ChooseConnectedStrategy(
-        working_, graph, options_.shape, kPolicyBytesPerSet, options_.memo_limit_bytes, wanted_);
+    return RunConnectedOn(working_, nullptr, std::nullopt, control);
+  }
+
+  // The connected-sets search over the graph of `graph_query`'s predicates
+  // (the query's own, or with non-inner joins every predicate), each split
+  // through `joins` when given; `method` forced, else chosen by
+  // ChooseConnectedStrategy.
+  absl::Status RunConnectedOn(const Query& graph_query, const JoinFilter* joins,
+                              std::optional<ConnectedMethod> method, SearchControl& control) {
+    const JoinGraph graph(graph_query);
+    ConnectedStrategy strategy;
+    if (method) {
+      strategy.method = *method;
+    } else {
+      strategy = ChooseConnectedStrategy(graph_query, graph, options_.shape, kPolicyBytesPerSet,
+                                         options_.memo_limit_bytes, wanted_);
+    }
     method_ = strategy.method;
     const bool pulled = strategy.method == ConnectedMethod::kPullEverySplit ||
                         strategy.method == ConnectedMethod::kPullSetCcps;
@@ -233,7 +247,7 @@ class SliceSearch {
     }
     constexpr bool kCanLeaveUnfilled = requires(Policy & p) { p.LeaveUnfilled(); };
     if constexpr (kCanLeaveUnfilled) {
-      if (pulled) policy_.LeaveUnfilled();
+      if (pulled && joins == nullptr) policy_.LeaveUnfilled();
     }
     // A slice touches only its admissible blocks (MakeLayout): no huge
     // page may make the others resident.
@@ -243,11 +257,11 @@ class SliceSearch {
       if constexpr (!Memo::kGrows) policy_.Resize(memo.slot_count());
       if constexpr (std::is_same_v<Memo, DirectMemo>) {
         if (pulled) {
-          status = RunPulled(graph, memo, control, walk ? &*walk : nullptr);
+          status = RunPulled(graph, memo, control, walk ? &*walk : nullptr, joins);
           return;
         }
       }
-      status = RunPushed(graph, memo, control);
+      status = RunPushed(graph, memo, control, joins);
     });
     stats_.memo_entries = memo_->size();
     // (The walk's copy of the connected sets' bits counts too.)
@@ -287,20 +301,23 @@ class SliceSearch {
     return RunConnectedPull(connected_constraints_, policy_, memo, control, stats_, walk, joins);
   }
 
+  // DPhyp (with non-inner joins, for either shape: the filter keeps
+  // left-deep pairs), or the left-deep push.
   template <class Memo>
-  absl::Status RunPushed(const JoinGraph& graph, Memo& memo, SearchControl& control) {
-    if (options_.shape == PlanShape::kBushy) {
+  absl::Status RunPushed(const JoinGraph& graph, Memo& memo, SearchControl& control,
+                         const JoinFilter* joins = nullptr) {
+    if (options_.shape == PlanShape::kBushy || joins != nullptr) {
       return ConnectedPush<Policy, Memo>(working_.size(), graph, card_, connected_constraints_,
-                                         policy_, memo, control, stats_)
+                                         policy_, memo, control, stats_, joins)
           .Run();
     }
     return RunConnectedLeftDeep(working_.size(), graph, card_, connected_constraints_, policy_,
                                 memo, control, stats_);
   }
 
-  // A query with non-inner joins: DPhyp over the join graph (with cross
-  // products, over the complete graph), each pair joined as the conflict
-  // detector says (docs/joins.md); one thread.
+  // A query with non-inner joins: the connected-sets search over the graph
+  // of all predicates (with cross products, over the complete graph), each
+  // split joined as the conflict detector says (docs/joins.md).
   absl::Status RunWithJoins(SearchControl& control) {
     const int n = working_.size();
     std::vector<Predicate> edges(working_.predicates().begin(), working_.predicates().end());
@@ -313,56 +330,18 @@ class SliceSearch {
     std::vector<Relation> rels(working_.relations().begin(), working_.relations().end());
     auto walk_query = Query::Create(std::move(rels), std::move(edges));
     if (!walk_query.ok()) return walk_query.status();
-    const JoinGraph graph(*walk_query);
     const JoinFilter filter{&*conflicts_, options_.cross_products,
                             options_.shape == PlanShape::kLeftDeep};
-    // Connected-only: the strategies of the inner search over the graph of
-    // all predicates; with cross products, DPhyp over the complete graph.
-    ConnectedStrategy strategy;
+    // With cross products, DPhyp over the complete graph (direct memo when
+    // it fits); connected-only, the inner search's own strategies.
+    std::optional<ConnectedMethod> method;
     if (options_.cross_products) {
-      strategy.method =
+      method =
           TakesDirectMemo(n, std::ldexp(1.0, n), kPolicyBytesPerSet, options_.memo_limit_bytes, 1)
               ? ConnectedMethod::kPushDirect
               : ConnectedMethod::kPushHashed;
-    } else {
-      strategy = ChooseConnectedStrategy(*walk_query, graph, options_.shape, kPolicyBytesPerSet,
-                                         options_.memo_limit_bytes, wanted_);
     }
-    method_ = strategy.method;
-    const bool pulled = strategy.method == ConnectedMethod::kPullEverySplit ||
-                        strategy.method == ConnectedMethod::kPullSetCcps;
-    std::optional<DirectMemo> graph_sets;
-    std::optional<SetCcpWalk> walk;
-    if (strategy.method == ConnectedMethod::kPullSetCcps) {
-      walk.emplace(n, graph, graph_sets.emplace(*strategy.connected));
-    }
-    if (strategy.method == ConnectedMethod::kPushHashed) {
-      memo_.emplace(HashMemo(options_.memo_limit_bytes / kHashBytesPerSet));
-    } else {
-      memo_.emplace(strategy.connected ? std::move(*strategy.connected) : DirectMemo(n));
-    }
-    if constexpr (ScatteredLayout<Policy>) {
-      if (strategy.method != ConnectedMethod::kPullEverySplit) policy_.UseScatteredLayout();
-    }
-    std::optional<SmallPagesScope> small_pages;
-    if (layout_) small_pages.emplace();
-    absl::Status status;
-    memo_->Visit([&]<class Memo>(Memo& memo) {
-      if constexpr (!Memo::kGrows) policy_.Resize(memo.slot_count());
-      if constexpr (std::is_same_v<Memo, DirectMemo>) {
-        if (pulled) {
-          status = RunPulled(graph, memo, control, walk ? &*walk : nullptr, &filter);
-          return;
-        }
-      }
-      status = ConnectedPush<Policy, Memo>(n, graph, card_, connected_constraints_, policy_, memo,
-                                           control, stats_, &filter)
-                   .Run();
-    });
-    stats_.memo_entries = memo_->size();
-    stats_.memo_bytes = memo_->direct() ? DirectBytes() + (graph_sets ? graph_sets->bytes() : 0)
-                                        : memo_->size() * kHashBytesPerSet;
-    return status;
+    return RunConnectedOn(*walk_query, &filter, method, control);
   }
 
   // Gives every join of `plan` (the search's numbering) its type, with

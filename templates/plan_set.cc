@@ -55,9 +55,7 @@ absl::StatusOr<Plan> PlanFrom(const google::protobuf::ListValue& nodes, int n, i
 // A template with outer, semi or anti joins: each stored join gets the
 // type the original tree gives it there (the file keeps the preserved
 // input first); a join no equivalent tree has there is refused.
-absl::Status TypeJoins(const Query& query, int p, Plan& plan) {
-  if (!query.has_joins()) return absl::OkStatus();
-  const JoinConflicts conflicts(query);
+absl::Status TypeJoins(const JoinConflicts& conflicts, int p, Plan& plan) {
   for (size_t i = 0; i < plan.nodes.size(); ++i) {
     PlanNode& node = plan.nodes[i];
     if (node.is_leaf()) continue;
@@ -135,6 +133,8 @@ absl::StatusOr<PlanSet> ParsePlanSet(std::string_view json) {
   if (plans == nullptr || !plans->has_list_value() || plans->list_value().values_size() == 0) {
     return Bad("plans: missing or empty");
   }
+  std::optional<JoinConflicts> conflicts;  // built once, for every plan
+  if (lowest.has_joins()) conflicts.emplace(lowest);
   for (int p = 0; p < plans->list_value().values_size(); ++p) {
     const auto& entry = plans->list_value().values(p).struct_value().fields();
     const auto nodes = entry.find("nodes");
@@ -143,7 +143,7 @@ absl::StatusOr<PlanSet> ParsePlanSet(std::string_view json) {
       return Bad(absl::StrCat("plans[", p, "]: nodes and worst_ratio expected"));
     }
     ASSIGN_OR_RETURN(Plan plan, PlanFrom(nodes->second.list_value(), lowest.size(), p));
-    RETURN_IF_ERROR(TypeJoins(lowest, p, plan));
+    if (conflicts) RETURN_IF_ERROR(TypeJoins(*conflicts, p, plan));
     prepared.plans.push_back(std::move(plan));
     prepared.plan_worst.push_back(worst->second.number_value());
   }

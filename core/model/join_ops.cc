@@ -89,42 +89,31 @@ std::string ReadsHidden(std::span<const Relation> relations, const JoinOp& o, si
 
 }  // namespace
 
-const char* JoinTypeName(JoinType type) {
-  switch (type) {
-    case JoinType::kInner:
-      return "inner";
-    case JoinType::kLeft:
-      return "left";
-    case JoinType::kFull:
-      return "full";
-    case JoinType::kSemi:
-      return "semi";
-    case JoinType::kAnti:
-      return "anti";
-  }
-  return "inner";
-}
+// By JoinType: the spelling and the tree string's keyword.
+constexpr struct {
+  JoinType type;
+  const char* name;
+  const char* keyword;
+} kSpellings[] = {{JoinType::kInner, "inner", ""},
+                  {JoinType::kLeft, "left", "LEFT"},
+                  {JoinType::kFull, "full", "FULL"},
+                  {JoinType::kSemi, "semi", "SEMI"},
+                  {JoinType::kAnti, "anti", "ANTI"}};
 
-const char* JoinTypeKeyword(JoinType type) {
-  switch (type) {
-    case JoinType::kInner:
-      return "";
-    case JoinType::kLeft:
-      return "LEFT";
-    case JoinType::kFull:
-      return "FULL";
-    case JoinType::kSemi:
-      return "SEMI";
-    case JoinType::kAnti:
-      return "ANTI";
+static_assert([] {
+  for (int i = 0; i < 5; ++i) {
+    if (static_cast<int>(kSpellings[i].type) != i) return false;
   }
-  return "";
-}
+  return true;
+}());
+
+const char* JoinTypeName(JoinType type) { return kSpellings[static_cast<int>(type)].name; }
+
+const char* JoinTypeKeyword(JoinType type) { return kSpellings[static_cast<int>(type)].keyword; }
 
 std::optional<JoinType> ParseJoinType(absl::string_view name) {
-  for (JoinType t :
-       {JoinType::kInner, JoinType::kLeft, JoinType::kFull, JoinType::kSemi, JoinType::kAnti}) {
-    if (name == JoinTypeName(t)) return t;
+  for (const auto& s : kSpellings) {
+    if (name == s.name) return s.type;
   }
   return std::nullopt;
 }
