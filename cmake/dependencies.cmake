@@ -7,6 +7,8 @@ find_package(gRPC REQUIRED CONFIG)
 find_package(OpenSSL REQUIRED)
 find_package(spdlog REQUIRED CONFIG)
 find_package(prometheus-cpp REQUIRED CONFIG)
+# The coordinator's plan store (templates/plan_store.h).
+find_package(SQLite3 REQUIRED)
 # The command line of `sliceplan`: subcommands, generated help (cli/command_table.h).
 find_package(CLI11 REQUIRED CONFIG)
 find_package(GTest CONFIG)

@@ -177,7 +177,31 @@ absl::Status CheckFrontierSize(const TieredOutcome& outcome, const InputLimits& 
   return absl::OkStatus();
 }
 
+// One grid point's optimum on the pool: a single slice, scheduled like
+// any other (retries, hedges, the answer checked).
+PointSolver PoolPointSolver(std::span<SliceWorker* const> workers,
+                            const ScheduleOptions& schedule) {
+  return [workers, schedule](const Query& q, const SearchOptions& options) -> absl::StatusOr<Plan> {
+    ASSIGN_OR_RETURN(ScheduleOutcome outcome, RunSlices(q, options, 1, workers, schedule));
+    if (outcome.result.plan.nodes.empty()) {
+      return absl::NotFoundError("no plan joins all relations without a cross product");
+    }
+    return std::move(outcome.result.plan);
+  };
+}
+
 }  // namespace
+
+CoordinatorService::CoordinatorService(WorkerPool& pool, const CoordinatorConfig& config,
+                                       std::unique_ptr<TemplateDesk> templates)
+    : pool_(pool),
+      config_(config),
+      admission_(config.max_concurrent_requests, config.max_queued_requests),
+      metrics_(pool, admission_),
+      templates_(templates != nullptr ? std::move(templates)
+                                      : std::move(TemplateDesk::Open(nullptr, {})).value()) {
+  if (config.tokens) tokens_ = std::make_shared<const BearerTokens>(*config.tokens);
+}
 
 absl::StatusOr<TieredOutcome> CoordinatorService::Search(
     grpc::ServerContext* context, const v1::OptimizeRequest& request, const std::string& request_id,
@@ -358,6 +382,82 @@ grpc::Status CoordinatorService::ListWorkers(grpc::ServerContext* context,
     s->set_failures(c.failures);
     s->set_last_error(c.last_error);
   }
+  return grpc::Status::OK;
+}
+
+}  // namespace sliceplan
+
+namespace sliceplan {
+
+absl::StatusOr<v1::PrepareTemplateResult> CoordinatorService::Prepare(
+    grpc::ServerContext* context, const v1::PrepareTemplateRequest& request,
+    const std::function<void(size_t, size_t)>& on_progress) {
+  RETURN_IF_ERROR(Authenticate(*context));
+  ASSIGN_OR_RETURN(const double seconds,
+                   AllowedSeconds(request.deadline_seconds(), config_.limits.max_deadline_seconds));
+  Clock::time_point deadline = SteadyAfter(seconds);
+  if (const auto call = CallDeadline(context); call && *call - config_.deadline_margin < deadline) {
+    deadline = *call - config_.deadline_margin;
+  }
+  std::optional<Admission::Ticket> ticket;
+  RETURN_IF_ERROR(admission_.Enter(
+      deadline, [context] { return context->IsCancelled(); }, ticket));
+  const std::vector<std::shared_ptr<RpcWorker>> pool = pool_.Workers();
+  RequestFacts facts;
+  const std::vector<SliceWorker*> workers = WorkersForSearch(pool, 0, facts);
+  ScheduleOptions schedule;
+  if (config_.hedge_after) schedule.hedge_after = *config_.hedge_after;
+  schedule.deadline = deadline;
+  schedule.cancelled = [context] { return context->IsCancelled(); };
+  schedule.request_id = RequestIdOf(*context);
+  return templates_->Prepare(request, config_.limits, PoolPointSolver(workers, schedule),
+                             std::max(1, facts.concurrent_slices), on_progress);
+}
+
+grpc::Status CoordinatorService::PrepareTemplate(
+    grpc::ServerContext* context, const v1::PrepareTemplateRequest* request,
+    grpc::ServerWriter<v1::PrepareTemplateEvent>* writer) {
+  const auto start = Clock::now();
+  const std::string request_id = RequestIdOf(*context);
+  context->AddInitialMetadata(kRequestIdKey, request_id);
+  // Called under the prepare's own lock: one write at a time.
+  Clock::time_point last_sent = start;
+  auto result = Prepare(context, *request, [&](size_t done, size_t total) {
+    const auto now = Clock::now();
+    if (done != total && now - last_sent < kPrepareProgressEvery) return;
+    last_sent = now;
+    v1::PrepareTemplateEvent event;
+    v1::PrepareProgress* p = event.mutable_progress();
+    p->set_points_done(done);
+    p->set_grid_points(total);
+    p->set_elapsed_seconds(std::chrono::duration<double>(now - start).count());
+    writer->Write(event);
+  });
+  LogEvent line("prepare_template");
+  line.Add("request_id", request_id).Add("outcome", OutcomeLabel(result.status()));
+  if (result.ok()) {
+    line.Add("template_id", result->template_id())
+        .Add("grid_points", result->report().grid_points())
+        .Add("stored_plans", result->report().stored_plans());
+  } else {
+    line.Add("error", std::string(result.status().message()));
+  }
+  line.Add("wall_seconds", std::chrono::duration<double>(Clock::now() - start).count());
+  line.Log(result.ok() ? spdlog::level::info : spdlog::level::warn);
+  if (!result.ok()) return ToGrpc(result.status());
+  v1::PrepareTemplateEvent event;
+  *event.mutable_result() = *std::move(result);
+  writer->Write(event);
+  return grpc::Status::OK;
+}
+
+grpc::Status CoordinatorService::ChooseTemplatePlan(grpc::ServerContext* context,
+                                                    const v1::ChooseTemplatePlanRequest* request,
+                                                    v1::ChooseTemplatePlanResponse* response) {
+  if (auto s = Authenticate(*context); !s.ok()) return ToGrpc(s);
+  auto out = templates_->Choose(*request);
+  if (!out.ok()) return ToGrpc(out.status());
+  *response = *std::move(out);
   return grpc::Status::OK;
 }
 

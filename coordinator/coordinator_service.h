@@ -15,6 +15,7 @@
 #include "absl/synchronization/mutex.h"
 #include "coordinator/admission.h"
 #include "coordinator/coordinator_metrics.h"
+#include "coordinator/template_desk.h"
 #include "coordinator/worker_pool.h"
 #include "core/model/input_limits.h"
 #include "rpc/bearer_tokens.h"
@@ -22,6 +23,8 @@
 #include "sliceplan.grpc.pb.h"
 
 namespace sliceplan {
+
+inline constexpr std::chrono::milliseconds kPrepareProgressEvery{250};
 
 struct CoordinatorConfig {
   // Hedge a slice running this long while a worker has a slice free; none: never.
@@ -54,13 +57,10 @@ struct RequestFacts {
 
 class CoordinatorService final : public v1::Coordinator::Service {
  public:
-  CoordinatorService(WorkerPool& pool, const CoordinatorConfig& config)
-      : pool_(pool),
-        config_(config),
-        admission_(config.max_concurrent_requests, config.max_queued_requests),
-        metrics_(pool, admission_) {
-    if (config.tokens) tokens_ = std::make_shared<const BearerTokens>(*config.tokens);
-  }
+  // `templates`: the prepared queries (with their plan store); null: an
+  // empty desk in memory, with the default limits.
+  CoordinatorService(WorkerPool& pool, const CoordinatorConfig& config,
+                     std::unique_ptr<TemplateDesk> templates = nullptr);
 
   // Replaces the bearer tokens (a re-read token file); calls already
   // admitted are not affected.
@@ -82,6 +82,14 @@ class CoordinatorService final : public v1::Coordinator::Service {
                             v1::CapacityResponse* response) override;
   grpc::Status ListWorkers(grpc::ServerContext* context, const v1::ListWorkersRequest* request,
                            v1::ListWorkersResponse* response) override;
+  // A template's grid optimized on the pool, one slice per point;
+  // progress at most every kPrepareProgressEvery, then the stored id.
+  grpc::Status PrepareTemplate(grpc::ServerContext* context,
+                               const v1::PrepareTemplateRequest* request,
+                               grpc::ServerWriter<v1::PrepareTemplateEvent>* writer) override;
+  grpc::Status ChooseTemplatePlan(grpc::ServerContext* context,
+                                  const v1::ChooseTemplatePlanRequest* request,
+                                  v1::ChooseTemplatePlanResponse* response) override;
 
  private:
   // UNAUTHENTICATED when tokens are configured and the call has none of them.
@@ -101,10 +109,16 @@ class CoordinatorService final : public v1::Coordinator::Service {
       const std::string& request_id,
       const std::function<void(const ScheduleProgress&)>& on_progress, RequestFacts& facts);
 
+  // Authenticates, admits and prepares one template.
+  absl::StatusOr<v1::PrepareTemplateResult> Prepare(
+      grpc::ServerContext* context, const v1::PrepareTemplateRequest& request,
+      const std::function<void(size_t, size_t)>& on_progress);
+
   WorkerPool& pool_;
   const CoordinatorConfig config_;
   Admission admission_;
   CoordinatorMetrics metrics_;
+  const std::unique_ptr<TemplateDesk> templates_;
   mutable absl::Mutex tokens_mu_;
   std::shared_ptr<const BearerTokens> tokens_ ABSL_GUARDED_BY(tokens_mu_);
 };

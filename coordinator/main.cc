@@ -6,6 +6,7 @@
 #include <vector>
 
 #include "absl/flags/flag.h"
+#include "absl/strings/str_cat.h"
 #include "coordinator/coordinator_service.h"
 #include "coordinator/worker_pool.h"
 #include "rpc/serve.h"
@@ -27,6 +28,11 @@ ABSL_FLAG(double, default_budget_seconds, 10,
 ABSL_FLAG(int, max_concurrent_requests, 16, "requests run at once");
 ABSL_FLAG(int, max_queued_requests, 64,
           "requests that may wait for a place; more are refused with RESOURCE_EXHAUSTED");
+ABSL_FLAG(std::string, plan_store, "",
+          "SQLite file keeping prepared templates across restarts (created if absent; "
+          "empty: in memory only)");
+ABSL_FLAG(int64_t, max_templates, 1000, "prepared templates kept at once");
+ABSL_FLAG(int64_t, max_grid_points, 4096, "grid points one template prepare optimizes");
 ABSL_FLAG(std::string, token_file, "",
           "bearer tokens, one per line; client calls without one are UNAUTHENTICATED");
 
@@ -71,6 +77,34 @@ absl::StatusOr<sliceplan::CoordinatorConfig> ConfigFromFlags(
   return config;
 }
 
+// The prepared templates: the plan store's, loaded, or an empty desk.
+absl::StatusOr<std::unique_ptr<sliceplan::TemplateDesk>> OpenTemplates() {
+  sliceplan::TemplateLimits limits;
+  const int64_t templates = absl::GetFlag(FLAGS_max_templates);
+  const int64_t points = absl::GetFlag(FLAGS_max_grid_points);
+  if (templates < 1 || templates > 1000000) {
+    return absl::InvalidArgumentError("--max_templates: must be in 1..1000000");
+  }
+  if (points < 1 || points > static_cast<int64_t>(sliceplan::kMaxGridPoints)) {
+    return absl::InvalidArgumentError(
+        absl::StrCat("--max_grid_points: must be in 1..", sliceplan::kMaxGridPoints));
+  }
+  limits.max_templates = static_cast<size_t>(templates);
+  limits.max_grid_points = static_cast<size_t>(points);
+  std::unique_ptr<sliceplan::PlanStore> store;
+  if (const std::string path = absl::GetFlag(FLAGS_plan_store); !path.empty()) {
+    auto opened = sliceplan::PlanStore::Open(path);
+    if (!opened.ok()) return opened.status();
+    store = *std::move(opened);
+  }
+  auto desk = sliceplan::TemplateDesk::Open(std::move(store), limits);
+  if (desk.ok() && !absl::GetFlag(FLAGS_plan_store).empty()) {
+    spdlog::info("coordinator: {} prepared templates loaded from {}", (*desk)->size(),
+                 absl::GetFlag(FLAGS_plan_store));
+  }
+  return desk;
+}
+
 }  // namespace
 
 int main(int argc, char** argv) {
@@ -99,7 +133,9 @@ int main(int argc, char** argv) {
   sliceplan::WorkerPool pool(*entries,
                              std::chrono::milliseconds(absl::GetFlag(FLAGS_health_interval_ms)),
                              tls.any() ? *worker_credentials : nullptr);
-  sliceplan::CoordinatorService service(pool, *config);
+  auto templates = OpenTemplates();
+  if (!templates.ok()) return Refuse(templates.status());
+  sliceplan::CoordinatorService service(pool, *config, *std::move(templates));
   spdlog::info("coordinator: {} worker entries, hedge after {:.1f} s", entries->size(),
                absl::GetFlag(FLAGS_hedge_after_seconds));
   serve.metrics = service.MetricsCollectables();

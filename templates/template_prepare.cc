@@ -3,6 +3,7 @@
 #include <atomic>
 #include <chrono>
 #include <cmath>
+#include <limits>
 #include <map>
 #include <mutex>
 #include <thread>
@@ -58,7 +59,54 @@ absl::Status CheckOptions(const QueryTemplate& t, const PrepareOptions& o, size_
   return absl::OkStatus();
 }
 
+bool HasAntiJoin(const Query& q) {
+  for (const JoinOp& op : q.joins()) {
+    if (op.type == JoinType::kAnti) return true;
+  }
+  return false;
+}
+
+// Each grid point's exact optimum by the search in this process.
+absl::StatusOr<Plan> SolveInProcess(const Query& q, const SearchOptions& search) {
+  SearchControl control;
+  ASSIGN_OR_RETURN(SliceResult r, SolveSlice(q, search, {0, 1}, control));
+  if (!r.plan) return absl::NotFoundError("no plan joins all relations without a cross product");
+  return *std::move(r.plan);
+}
+
+// The bound of PreparedPlans::box_ratio_bound: over the grid's cells, the
+// least over kept plans of their cost at the cell's upper corner over the
+// optimum at its lower corner. costs[p][x] as PointAt numbers x. With no
+// parameter the grid is one point and the bound is its ratio.
+double BoxRatioBound(const std::vector<std::vector<double>>& costs,
+                     const std::vector<double>& optimum,
+                     const std::vector<std::vector<double>>& axes) {
+  const size_t d = axes.size();
+  if (d == 0) return 1;
+  const size_t g = axes[0].size();
+  double worst = 1;
+  // Each cell by its lower corner: every coordinate below g - 1.
+  for (size_t lower = 0; lower < optimum.size(); ++lower) {
+    size_t upper = 0, stride = 1, rest = lower;
+    bool cell = true;
+    for (size_t i = 0; i < d; ++i, stride *= g, rest /= g) {
+      cell = cell && rest % g + 1 < g;
+      upper += (rest % g + 1) * stride;
+    }
+    if (!cell) continue;
+    double best = std::numeric_limits<double>::infinity();
+    for (const auto& plan : costs) best = std::min(best, plan[upper] / optimum[lower]);
+    worst = std::max(worst, best);
+  }
+  return worst;
+}
+
 }  // namespace
+
+PrepareFigures FiguresOf(const PreparedPlans& p) {
+  return {p.plans.size(), p.grid_points,     p.grid,   p.distinct_optima, p.max_ratio,
+          p.worst_ratio,  p.box_ratio_bound, p.seconds};
+}
 
 std::vector<double> GridValues(const TemplateParameter& p, int grid) {
   std::vector<double> out;
@@ -87,17 +135,19 @@ absl::StatusOr<PreparedPlans> PrepareTemplate(const QueryTemplate& t,
   std::vector<std::optional<Plan>> optima(points);
   std::vector<absl::Status> errors(points);
   std::atomic<size_t> next{0}, done{0};
+  std::atomic<bool> failed{false};
+  const PointSolver solve = options.solve_point ? options.solve_point : PointSolver(SolveInProcess);
   std::mutex progress_mu;
   const auto work = [&] {
     for (size_t x; (x = next.fetch_add(1)) < points;) {
-      SearchControl control;
-      auto r = SolveSlice(queries[x], options.search, {0, 1}, control);
-      if (!r.ok()) {
-        errors[x] = r.status();
-      } else if (!r->plan) {
-        errors[x] = absl::NotFoundError("no plan joins all relations without a cross product");
+      // After a point's error the rest is not worth solving.
+      if (failed.load()) break;
+      auto r = solve(queries[x], options.search);
+      if (r.ok()) {
+        optima[x] = *std::move(r);
       } else {
-        optima[x] = std::move(r->plan);
+        errors[x] = r.status();
+        failed.store(true);
       }
       const size_t d = done.fetch_add(1) + 1;
       if (options.on_progress) {
@@ -122,6 +172,7 @@ absl::StatusOr<PreparedPlans> PrepareTemplate(const QueryTemplate& t,
   std::vector<Plan> candidates;
   std::vector<double> optimum(points);
   for (size_t x = 0; x < points; ++x) {
+    if (!optima[x]) return absl::InternalError("a grid point was left unsolved");
     optimum[x] = optima[x]->root().cost;
     if (index.emplace(ShapeKey(*optima[x]), candidates.size()).second) {
       candidates.push_back(*optima[x]);
@@ -141,6 +192,11 @@ absl::StatusOr<PreparedPlans> PrepareTemplate(const QueryTemplate& t,
   for (size_t p : cover.kept) out.plans.push_back(candidates[p]);
   out.plan_worst = cover.kept_worst;
   out.worst_ratio = cover.worst_ratio;
+  std::vector<std::vector<double>> kept_costs;
+  for (size_t p : cover.kept) kept_costs.push_back(costs[p]);
+  if (!HasAntiJoin(queries[0])) {
+    out.box_ratio_bound = std::max(cover.worst_ratio, BoxRatioBound(kept_costs, optimum, axes));
+  }
   out.grid_points = points;
   out.distinct_optima = candidates.size();
   out.seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();

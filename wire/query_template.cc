@@ -182,7 +182,7 @@ absl::StatusOr<Query> QueryTemplate::At(std::span<const double> values) const {
 }
 
 absl::StatusOr<std::vector<double>> QueryTemplate::Values(
-    const std::vector<std::pair<std::string, double>>& named) const {
+    const std::vector<std::pair<std::string, double>>& named, const char* field) const {
   std::vector<double> out(parameters_.size(), 0);
   std::vector<bool> given(parameters_.size(), false);
   for (const auto& [name, value] : named) {
@@ -190,16 +190,17 @@ absl::StatusOr<std::vector<double>> QueryTemplate::Values(
     while (i < parameters_.size() && parameters_[i].name != name) ++i;
     if (i == parameters_.size()) {
       return absl::InvalidArgumentError(
-          absl::StrCat("--set: unknown parameter \"", ShortName(name), "\""));
+          absl::StrCat(field, ": unknown parameter \"", ShortName(name), "\""));
     }
-    if (given[i]) return absl::InvalidArgumentError(absl::StrCat("--set: ", name, " given twice"));
+    if (given[i])
+      return absl::InvalidArgumentError(absl::StrCat(field, ": ", ShortName(name), " given twice"));
     given[i] = true;
     out[i] = value;
   }
   for (size_t i = 0; i < parameters_.size(); ++i) {
     if (!given[i]) {
       return absl::InvalidArgumentError(
-          absl::StrCat("--set: no value for parameter \"", parameters_[i].name, "\""));
+          absl::StrCat(field, ": no value for parameter \"", parameters_[i].name, "\""));
     }
   }
   RETURN_IF_ERROR(CheckRanges(out));

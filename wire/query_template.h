@@ -51,9 +51,9 @@ class QueryTemplate {
   absl::StatusOr<Query> At(std::span<const double> values) const;
   // The values in parameter order from NAME=VALUE pairs. INVALID_ARGUMENT
   // naming an unknown or repeated name, a missing one, or a value outside
-  // its range.
+  // its range, after `field` (the CLI's flag, the RPC's field).
   absl::StatusOr<std::vector<double>> Values(
-      const std::vector<std::pair<std::string, double>>& named) const;
+      const std::vector<std::pair<std::string, double>>& named, const char* field = "--set") const;
 
  private:
   struct Use {

@@ -5,6 +5,7 @@
 // set file round trip; bad templates and values refused by name.
 #include "templates/template_prepare.h"
 
+#include <atomic>
 #include <cmath>
 #include <random>
 #include <string>
@@ -93,12 +94,68 @@ TEST(TemplatePrepareTest, ChooseIsTheCheapestStoredPlanAtRandomPoints) {
     double least = 1e300;
     for (Plan plan : prepared->plans) least = std::min(least, CostPlanOn(plan, *q));
     EXPECT_DOUBLE_EQ(choice->plan.root().cost, least);
-    // Never below the optimum there; typically close to it.
-    EXPECT_GE(choice->plan.root().cost, testing::DpBestBushy(*q, true) * (1 - 1e-12));
+    // Never below the optimum there, and within the bound for the whole
+    // box (the cell-corner argument of docs/templates.md).
+    const double optimum = testing::DpBestBushy(*q, true);
+    EXPECT_GE(choice->plan.root().cost, optimum * (1 - 1e-12));
+    ASSERT_TRUE(prepared->box_ratio_bound.has_value());
+    EXPECT_LE(choice->plan.root().cost, optimum * *prepared->box_ratio_bound * (1 + 1e-12));
   }
+  EXPECT_GE(*prepared->box_ratio_bound, prepared->worst_ratio);
   auto robust = ChooseStoredPlan(t, *prepared, std::vector<double>{100, 1e-3}, true);
   ASSERT_TRUE(robust.ok());
   for (double w : prepared->plan_worst) EXPECT_LE(prepared->plan_worst[robust->index], w);
+}
+
+// The box bound by hand on a one-parameter grid of 2 points: one cell,
+// the optimum at the lower corner and the best kept plan at the upper.
+TEST(TemplatePrepareTest, TheBoxBoundIsTheCellCornerRatio) {
+  auto t = QueryTemplate::Parse(R"({
+    "relations": [{"name": "a", "rows": {"parameter": "n"}}, {"name": "b", "rows": 100},
+                  {"name": "c", "rows": 10}],
+    "predicates": [{"relations": ["a", "b"], "selectivity": 0.01},
+                   {"relations": ["b", "c"], "selectivity": 0.1}],
+    "parameters": [{"name": "n", "min": 10, "max": 1000}]})");
+  ASSERT_TRUE(t.ok()) << t.status();
+  PrepareOptions options;
+  options.grid = 2;
+  options.max_ratio = 1e6;  // keeps one plan
+  auto prepared = PrepareTemplate(*t, options);
+  ASSERT_TRUE(prepared.ok()) << prepared.status();
+  ASSERT_EQ(prepared->plans.size(), 1u);
+  auto low = t->At(std::vector<double>{10}), high = t->At(std::vector<double>{1000});
+  ASSERT_TRUE(low.ok() && high.ok());
+  Plan kept = prepared->plans[0];
+  const double expected = CostPlanOn(kept, *high) / testing::DpBestBushy(*low, true);
+  ASSERT_TRUE(prepared->box_ratio_bound.has_value());
+  EXPECT_DOUBLE_EQ(*prepared->box_ratio_bound, expected);
+}
+
+// A point solver from outside (the coordinator's pool) is what prepare
+// uses; its error ends the prepare, naming the grid point.
+TEST(TemplatePrepareTest, AGivenPointSolverIsUsedAndItsErrorNamesThePoint) {
+  const QueryTemplate t = Yard();
+  PrepareOptions options;
+  options.grid = 3;
+  std::atomic<int> calls{0};
+  options.solve_point = [&](const Query& q, const SearchOptions& o) -> absl::StatusOr<Plan> {
+    ++calls;
+    SearchControl control;
+    auto r = SolveSlice(q, o, {0, 1}, control);
+    if (!r.ok()) return r.status();
+    return *r->plan;
+  };
+  auto prepared = PrepareTemplate(t, options);
+  ASSERT_TRUE(prepared.ok()) << prepared.status();
+  EXPECT_EQ(calls.load(), 9);
+  options.solve_point = [](const Query&, const SearchOptions&) -> absl::StatusOr<Plan> {
+    return absl::UnavailableError("no worker is healthy");
+  };
+  auto failed = PrepareTemplate(t, options);
+  ASSERT_FALSE(failed.ok());
+  EXPECT_EQ(failed.status().code(), absl::StatusCode::kUnavailable);
+  EXPECT_NE(failed.status().message().find("grid point ("), std::string::npos) << failed.status();
+  EXPECT_NE(failed.status().message().find("no worker is healthy"), std::string::npos);
 }
 
 TEST(TemplatePrepareTest, ThePlanSetFileRoundTrips) {
