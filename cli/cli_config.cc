@@ -138,20 +138,6 @@ std::vector<FlagRow> SearchSpaceRows(SearchOptions& search) {
   };
 }
 
-// --tls-ca, --tls-cert, --tls-key, --token-file: with --coordinator.
-std::vector<FlagRow> ConnectionRows(TlsFiles& tls, std::string& token_file) {
-  return {
-      {"tls-ca", "FILE", "", "with --coordinator: verify it against this CA (TLS)",
-       Text("tls-ca", tls.ca, "a file name")},
-      {"tls-cert", "FILE", "", "with --coordinator: present this certificate (with --tls-key)",
-       Text("tls-cert", tls.cert, "a file name")},
-      {"tls-key", "FILE", "", "with --coordinator: the certificate's private key",
-       Text("tls-key", tls.key, "a file name")},
-      {"token-file", "FILE", "", "with --coordinator: send its first bearer token",
-       Text("token-file", token_file, "a file name")},
-  };
-}
-
 void Append(std::vector<FlagRow>& rows, std::vector<FlagRow> more) {
   for (FlagRow& row : more) rows.push_back(std::move(row));
 }
@@ -376,6 +362,20 @@ absl::Status NeedCoordinator(const TlsFiles& tls, const std::string& token_file,
 }
 
 }  // namespace
+
+// --tls-ca, --tls-cert, --tls-key, --token-file: with --coordinator.
+std::vector<FlagRow> ConnectionRows(TlsFiles& tls, std::string& token_file) {
+  return {
+      {"tls-ca", "FILE", "", "with --coordinator: verify it against this CA (TLS)",
+       Text("tls-ca", tls.ca, "a file name")},
+      {"tls-cert", "FILE", "", "with --coordinator: present this certificate (with --tls-key)",
+       Text("tls-cert", tls.cert, "a file name")},
+      {"tls-key", "FILE", "", "with --coordinator: the certificate's private key",
+       Text("tls-key", tls.key, "a file name")},
+      {"token-file", "FILE", "", "with --coordinator: send its first bearer token",
+       Text("token-file", token_file, "a file name")},
+  };
+}
 
 absl::StatusOr<uint64_t> ParseBytes(const std::string& text) {
   static constexpr std::pair<const char*, uint64_t> kSuffixes[] = {

@@ -10,6 +10,7 @@
 #include <vector>
 
 #include "absl/status/statusor.h"
+#include "cli/command_table.h"
 #include "core/capacity/capacity_model.h"
 #include "core/model/search_tier.h"
 #include "core/slice_solver.h"
@@ -86,6 +87,10 @@ std::string Usage();
 // One command's help ("optimize", "capacity", "workers"); empty for
 // another name.
 std::string CommandUsage(const std::string& command);
+
+// The flags that reach a coordinator securely (--tls-ca, --tls-cert,
+// --tls-key, --token-file), for any command with --coordinator.
+std::vector<FlagRow> ConnectionRows(TlsFiles& tls, std::string& token_file);
 
 }  // namespace sliceplan::cli
 

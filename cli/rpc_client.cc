@@ -1,6 +1,7 @@
 #include "cli/rpc_client.h"
 
 #include <chrono>
+#include <optional>
 
 #include "absl/strings/str_cat.h"
 #include "core/model/status_macros.h"
@@ -114,6 +115,47 @@ absl::StatusOr<std::pair<CapacityTable, int>> CapacityRemote(const RemoteCapacit
   }
   ASSIGN_OR_RETURN(CapacityTable table, CapacityFromProto(response));
   return std::pair{std::move(table), static_cast<int>(response.pool_workers())};
+}
+
+absl::StatusOr<v1::PrepareTemplateResult> PrepareRemote(
+    const RemoteCoordinator& to, const v1::PrepareTemplateRequest& request,
+    const std::function<void(size_t, size_t)>& on_progress) {
+  ASSIGN_OR_RETURN(auto stub, Connect(to.address, to.tls));
+  grpc::ClientContext context;
+  RETURN_IF_ERROR(Authorize(context, to.token_file));
+  auto reader = stub->PrepareTemplate(&context, request);
+  std::optional<v1::PrepareTemplateResult> result;
+  for (v1::PrepareTemplateEvent event; reader->Read(&event);) {
+    if (event.has_progress() && on_progress) {
+      on_progress(event.progress().points_done(), event.progress().grid_points());
+    } else if (event.has_result()) {
+      result = std::move(*event.mutable_result());
+    }
+  }
+  const grpc::Status status = reader->Finish();
+  if (!status.ok()) {
+    return absl::Status(static_cast<absl::StatusCode>(status.error_code()),
+                        absl::StrCat("coordinator ", to.address, ": ", status.error_message()));
+  }
+  if (!result) {
+    return absl::DataLossError(
+        absl::StrCat("coordinator ", to.address, ": the prepare ended without its result"));
+  }
+  return *std::move(result);
+}
+
+absl::StatusOr<v1::ChooseTemplatePlanResponse> ChooseRemote(
+    const RemoteCoordinator& to, const v1::ChooseTemplatePlanRequest& request) {
+  ASSIGN_OR_RETURN(auto stub, Connect(to.address, to.tls));
+  grpc::ClientContext context;
+  RETURN_IF_ERROR(Authorize(context, to.token_file));
+  v1::ChooseTemplatePlanResponse response;
+  const grpc::Status status = stub->ChooseTemplatePlan(&context, request, &response);
+  if (!status.ok()) {
+    return absl::Status(static_cast<absl::StatusCode>(status.error_code()),
+                        absl::StrCat("coordinator ", to.address, ": ", status.error_message()));
+  }
+  return response;
 }
 
 absl::StatusOr<v1::ListWorkersResponse> ListWorkersRemote(const std::string& coordinator,

@@ -58,6 +58,22 @@ struct RemoteCapacity {
 absl::StatusOr<std::pair<CapacityTable, int>> CapacityRemote(const RemoteCapacity& request,
                                                              const WideQuery& query);
 
+// Where a template call goes: the coordinator and how to reach it.
+struct RemoteCoordinator {
+  std::string address;  // HOST:PORT
+  TlsFiles tls;
+  std::string token_file;
+};
+
+// Calls PrepareTemplate, passing each progress event on (points done, grid
+// points). Errors: the coordinator's status as it came, after its address.
+absl::StatusOr<v1::PrepareTemplateResult> PrepareRemote(
+    const RemoteCoordinator& to, const v1::PrepareTemplateRequest& request,
+    const std::function<void(size_t done, size_t total)>& on_progress);
+
+absl::StatusOr<v1::ChooseTemplatePlanResponse> ChooseRemote(
+    const RemoteCoordinator& to, const v1::ChooseTemplatePlanRequest& request);
+
 absl::StatusOr<v1::ListWorkersResponse> ListWorkersRemote(const std::string& coordinator,
                                                           const TlsFiles& tls = {},
                                                           const std::string& token_file = "");

@@ -10,15 +10,18 @@
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_format.h"
 #include "absl/strings/str_split.h"
+#include "cli/cli_config.h"
 #include "cli/command_table.h"
 #include "cli/output_file.h"
 #include "cli/render.h"
+#include "cli/rpc_client.h"
 #include "core/model/json_text.h"
 #include "core/model/status_macros.h"
 #include "templates/plan_set.h"
 #include "templates/template_prepare.h"
 #include "tiers/wide_plan.h"
 #include "wire/bounded_file.h"
+#include "wire/service_proto.h"
 
 namespace sliceplan::cli {
 namespace {
@@ -27,6 +30,8 @@ struct PrepareConfig {
   std::string template_path;
   std::string out;
   PrepareOptions options;
+  bool workers_given = false;
+  RemoteCoordinator coordinator;  // --coordinator: its pool optimizes the grid
   bool json = false;
   bool quiet = false;
 };
@@ -90,12 +95,31 @@ CommandTable PrepareTable(PrepareConfig& c, int cores) {
            {"grid", "G", "8", "values per parameter, log-spaced from min to max",
             IntIn("grid", kMinGrid, kMaxGrid, c.options.grid)},
            {"workers", "N", "the cores", "grid points optimized at once (in-process workers)",
-            IntIn("workers", 1, 1024, c.options.workers)},
+            [&c, set = IntIn("workers", 1, 1024, c.options.workers)](const std::string& v) {
+              c.workers_given = true;
+              return set(v);
+            }},
+           {"coordinator", "HOST:PORT", "",
+            "optimize the grid on this coordinator's pool and store the plans there too "
+            "(it prints the template id for ChooseTemplatePlan)",
+            [&c](const std::string& v) {
+              if (v.empty()) return BadFlag("coordinator", v, "HOST:PORT");
+              c.coordinator.address = v;
+              return absl::OkStatus();
+            }},
            {"format", "text|json", "text", "output", Format(c.json)},
            {"quiet", "", "", "no progress bar on stderr", [&c](const std::string& v) {
               c.quiet = v == "true";
               return absl::OkStatus();
             }}}};
+}
+
+CommandTable PrepareCommand(PrepareConfig& c, int cores) {
+  CommandTable table = PrepareTable(c, cores);
+  for (FlagRow& row : ConnectionRows(c.coordinator.tls, c.coordinator.token_file)) {
+    table.flags.push_back(std::move(row));
+  }
+  return table;
 }
 
 CommandTable ChooseTable(ChooseConfig& c) {
@@ -134,32 +158,106 @@ void DrawProgress(size_t done, size_t total) {
             << (done == total ? "\r\033[K" : "") << std::flush;
 }
 
+v1::PrepareTemplateRequest PrepareRequestOf(const std::string& template_json,
+                                            const PrepareOptions& options) {
+  v1::PrepareTemplateRequest request;
+  request.set_template_json(template_json);
+  request.set_grid(static_cast<uint32_t>(options.grid));
+  request.set_max_ratio(options.max_ratio);
+  *request.mutable_options() = SearchOptionsToProto(options.search);
+  return request;
+}
+
+PrepareFigures FiguresOf(const v1::PrepareReport& r) {
+  PrepareFigures f;
+  f.stored_plans = r.stored_plans();
+  f.grid_points = r.grid_points();
+  f.grid = static_cast<int>(r.grid());
+  f.distinct_optima = r.distinct_optima();
+  f.max_ratio = r.max_ratio();
+  f.worst_ratio = r.max_ratio_on_grid();
+  if (r.has_box_ratio_bound()) f.box_ratio_bound = r.box_ratio_bound().value();
+  f.seconds = r.seconds();
+  return f;
+}
+
+// docs/interfaces.md's shape, with the bound for the whole box (null for
+// none) and, from a coordinator, the template id.
+std::string PrepareJson(const PrepareFigures& f, const std::string& template_id) {
+  return absl::StrCat(
+      "{\"stored_plans\": ", f.stored_plans, ", \"grid_points\": ", f.grid_points,
+      ", \"max_ratio_on_grid\": ", JsonNumber(f.worst_ratio),
+      ", \"box_ratio_bound\": ", f.box_ratio_bound ? JsonNumber(*f.box_ratio_bound) : "null",
+      ", \"seconds\": ", JsonNumber(f.seconds),
+      template_id.empty() ? "" : absl::StrCat(", \"template_id\": ", JsonString(template_id)),
+      "}\n");
+}
+
+std::string PrepareText(const std::string& template_path, const std::string& out,
+                        const PrepareFigures& f, const std::string& template_id) {
+  std::string text = absl::StrFormat(
+      "prepared %s: %u grid points (%d per parameter), %u distinct optima, %u plans kept\n"
+      "  at every grid point a kept plan costs at most %.4g times the optimum (asked: %.4g)\n",
+      template_path, f.grid_points, f.grid, f.distinct_optima, f.stored_plans, f.worst_ratio,
+      f.max_ratio);
+  if (f.box_ratio_bound) {
+    absl::StrAppendFormat(&text,
+                          "  anywhere in the parameter box: at most %.4g times the optimum "
+                          "(the grid cells' corners)\n",
+                          *f.box_ratio_bound);
+  } else {
+    text += "  no bound for the whole box: an anti join's estimate falls as its input grows\n";
+  }
+  absl::StrAppendFormat(&text, "  %.2f s\nwrote %s\n", f.seconds, out);
+  if (!template_id.empty()) {
+    absl::StrAppendFormat(&text, "template id on the coordinator: %s\n", template_id);
+  }
+  return text;
+}
+
 }  // namespace
 
 absl::StatusOr<std::string> RunPrepare(const std::vector<std::string>& args, int cores) {
   PrepareConfig c;
-  RETURN_IF_ERROR(ParseCommand(PrepareTable(c, cores), args));
+  RETURN_IF_ERROR(ParseCommand(PrepareCommand(c, cores), args));
   if (c.out.empty()) return absl::InvalidArgumentError("--out=PLANS: missing (the file to write)");
+  const bool remote = !c.coordinator.address.empty();
+  if (remote && c.workers_given) {
+    return absl::InvalidArgumentError(
+        "--workers and --coordinator: give one (the coordinator's pool sets the workers)");
+  }
+  if (!remote && (!c.coordinator.tls.ca.empty() || !c.coordinator.tls.cert.empty() ||
+                  !c.coordinator.tls.key.empty() || !c.coordinator.token_file.empty())) {
+    return absl::InvalidArgumentError(
+        "--tls-ca, --tls-cert, --tls-key and --token-file: need --coordinator");
+  }
   ASSIGN_OR_RETURN(const std::string text,
                    ReadBoundedFile(c.template_path, InputLimits{}.max_query_bytes, "the template"));
   ASSIGN_OR_RETURN(const QueryTemplate t, QueryTemplate::Parse(text));
   ASSIGN_OR_RETURN(OutputFile out, OutputFile::Prepare(c.out, "--out", {c.template_path}));
   if (!c.quiet) c.options.on_progress = DrawProgress;
-  ASSIGN_OR_RETURN(const PreparedPlans prepared, PrepareTemplate(t, c.options));
-  RETURN_IF_ERROR(out.Commit(PlanSetJson(t, prepared)));
-  if (c.json) {
-    return absl::StrCat("{\"stored_plans\": ", prepared.plans.size(),
-                        ", \"grid_points\": ", prepared.grid_points,
-                        ", \"max_ratio_on_grid\": ", JsonNumber(prepared.worst_ratio),
-                        ", \"seconds\": ", JsonNumber(prepared.seconds), "}\n");
+  PrepareFigures figures;
+  std::string template_id;
+  if (remote) {
+    ASSIGN_OR_RETURN(
+        const v1::PrepareTemplateResult result,
+        PrepareRemote(c.coordinator, PrepareRequestOf(text, c.options), c.options.on_progress));
+    // Written only once it reads back as a plan set of this template.
+    ASSIGN_OR_RETURN(const PlanSet set, ParsePlanSet(result.plan_set_json()));
+    if (set.query_template.text() != t.text()) {
+      return absl::DataLossError(absl::StrCat("coordinator ", c.coordinator.address,
+                                              ": the plan set is for another template"));
+    }
+    RETURN_IF_ERROR(out.Commit(result.plan_set_json()));
+    figures = FiguresOf(result.report());
+    template_id = result.template_id();
+  } else {
+    ASSIGN_OR_RETURN(const PreparedPlans prepared, PrepareTemplate(t, c.options));
+    RETURN_IF_ERROR(out.Commit(PlanSetJson(t, prepared)));
+    figures = FiguresOf(prepared);
   }
-  std::string report = absl::StrFormat(
-      "prepared %s: %u grid points (%d per parameter), %u distinct optima, %u plans kept; "
-      "at every grid point a kept plan costs at most %.4g times the optimum (asked: %.4g); "
-      "%.2f s\nwrote %s\n",
-      c.template_path, prepared.grid_points, prepared.grid, prepared.distinct_optima,
-      prepared.plans.size(), prepared.worst_ratio, prepared.max_ratio, prepared.seconds, c.out);
-  return report;
+  return c.json ? PrepareJson(figures, template_id)
+                : PrepareText(c.template_path, c.out, figures, template_id);
 }
 
 absl::StatusOr<std::string> RunChoose(const std::vector<std::string>& args) {
@@ -200,7 +298,7 @@ absl::StatusOr<std::string> RunChoose(const std::vector<std::string>& args) {
 std::string TemplateCommandUsage(const std::string& command) {
   PrepareConfig p;
   ChooseConfig c;
-  if (command == "prepare") return CommandHelp(PrepareTable(p, 1));
+  if (command == "prepare") return CommandHelp(PrepareCommand(p, 1));
   if (command == "choose") return CommandHelp(ChooseTable(c));
   return "";
 }

@@ -105,8 +105,9 @@ size_t TemplateDesk::size() const {
 
 absl::Status TemplateDesk::CheckRoom() const {
   if (const size_t n = size(); n >= limits_.max_templates) {
-    return absl::ResourceExhaustedError(
-        absl::StrCat("the coordinator holds ", n, " templates, its limit (--max_templates)"));
+    return absl::ResourceExhaustedError(absl::StrCat("the coordinator holds ", n,
+                                                     n == 1 ? " template" : " templates",
+                                                     ", its limit (--max_templates)"));
   }
   return absl::OkStatus();
 }

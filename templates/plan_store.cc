@@ -132,7 +132,8 @@ absl::Status PlanStore::Put(const StoredPlanSet& entry, size_t max_templates) {
   if (!count) return rollback(Error("cannot count the templates"));
   if (static_cast<size_t>(*count) >= max_templates) {
     return rollback(absl::ResourceExhaustedError(
-        absl::StrCat("the plan store holds ", *count, " templates, its limit (--max_templates)")));
+        absl::StrCat("the plan store holds ", *count, *count == 1 ? " template" : " templates",
+                     ", its limit (--max_templates)")));
   }
   Statement insert(db_, "INSERT INTO plan_sets (id, created_unix, plan_set) VALUES (?, ?, ?)");
   if (!insert.ok()) return rollback(Error("cannot prepare the insert"));
