@@ -1,6 +1,7 @@
 // The prepared-query commands (docs/templates.md):
 //   sliceplan prepare TEMPLATE.json --out=PLANS [--max-ratio=R] [--grid=G]
-//       [--workers=N] [--format=text|json]
+//       [--workers=N | --coordinator=HOST:PORT [--tls-ca ... --token-file]]
+//       [--format=text|json]
 //   sliceplan choose PLANS --set=NAME=VALUE[,NAME=VALUE...] [--robust]
 //       [--format=text|json]
 // Each parses its arguments from its flag table, runs, and returns what

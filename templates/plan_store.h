@@ -1,4 +1,4 @@
-// The coordinator's plan store (docs/templates.md, "The plan store"):
+// The coordinator's plan store (docs/templates.md, "In the service"):
 // prepared templates' plan set files in one SQLite database, by id.
 //   - The schema is versioned (PRAGMA user_version); a file of another
 //     version, or not a database at all, is refused at open.
