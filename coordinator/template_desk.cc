@@ -158,8 +158,12 @@ absl::StatusOr<v1::ChooseTemplatePlanResponse> TemplateDesk::Choose(
     absl::MutexLock lock(&mu_);
     const auto it = sets_.find(request.template_id());
     if (it == sets_.end()) {
-      return absl::NotFoundError(absl::StrCat("template_id: no template \"", request.template_id(),
-                                              "\" is prepared here (", sets_.size(), " are)"));
+      // A hostile id is not echoed whole: ids this coordinator gives are
+      // 32 characters.
+      const std::string& id = request.template_id();
+      return absl::NotFoundError(absl::StrCat(
+          "template_id: no template \"", id.size() <= 64 ? id : id.substr(0, 64) + "...",
+          "\" is prepared here (", sets_.size(), sets_.size() == 1 ? " is)" : " are)"));
     }
     set = it->second;
   }

@@ -161,6 +161,10 @@ TEST(TemplateServiceTest, BadRequestsAreRefusedByField) {
 
   auto unknown = cli::ChooseRemote(to, Choice("0123", 0.1, 1e5));
   EXPECT_EQ(unknown.status().code(), absl::StatusCode::kNotFound) << unknown.status();
+  // A megabyte of id is not sent back whole.
+  auto hostile = cli::ChooseRemote(to, Choice(std::string(1 << 20, 'x'), 0.1, 1e5));
+  EXPECT_EQ(hostile.status().code(), absl::StatusCode::kNotFound);
+  EXPECT_LT(hostile.status().message().size(), 300u);
   auto prepared = cli::PrepareRemote(to, Request(json, 3), {});
   ASSERT_TRUE(prepared.ok()) << prepared.status();
   v1::ChooseTemplatePlanRequest missing = Choice(prepared->template_id(), 0.1, 1e5);
@@ -170,9 +174,11 @@ TEST(TemplateServiceTest, BadRequestsAreRefusedByField) {
   EXPECT_NE(r1.status().message().find("values: no value for parameter \"fact_rows\""),
             std::string::npos)
       << r1.status();
-  auto r2 = cli::ChooseRemote(to, Choice(prepared->template_id(), 5.0, 1e5));
-  EXPECT_EQ(r2.status().code(), absl::StatusCode::kInvalidArgument);
-  EXPECT_NE(r2.status().message().find("since"), std::string::npos) << r2.status();
+  for (double bad : {5.0, std::nan(""), -1.0}) {
+    auto r2 = cli::ChooseRemote(to, Choice(prepared->template_id(), bad, 1e5));
+    EXPECT_EQ(r2.status().code(), absl::StatusCode::kInvalidArgument) << bad;
+    EXPECT_NE(r2.status().message().find("since"), std::string::npos) << r2.status();
+  }
 }
 
 TEST(TemplateServiceTest, TheStoreKeepsFinishedTemplatesThroughAKillMidPrepare) {
