@@ -121,22 +121,23 @@ absl::Status PlanStore::Exec(const char* sql) {
   return absl::InternalError(why);
 }
 
+absl::Status PlanStore::Rollback(absl::Status status) {
+  Exec("ROLLBACK").IgnoreError();
+  return status;
+}
+
 absl::Status PlanStore::Put(const StoredPlanSet& entry, size_t max_templates) {
   absl::MutexLock lock(&mu_);
   if (!Exec("BEGIN IMMEDIATE").ok()) return Error("cannot begin a transaction");
-  const auto rollback = [&](absl::Status status) {
-    Exec("ROLLBACK").IgnoreError();
-    return status;
-  };
   const auto count = Scalar(db_, "SELECT count(*) FROM plan_sets");
-  if (!count) return rollback(Error("cannot count the templates"));
+  if (!count) return Rollback(Error("cannot count the templates"));
   if (static_cast<size_t>(*count) >= max_templates) {
-    return rollback(absl::ResourceExhaustedError(
+    return Rollback(absl::ResourceExhaustedError(
         absl::StrCat("the plan store holds ", *count, *count == 1 ? " template" : " templates",
                      ", its limit (--max_templates)")));
   }
   Statement insert(db_, "INSERT INTO plan_sets (id, created_unix, plan_set) VALUES (?, ?, ?)");
-  if (!insert.ok()) return rollback(Error("cannot prepare the insert"));
+  if (!insert.ok()) return Rollback(Error("cannot prepare the insert"));
   sqlite3_bind_text(insert.get(), 1, entry.id.data(), static_cast<int>(entry.id.size()),
                     SQLITE_TRANSIENT);
   sqlite3_bind_int64(insert.get(), 2, static_cast<int64_t>(std::time(nullptr)));
@@ -144,12 +145,12 @@ absl::Status PlanStore::Put(const StoredPlanSet& entry, size_t max_templates) {
                     static_cast<int>(entry.plan_set_json.size()), SQLITE_TRANSIENT);
   if (const int rc = insert.Step(); rc != SQLITE_DONE) {
     if (rc == SQLITE_CONSTRAINT) {
-      return rollback(
+      return Rollback(
           absl::AlreadyExistsError(absl::StrCat("template id ", entry.id, " is stored")));
     }
-    return rollback(Error("cannot insert the template"));
+    return Rollback(Error("cannot insert the template"));
   }
-  if (!Exec("COMMIT").ok()) return rollback(Error("cannot commit"));
+  if (!Exec("COMMIT").ok()) return Rollback(Error("cannot commit"));
   return absl::OkStatus();
 }
 

@@ -54,6 +54,8 @@ class PlanStore {
   // Runs statements that return no rows.
   absl::Status Exec(const char* sql) ABSL_EXCLUSIVE_LOCKS_REQUIRED(mu_);
   absl::Status Error(const std::string& what) ABSL_EXCLUSIVE_LOCKS_REQUIRED(mu_);
+  // Ends the open transaction and returns `status`.
+  absl::Status Rollback(absl::Status status) ABSL_EXCLUSIVE_LOCKS_REQUIRED(mu_);
 
   const std::string path_;
   absl::Mutex mu_;
