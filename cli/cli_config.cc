@@ -159,7 +159,13 @@ std::vector<FlagRow> ClusterRows(ClusterSearchConfig& cluster) {
          std::vector<int> counts;
          for (absl::string_view part : absl::StrSplit(v, ',')) {
            ASSIGN_OR_RETURN(const uint64_t m, ParseUnsigned("node-counts", std::string(part)));
-           counts.push_back(static_cast<int>(std::min<uint64_t>(m, 1u << 30)));
+           // Reported as given, not as clipped to an int.
+           if (m > static_cast<uint64_t>(kMaxNodeCount)) {
+             return BadFlag(
+                 "node-counts", v,
+                 absl::StrCat("node counts in 1..", kMaxNodeCount, " (", part, " is not)"));
+           }
+           counts.push_back(static_cast<int>(m));
          }
          params.node_counts = counts;
          return absl::OkStatus();

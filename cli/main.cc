@@ -94,6 +94,19 @@ absl::Status CheckSlicesFlag(const OptimizeConfig& config, const WideQuery& quer
                        {"--slices", "slice index"});
 }
 
+// In-process workers past the cores run no faster and can run much slower
+// (every thread waits its turn for a core): said with the numbers.
+// Threads up to twice the cores pass silently (common practice).
+void WarnIfOversubscribed(const OptimizeConfig& config, int cores) {
+  if (config.coordinator) return;
+  const int64_t threads = int64_t{config.workers} * config.search.threads;
+  if (threads <= 2 * int64_t{cores}) return;
+  std::cerr << "sliceplan: warning: " << config.workers << " workers x " << config.search.threads
+            << " threads = " << threads << " search threads on " << cores
+            << " cores; expect it slower than with at most " << cores
+            << " threads (--workers, --threads-per-worker)\n";
+}
+
 int Optimize(const std::vector<std::string>& args) {
   const int cores = static_cast<int>(std::max(1u, std::thread::hardware_concurrency()));
   auto config = ParseOptimizeArgs(args, cores);
@@ -113,6 +126,7 @@ int Optimize(const std::vector<std::string>& args) {
     if (!prepared.ok()) return Fail(prepared.status());
     plot.emplace(*std::move(prepared));
   }
+  WarnIfOversubscribed(*config, cores);
   std::optional<Query> exact;
   if (query->size() <= kMaxRelations) exact = *ToExactQuery(*query);
   absl::StatusOr<TieredOutcome> outcome;

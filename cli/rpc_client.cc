@@ -3,11 +3,13 @@
 #include <chrono>
 #include <optional>
 
+#include "absl/strings/match.h"
 #include "absl/strings/str_cat.h"
 #include "core/model/status_macros.h"
 #include "grpcpp/grpcpp.h"
 #include "rpc/bearer_tokens.h"
 #include "rpc/rpc_status.h"
+#include "schedule/slice_worker.h"
 #include "sliceplan.grpc.pb.h"
 #include "wire/capacity_proto.h"
 #include "wire/query_proto.h"
@@ -32,6 +34,40 @@ absl::Status Authorize(grpc::ClientContext& context, const std::string& token_fi
   ASSIGN_OR_RETURN(const std::string token, ReadClientToken(token_file));
   context.AddMetadata("authorization", "Bearer " + token);
   return absl::OkStatus();
+}
+
+// A call's error as the CLI reports it, after the coordinator's address:
+// a busy refusal becomes UNAVAILABLE "busy, retry later" (exit status 1,
+// not bad input), and UNAVAILABLE and UNAUTHENTICATED are named, as the
+// docs and other clients name them.
+absl::Status CallError(const std::string& address, const grpc::Status& status,
+                       const grpc::ClientContext& context) {
+  const std::string& message = status.error_message();
+  switch (status.error_code()) {
+    case grpc::StatusCode::RESOURCE_EXHAUSTED:
+      if (context.GetServerTrailingMetadata().count(kBusyKey) != 0) {
+        return absl::UnavailableError(absl::StrCat(
+            "coordinator ", address, ": busy, retry later (RESOURCE_EXHAUSTED: ", message, ")"));
+      }
+      break;
+    case grpc::StatusCode::UNAVAILABLE:
+      // What most likely happened, where the library's words say it.
+      return absl::UnavailableError(absl::StrCat(
+          "coordinator ", address, ": ",
+          absl::StrContains(message, "Connection refused") ? "nothing listens at that address"
+          : absl::StrContains(message, "Socket closed") || absl::StrContains(message, "handshake")
+              ? "the connection closed while being set up (TLS expected, or this client's "
+                "certificate refused?)"
+              : "unavailable, retry later",
+          " (UNAVAILABLE: ", message, ")"));
+    case grpc::StatusCode::UNAUTHENTICATED:
+      return absl::UnauthenticatedError(
+          absl::StrCat("coordinator ", address, ": UNAUTHENTICATED: ", message));
+    default:
+      break;
+  }
+  return absl::Status(static_cast<absl::StatusCode>(status.error_code()),
+                      absl::StrCat("coordinator ", address, ": ", message));
 }
 
 }  // namespace
@@ -71,14 +107,7 @@ absl::StatusOr<TieredOutcome> OptimizeRemote(
     if (event.has_result()) result = event.result();
   }
   const grpc::Status status = reader->Finish();
-  if (!status.ok()) {
-    absl::Status s = FromGrpc(status);
-    if (s.code() == absl::StatusCode::kUnavailable) {
-      return absl::UnavailableError(
-          absl::StrCat("coordinator ", request.coordinator, ": ", s.message()));
-    }
-    return s;
-  }
+  if (!status.ok()) return CallError(request.coordinator, status, context);
   if (!result) return absl::InternalError("coordinator sent no result");
   return TieredFromProto(*result, query, request.options.cost);
 }
@@ -108,11 +137,7 @@ absl::StatusOr<std::pair<CapacityTable, int>> CapacityRemote(const RemoteCapacit
   m.set_seconds_per_connected_set(request.seconds_per_connected_set);
   v1::CapacityResponse response;
   const grpc::Status status = stub->PlanCapacity(&context, m, &response);
-  if (!status.ok()) {
-    return absl::Status(
-        static_cast<absl::StatusCode>(status.error_code()),
-        absl::StrCat("coordinator ", request.coordinator, ": ", status.error_message()));
-  }
+  if (!status.ok()) return CallError(request.coordinator, status, context);
   ASSIGN_OR_RETURN(CapacityTable table, CapacityFromProto(response));
   return std::pair{std::move(table), static_cast<int>(response.pool_workers())};
 }
@@ -133,10 +158,7 @@ absl::StatusOr<v1::PrepareTemplateResult> PrepareRemote(
     }
   }
   const grpc::Status status = reader->Finish();
-  if (!status.ok()) {
-    return absl::Status(static_cast<absl::StatusCode>(status.error_code()),
-                        absl::StrCat("coordinator ", to.address, ": ", status.error_message()));
-  }
+  if (!status.ok()) return CallError(to.address, status, context);
   if (!result) {
     return absl::DataLossError(
         absl::StrCat("coordinator ", to.address, ": the prepare ended without its result"));
@@ -151,10 +173,7 @@ absl::StatusOr<v1::ChooseTemplatePlanResponse> ChooseRemote(
   RETURN_IF_ERROR(Authorize(context, to.token_file));
   v1::ChooseTemplatePlanResponse response;
   const grpc::Status status = stub->ChooseTemplatePlan(&context, request, &response);
-  if (!status.ok()) {
-    return absl::Status(static_cast<absl::StatusCode>(status.error_code()),
-                        absl::StrCat("coordinator ", to.address, ": ", status.error_message()));
-  }
+  if (!status.ok()) return CallError(to.address, status, context);
   return response;
 }
 
@@ -167,10 +186,7 @@ absl::StatusOr<v1::ListWorkersResponse> ListWorkersRemote(const std::string& coo
   context.set_deadline(std::chrono::system_clock::now() + std::chrono::seconds(5));
   v1::ListWorkersResponse response;
   const grpc::Status status = stub->ListWorkers(&context, v1::ListWorkersRequest(), &response);
-  if (!status.ok()) {
-    return absl::Status(static_cast<absl::StatusCode>(status.error_code()),
-                        absl::StrCat("coordinator ", coordinator, ": ", status.error_message()));
-  }
+  if (!status.ok()) return CallError(coordinator, status, context);
   return response;
 }
 

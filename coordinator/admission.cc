@@ -2,6 +2,7 @@
 
 #include "absl/strings/str_cat.h"
 #include "absl/time/time.h"
+#include "schedule/slice_worker.h"
 
 namespace sliceplan {
 
@@ -12,7 +13,7 @@ absl::Status Admission::Enter(std::chrono::steady_clock::time_point deadline,
   const auto free = [this]() ABSL_EXCLUSIVE_LOCKS_REQUIRED(mu_) { return running_ < max_running_; };
   if (!free()) {
     if (queued_ >= max_queued_) {
-      return absl::ResourceExhaustedError(
+      return BusyError(
           absl::StrCat("the coordinator runs ", running_, " requests and has ", queued_,
                        " waiting, its limits (--max_concurrent_requests=", max_running_,
                        ", --max_queued_requests=", max_queued_, "); try again later"));

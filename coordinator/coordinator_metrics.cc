@@ -21,7 +21,8 @@ CoordinatorMetrics::CoordinatorMetrics(const WorkerPool& pool, const Admission& 
       hedges_(PlainCounter(set_.registry(), "sliceplan_slice_hedges_total",
                            "Second copies of a slow slice started")),
       deadline_misses_(PlainCounter(set_.registry(), "sliceplan_deadline_misses_total",
-                                    "Requests whose deadline came before their search ended")) {
+                                    "Requests whose deadline came before their search ended")),
+      refusals_(set_.registry()) {
   set_.gauges().Add("sliceplan_pool_workers", "Workers in the pool, healthy or not",
                     [&pool] { return static_cast<double>(pool.Workers().size()); });
   set_.gauges().Add(

@@ -9,6 +9,7 @@
 //   sliceplan_deadline_misses_total           counter: requests whose deadline came
 //       before their search ended (DEADLINE_EXCEEDED, or an exact search cut short)
 //   the slice figures of rpc/slice_metrics.h  for every slice in an answer
+//   sliceplan_rpc_refused_total{method, reason}  counter: rpc/refusals.h
 //   sliceplan_pool_workers, sliceplan_pool_healthy_workers,
 //   sliceplan_requests_running, sliceplan_queue_depth   gauges read at scrape time
 //
@@ -27,6 +28,7 @@
 #include "prometheus/histogram.h"
 #include "prometheus/registry.h"
 #include "rpc/metric_set.h"
+#include "rpc/refusals.h"
 #include "schedule/tiered_search.h"
 
 namespace sliceplan {
@@ -40,6 +42,9 @@ class CoordinatorMetrics {
   // tier the request named (auto included).
   void Request(const absl::StatusOr<TieredOutcome>& outcome, SearchTier asked, double seconds);
 
+  // Refused calls of every method: logged and counted.
+  RpcRefusals& refusals() { return refusals_; }
+
   // For ServeOptions::metrics.
   std::vector<std::weak_ptr<prometheus::Collectable>> Collectables() const {
     return set_.Collectables();
@@ -52,6 +57,7 @@ class CoordinatorMetrics {
   prometheus::Counter& retries_;
   prometheus::Counter& hedges_;
   prometheus::Counter& deadline_misses_;
+  RpcRefusals refusals_;
 };
 
 }  // namespace sliceplan

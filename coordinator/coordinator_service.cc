@@ -1,5 +1,6 @@
 #include "coordinator/coordinator_service.h"
 
+#include <algorithm>
 #include <cmath>
 #include <tuple>
 
@@ -9,6 +10,7 @@
 #include "core/model/status_macros.h"
 #include "core/slice_planner.h"
 #include "rpc/call_deadline.h"
+#include "rpc/coalescing_writer.h"
 #include "rpc/outcome_label.h"
 #include "rpc/request_id.h"
 #include "rpc/rpc_status.h"
@@ -147,6 +149,18 @@ TierRequest TiersOfRequest(const v1::OptimizeRequest& request, SearchTier asked,
   return tiers;
 }
 
+// The hedge delay for a run ending at `deadline`: the server's, but at
+// most a fifth of the time left (at least kMinHedgeDelay), so a 1 s
+// request is not lost to one hanging worker while another sits idle.
+constexpr std::chrono::milliseconds kMinHedgeDelay{50};
+std::optional<std::chrono::milliseconds> HedgeDelay(const CoordinatorConfig& config,
+                                                    Clock::time_point deadline) {
+  if (!config.hedge_after) return std::nullopt;
+  const auto fifth =
+      std::chrono::duration_cast<std::chrono::milliseconds>((deadline - Clock::now()) / 5);
+  return std::clamp(fifth, kMinHedgeDelay, std::max(kMinHedgeDelay, *config.hedge_after));
+}
+
 // How the request's slices are scheduled: the server's hedging, the run's
 // deadline, the request's partial-on-deadline, the progress callback and
 // request id; a caller that cancels or goes away cancels every slice it
@@ -156,7 +170,7 @@ ScheduleOptions ScheduleOfRequest(grpc::ServerContext* context, const v1::Optimi
                                   const std::string& request_id,
                                   const std::function<void(const ScheduleProgress&)>& on_progress) {
   ScheduleOptions schedule;
-  if (config.hedge_after) schedule.hedge_after = *config.hedge_after;
+  schedule.hedge_after = HedgeDelay(config, deadline);
   schedule.deadline = deadline;
   schedule.partial_on_deadline = request.partial_on_deadline();
   schedule.on_progress = on_progress;
@@ -175,6 +189,13 @@ absl::Status CheckFrontierSize(const TieredOutcome& outcome, const InputLimits& 
         " (--max_frontier_plans); ask for a precision alpha > 1 or fewer objectives"));
   }
   return absl::OkStatus();
+}
+
+// The error sent back: a busy refusal carries the busy mark
+// (schedule/slice_worker.h) so the client knows to retry.
+grpc::Status Reply(grpc::ServerContext& context, const absl::Status& status) {
+  if (IsBusy(status)) context.AddTrailingMetadata(kBusyKey, "1");
+  return ToGrpc(status);
 }
 
 // One grid point's optimum on the pool: a single slice, scheduled like
@@ -256,6 +277,7 @@ absl::StatusOr<v1::OptimizeResponse> CoordinatorService::Run(
   }
   const double wall = std::chrono::duration<double>(Clock::now() - start).count();
   metrics_.Request(outcome, facts.asked, wall);
+  metrics_.refusals().Note("Optimize", *context, outcome.status());
   LogRequest(request_id, facts, outcome, wall);
   if (!outcome.ok()) return outcome.status();
   return answer;
@@ -281,7 +303,7 @@ grpc::Status CoordinatorService::Optimize(grpc::ServerContext* context,
                                           const v1::OptimizeRequest* request,
                                           v1::OptimizeResponse* response) {
   auto result = Run(context, *request, {});
-  if (!result.ok()) return ToGrpc(result.status());
+  if (!result.ok()) return Reply(*context, result.status());
   *response = *std::move(result);
   return grpc::Status::OK;
 }
@@ -289,7 +311,10 @@ grpc::Status CoordinatorService::Optimize(grpc::ServerContext* context,
 grpc::Status CoordinatorService::OptimizeStream(grpc::ServerContext* context,
                                                 const v1::OptimizeRequest* request,
                                                 grpc::ServerWriter<v1::OptimizeEvent>* writer) {
-  absl::Mutex write_mu;  // progress comes from the scheduler's threads
+  // Progress comes from the scheduler's threads and never waits for the
+  // client to read it; the answer waits for a stalled client at most
+  // until the run's deadline.
+  CoalescingWriter<v1::OptimizeEvent> progress(writer, context);
   auto result = Run(context, *request, [&](const ScheduleProgress& p) {
     v1::OptimizeEvent event;
     v1::Progress* out = event.mutable_progress();
@@ -297,14 +322,20 @@ grpc::Status CoordinatorService::OptimizeStream(grpc::ServerContext* context,
     out->set_slice_count(p.slice_count);
     if (p.best_cost) out->mutable_best_cost()->set_value(*p.best_cost);
     out->set_elapsed_seconds(p.elapsed_seconds);
-    absl::MutexLock lock(&write_mu);
-    writer->Write(event);
+    progress.Offer(std::move(event));
   });
-  if (!result.ok()) return ToGrpc(result.status());
+  const auto deadline = RunDeadline(context, *request, config_);
+  const Clock::time_point give_up =
+      std::max(Clock::now(), deadline.ok() ? *deadline : Clock::now());
+  if (!result.ok()) {
+    progress.Finish(std::nullopt, give_up);
+    return Reply(*context, result.status());
+  }
   v1::OptimizeEvent event;
   *event.mutable_result() = *std::move(result);
-  absl::MutexLock lock(&write_mu);
-  writer->Write(event);
+  if (!progress.Finish(std::move(event), give_up)) {
+    return grpc::Status(grpc::StatusCode::CANCELLED, "the client did not read the answer in time");
+  }
   return grpc::Status::OK;
 }
 
@@ -360,9 +391,11 @@ absl::StatusOr<v1::CapacityResponse> CoordinatorService::Capacity(
 grpc::Status CoordinatorService::PlanCapacity(grpc::ServerContext* context,
                                               const v1::CapacityRequest* request,
                                               v1::CapacityResponse* response) {
-  if (auto s = Authenticate(*context); !s.ok()) return ToGrpc(s);
+  if (auto s = Authenticate(*context); !s.ok()) {
+    return ToGrpc(metrics_.refusals().Note("PlanCapacity", *context, s));
+  }
   auto out = Capacity(*request);
-  if (!out.ok()) return ToGrpc(out.status());
+  if (!out.ok()) return ToGrpc(metrics_.refusals().Note("PlanCapacity", *context, out.status()));
   *response = *std::move(out);
   return grpc::Status::OK;
 }
@@ -370,7 +403,9 @@ grpc::Status CoordinatorService::PlanCapacity(grpc::ServerContext* context,
 grpc::Status CoordinatorService::ListWorkers(grpc::ServerContext* context,
                                              const v1::ListWorkersRequest*,
                                              v1::ListWorkersResponse* response) {
-  if (auto s = Authenticate(*context); !s.ok()) return ToGrpc(s);
+  if (auto s = Authenticate(*context); !s.ok()) {
+    return ToGrpc(metrics_.refusals().Note("ListWorkers", *context, s));
+  }
   for (const auto& w : pool_.Workers()) {
     v1::WorkerStatus* s = response->add_workers();
     const WorkerCounters c = w->counters();
@@ -406,7 +441,7 @@ absl::StatusOr<v1::PrepareTemplateResult> CoordinatorService::Prepare(
   RequestFacts facts;
   const std::vector<SliceWorker*> workers = WorkersForSearch(pool, 0, facts);
   ScheduleOptions schedule;
-  if (config_.hedge_after) schedule.hedge_after = *config_.hedge_after;
+  schedule.hedge_after = HedgeDelay(config_, deadline);
   schedule.deadline = deadline;
   schedule.cancelled = [context] { return context->IsCancelled(); };
   schedule.request_id = RequestIdOf(*context);
@@ -420,7 +455,8 @@ grpc::Status CoordinatorService::PrepareTemplate(
   const auto start = Clock::now();
   const std::string request_id = RequestIdOf(*context);
   context->AddInitialMetadata(kRequestIdKey, request_id);
-  // Called under the prepare's own lock: one write at a time.
+  // Called under the prepare's own lock; never waits for the client.
+  CoalescingWriter<v1::PrepareTemplateEvent> progress(writer, context);
   Clock::time_point last_sent = start;
   auto result = Prepare(context, *request, [&](size_t done, size_t total) {
     const auto now = Clock::now();
@@ -431,8 +467,11 @@ grpc::Status CoordinatorService::PrepareTemplate(
     p->set_points_done(done);
     p->set_grid_points(total);
     p->set_elapsed_seconds(std::chrono::duration<double>(now - start).count());
-    writer->Write(event);
+    progress.Offer(std::move(event));
   });
+  // A client that stalls gets a few seconds to take the answer (a
+  // prepare's deadline is for its search).
+  const Clock::time_point give_up = Clock::now() + std::chrono::seconds(5);
   LogEvent line("prepare_template");
   line.Add("request_id", request_id).Add("outcome", OutcomeLabel(result.status()));
   if (result.ok()) {
@@ -444,17 +483,24 @@ grpc::Status CoordinatorService::PrepareTemplate(
   }
   line.Add("wall_seconds", std::chrono::duration<double>(Clock::now() - start).count());
   line.Log(result.ok() ? spdlog::level::info : spdlog::level::warn);
-  if (!result.ok()) return ToGrpc(result.status());
+  if (!result.ok()) {
+    progress.Finish(std::nullopt, give_up);
+    return Reply(*context, metrics_.refusals().Note("PrepareTemplate", *context, result.status()));
+  }
   v1::PrepareTemplateEvent event;
   *event.mutable_result() = *std::move(result);
-  writer->Write(event);
+  if (!progress.Finish(std::move(event), give_up)) {
+    return grpc::Status(grpc::StatusCode::CANCELLED, "the client did not read the answer in time");
+  }
   return grpc::Status::OK;
 }
 
 grpc::Status CoordinatorService::ChooseTemplatePlan(grpc::ServerContext* context,
                                                     const v1::ChooseTemplatePlanRequest* request,
                                                     v1::ChooseTemplatePlanResponse* response) {
-  if (auto s = Authenticate(*context); !s.ok()) return ToGrpc(s);
+  if (auto s = Authenticate(*context); !s.ok()) {
+    return ToGrpc(metrics_.refusals().Note("ChooseTemplatePlan", *context, s));
+  }
   auto out = templates_->Choose(*request);
   if (!out.ok()) return ToGrpc(out.status());
   *response = *std::move(out);

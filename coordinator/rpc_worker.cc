@@ -4,6 +4,7 @@
 #include "rpc/request_id.h"
 #include "rpc/rpc_status.h"
 #include "schedule/slice_scheduler.h"
+#include "spdlog/spdlog.h"
 #include "wire/query_proto.h"
 #include "wire/service_proto.h"
 
@@ -43,6 +44,10 @@ class RpcCall : public SliceCall {
     absl::StatusOr<SliceResult> result =
         s.ok() ? SliceResultFromProto(response_, *task_.query, task_.options.cost, task_.slice)
                : absl::StatusOr<SliceResult>(FromGrpc(s));
+    if (s.error_code() == grpc::StatusCode::RESOURCE_EXHAUSTED &&
+        context_.GetServerTrailingMetadata().count(kBusyKey) != 0) {
+      result = BusyError(s.error_message());
+    }
     if (s.ok() && !result.ok()) {
       result = absl::InternalError(
           absl::StrCat("worker sent a bad answer: ", result.status().message()));
@@ -88,9 +93,35 @@ std::unique_ptr<SliceCall> RpcWorker::Start(const SliceTask& task, SliceDone don
                                    [this](const absl::Status& s) { Count(s); });
 }
 
+void RpcWorker::NoteLostToHedge() {
+  absl::MutexLock lock(&mu_);
+  if (++hedge_losses_ < kDemoteAfterHedgeLosses || demoted_.load()) return;
+  demoted_ = true;
+  healthy_ = false;
+  counters_.last_error = absl::StrCat("demoted: ", hedge_losses_,
+                                      " slices in a row answered by a hedge elsewhere while "
+                                      "its calls did not answer");
+  spdlog::warn("coordinator: worker {} {}", address_, counters_.last_error);
+}
+
+bool RpcWorker::ProbeAnswers(std::chrono::milliseconds timeout) {
+  v1::SolveSliceRequest probe;
+  for (const char* name : {"probe_a", "probe_b"}) {
+    v1::Relation* r = probe.mutable_query()->add_relations();
+    r->set_name(name);
+    r->mutable_rows()->set_value(10);
+  }
+  probe.set_slice_count(1);
+  grpc::ClientContext context;
+  context.set_deadline(std::chrono::system_clock::now() + timeout);
+  v1::SolveSliceResponse response;
+  return stub_->SolveSlice(&context, probe, &response).ok();
+}
+
 void RpcWorker::Count(const absl::Status& status) {
   absl::MutexLock lock(&mu_);
   if (status.ok()) {
+    hedge_losses_ = 0;
     ++counters_.solved;
   } else if (IsWorkerFault(status)) {  // not the request's own errors
     ++counters_.failures;
@@ -108,6 +139,13 @@ void RpcWorker::CheckHealth(std::chrono::milliseconds timeout) {
   const grpc::Status s = health_->Check(&context, request, &response);
   const bool serving =
       s.ok() && response.status() == grpc::health::v1::HealthCheckResponse::SERVING;
+  if (serving && demoted_.load()) {
+    if (!ProbeAnswers(timeout)) return;  // still demoted
+    absl::MutexLock lock(&mu_);
+    demoted_ = false;
+    hedge_losses_ = 0;
+    spdlog::info("coordinator: worker {} re-admitted: it answered a probe slice", address_);
+  }
   healthy_ = serving;
   if (!serving) {
     absl::MutexLock lock(&mu_);

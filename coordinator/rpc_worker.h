@@ -41,9 +41,15 @@ class RpcWorker : public SliceWorker {
   int ThreadsPerSlice() const override { return threads_per_slice_.load(); }
   bool Healthy() const override { return healthy_.load(); }
   std::unique_ptr<SliceCall> Start(const SliceTask& task, SliceDone done) override;
+  // kDemoteAfterHedgeLosses in a row (no answer between) demote the worker:
+  // unhealthy, the reason in last_error and a log line, until a probe
+  // slice answers (CheckHealth). Its health service may say SERVING
+  // while its calls hang.
+  void NoteLostToHedge() override ABSL_LOCKS_EXCLUDED(mu_);
 
   // Runs the health check and DescribeWorker with `timeout`; updates
-  // Healthy() and ConcurrentSlices().
+  // Healthy() and ConcurrentSlices(). A demoted worker must also answer a
+  // two-relation slice within `timeout` to come back.
   void CheckHealth(std::chrono::milliseconds timeout) ABSL_LOCKS_EXCLUDED(mu_);
   WorkerCounters counters() const ABSL_LOCKS_EXCLUDED(mu_);
 
@@ -54,12 +60,19 @@ class RpcWorker : public SliceWorker {
   std::shared_ptr<grpc::Channel> channel_;
   std::unique_ptr<v1::SliceWorker::Stub> stub_;
   std::unique_ptr<grpc::health::v1::Health::Stub> health_;
+  // The probe a demoted worker must answer.
+  bool ProbeAnswers(std::chrono::milliseconds timeout);
+
   std::atomic<bool> healthy_{true};
+  std::atomic<bool> demoted_{false};
   std::atomic<int> concurrent_slices_{1};
   std::atomic<int> threads_per_slice_{1};
   mutable absl::Mutex mu_;
   WorkerCounters counters_ ABSL_GUARDED_BY(mu_);
+  int hedge_losses_ ABSL_GUARDED_BY(mu_) = 0;  // in a row
 };
+
+inline constexpr int kDemoteAfterHedgeLosses = 2;
 
 }  // namespace sliceplan
 

@@ -5,6 +5,7 @@
 #include <string>
 
 #include "absl/strings/str_cat.h"
+#include "core/cost/cluster_recost.h"
 #include "core/cost/cout_model.h"
 #include "core/graph/join_conflicts.h"
 #include "core/model/cardinality.h"
@@ -110,6 +111,25 @@ absl::Status CheckCout(const Cardinality& card, const Plan& plan) {
   return absl::OkStatus();
 }
 
+// Every node's three cluster metrics recomputed from its physical choices.
+absl::Status CheckCluster(const Query& query, const Cardinality& card, const ClusterParams& params,
+                          const Plan& plan) {
+  auto costs = RecostClusterPlan(query, card, params, plan);
+  if (!costs.ok()) return Fault(std::string(costs.status().message()));
+  for (size_t i = 0; i < plan.nodes.size(); ++i) {
+    const ClusterCosts& sent = plan.nodes[i].metrics;
+    const ClusterCosts& want = (*costs)[i];
+    if (!Near(sent.latency_s, want.latency_s) || !Near(sent.node_seconds, want.node_seconds) ||
+        !Near(sent.completeness, want.completeness)) {
+      return Fault(absl::StrCat("node ", i, " says latency_s ", sent.latency_s, ", node_seconds ",
+                                sent.node_seconds, ", completeness ", sent.completeness,
+                                "; its physical choices give ", want.latency_s, ", ",
+                                want.node_seconds, ", ", want.completeness));
+    }
+  }
+  return absl::OkStatus();
+}
+
 }  // namespace
 
 absl::Status CheckSliceResult(const Query& query, const SearchOptions& options,
@@ -147,6 +167,9 @@ absl::Status CheckSliceResult(const Query& query, const SearchOptions& options,
     RETURN_IF_ERROR(
         CheckSpace(query, options, constraints, card, conflicts ? &*conflicts : nullptr, plan));
     if (options.cost == CostModelKind::kCout) RETURN_IF_ERROR(CheckCout(card, plan));
+    if (options.cost == CostModelKind::kCluster) {
+      RETURN_IF_ERROR(CheckCluster(query, card, options.cluster.params, plan));
+    }
     return absl::OkStatus();
   };
   RETURN_IF_ERROR(check(*result.plan));

@@ -20,6 +20,7 @@
 namespace sliceplan {
 
 bool IsRetryable(const absl::Status& status) {
+  if (IsBusy(status)) return true;  // another worker may have room
   switch (status.code()) {
     case absl::StatusCode::kUnavailable:
     case absl::StatusCode::kInternal:
@@ -286,6 +287,8 @@ class Run {
     for (const auto& other : attempts_) {  // cancel the twin, if any
       if (other.get() != a && other->slice == a->slice && !other->finished && other->call) {
         other->call->Cancel();
+        // The earlier call lost to its hedge.
+        if (other->started < a->started) workers_[other->worker]->NoteLostToHedge();
       }
     }
     return ScheduleProgress{done_, count_, best_cost_, Elapsed()};

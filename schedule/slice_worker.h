@@ -11,8 +11,10 @@
 #include <memory>
 #include <optional>
 #include <string>
+#include <string_view>
 
 #include "absl/status/statusor.h"
+#include "absl/strings/cord.h"
 #include "core/model/query.h"
 #include "core/slice_solver.h"
 
@@ -51,7 +53,27 @@ class SliceWorker {
   // Starts solving `task`; `done` runs exactly once, on any thread. The
   // returned call must not be destroyed from inside `done`.
   virtual std::unique_ptr<SliceCall> Start(const SliceTask& task, SliceDone done) = 0;
+  // The scheduler's word that a slice this worker had started first was
+  // answered by a hedge on another worker (this call was cancelled): a
+  // worker that keeps losing so does not answer (rpc_worker.h demotes it).
+  virtual void NoteLostToHedge() {}
 };
+
+// A server's refusal for lack of room (a worker's queue of waiting calls,
+// the coordinator's requests waiting for a place): RESOURCE_EXHAUSTED
+// marked busy. The scheduler runs a busy worker's slice on another worker;
+// the refusal is not the worker's fault (a busy worker is a healthy one).
+// Over RPC the mark travels as the trailing metadata kBusyKey, so clients
+// can tell "retry later" from a request past a limit.
+inline constexpr char kBusyKey[] = "sliceplan-busy";
+inline absl::Status BusyError(const std::string& message) {
+  absl::Status s = absl::ResourceExhaustedError(message);
+  s.SetPayload(kBusyKey, absl::Cord("1"));
+  return s;
+}
+inline bool IsBusy(const absl::Status& s) {
+  return s.code() == absl::StatusCode::kResourceExhausted && s.GetPayload(kBusyKey);
+}
 
 // The threads per slice of the pool's slowest healthy worker (the fewest);
 // 0 when no worker is healthy. Works on any range of worker pointers.

@@ -43,12 +43,13 @@ int PoolConcurrentSlices(std::span<SliceWorker* const> workers) {
   return std::max(1, concurrent);
 }
 
-// The tier checks that need no search.
+// The tier checks that need no search. Messages name the tier as both
+// the CLI's --tier and the RPC's `tier` field ask for it.
 absl::Status CheckTierFits(const WideQuery& query, const SearchOptions& options, SearchTier tier) {
   if (options.cost == CostModelKind::kCluster) {
     if (tier != SearchTier::kAuto && tier != SearchTier::kExact) {
       return absl::InvalidArgumentError(absl::StrCat(
-          "--tier=", TierName(tier), ": the cluster model is searched by the exact tier only"));
+          "tier ", TierName(tier), ": the cluster model is searched by the exact tier only"));
     }
     if (query.size() > kMaxRelations) {
       return absl::InvalidArgumentError(
@@ -60,7 +61,7 @@ absl::Status CheckTierFits(const WideQuery& query, const SearchOptions& options,
   }
   if (tier == SearchTier::kIdp && options.shape == PlanShape::kLeftDeep) {
     return absl::InvalidArgumentError(
-        "--tier=idp: idp builds bushy plans; for left-deep plans use exact, linear or greedy");
+        "tier idp: idp builds bushy plans; for left-deep plans use exact, linear or greedy");
   }
   if (tier == SearchTier::kExact && query.size() > kMaxRelations) {
     return ToExactQuery(query).status();
@@ -68,7 +69,7 @@ absl::Status CheckTierFits(const WideQuery& query, const SearchOptions& options,
   const bool joins = !query.joins().empty();
   if (joins && tier != SearchTier::kAuto && tier != SearchTier::kExact) {
     return absl::InvalidArgumentError(absl::StrCat(
-        "--tier=", TierName(tier),
+        "tier ", TierName(tier),
         ": the greedy, linear and idp tiers reorder inner joins only; a query with outer, semi "
         "or anti joins (`joins`) is searched by the exact tier (or auto)"));
   }
@@ -334,8 +335,14 @@ class TierRun {
         &reason_,
         "%sidp from the %s plan: %d blocks of up to %d relations searched exactly (%d more "
         "met again), %d improved, %d passes; cost %.4g -> %.4g",
-        reason_.empty() ? "" : "; ", TierName(seed), r.stats.blocks, r.stats.largest_block,
-        r.stats.reused, r.stats.improved, r.stats.passes, before, out_.plan.cost());
+        reason_.empty() ? "" : "; ", TierName(seed), r.stats.blocks - r.stats.failed,
+        r.stats.largest_block, r.stats.reused, r.stats.improved, r.stats.passes, before,
+        out_.plan.cost());
+    if (r.stats.failed > 0) {
+      absl::StrAppendFormat(
+          &reason_, "; %d block searches failed, so those parts kept the %s plan (last: %s)",
+          r.stats.failed, TierName(seed), r.stats.last_failure);
+    }
   }
 
   const WideQuery& query_;

@@ -178,7 +178,11 @@ class BlockImprover {
       searched = true;
       absl::StatusOr<Plan> found = search_(*block);
       // An error (a deadline) is not an answer: the block may be tried again.
-      if (!found.ok()) return std::nullopt;
+      if (!found.ok()) {
+        ++stats.failed;
+        stats.last_failure = std::string(found.status().message());
+        return std::nullopt;
+      }
       known = answers_.insert_or_assign(std::move(key), *std::move(found)).first;
     } else {
       ++stats.reused;

@@ -30,6 +30,7 @@
 #define SLICEPLAN_TIERS_IDP_H_
 
 #include <functional>
+#include <string>
 
 #include "absl/status/statusor.h"
 #include "core/model/plan.h"
@@ -61,9 +62,11 @@ struct IdpConfig {
 };
 
 struct IdpStats {
-  int blocks = 0;    // exact block searches run
-  int reused = 0;    // block queries met again, answered from an earlier search
-  int improved = 0;  // blocks (searched or reused) that lowered the cost
+  int blocks = 0;  // exact block searches run (failed ones included)
+  int failed = 0;  // of those, searches that gave no answer (no worker, memo limit, deadline)
+  std::string last_failure;  // the last failed search's error
+  int reused = 0;            // block queries met again, answered from an earlier search
+  int improved = 0;          // blocks (searched or reused) that lowered the cost
   int passes = 0;
   int largest_block = 0;  // units in the largest block searched
   double start_cost = 0;

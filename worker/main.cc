@@ -21,6 +21,8 @@ ABSL_FLAG(int, threads, 0,
           "threads solving one slice together (0: the machine's cores over --concurrent-slices)");
 ABSL_FLAG(int, concurrent_slices, 1, "slices solved at once");
 ABSL_FLAG(double, memo_limit_gib, 8.0, "per-slice memo limit in GiB");
+ABSL_FLAG(int, max_queued_slices, 16,
+          "calls that may wait for a free slot; more are refused with RESOURCE_EXHAUSTED");
 ABSL_FLAG(double, test_only_hang_seconds, 0,
           "test-only fault: sleep this long at the start of every call");
 ABSL_FLAG(int64_t, test_only_crash_on_slice, -1,
@@ -47,6 +49,10 @@ int main(int argc, char** argv) {
   config.concurrent_slices = absl::GetFlag(FLAGS_concurrent_slices);
   if (config.concurrent_slices < 1 || config.concurrent_slices > 4096) {
     return Refuse("--concurrent-slices: must be in 1..4096");
+  }
+  config.max_queued_slices = absl::GetFlag(FLAGS_max_queued_slices);
+  if (config.max_queued_slices < 0 || config.max_queued_slices > 100000) {
+    return Refuse("--max_queued_slices: must be in 0..100000");
   }
   config.threads_per_slice = absl::GetFlag(FLAGS_threads);
   if (config.threads_per_slice < 0 || config.threads_per_slice > sliceplan::kMaxSearchThreads) {

@@ -11,7 +11,8 @@ WorkerMetrics::WorkerMetrics(std::function<int()> running, std::function<int()> 
     : calls_(prometheus::BuildCounter()
                  .Name("sliceplan_slice_calls_total")
                  .Help("SolveSlice calls ended, by outcome")
-                 .Register(set_.registry())) {
+                 .Register(set_.registry())),
+      refusals_(set_.registry()) {
   set_.gauges().Add("sliceplan_slices_running", "Slices being solved now",
                     [f = std::move(running)] { return static_cast<double>(f()); });
   set_.gauges().Add("sliceplan_slices_waiting", "Slice calls waiting for a free slot",

@@ -3,6 +3,7 @@
 //   sliceplan_slice_calls_total{outcome}   counter: SolveSlice calls ended
 //       (outcome as rpc/outcome_label.h)
 //   the slice figures of rpc/slice_metrics.h  for every slice it solved
+//   sliceplan_rpc_refused_total{method, reason}  counter: rpc/refusals.h
 //   sliceplan_slices_running, sliceplan_slices_waiting   gauges read at scrape time
 //
 // Thread-safe.
@@ -18,6 +19,7 @@
 #include "prometheus/counter.h"
 #include "prometheus/registry.h"
 #include "rpc/metric_set.h"
+#include "rpc/refusals.h"
 
 namespace sliceplan {
 
@@ -30,6 +32,9 @@ class WorkerMetrics {
   // One SolveSlice call ended; `stats` are the slice's when it was solved.
   void Call(const absl::Status& status, const SearchStats* stats);
 
+  // Refused calls (a full queue): logged and counted.
+  RpcRefusals& refusals() { return refusals_; }
+
   // For ServeOptions::metrics.
   std::vector<std::weak_ptr<prometheus::Collectable>> Collectables() const {
     return set_.Collectables();
@@ -38,6 +43,7 @@ class WorkerMetrics {
  private:
   MetricSet set_;
   prometheus::Family<prometheus::Counter>& calls_;
+  RpcRefusals refusals_;
 };
 
 }  // namespace sliceplan

@@ -13,6 +13,7 @@
 #include "rpc/request_id.h"
 #include "rpc/rpc_status.h"
 #include "rpc/server_log.h"
+#include "schedule/slice_worker.h"
 #include "wire/query_proto.h"
 #include "wire/service_proto.h"
 
@@ -58,12 +59,21 @@ WorkerService::WorkerService(const WorkerConfig& config)
             return waiting_;
           }) {}
 
+absl::Status WorkerService::Enqueue() {
+  absl::MutexLock lock(&mu_);
+  if (running_ + waiting_ >= config_.concurrent_slices + config_.max_queued_slices) {
+    return BusyError(absl::StrCat("worker busy: ", running_, " slices running and ", waiting_,
+                                  " waiting, its limit (--max_queued_slices); retry"));
+  }
+  ++waiting_;
+  return absl::OkStatus();
+}
+
 bool WorkerService::Acquire(grpc::ServerContext* context) {
   absl::MutexLock lock(&mu_);
   const auto free = [this]() ABSL_EXCLUSIVE_LOCKS_REQUIRED(mu_) {
     return running_ < config_.concurrent_slices;
   };
-  ++waiting_;
   // Polls the call's cancel while it waits (gRPC has no wake-up for it).
   while (!mu_.AwaitWithTimeout(absl::Condition(&free), absl::Milliseconds(10))) {
     if (context->IsCancelled()) {
@@ -84,9 +94,17 @@ void WorkerService::Release() {
 absl::StatusOr<SliceResult> WorkerService::Solve(grpc::ServerContext* context,
                                                  const v1::SolveSliceRequest& request,
                                                  SearchOptions& options) {
-  ASSIGN_OR_RETURN(Parsed parsed, Parse(request, config_));
-  options = parsed.options;
-  if (parsed.slice.index == config_.test_crash_slice) std::abort();
+  // The queue's bound holds before the query is parsed: memory held by
+  // waiting calls is at most their messages.
+  RETURN_IF_ERROR(Enqueue());
+  auto parsed = Parse(request, config_);
+  if (!parsed.ok()) {
+    absl::MutexLock lock(&mu_);
+    --waiting_;
+    return parsed.status();
+  }
+  options = parsed->options;
+  if (parsed->slice.index == config_.test_crash_slice) std::abort();
   if (!Acquire(context)) return absl::CancelledError("call ended");
   const auto hang_until =
       Clock::now() + std::chrono::duration_cast<Clock::duration>(
@@ -100,7 +118,7 @@ absl::StatusOr<SliceResult> WorkerService::Solve(grpc::ServerContext* context,
   if (const auto call = CallDeadline(context); call && *call < deadline) deadline = *call;
   SearchControl control(nullptr, deadline);
   control.set_cancel_check([context] { return context->IsCancelled(); });
-  auto result = sliceplan::SolveSlice(parsed.query, parsed.options, parsed.slice, control);
+  auto result = sliceplan::SolveSlice(parsed->query, parsed->options, parsed->slice, control);
   Release();
   return result;
 }
@@ -127,7 +145,13 @@ grpc::Status WorkerService::SolveSlice(grpc::ServerContext* context,
     line.Add("error", std::string(result.status().message()));
   }
   line.Add("wall_seconds", wall).Log();
-  if (!result.ok()) return ToGrpc(result.status());
+  if (!result.ok()) {
+    if (IsBusy(result.status())) {
+      context->AddTrailingMetadata(kBusyKey, "1");
+      metrics_.refusals().Note("SolveSlice", *context, result.status());
+    }
+    return ToGrpc(result.status());
+  }
   *response = SliceResultToProto(*result, options.cost);
   return grpc::Status::OK;
 }

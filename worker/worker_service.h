@@ -2,8 +2,10 @@
 // engine and keeps no state between calls. Honours the call's deadline and
 // cancellation inside the DP loop; refuses a slice over its memo limit with
 // RESOURCE_EXHAUSTED. At most `concurrent_slices` slices run at once, each
-// on `threads_per_slice` threads; further calls wait for a slot (while
-// their deadline allows). One log line and one metrics record per call,
+// on `threads_per_slice` threads; at most `max_queued_slices` further
+// calls wait for a slot (while their deadline allows), and calls past
+// those are refused before their query is parsed (RESOURCE_EXHAUSTED with
+// the busy mark of schedule/slice_worker.h). One log line and one metrics record per call,
 // with the coordinator's request id (x-request-id). Thread-safe.
 #ifndef SLICEPLAN_WORKER_WORKER_SERVICE_H_
 #define SLICEPLAN_WORKER_WORKER_SERVICE_H_
@@ -22,8 +24,9 @@
 namespace sliceplan {
 
 struct WorkerConfig {
-  int concurrent_slices = 1;  // slices solved at once
-  int threads_per_slice = 1;  // threads sharing one slice's memo
+  int concurrent_slices = 1;   // slices solved at once
+  int threads_per_slice = 1;   // threads sharing one slice's memo
+  int max_queued_slices = 16;  // calls waiting for a slot; more are refused
   uint64_t memo_limit_bytes = uint64_t{8} << 30;
   InputLimits limits;
   // Test-only fault: every call first sleeps this long (cancellable), so
@@ -53,7 +56,11 @@ class WorkerService final : public v1::SliceWorker::Service {
   // Parses, waits for a slot and solves; the call's outcome.
   absl::StatusOr<SliceResult> Solve(grpc::ServerContext* context,
                                     const v1::SolveSliceRequest& request, SearchOptions& options);
-  // Waits for a free slot; false when the call ended first.
+  // Takes a place among the waiting calls; the busy refusal when they
+  // are full.
+  absl::Status Enqueue() ABSL_LOCKS_EXCLUDED(mu_);
+  // Waits (from the queue) for a free slot; false when the call ended
+  // first, its place in the queue given back.
   bool Acquire(grpc::ServerContext* context) ABSL_LOCKS_EXCLUDED(mu_);
   void Release() ABSL_LOCKS_EXCLUDED(mu_);
 

@@ -44,6 +44,16 @@ else
   failed=$((failed + 1)); echo "FAIL version: $(cat "$tmp/version")"
 fi
 
+# Far more in-process threads than cores: the answer, with a warning that
+# gives the numbers.
+if "$bin" optimize "$examples/port_calls_small.json" --workers=8 --threads-per-worker=64 \
+    --tier=greedy >"$tmp/out" 2>"$tmp/err" && grep -qF "warning: 8 workers x 64 threads = 512 search threads" "$tmp/err" \
+    && [ -s "$tmp/out" ]; then
+  passed=$((passed + 1))
+else
+  failed=$((failed + 1)); echo "FAIL oversubscribed: $(cat "$tmp/err")"
+fi
+
 check unknown_field 2 "(relations[0]) depth" optimize "$bad/unknown_field.json"
 check duplicate_name 2 "relations[1].name: duplicate relation name" optimize "$bad/duplicate_name.json"
 check missing_rows 2 "relations[1] (cranes).rows: missing" optimize "$bad/missing_rows.json"
@@ -74,7 +84,7 @@ check key_twice 2 "relations[0].rows: given twice in one object" optimize "$bad/
 check alpha_with_cout 2 "alpha: only the cluster model" optimize "$examples/port_calls_small.json" --alpha=1.5
 check hopeless_deadline 1 "refused up front" optimize "$examples/port_logistics.json" --tier=exact --slices=1 --workers=1 --deadline-seconds=0.001
 check node_counts_past_limit 2 "node_counts: 17 given; the limit is 16" optimize "$examples/port_calls_small.json" --cost=cluster --node-counts=1,2,3,4,5,6,7,8,9,10,11,12,13,14,15,16,17
-check no_coordinator 1 "coordinator 127.0.0.1:1:" optimize "$examples/port_calls_small.json" --coordinator=127.0.0.1:1
+check no_coordinator 1 "coordinator 127.0.0.1:1: nothing listens at that address (UNAVAILABLE:" optimize "$examples/port_calls_small.json" --coordinator=127.0.0.1:1
 check workers_no_coordinator 1 "coordinator 127.0.0.1:1:" workers --coordinator=127.0.0.1:1
 check memo_limit 2 "over the limit" optimize "$examples/port_logistics.json" --tier=exact --slices=1 --memo-limit=1MiB
 check bad_tier 2 "--tier=fast: expected auto, exact, idp, linear or greedy" optimize "$examples/port_logistics.json" --tier=fast
@@ -89,6 +99,7 @@ check objectives_empty 2 "objectives: unknown objective \"\"" optimize "$small" 
 check objectives_unknown 2 "objectives: unknown objective \"speed\"" optimize "$small" --cost=cluster --objectives=latency_s,speed
 check rate_high 2 "sample_rates[1]: must lie in (0, 1], got 1.5" optimize "$small" --cost=cluster --sample-rates=1,1.5
 check rate_zero 2 "sample_rates[0]: must lie in (0, 1], got 0" optimize "$small" --cost=cluster --sample-rates=0
+check nodes_past_int 2 "4294967296 is not" optimize "$small" --cost=cluster --node-counts=4,4294967296
 check nodes_zero 2 "node_counts[1]: must be a whole number in 1..1000000, got 0" optimize "$small" --cost=cluster --node-counts=4,0
 check bad_bound 2 "bound: \"latency<=3\" names no metric" optimize "$small" --cost=cluster --bound=latency\<=3
 check plot_needs_cluster 2 "--plot: needs --cost=cluster" optimize "$small" --plot="$tmp/x.svg"

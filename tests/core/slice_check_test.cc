@@ -47,6 +47,39 @@ TEST(SliceCheckTest, EveryTrueAnswerPasses) {
   }
 }
 
+// The cluster model's answers: every true frontier passes; made-up
+// metrics, or a node count or sample rate the request did not offer, are
+// caught and named.
+TEST(SliceCheckTest, ClusterMetricsAreRecomputedFromThePhysicalChoices) {
+  const Query q = testing::MakeQuery(GraphShape::kRandom, 7, 4);
+  SearchOptions options;
+  options.cost = CostModelKind::kCluster;
+  options.cluster.params.sample_rates = {1.0, 0.1};
+  for (uint32_t p : {1u, 4u}) {
+    for (uint32_t i = 0; i < p; ++i) {
+      const SliceResult r = Solve(q, options, {i, p});
+      ASSERT_FALSE(r.frontier.empty());
+      EXPECT_EQ(Refusal(q, options, r), "accepted") << "P=" << p << " i=" << i;
+    }
+  }
+  const SliceResult truth = Solve(q, options, {0, 1});
+  SliceResult lie = truth;
+  lie.frontier.back().nodes.back().metrics.latency_s *= 0.5;
+  EXPECT_NE(Refusal(q, options, lie).find("its physical choices give"), std::string::npos)
+      << Refusal(q, options, lie);
+  lie = truth;
+  lie.plan->nodes.back().metrics.node_seconds *= 1.001;
+  EXPECT_NE(Refusal(q, options, lie).find("node_seconds"), std::string::npos);
+  lie = truth;
+  lie.plan->nodes.back().nodes = 5;  // not among 4, 16, 64
+  EXPECT_NE(Refusal(q, options, lie).find("5 nodes is not a count offered"), std::string::npos)
+      << Refusal(q, options, lie);
+  lie = truth;
+  lie.plan->nodes.front().sample_rate = 0.5;
+  EXPECT_NE(Refusal(q, options, lie).find("sample rate 0.5 is not offered"), std::string::npos)
+      << Refusal(q, options, lie);
+}
+
 TEST(SliceCheckTest, MadeUpAnswersAreCaughtAndNamed) {
   const Query q = testing::MakeQuery(GraphShape::kChain, 8, 1);
   SearchOptions options;  // bushy, cross products, cout

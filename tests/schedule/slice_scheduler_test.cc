@@ -219,6 +219,28 @@ TEST(SliceSchedulerTest, PoisonSliceEndsTheRunAfterTwoWorkers) {
   EXPECT_EQ(a.calls + b.calls + c.calls, 2);
 }
 
+// Busy workers (their queue full) are no fault and no poison: the slice
+// runs elsewhere; with every worker busy the run is UNAVAILABLE, saying
+// busy, never INTERNAL.
+TEST(SliceSchedulerTest, ABusyWorkersRefusalRunsTheSliceElsewhere) {
+  const Query q = TestQuery();
+  const absl::Status busy = BusyError("worker busy: 1 slices running and 2 waiting");
+  EXPECT_TRUE(IsRetryable(busy));
+  EXPECT_FALSE(IsWorkerFault(busy));
+  FaultyWorker a("a", busy, 1ms), b("b", busy, 1ms);
+  LocalWorker good("good");
+  SliceWorker* some[] = {&a, &b, &good};
+  auto out = RunSlices(q, {}, 1, some, {});
+  ASSERT_TRUE(out.ok()) << out.status();
+  EXPECT_NEAR(out->result.plan.root().cost, Optimum(q), 1e-12 * Optimum(q));
+  FaultyWorker c("c", busy, 1ms), d("d", busy, 1ms);
+  SliceWorker* all_busy[] = {&c, &d};
+  auto none = RunSlices(q, {}, 1, all_busy, {});
+  ASSERT_FALSE(none.ok());
+  EXPECT_EQ(none.status().code(), absl::StatusCode::kUnavailable) << none.status();
+  EXPECT_NE(none.status().message().find("busy"), std::string::npos) << none.status();
+}
+
 TEST(SliceSchedulerTest, CallerCancelStopsEveryCall) {
   const Query q = TestQuery();
   FaultyWorker a("a", absl::InternalError("never"), 60000ms);

@@ -17,6 +17,7 @@
 #include "cli/rpc_client.h"
 #include "grpcpp/grpcpp.h"
 #include "gtest/gtest.h"
+#include "schedule/slice_worker.h"
 #include "sliceplan.grpc.pb.h"
 #include "tests/support/process.h"
 #include "tests/support/servers.h"
@@ -153,10 +154,25 @@ TEST(HostileClientTest, RequestsPastTheConcurrencyLimitsAreRefused) {
   for (int i = 0; i < 500 && c.workers[0]->CpuSeconds() < idle + 0.05; ++i) {
     std::this_thread::sleep_for(10ms);
   }
-  grpc::Status s = Optimize(c, Request(testing::MakeQuery(GraphShape::kChain, 4, 1)), 5s);
+  grpc::Status s;
+  {
+    grpc::ClientContext context;
+    context.set_deadline(std::chrono::system_clock::now() + 5s);
+    v1::OptimizeResponse refused;
+    s = c.stub->Optimize(&context, Request(testing::MakeQuery(GraphShape::kChain, 4, 1)), &refused);
+    // Marked busy: a client can tell "retry later" from a request past a limit.
+    EXPECT_EQ(context.GetServerTrailingMetadata().count(kBusyKey), 1u);
+  }
   EXPECT_EQ(s.error_code(), grpc::StatusCode::RESOURCE_EXHAUSTED) << s.error_message();
   EXPECT_NE(s.error_message().find("--max_concurrent_requests=1"), std::string::npos)
       << s.error_message();
+  // The CLI says busy and exits 1 (not 2, the status of bad input).
+  const testing::CommandResult cli = testing::RunCommand(
+      std::string(SLICEPLAN_CLI_BIN) + " optimize " + SLICEPLAN_SOURCE_DIR +
+      "/examples/port_calls_small.json --coordinator=" + c.coordinator->address() + " 2>&1");
+  EXPECT_EQ(cli.exit_status, 1) << cli.output;
+  EXPECT_NE(cli.output.find(": busy, retry later (RESOURCE_EXHAUSTED:"), std::string::npos)
+      << cli.output;
   running.TryCancel();
   first.join();
   // Once the first has stopped (its cancel takes a poll to arrive),
@@ -403,6 +419,138 @@ TEST(HostileClientTest, SigtermStopsAWorkerMidSliceWithinTheGrace) {
   ASSERT_TRUE(exit.ok()) << exit.status();
   EXPECT_EQ(*exit, 0);
   EXPECT_LT(Clock::now() - start, 2500ms);
+}
+
+// A client that opens a stream and never reads it holds no place: the
+// search's progress is coalesced, not awaited, so the next request runs
+// as soon as that search ends (before, its writes blocked the search and
+// kept the only place until the call's deadline).
+TEST(HostileClientTest, AStreamNobodyReadsHoldsNoPlace) {
+  Cluster c = StartCluster(2, {}, {"--max_concurrent_requests=1", "--max_queued_requests=0"});
+  ASSERT_TRUE(c.coordinator);
+  grpc::ChannelArguments args;
+  args.SetInt(GRPC_ARG_HTTP2_STREAM_LOOKAHEAD_BYTES, 1024);  // a small window fills at once
+  args.SetInt(GRPC_ARG_HTTP2_BDP_PROBE, 0);
+  auto stalled_stub = v1::Coordinator::NewStub(grpc::CreateCustomChannel(
+      c.coordinator->address(), grpc::InsecureChannelCredentials(), args));
+  grpc::ClientContext stalled;
+  stalled.set_deadline(std::chrono::system_clock::now() + 60s);
+  // 64 slices of a 20-relation chain without cross products (each slice
+  // quick): a progress event each, past the window.
+  v1::OptimizeRequest heavy = Request(testing::MakeQuery(GraphShape::kChain, 20, 2), 64);
+  heavy.mutable_options()->mutable_cross_products()->set_value(false);
+  auto reader = stalled_stub->OptimizeStream(&stalled, heavy);
+  const auto start = Clock::now();
+  grpc::Status s;
+  for (int i = 0; i < 200; ++i) {  // until the stalled search has ended
+    s = Optimize(c, Request(testing::MakeQuery(GraphShape::kChain, 4, 1)), 5s);
+    if (s.ok()) break;
+    std::this_thread::sleep_for(50ms);
+  }
+  EXPECT_TRUE(s.ok()) << s.error_message();
+  EXPECT_LT(Clock::now() - start, 15s);
+  // Read now: the answer is there, after fewer progress events than
+  // slices (the writes did block, and the search went on without them).
+  v1::OptimizeEvent event;
+  int progress = 0;
+  bool answered = false;
+  while (reader->Read(&event)) {
+    progress += event.has_progress();
+    answered = answered || event.has_result();
+  }
+  EXPECT_TRUE(reader->Finish().ok());
+  EXPECT_TRUE(answered);
+  EXPECT_LT(progress, 64);
+}
+
+// A worker whose health says SERVING while its calls hang: a 1 s request
+// is hedged in time (the delay scales with the deadline, not the server's
+// 2 s), and after two slices lost to hedges the worker is demoted, shown
+// with the reason, and not called again.
+TEST(HostileClientTest, AHangingWorkerIsHedgedInTimeAndDemoted) {
+  Cluster c;
+  c.workers.push_back(testing::StartWorker({"--test_only_hang_seconds=600"}));
+  c.workers.push_back(testing::StartWorker());
+  c.coordinator = testing::StartCoordinator(c.workers);  // the default hedge delay, 2 s
+  ASSERT_TRUE(c.coordinator);
+  c.stub = v1::Coordinator::NewStub(
+      grpc::CreateChannel(c.coordinator->address(), grpc::InsecureChannelCredentials()));
+  const auto listing = [&] {
+    grpc::ClientContext context;
+    v1::ListWorkersResponse out;
+    EXPECT_TRUE(c.stub->ListWorkers(&context, {}, &out).ok());
+    return out;
+  };
+  for (int i = 0; i < 100 && !(listing().workers(0).healthy() && listing().workers(1).healthy());
+       ++i) {
+    std::this_thread::sleep_for(50ms);
+  }
+  v1::OptimizeRequest r = Request(testing::MakeQuery(GraphShape::kRandom, 10, 1), 2);
+  r.set_deadline_seconds(1);
+  for (int i = 0; i < 2; ++i) {
+    v1::OptimizeResponse out;
+    const grpc::Status s = Optimize(c, r, 5s, &out);
+    ASSERT_TRUE(s.ok()) << s.error_message();  // before: "0 of 1 slices solved" past 1 s
+    EXPECT_TRUE(out.proven_optimal());
+    EXPECT_GE(out.hedges(), 1u);
+  }
+  const v1::ListWorkersResponse after = listing();
+  EXPECT_FALSE(after.workers(0).healthy());
+  EXPECT_NE(after.workers(0).last_error().find("demoted"), std::string::npos)
+      << after.workers(0).last_error();
+  EXPECT_TRUE(after.workers(1).healthy());
+  // A health check later it is still out (its probe slice hangs too), and
+  // requests no longer wait for it.
+  std::this_thread::sleep_for(500ms);
+  EXPECT_FALSE(listing().workers(0).healthy());
+  v1::OptimizeResponse third;
+  ASSERT_TRUE(Optimize(c, r, 5s, &third).ok());
+  EXPECT_EQ(third.hedges(), 0u);
+}
+
+// A worker's queue is bounded: past its running slices and
+// --max_queued_slices waiting calls, a call is refused at once
+// (RESOURCE_EXHAUSTED, busy-marked for the coordinator), not parked.
+TEST(HostileClientTest, AWorkerRefusesCallsPastItsQueue) {
+  auto w = testing::StartWorker(
+      {"--concurrent-slices=1", "--max_queued_slices=2", "--test_only_hang_seconds=2"});
+  ASSERT_TRUE(w);
+  auto stub = v1::SliceWorker::NewStub(
+      grpc::CreateChannel(w->address(), grpc::InsecureChannelCredentials()));
+  v1::SolveSliceRequest r;
+  *r.mutable_query() = QueryToProto(testing::MakeQuery(GraphShape::kChain, 6, 1));
+  r.set_slice_count(1);
+  constexpr int kCalls = 10;
+  std::vector<grpc::Status> status(kCalls);
+  std::vector<bool> busy_mark(kCalls, false);
+  std::vector<std::thread> calls;
+  const auto start = Clock::now();
+  for (int i = 0; i < kCalls; ++i) {
+    calls.emplace_back([&, i] {
+      grpc::ClientContext context;
+      context.set_deadline(std::chrono::system_clock::now() + 10s);
+      v1::SolveSliceResponse out;
+      status[i] = stub->SolveSlice(&context, r, &out);
+      busy_mark[i] = context.GetServerTrailingMetadata().count(kBusyKey) != 0;
+    });
+    std::this_thread::sleep_for(20ms);  // the first three take the slot and the queue
+  }
+  for (std::thread& t : calls) t.join();
+  int ok = 0, refused = 0;
+  for (int i = 0; i < kCalls; ++i) {
+    if (status[i].ok()) {
+      ++ok;
+    } else {
+      ++refused;
+      EXPECT_EQ(status[i].error_code(), grpc::StatusCode::RESOURCE_EXHAUSTED);
+      EXPECT_NE(status[i].error_message().find("--max_queued_slices"), std::string::npos)
+          << status[i].error_message();
+      EXPECT_TRUE(busy_mark[i]);
+    }
+  }
+  EXPECT_EQ(ok, 3);  // one running, two waiting (2 s each, one after another)
+  EXPECT_EQ(refused, kCalls - 3);
+  EXPECT_GT(Clock::now() - start, 5s);
 }
 
 TEST(HostileClientTest, BadValuesGetMessagesThatSayWhatIsWrong) {

@@ -78,20 +78,40 @@ TEST(IdpTest, SmallBlocksNeverBelowTheOptimumNorAboveTheStart) {
   }
 }
 
+// A 14-relation chain with its left-deep greedy plan (its optimum is
+// bushy) and blocks of 6 without cross products.
+struct PoorChainStart {
+  Query q = testing::MakeQuery(GraphShape::kChain, 14, 2);
+  WideQuery w = WideQuery::FromExact(q);
+  WidePlan start = GreedyPlan(w, PlanShape::kLeftDeep);
+  IdpConfig config{.block = 6, .cross_products = false};
+};
+
 TEST(IdpTest, ImprovesAPoorStartOnAChain) {
-  // A left-deep start on a chain whose optimum is bushy: blocks of 6
-  // find cheaper sub-plans.
-  const Query q = testing::MakeQuery(GraphShape::kChain, 14, 2);
-  const WideQuery w = WideQuery::FromExact(q);
-  const WidePlan start = GreedyPlan(w, PlanShape::kLeftDeep);
-  IdpConfig config;
-  config.block = 6;
-  config.cross_products = false;
-  const IdpResult r = ImproveByBlocks(w, start, config, InProcess(false));
+  // Blocks of 6 find cheaper sub-plans.
+  const PoorChainStart c;
+  const Query& q = c.q;
+  const WidePlan& start = c.start;
+  const IdpResult r = ImproveByBlocks(c.w, start, c.config, InProcess(false));
   const double best = testing::DpBestBushy(q, false);
   ASSERT_GT(start.cost(), best * 1.01);  // the start is poor
   EXPECT_LT(r.plan.cost(), start.cost());
   EXPECT_GT(r.stats.improved, 0);
+}
+
+// Block searches that fail (no worker, a memo limit) are counted as
+// failed with their error, never as searched: the plan stays the start.
+TEST(IdpTest, FailedBlockSearchesAreCountedNotClaimed) {
+  const PoorChainStart c;
+  const IdpResult r =
+      ImproveByBlocks(c.w, c.start, c.config, [](const Query&) -> absl::StatusOr<Plan> {
+        return absl::UnavailableError("no worker is healthy");
+      });
+  EXPECT_GT(r.stats.blocks, 0);
+  EXPECT_EQ(r.stats.failed, r.stats.blocks);
+  EXPECT_EQ(r.stats.last_failure, "no worker is healthy");
+  EXPECT_EQ(r.stats.improved, 0);
+  EXPECT_DOUBLE_EQ(r.plan.cost(), c.start.cost());
 }
 
 // A block met again is answered from its first search: the same plan as
