@@ -66,6 +66,9 @@ absl::Status CheckTierFits(const WideQuery& query, const SearchOptions& options,
   if (tier == SearchTier::kExact && query.size() > kMaxRelations) {
     return ToExactQuery(query).status();
   }
+  if (tier == SearchTier::kLinear && query.size() > kMaxLinearRelations) {
+    return CheckLinearSize(query);
+  }
   const bool joins = !query.joins().empty();
   if (joins && tier != SearchTier::kAuto && tier != SearchTier::kExact) {
     return absl::InvalidArgumentError(absl::StrCat(
@@ -105,7 +108,7 @@ class TierRun {
     // A join that saturates makes every plan's cost the ceiling: refused
     // at any size, as the exact tier refuses it (docs/numeric-range.md).
     RETURN_IF_ERROR(CheckCoutInRange(query_));
-    Offer(GreedyPlan(query_, options_.shape), SearchTier::kGreedy);
+    Offer(GreedyPlan(query_, options_.shape, deadline_, &greedy_), SearchTier::kGreedy);
     out_.start_cost = out_.plan.cost();
     if (query_.size() <= 2) out_.proven_optimal = true;  // one plan (up to sides)
     if (tier == SearchTier::kGreedy || query_.size() <= 2) {
@@ -144,6 +147,11 @@ class TierRun {
 
   absl::StatusOr<TieredOutcome> Finish(std::string reason) {
     out_.reason = std::move(reason);
+    if (greedy_.cut) {
+      absl::StrAppend(&out_.reason, "; greedy reached the deadline after choosing ",
+                      greedy_.greedy_joins, " of ", query_.size() - 1,
+                      " joins and joined the rest along the predicates");
+    }
     out_.wall_seconds = SecondsBetween(start_, Clock::now());
     return std::move(out_);
   }
@@ -348,6 +356,7 @@ class TierRun {
   const WideQuery& query_;
   const SearchOptions& options_;
   const TierRequest& request_;
+  GreedyReport greedy_;
   std::span<SliceWorker* const> workers_;
   const ScheduleOptions& schedule_;
   const Clock::time_point start_;

@@ -22,10 +22,16 @@ struct Candidate {
 };
 using MinHeap = std::priority_queue<Candidate, std::vector<Candidate>, std::greater<>>;
 
+using Clock = std::chrono::steady_clock;
+
+// Merges between looks at the clock.
+constexpr int kClockEvery = 64;
+
 class GreedyBushy {
  public:
-  explicit GreedyBushy(const WideQuery& query)
+  GreedyBushy(const WideQuery& query, std::optional<Clock::time_point> deadline)
       : query_(query),
+        deadline_(deadline),
         parent_(query.size()),
         node_(query.size()),
         card_(query.size()),
@@ -34,11 +40,18 @@ class GreedyBushy {
         hyper_(query.size()),
         done_(query.predicates().size(), 0) {}
 
-  WidePlan Run() {
+  WidePlan Run(GreedyReport& report) {
     Init();
     int components = query_.size();
-    while (true) {
-      while (!heap_.empty()) {
+    while (components > 1) {
+      while (!heap_.empty() && components > 1) {
+        if (++merges_ % kClockEvery == 0 && deadline_ && Clock::now() >= *deadline_) {
+          report.cut = true;
+          report.greedy_joins = query_.size() - components;
+          FinishAlongPredicates();
+          CostWidePlan(plan_, query_);
+          return std::move(plan_);
+        }
         const Candidate c = heap_.top();
         heap_.pop();
         if (version_[c.a] != c.version_a || version_[c.b] != c.version_b) continue;
@@ -49,6 +62,7 @@ class GreedyBushy {
       CrossTwoSmallest();
       --components;
     }
+    report.greedy_joins = query_.size() - 1;
     CostWidePlan(plan_, query_);
     return std::move(plan_);
   }
@@ -69,6 +83,50 @@ class GreedyBushy {
   void Push(int32_t a, int32_t b) {
     const double card = Saturate(card_[a] * card_[b] * neighbours_[a].at(b));
     heap_.push({card, a, b, version_[a], version_[b]});
+  }
+
+  // Stale entries (a component's old pairs) are dropped once they outnumber
+  // the live pairs, which are at most the predicates: memory stays linear
+  // in relations plus predicates, whatever the merges push.
+  void CompactIfStale() {
+    if (heap_.size() <= 4 * (query_.predicates().size() + static_cast<size_t>(query_.size()))) {
+      return;
+    }
+    MinHeap().swap(heap_);
+    for (int32_t a = 0; a < query_.size(); ++a) {
+      if (Find(a) != a) continue;
+      for (const auto& [x, sel] : neighbours_[a]) {
+        if (a < x) Push(a, x);
+      }
+    }
+  }
+
+  // Out of time: the components left are joined along the predicates in
+  // input order (each predicate joins the components it spans), then by
+  // cross products in relation order. O(relations + predicate members).
+  void FinishAlongPredicates() {
+    for (const WidePredicate& p : query_.predicates()) {
+      int32_t first = Find(p.relations[0]);
+      for (const int32_t r : p.relations) {
+        const int32_t c = Find(r);
+        if (c == first) continue;
+        JoinComponents(first, c);
+        first = Find(first);
+      }
+    }
+    int32_t first = Find(0);
+    for (int32_t r = 1; r < query_.size(); ++r) {
+      const int32_t c = Find(r);
+      if (c == first) continue;
+      JoinComponents(first, c);
+      first = Find(first);
+    }
+  }
+
+  // b's component joined under a's, with no neighbour bookkeeping.
+  void JoinComponents(int32_t a, int32_t b) {
+    node_[a] = AddJoin(plan_, node_[a], node_[b]);
+    parent_[b] = a;
   }
 
   void Init() {
@@ -113,6 +171,7 @@ class GreedyBushy {
     absl::flat_hash_map<int32_t, double>().swap(neighbours_[b]);
     MoveHyperedges(b, a);
     for (const auto& [x, sel] : neighbours_[a]) Push(a, x);
+    CompactIfStale();
   }
 
   // A hyperedge whose span changed names relations of both sides, so it is
@@ -162,6 +221,8 @@ class GreedyBushy {
   }
 
   const WideQuery& query_;
+  const std::optional<Clock::time_point> deadline_;
+  uint64_t merges_ = 0;  // heap pops, for the clock
   WidePlan plan_;
   std::vector<int32_t> parent_;
   std::vector<int32_t> node_;  // plan node of each component
@@ -266,14 +327,21 @@ class GreedyLeftDeep {
 
 }  // namespace
 
-WidePlan GreedyPlan(const WideQuery& query, PlanShape shape) {
+WidePlan GreedyPlan(const WideQuery& query, PlanShape shape,
+                    std::optional<std::chrono::steady_clock::time_point> deadline,
+                    GreedyReport* report) {
+  GreedyReport ignored;
+  GreedyReport& out = report != nullptr ? *report : ignored;
+  out = {};
   if (query.size() == 1) {
     WidePlan plan;
     AddLeaf(plan, 0);
     CostWidePlan(plan, query);
     return plan;
   }
-  return shape == PlanShape::kBushy ? GreedyBushy(query).Run() : GreedyLeftDeep(query).Run();
+  if (shape == PlanShape::kBushy) return GreedyBushy(query, deadline).Run(out);
+  out.greedy_joins = query.size() - 1;
+  return GreedyLeftDeep(query).Run();
 }
 
 }  // namespace sliceplan

@@ -21,14 +21,31 @@
 #ifndef SLICEPLAN_TIERS_GREEDY_H_
 #define SLICEPLAN_TIERS_GREEDY_H_
 
+#include <chrono>
+#include <optional>
+
 #include "core/model/wide_query.h"
 #include "core/slicing/slice_spec.h"
 #include "tiers/wide_plan.h"
 
 namespace sliceplan {
 
-// The greedy plan of `shape`, costed (CostWidePlan).
-WidePlan GreedyPlan(const WideQuery& query, PlanShape shape);
+// What a greedy run did: the joins it chose greedily (all of them unless
+// the deadline cut it short).
+struct GreedyReport {
+  bool cut = false;
+  int greedy_joins = 0;
+};
+
+// The greedy plan of `shape`, costed (CostWidePlan). Bushy: the clock is
+// read every few merges; at `deadline` the components left are joined
+// along the predicates in input order (then by cross products), so a plan
+// comes back by the deadline plus O(relations + predicates) work, and the
+// pair heap is compacted so memory stays linear in relations plus
+// predicates. Left-deep runs in O(m log n) with no deadline.
+WidePlan GreedyPlan(const WideQuery& query, PlanShape shape,
+                    std::optional<std::chrono::steady_clock::time_point> deadline = std::nullopt,
+                    GreedyReport* report = nullptr);
 
 }  // namespace sliceplan
 

@@ -259,14 +259,14 @@ class RunTable {
   std::vector<std::vector<int32_t>> connected_ends_;
 };
 
+}  // namespace
+
 absl::Status CheckLinearSize(const WideQuery& query) {
   if (query.size() <= kMaxLinearRelations) return absl::OkStatus();
   return absl::ResourceExhaustedError(
       absl::StrCat("the linear tier takes at most ", kMaxLinearRelations, " relations (",
                    query.size(), " given); the greedy and idp tiers take more"));
 }
-
-}  // namespace
 
 absl::StatusOr<WidePlan> LinearizedDp(const WideQuery& query, const std::vector<int32_t>& order,
                                       PlanShape shape, bool cross_products,

@@ -42,6 +42,9 @@ static_assert(kMaxLinearRelations == kMaxLinearTierRelations, "core/capacity/cap
 absl::StatusOr<WidePlan> LinearizedDp(const WideQuery& query, const std::vector<int32_t>& order,
                                       PlanShape shape, bool cross_products, SearchControl& control);
 
+// RESOURCE_EXHAUSTED, with the numbers, past kMaxLinearRelations.
+absl::Status CheckLinearSize(const WideQuery& query);
+
 // IKKBZ's order (up to `max_roots` roots), then LinearizedDp over it.
 absl::StatusOr<WidePlan> LinearPlan(const WideQuery& query, PlanShape shape, bool cross_products,
                                     SearchControl& control, int max_roots = 16);

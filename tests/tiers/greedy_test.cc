@@ -109,5 +109,28 @@ TEST(GreedyTest, ThousandsOfRelationsGetValidPlans) {
   }
 }
 
+// Out of time, the bushy greedy plan still comes back whole: the joins it
+// chose, then the rest along the predicates (no cross product on a
+// connected graph), reported as cut.
+TEST(GreedyTest, ADeadlineCutsTheChoiceNotThePlan) {
+  using testing::WideShape;
+  for (const WideShape shape : {WideShape::kTreeWithCycles, WideShape::kTreeWithHyperedges}) {
+    const int n = 3000;
+    const WideQuery q = testing::MakeWideQuery(shape, n, 5);
+    GreedyReport report;
+    const WidePlan cut =
+        GreedyPlan(q, PlanShape::kBushy, std::chrono::steady_clock::now(), &report);
+    ASSERT_TRUE(CheckWidePlan(cut, n).ok()) << testing::WideShapeName(shape);
+    EXPECT_FALSE(HasCrossProduct(cut, q)) << testing::WideShapeName(shape);
+    EXPECT_TRUE(report.cut);
+    EXPECT_LT(report.greedy_joins, n - 1);
+    GreedyReport whole;
+    const WidePlan full = GreedyPlan(q, PlanShape::kBushy, std::nullopt, &whole);
+    ASSERT_TRUE(CheckWidePlan(full, n).ok());
+    EXPECT_FALSE(whole.cut);
+    EXPECT_EQ(whole.greedy_joins, n - 1);
+  }
+}
+
 }  // namespace
 }  // namespace sliceplan
