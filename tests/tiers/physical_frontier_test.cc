@@ -12,6 +12,7 @@
 
 #include "core/cost/pareto.h"
 #include "tests/support/cluster_reference.h"
+#include "tests/support/physical_plans.h"
 #include "tests/support/test_queries.h"
 #include "tests/support/wide_queries.h"
 #include "tiers/greedy.h"
@@ -20,35 +21,6 @@ namespace sliceplan {
 namespace {
 
 using testing::GraphShape;
-
-ClusterSearchConfig Config() {
-  ClusterSearchConfig c;
-  c.params.node_counts = {4, 16};
-  c.params.sample_rates = {1.0, 0.1};
-  return c;
-}
-
-// The engine's Plan of a wide tree (at most 64 relations) with the given
-// physical choices.
-Plan ToPlan(const WidePlan& tree, const PhysicalPlan& choices) {
-  Plan plan;
-  for (size_t i = 0; i < tree.nodes.size(); ++i) {
-    const WideNode& w = tree.nodes[i];
-    PlanNode node;
-    if (w.is_leaf()) {
-      node.relations = RelSet{1} << w.relation;
-      node.sample_rate = choices.sample_rate[i];
-    } else {
-      node.left = w.left;
-      node.right = w.right;
-      node.relations = plan.nodes[w.left].relations | plan.nodes[w.right].relations;
-      node.strategy = choices.strategy[i];
-      node.nodes = choices.nodes[i];
-    }
-    plan.nodes.push_back(node);
-  }
-  return plan;
-}
 
 bool Near(double a, double b) {
   return std::fabs(a - b) <= 1e-9 * std::max(std::fabs(a), std::fabs(b));
@@ -70,7 +42,8 @@ std::vector<ClusterCosts> Exhaustive(const Query& q, const WidePlan& tree,
       choices.strategy.push_back(kAllStrategies[digit[i] % 3]);
       choices.nodes.push_back(tree.nodes[i].is_leaf() ? 0 : params.node_counts[digit[i] / 3]);
     }
-    const testing::RefCosts c = testing::RefCostsOf(q, params, ToPlan(tree, choices));
+    const testing::RefCosts c =
+        testing::RefCostsOf(q, params, testing::PlanWithChoices(tree, choices));
     out.push_back({c.latency, c.node_seconds, c.completeness});
     size_t k = 0;
     while (k < radix.size() && ++digit[k] == radix[k]) digit[k++] = 0;
@@ -80,7 +53,7 @@ std::vector<ClusterCosts> Exhaustive(const Query& q, const WidePlan& tree,
 }
 
 TEST(PhysicalFrontierTest, EqualsTheExhaustiveFrontierOfTheTree) {
-  const ClusterSearchConfig config = Config();
+  const ClusterSearchConfig config = testing::SmallClusterConfig();
   for (uint64_t seed = 1; seed <= 6; ++seed) {
     for (GraphShape shape : {GraphShape::kChain, GraphShape::kStar, GraphShape::kRandom}) {
       const Query q = testing::MakeQuery(shape, 4, seed);
@@ -98,7 +71,7 @@ TEST(PhysicalFrontierTest, EqualsTheExhaustiveFrontierOfTheTree) {
           EXPECT_TRUE(Near(got[k].costs().completeness, want[k].completeness)) << seed;
           // Its metrics are its choices' (the reference recomputes them).
           const testing::RefCosts again =
-              testing::RefCostsOf(q, config.params, ToPlan(tree, got[k]));
+              testing::RefCostsOf(q, config.params, testing::PlanWithChoices(tree, got[k]));
           EXPECT_TRUE(Near(again.latency, got[k].costs().latency_s));
           EXPECT_TRUE(Near(again.node_seconds, got[k].costs().node_seconds));
         }
@@ -108,7 +81,7 @@ TEST(PhysicalFrontierTest, EqualsTheExhaustiveFrontierOfTheTree) {
 }
 
 TEST(PhysicalFrontierTest, ACapKeepsValidMutuallyNonDominatedPlans) {
-  ClusterSearchConfig config = Config();
+  ClusterSearchConfig config = testing::SmallClusterConfig();
   config.params.sample_rates = {1.0, 0.3, 0.1, 0.03};
   const Query q = testing::MakeQuery(GraphShape::kRandom, 9, 3);
   const WideQuery w = WideQuery::FromExact(q);
@@ -117,7 +90,8 @@ TEST(PhysicalFrontierTest, ACapKeepsValidMutuallyNonDominatedPlans) {
   ASSERT_FALSE(capped.empty());
   std::vector<ClusterCosts> costs;
   for (const PhysicalPlan& p : capped) {
-    const testing::RefCosts again = testing::RefCostsOf(q, config.params, ToPlan(tree, p));
+    const testing::RefCosts again =
+        testing::RefCostsOf(q, config.params, testing::PlanWithChoices(tree, p));
     EXPECT_TRUE(Near(again.latency, p.costs().latency_s));
     EXPECT_TRUE(Near(again.completeness, p.costs().completeness));
     costs.push_back(p.costs());
@@ -126,7 +100,7 @@ TEST(PhysicalFrontierTest, ACapKeepsValidMutuallyNonDominatedPlans) {
 }
 
 TEST(PhysicalFrontierTest, AThousandRelationTreeGetsASet) {
-  ClusterSearchConfig config = Config();
+  ClusterSearchConfig config = testing::SmallClusterConfig();
   const WideQuery w = testing::MakeWideQuery(testing::WideShape::kSnowflake, 1000, 2);
   const WidePlan tree = GreedyPlan(w, PlanShape::kBushy);
   const std::vector<PhysicalPlan> set = PhysicalFrontier(w, tree, config, {.cap = 8});
