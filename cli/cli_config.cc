@@ -232,12 +232,13 @@ std::vector<FlagRow> RunRows(OptimizeConfig& config) {
                             {"json", OutputFormat::kJson},
                             {"dot", OutputFormat::kDot}},
                            "text, json or dot")},
-      {"tier", "auto|exact|idp|linear|greedy", "auto",
+      {"tier", "auto|exact|idp|linear|greedy|anytime", "auto",
        "how to search: auto takes the exact search when it fits the time on this pool, else "
-       "idp from the best of greedy and linear",
+       "idp from the best of greedy and linear (the cluster model: the exact Pareto search, "
+       "else the anytime one)",
        [&config](const std::string& v) {
          const auto tier = ParseTier(v);
-         if (!tier) return BadFlag("tier", v, "auto, exact, idp, linear or greedy");
+         if (!tier) return BadFlag("tier", v, "auto, exact, idp, linear, greedy or anytime");
          config.tier = *tier;
          return absl::OkStatus();
        }},

@@ -182,15 +182,20 @@ std::optional<ListedUse> ListedUsed(const TieredOutcome& outcome, const RunInfo&
 
 // The cluster model's report: the Pareto frontier, one line per plan, and
 // the chosen plan's tree (or why there is none).
-void AppendFrontierReport(const OptimizeResult& result, const RunInfo& info, std::string& out) {
+void AppendFrontierReport(const TieredOutcome& outcome, const RunInfo& info, std::string& out) {
+  const OptimizeResult& result = outcome.schedule.result;
   const Query& query = *info.exact;
-  absl::StrAppendFormat(&out,
-                        "Pareto frontier of %s plans of %d relations (cross products %s), "
-                        "objectives %s, alpha %g: %d plans\n\n",
-                        ShapeName(info.search.shape), query.size(),
-                        info.search.cross_products ? "allowed" : "excluded",
-                        ObjectivesString(info.search.cluster.objectives), info.search.cluster.alpha,
-                        static_cast<int>(result.frontier.size()));
+  // The exact search's set is the frontier (within alpha); the anytime
+  // search's is the best found so far, not proven.
+  const std::string what =
+      outcome.tier == SearchTier::kAnytime
+          ? "Pareto set found by the anytime search (not proven: an approximation of the frontier)"
+          : absl::StrFormat("Pareto frontier (alpha %g)", info.search.cluster.alpha);
+  absl::StrAppendFormat(
+      &out, "%s of %s plans of %d relations (cross products %s), objectives %s: %d plans\n\n", what,
+      ShapeName(info.search.shape), query.size(),
+      info.search.cross_products ? "allowed" : "excluded",
+      ObjectivesString(info.search.cluster.objectives), static_cast<int>(result.frontier.size()));
   absl::StrAppendFormat(&out, "  %4s  %12s  %14s  %12s  %s\n", "plan", "latency_s", "node_seconds",
                         "completeness", "tree");
   for (size_t i = 0; i < result.frontier.size(); ++i) {
@@ -314,7 +319,7 @@ std::string PlanNodesJson(const WidePlan& plan, const WideQuery& query) {
 std::string RenderText(const TieredOutcome& outcome, const RunInfo& info) {
   std::string out;
   if (info.search.cost == CostModelKind::kCluster) {
-    AppendFrontierReport(outcome.schedule.result, info, out);
+    AppendFrontierReport(outcome, info, out);
   } else {
     AppendBestPlanReport(outcome, info, out);
   }

@@ -9,10 +9,13 @@
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_format.h"
 #include "core/capacity/rate_calibration.h"
+#include "core/cost/pareto.h"
+#include "core/merge.h"
 #include "core/model/input_limits.h"
 #include "core/model/status_macros.h"
 #include "core/slice_planner.h"
 #include "core/slice_solver.h"
+#include "tiers/anytime_frontier.h"
 #include "tiers/greedy.h"
 #include "tiers/join_forest.h"
 #include "tiers/linear_dp.h"
@@ -46,10 +49,21 @@ int PoolConcurrentSlices(std::span<SliceWorker* const> workers) {
 // The tier checks that need no search. Messages name the tier as both
 // the CLI's --tier and the RPC's `tier` field ask for it.
 absl::Status CheckTierFits(const WideQuery& query, const SearchOptions& options, SearchTier tier) {
+  if (tier == SearchTier::kAnytime && options.cost != CostModelKind::kCluster) {
+    return absl::InvalidArgumentError(
+        "tier anytime: searches the cluster model's Pareto set (--cost=cluster); the cout "
+        "model's tiers are exact, idp, linear and greedy");
+  }
+  if (tier == SearchTier::kAnytime && !query.joins().empty()) {
+    return absl::InvalidArgumentError(
+        "tier anytime: reorders inner joins only; a query with outer, semi or anti joins "
+        "(`joins`) is searched by the exact tier (or auto)");
+  }
   if (options.cost == CostModelKind::kCluster) {
-    if (tier != SearchTier::kAuto && tier != SearchTier::kExact) {
-      return absl::InvalidArgumentError(absl::StrCat(
-          "tier ", TierName(tier), ": the cluster model is searched by the exact tier only"));
+    if (tier != SearchTier::kAuto && tier != SearchTier::kExact && tier != SearchTier::kAnytime) {
+      return absl::InvalidArgumentError(
+          absl::StrCat("tier ", TierName(tier),
+                       ": the cluster model is searched by the exact or the anytime tier"));
     }
     if (query.size() > kMaxRelations) {
       return absl::InvalidArgumentError(
@@ -84,6 +98,14 @@ absl::Status CheckTierFits(const WideQuery& query, const SearchOptions& options,
   return absl::OkStatus();
 }
 
+// The sizes up to which auto tries the cluster model's exact Pareto search
+// before the anytime one (with and without cross products): past them it
+// cannot finish in seconds, and a slice stopped at its deadline still
+// takes a while to give up its memo (a rule of thumb of ours, from
+// docs/benchmarks.md, "Many objectives").
+constexpr int kClusterExactReach = 14;
+constexpr int kClusterExactReachConnected = 18;
+
 // One run's state: the incumbent and what each tier did.
 class TierRun {
  public:
@@ -101,6 +123,10 @@ class TierRun {
 
   absl::StatusOr<TieredOutcome> Run() {
     const SearchTier tier = request_.tier;
+    if (options_.cost == CostModelKind::kCluster && tier != SearchTier::kExact &&
+        query_.joins().empty()) {
+      return ClusterTiers();
+    }
     if (options_.cost == CostModelKind::kCluster || tier == SearchTier::kExact ||
         !query_.joins().empty()) {
       return ExactAlone();
@@ -187,6 +213,79 @@ class TierRun {
     return Finish(
         "exact: the query has outer, semi or anti joins, which the greedy, linear and idp "
         "tiers cannot reorder (they are skipped)");
+  }
+
+  // The cluster model, auto or anytime. Auto gives the exact Pareto search
+  // half the time (its slices solved are kept if it does not finish); the
+  // anytime search takes the rest, or all of it when asked for, and the
+  // answer is the non-dominated union of both.
+  absl::StatusOr<TieredOutcome> ClusterTiers() {
+    std::vector<Plan> exact_plans;
+    std::string reason = "anytime: requested";
+    const int reach = options_.cross_products ? kClusterExactReach : kClusterExactReachConnected;
+    if (request_.tier == SearchTier::kAuto && query_.size() > reach) {
+      reason =
+          absl::StrCat("anytime: ", query_.size(),
+                       " relations, more than auto tries the exact Pareto search on (", reach, ")");
+    } else if (request_.tier == SearchTier::kAuto) {
+      ASSIGN_OR_RETURN(const Query exact, ToExactQuery(query_));
+      const uint32_t p = request_.slice_count != 0
+                             ? request_.slice_count
+                             : ChooseSliceCount(exact, options_, concurrent_slices_);
+      ScheduleOptions half = schedule_;
+      half.deadline = start_ + (deadline_ - start_) / 2;
+      half.partial_on_deadline = true;
+      absl::StatusOr<ScheduleOutcome> run = RunSlices(exact, options_, p, workers_, half);
+      if (run.ok() && run->proven_optimal) {
+        out_.tier = SearchTier::kExact;
+        out_.proven_optimal = true;
+        out_.coverage = 1;
+        out_.plan = FromExactPlan(run->result.plan);
+        out_.schedule = *std::move(run);
+        out_.exact_ran = true;
+        return Finish("exact: the cluster model's Pareto search finished in half the time");
+      }
+      if (run.ok()) {
+        exact_plans = run->result.frontier;
+        out_.coverage = run->coverage;
+        out_.schedule = *std::move(run);
+        reason = absl::StrFormat(
+            "anytime: the exact Pareto search solved %.0f%% of its slices "
+            "in half the time; its plans are kept",
+            100 * out_.coverage);
+      } else if (absl::IsCancelled(run.status())) {
+        return run.status();
+      } else {
+        reason = absl::StrCat("anytime: the exact Pareto search gave nothing in half the time (",
+                              run.status().message(), ")");
+      }
+    }
+    return Anytime(std::move(exact_plans), std::move(reason));
+  }
+
+  absl::StatusOr<TieredOutcome> Anytime(std::vector<Plan> plans, std::string reason) {
+    SearchControl control(nullptr, deadline_);
+    if (schedule_.cancelled) control.set_cancel_check(schedule_.cancelled);
+    AnytimeFrontierOptions o;
+    o.shape = options_.shape;
+    o.cross_products = options_.cross_products;
+    o.cap_per_node = query_.size() <= 16 ? 32 : 8;
+    const AnytimeFrontierResult r = AnytimeFrontier(query_, options_.cluster, o, control);
+    if (absl::IsCancelled(control.status())) return absl::CancelledError("the caller cancelled");
+    for (const FrontierPlan& p : r.frontier) plans.push_back(ClusterPlanOf(*p.tree, p.physical));
+    std::vector<ClusterCosts> costs;
+    for (const Plan& p : plans) costs.push_back(p.root().metrics);
+    OptimizeResult& result = out_.schedule.result;
+    result.frontier.clear();
+    for (size_t k : FrontierIndices(costs, options_.cluster.objectives)) {
+      result.frontier.push_back(plans[k]);
+    }
+    ApplyChoice(result, options_.cluster.choice);
+    out_.tier = SearchTier::kAnytime;
+    out_.proven_optimal = false;
+    out_.plan = FromExactPlan(result.plan);
+    return Finish(absl::StrFormat("%s; %d trees evaluated, %d plans in the set", reason, r.trees,
+                                  result.frontier.size()));
   }
 
   absl::Status TryLinear(bool forced) {

@@ -148,4 +148,27 @@ std::vector<PhysicalPlan> PhysicalFrontier(const WideQuery& query, const WidePla
   return out;
 }
 
+Plan ClusterPlanOf(const WidePlan& tree, const PhysicalPlan& choices) {
+  Plan plan;
+  for (size_t i = 0; i < tree.nodes.size(); ++i) {
+    const WideNode& w = tree.nodes[i];
+    PlanNode node;
+    node.cardinality = w.cardinality;
+    node.metrics = choices.metrics[i];
+    node.cost = node.metrics.latency_s;
+    if (w.is_leaf()) {
+      node.relations = RelSet{1} << w.relation;
+      node.sample_rate = choices.sample_rate[i];
+    } else {
+      node.left = w.left;
+      node.right = w.right;
+      node.relations = plan.nodes[w.left].relations | plan.nodes[w.right].relations;
+      node.strategy = choices.strategy[i];
+      node.nodes = choices.nodes[i];
+    }
+    plan.nodes.push_back(node);
+  }
+  return plan;
+}
+
 }  // namespace sliceplan

@@ -20,6 +20,8 @@ v1::Tier TierToProto(SearchTier tier) {
       return v1::TIER_LINEAR;
     case SearchTier::kGreedy:
       return v1::TIER_GREEDY;
+    case SearchTier::kAnytime:
+      return v1::TIER_ANYTIME;
   }
   return v1::TIER_AUTO;
 }
@@ -37,6 +39,8 @@ absl::StatusOr<SearchTier> TierFromProto(int tier) {
       return SearchTier::kLinear;
     case v1::TIER_GREEDY:
       return SearchTier::kGreedy;
+    case v1::TIER_ANYTIME:
+      return SearchTier::kAnytime;
     default:
       return absl::InvalidArgumentError(absl::StrCat("tier: unknown value ", tier));
   }

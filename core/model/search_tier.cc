@@ -14,13 +14,15 @@ std::string TierName(SearchTier tier) {
       return "linear";
     case SearchTier::kGreedy:
       return "greedy";
+    case SearchTier::kAnytime:
+      return "anytime";
   }
   return "auto";
 }
 
 std::optional<SearchTier> ParseTier(std::string_view name) {
   for (const SearchTier t : {SearchTier::kAuto, SearchTier::kExact, SearchTier::kIdp,
-                             SearchTier::kLinear, SearchTier::kGreedy}) {
+                             SearchTier::kLinear, SearchTier::kGreedy, SearchTier::kAnytime}) {
     if (TierName(t) == name) return t;
   }
   return std::nullopt;

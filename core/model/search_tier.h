@@ -9,9 +9,10 @@
 
 namespace sliceplan {
 
-enum class SearchTier { kAuto, kExact, kIdp, kLinear, kGreedy };
+// kAnytime: the cluster model's anytime frontier search (docs/tiers.md).
+enum class SearchTier { kAuto, kExact, kIdp, kLinear, kGreedy, kAnytime };
 
-// "auto", "exact", "idp", "linear", "greedy".
+// "auto", "exact", "idp", "linear", "greedy", "anytime".
 std::string TierName(SearchTier tier);
 // The inverse of TierName; none for anything else.
 std::optional<SearchTier> ParseTier(std::string_view name);

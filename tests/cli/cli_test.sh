@@ -87,9 +87,10 @@ check node_counts_past_limit 2 "node_counts: 17 given; the limit is 16" optimize
 check no_coordinator 1 "coordinator 127.0.0.1:1: nothing listens at that address (UNAVAILABLE:" optimize "$examples/port_calls_small.json" --coordinator=127.0.0.1:1
 check workers_no_coordinator 1 "coordinator 127.0.0.1:1:" workers --coordinator=127.0.0.1:1
 check memo_limit 2 "over the limit" optimize "$examples/port_logistics.json" --tier=exact --slices=1 --memo-limit=1MiB
-check bad_tier 2 "--tier=fast: expected auto, exact, idp, linear or greedy" optimize "$examples/port_logistics.json" --tier=fast
+check bad_tier 2 "--tier=fast: expected auto, exact, idp, linear, greedy or anytime" optimize "$examples/port_logistics.json" --tier=fast
 check idp_left_deep 2 "idp builds bushy plans" optimize "$examples/port_logistics.json" --tier=idp --shape=left-deep
-check cluster_past_exact 2 "the cluster model is searched by the exact tier only" optimize "$examples/port_calls_small.json" --cost=cluster --tier=greedy
+check anytime_cout 2 "tier anytime: searches the cluster model" optimize "$examples/port_calls_small.json" --tier=anytime
+check cluster_past_exact 2 "the cluster model is searched by the exact or the anytime tier" optimize "$examples/port_calls_small.json" --cost=cluster --tier=greedy
 check slices_past_exact 2 "--slices: slices divide the exact search" optimize "$bad/too_many_relations.json" --slices=2
 
 # The cluster model's parameters.

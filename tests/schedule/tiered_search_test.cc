@@ -9,6 +9,8 @@
 #include <string>
 
 #include "core/capacity/rate_calibration.h"
+#include "core/cost/cluster_recost.h"
+#include "core/model/cardinality.h"
 #include "gtest/gtest.h"
 #include "schedule/embedded_pool.h"
 #include "tests/support/reference_dp.h"
@@ -129,6 +131,44 @@ TEST(TieredSearchTest, APartialExactRunWithNoSliceSolvedStillAnswers) {
   schedule.deadline = SteadyAfter(0.001);
   EXPECT_EQ(RunEmbeddedTiers(q, Bushy(true), request, 1, schedule).status().code(),
             absl::StatusCode::kDeadlineExceeded);
+}
+
+// The cluster model under auto: a small query gets the exact frontier,
+// proven; a query the exact search cannot finish in half the time gets
+// the anytime set (not proven), never nothing, every plan's metrics its
+// physical choices' (recomputed here).
+TEST(TieredSearchTest, TheClusterModelGetsASetAtEverySize) {
+  SearchOptions options;
+  options.cost = CostModelKind::kCluster;
+  options.cluster.params.node_counts = {4, 16};
+  options.cluster.params.sample_rates = {1.0, 0.1};
+  const Query small = testing::MakeQuery(GraphShape::kRandom, 6, 2);
+  auto exact = Tiers(WideQuery::FromExact(small), options, SearchTier::kAuto, 10);
+  ASSERT_TRUE(exact.ok()) << exact.status();
+  EXPECT_EQ(exact->tier, SearchTier::kExact);
+  EXPECT_TRUE(exact->proven_optimal);
+  const Query large = testing::MakeQuery(GraphShape::kRandom, 26, 2);
+  const auto start = std::chrono::steady_clock::now();
+  auto anytime = Tiers(WideQuery::FromExact(large), options, SearchTier::kAuto, 1);
+  EXPECT_LT(std::chrono::steady_clock::now() - start, std::chrono::milliseconds(1500));
+  ASSERT_TRUE(anytime.ok()) << anytime.status();
+  EXPECT_EQ(anytime->tier, SearchTier::kAnytime);
+  EXPECT_FALSE(anytime->proven_optimal);
+  const auto& frontier = anytime->schedule.result.frontier;
+  ASSERT_FALSE(frontier.empty());
+  const Cardinality card(large);
+  for (const Plan& plan : frontier) {
+    auto again = RecostClusterPlan(large, card, options.cluster.params, plan);
+    ASSERT_TRUE(again.ok()) << again.status();
+    EXPECT_NEAR(again->back().latency_s, plan.root().metrics.latency_s,
+                1e-9 * plan.root().metrics.latency_s);
+    EXPECT_NEAR(again->back().node_seconds, plan.root().metrics.node_seconds,
+                1e-9 * plan.root().metrics.node_seconds);
+  }
+  auto forced = Tiers(WideQuery::FromExact(small), options, SearchTier::kAnytime, 0.3);
+  ASSERT_TRUE(forced.ok()) << forced.status();
+  EXPECT_EQ(forced->tier, SearchTier::kAnytime);
+  EXPECT_NE(forced->reason.find("anytime: requested"), std::string::npos) << forced->reason;
 }
 
 TEST(TieredSearchTest, ASaturatingJoinIsRefusedAtAnySize) {

@@ -27,23 +27,7 @@ inline ClusterSearchConfig SmallClusterConfig() {
 
 // REQUIRES: the tree has at most 64 relations.
 inline Plan PlanWithChoices(const WidePlan& tree, const PhysicalPlan& choices) {
-  Plan plan;
-  for (size_t i = 0; i < tree.nodes.size(); ++i) {
-    const WideNode& w = tree.nodes[i];
-    PlanNode node;
-    if (w.is_leaf()) {
-      node.relations = RelSet{1} << w.relation;
-      node.sample_rate = choices.sample_rate[i];
-    } else {
-      node.left = w.left;
-      node.right = w.right;
-      node.relations = plan.nodes[w.left].relations | plan.nodes[w.right].relations;
-      node.strategy = choices.strategy[i];
-      node.nodes = choices.nodes[i];
-    }
-    plan.nodes.push_back(node);
-  }
-  return plan;
+  return ClusterPlanOf(tree, choices);
 }
 
 // The smallest alpha such that every plan of `reference` is alpha-covered

@@ -37,6 +37,7 @@ std::vector<ClusterCosts> Exhaustive(const Query& q, const WidePlan& tree,
   std::vector<size_t> digit(radix.size(), 0);
   while (true) {
     PhysicalPlan choices;
+    choices.metrics.assign(radix.size(), {});  // the reference costs it
     for (size_t i = 0; i < radix.size(); ++i) {
       choices.sample_rate.push_back(tree.nodes[i].is_leaf() ? params.sample_rates[digit[i]] : 1);
       choices.strategy.push_back(kAllStrategies[digit[i] % 3]);
