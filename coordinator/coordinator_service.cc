@@ -158,7 +158,9 @@ std::optional<std::chrono::milliseconds> HedgeDelay(const CoordinatorConfig& con
   if (!config.hedge_after) return std::nullopt;
   const auto fifth =
       std::chrono::duration_cast<std::chrono::milliseconds>((deadline - Clock::now()) / 5);
-  return std::clamp(fifth, kMinHedgeDelay, std::max(kMinHedgeDelay, *config.hedge_after));
+  const auto configured =
+      std::chrono::duration_cast<std::chrono::milliseconds>(*config.hedge_after);
+  return std::clamp(fifth, std::min(kMinHedgeDelay, configured), configured);
 }
 
 // How the request's slices are scheduled: the server's hedging, the run's
@@ -258,7 +260,7 @@ absl::StatusOr<TieredOutcome> CoordinatorService::Search(
 }
 
 absl::StatusOr<v1::OptimizeResponse> CoordinatorService::Run(
-    grpc::ServerContext* context, const v1::OptimizeRequest& request,
+    grpc::ServerContext* context, const v1::OptimizeRequest& request, const char* method,
     const std::function<void(const ScheduleProgress&)>& on_progress) {
   const auto start = Clock::now();
   const std::string request_id = RequestIdOf(*context);
@@ -277,7 +279,7 @@ absl::StatusOr<v1::OptimizeResponse> CoordinatorService::Run(
   }
   const double wall = std::chrono::duration<double>(Clock::now() - start).count();
   metrics_.Request(outcome, facts.asked, wall);
-  metrics_.refusals().Note("Optimize", *context, outcome.status());
+  metrics_.refusals().Note(method, *context, outcome.status());
   LogRequest(request_id, facts, outcome, wall);
   if (!outcome.ok()) return outcome.status();
   return answer;
@@ -302,7 +304,7 @@ void CoordinatorService::SetTokens(BearerTokens tokens) {
 grpc::Status CoordinatorService::Optimize(grpc::ServerContext* context,
                                           const v1::OptimizeRequest* request,
                                           v1::OptimizeResponse* response) {
-  auto result = Run(context, *request, {});
+  auto result = Run(context, *request, "Optimize", {});
   if (!result.ok()) return Reply(*context, result.status());
   *response = *std::move(result);
   return grpc::Status::OK;
@@ -315,7 +317,9 @@ grpc::Status CoordinatorService::OptimizeStream(grpc::ServerContext* context,
   // client to read it; the answer waits for a stalled client at most
   // until the run's deadline.
   CoalescingWriter<v1::OptimizeEvent> progress(writer, context);
-  auto result = Run(context, *request, [&](const ScheduleProgress& p) {
+  // The run's deadline, fixed before it starts.
+  const auto deadline = RunDeadline(context, *request, config_);
+  auto result = Run(context, *request, "OptimizeStream", [&](const ScheduleProgress& p) {
     v1::OptimizeEvent event;
     v1::Progress* out = event.mutable_progress();
     out->set_slices_done(p.slices_done);
@@ -324,7 +328,6 @@ grpc::Status CoordinatorService::OptimizeStream(grpc::ServerContext* context,
     out->set_elapsed_seconds(p.elapsed_seconds);
     progress.Offer(std::move(event));
   });
-  const auto deadline = RunDeadline(context, *request, config_);
   const Clock::time_point give_up =
       std::max(Clock::now(), deadline.ok() ? *deadline : Clock::now());
   if (!result.ok()) {

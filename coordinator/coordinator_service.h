@@ -98,8 +98,9 @@ class CoordinatorService final : public v1::Coordinator::Service {
       ABSL_LOCKS_EXCLUDED(tokens_mu_);
   // Authenticates, searches, counts and logs one Optimize call (its id
   // from the caller's x-request-id or new, sent back in the metadata).
+  // `method`: the RPC's name for the refusal count.
   absl::StatusOr<v1::OptimizeResponse> Run(
-      grpc::ServerContext* context, const v1::OptimizeRequest& request,
+      grpc::ServerContext* context, const v1::OptimizeRequest& request, const char* method,
       const std::function<void(const ScheduleProgress&)>& on_progress);
 
   // Validates, waits for admission and runs the tiers; fills `facts` as it

@@ -139,14 +139,18 @@ void RpcWorker::CheckHealth(std::chrono::milliseconds timeout) {
   const grpc::Status s = health_->Check(&context, request, &response);
   const bool serving =
       s.ok() && response.status() == grpc::health::v1::HealthCheckResponse::SERVING;
-  if (serving && demoted_.load()) {
-    if (!ProbeAnswers(timeout)) return;  // still demoted
+  const bool probed = serving && demoted_.load() && ProbeAnswers(timeout);
+  {
+    // Under the lock NoteLostToHedge takes: a demotion between the probe
+    // and here is not overwritten.
     absl::MutexLock lock(&mu_);
-    demoted_ = false;
-    hedge_losses_ = 0;
-    spdlog::info("coordinator: worker {} re-admitted: it answered a probe slice", address_);
+    if (probed && demoted_.load()) {
+      demoted_ = false;
+      hedge_losses_ = 0;
+      spdlog::info("coordinator: worker {} re-admitted: it answered a probe slice", address_);
+    }
+    healthy_ = serving && !demoted_.load();
   }
-  healthy_ = serving;
   if (!serving) {
     absl::MutexLock lock(&mu_);
     counters_.last_error = s.ok() ? "not serving" : s.error_message();

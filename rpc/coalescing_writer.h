@@ -4,10 +4,10 @@
 // blocks the pump, never the search, and the search's place is freed when
 // it ends (docs/operations.md, "What the coordinator checks").
 //
-// Finish ends the pump (an unsent progress event is dropped: the last
-// message supersedes it), waits for a write in flight until `give_up`,
-// then cancels the call so a client that never reads cannot hold the
-// handler past it, and writes the last message if there is one.
+// Finish hands the pump the last message (an unsent progress event is
+// dropped: the last message supersedes it) and waits for it to be written
+// until `give_up`, then cancels the call, so a client that never reads
+// cannot hold the handler past it, however large the last message.
 // Thread-safe; Offer may be called from any thread until Finish.
 #ifndef SLICEPLAN_RPC_COALESCING_WRITER_H_
 #define SLICEPLAN_RPC_COALESCING_WRITER_H_
@@ -39,21 +39,27 @@ class CoalescingWriter {
   }
 
   // Returns whether `last` was written (false: none given, or the call
-  // ended). Later calls do nothing.
+  // ended, or `give_up` came first). Later calls do nothing.
   bool Finish(std::optional<Message> last, std::chrono::steady_clock::time_point give_up)
       ABSL_LOCKS_EXCLUDED(mu_) {
+    bool written = false;
     {
       absl::MutexLock lock(&mu_);
       if (finished_) return false;
-      finished_ = stopping_ = true;
-      pending_.reset();
-      const auto idle = [this]() ABSL_EXCLUSIVE_LOCKS_REQUIRED(mu_) { return !writing_; };
-      if (!mu_.AwaitWithDeadline(absl::Condition(&idle), absl::FromChrono(ToSystem(give_up)))) {
+      finished_ = true;
+      // The last message replaces any progress not yet sent; the pump
+      // writes it (or nothing) and ends.
+      pending_ = std::move(last);
+      stopping_ = true;
+      const auto ended = [this]() ABSL_EXCLUSIVE_LOCKS_REQUIRED(mu_) { return pump_ended_; };
+      if (!mu_.AwaitWithDeadline(absl::Condition(&ended), absl::FromChrono(ToSystem(give_up)))) {
         context_->TryCancel();  // unblocks the write in flight
       }
+      mu_.Await(absl::Condition(&ended));
+      written = last_written_;
     }
     pump_.join();
-    return last && writer_->Write(*last);
+    return written;
   }
 
  private:
@@ -63,32 +69,41 @@ class CoalescingWriter {
                t - std::chrono::steady_clock::now());
   }
 
+  // Writes the latest event whenever there is one; once stopping, the
+  // last message (if any) and ends.
   void Pump() ABSL_LOCKS_EXCLUDED(mu_) {
     absl::MutexLock lock(&mu_);
     const auto work = [this]() ABSL_EXCLUSIVE_LOCKS_REQUIRED(mu_) {
       return stopping_ || pending_.has_value();
     };
+    bool open = true;
     while (true) {
       mu_.Await(absl::Condition(&work));
-      if (stopping_) return;
-      Message m = std::move(*pending_);
-      pending_.reset();
-      writing_ = true;
-      mu_.Unlock();
-      const bool ok = writer_->Write(m);
-      mu_.Lock();
-      writing_ = false;
-      if (!ok) return;  // the call ended: nothing more can be written
+      const bool last = stopping_;
+      if (pending_.has_value() && open) {
+        Message m = std::move(*pending_);
+        pending_.reset();
+        mu_.Unlock();
+        open = writer_->Write(m);  // false: the call ended
+        mu_.Lock();
+        if (last) last_written_ = open;
+      } else {
+        pending_.reset();
+      }
+      if (last) break;
+      if (stopping_) continue;  // Finish came during the write: its message next
     }
+    pump_ended_ = true;
   }
 
   grpc::ServerWriter<Message>* const writer_;
   grpc::ServerContext* const context_;
   absl::Mutex mu_;
   std::optional<Message> pending_ ABSL_GUARDED_BY(mu_);
-  bool writing_ ABSL_GUARDED_BY(mu_) = false;
   bool stopping_ ABSL_GUARDED_BY(mu_) = false;
   bool finished_ ABSL_GUARDED_BY(mu_) = false;
+  bool pump_ended_ ABSL_GUARDED_BY(mu_) = false;
+  bool last_written_ ABSL_GUARDED_BY(mu_) = false;
   std::thread pump_;  // last: started once the members above exist
 };
 

@@ -265,9 +265,11 @@ class Run {
     }
     if (running_of_[a->slice] > 0) return std::nullopt;  // its twin still runs
     if (attempts_of_[a->slice] >= schedule_.max_attempts_per_slice) {
-      error_ = absl::Status(r.status().code(),
-                            absl::StrCat("slice ", a->slice, " failed ", attempts_of_[a->slice],
-                                         " times; last: ", r.status().message()));
+      const std::string message =
+          absl::StrCat("slice ", a->slice, " failed ", attempts_of_[a->slice],
+                       " times; last: ", r.status().message());
+      // A busy refusal stays marked busy: the caller should retry later.
+      error_ = IsBusy(r.status()) ? BusyError(message) : absl::Status(r.status().code(), message);
       return std::nullopt;
     }
     ++retries_;

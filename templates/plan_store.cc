@@ -138,11 +138,14 @@ absl::Status PlanStore::Put(const StoredPlanSet& entry, size_t max_templates) {
   }
   Statement insert(db_, "INSERT INTO plan_sets (id, created_unix, plan_set) VALUES (?, ?, ?)");
   if (!insert.ok()) return Rollback(Error("cannot prepare the insert"));
-  sqlite3_bind_text(insert.get(), 1, entry.id.data(), static_cast<int>(entry.id.size()),
-                    SQLITE_TRANSIENT);
-  sqlite3_bind_int64(insert.get(), 2, static_cast<int64_t>(std::time(nullptr)));
-  sqlite3_bind_text(insert.get(), 3, entry.plan_set_json.data(),
-                    static_cast<int>(entry.plan_set_json.size()), SQLITE_TRANSIENT);
+  if (sqlite3_bind_text(insert.get(), 1, entry.id.data(), static_cast<int>(entry.id.size()),
+                        SQLITE_TRANSIENT) != SQLITE_OK ||
+      sqlite3_bind_int64(insert.get(), 2, static_cast<int64_t>(std::time(nullptr))) != SQLITE_OK ||
+      sqlite3_bind_text(insert.get(), 3, entry.plan_set_json.data(),
+                        static_cast<int>(entry.plan_set_json.size()),
+                        SQLITE_TRANSIENT) != SQLITE_OK) {
+    return Rollback(Error("cannot bind the template"));
+  }
   if (const int rc = insert.Step(); rc != SQLITE_DONE) {
     if (rc == SQLITE_CONSTRAINT) {
       return Rollback(

@@ -88,9 +88,9 @@ bool MoveLeftDeep(Links& t, std::mt19937_64& rng) {
     if (t.left[v] < 0) leaves.push_back(v);
   }
   if (leaves.size() < 2) return false;
-  const int32_t a = leaves[rng() % leaves.size()], b = leaves[rng() % leaves.size()];
-  if (a == b) return false;
-  std::swap(t.relation[a], t.relation[b]);
+  // Two different leaves: b from the others.
+  const size_t i = rng() % leaves.size(), j = (i + 1 + rng() % (leaves.size() - 1)) % leaves.size();
+  std::swap(t.relation[leaves[i]], t.relation[leaves[j]]);
   return true;
 }
 

@@ -59,6 +59,15 @@ class GreedyBushy {
         --components;
       }
       if (components == 1) break;
+      // Disconnected: cross products, each O(relations); the clock is
+      // read here too.
+      if (deadline_ && ++merges_ % kClockEvery == 0 && Clock::now() >= *deadline_) {
+        report.cut = true;
+        report.greedy_joins = query_.size() - components;
+        FinishAlongPredicates();
+        CostWidePlan(plan_, query_);
+        return std::move(plan_);
+      }
       CrossTwoSmallest();
       --components;
     }

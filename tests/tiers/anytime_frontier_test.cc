@@ -104,6 +104,8 @@ TEST(AnytimeFrontierTest, NoCrossProductWhereTheyAreExcluded) {
     const AnytimeFrontierResult r = AnytimeFrontier(w, config, options, control);
     ASSERT_FALSE(r.frontier.empty());
     EXPECT_GT(r.moves_refused, 0u);  // a chain refuses many moves
+    // Every move was made: the search never stops short of its budget.
+    EXPECT_EQ(r.trees - 1 + r.moves_refused, 200u) << (shape == PlanShape::kBushy);
     for (const FrontierPlan& p : r.frontier) {
       EXPECT_FALSE(HasCrossProduct(*p.tree, w));
       EXPECT_TRUE(CheckWidePlan(*p.tree, 9, shape == PlanShape::kLeftDeep).ok());
