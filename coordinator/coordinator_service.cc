@@ -328,8 +328,11 @@ grpc::Status CoordinatorService::OptimizeStream(grpc::ServerContext* context,
     out->set_elapsed_seconds(p.elapsed_seconds);
     progress.Offer(std::move(event));
   });
+  // A client that reads takes the answer at once; one that stalls gets
+  // until the run's deadline, and at least kAnswerGrace (an answer made
+  // at the deadline, partial_on_deadline, must still be sent).
   const Clock::time_point give_up =
-      std::max(Clock::now(), deadline.ok() ? *deadline : Clock::now());
+      std::max(Clock::now() + kAnswerGrace, deadline.ok() ? *deadline : Clock::now());
   if (!result.ok()) {
     progress.Finish(std::nullopt, give_up);
     return Reply(*context, result.status());
@@ -475,6 +478,7 @@ grpc::Status CoordinatorService::PrepareTemplate(
   // A client that stalls gets a few seconds to take the answer (a
   // prepare's deadline is for its search).
   const Clock::time_point give_up = Clock::now() + std::chrono::seconds(5);
+  static_assert(kAnswerGrace <= std::chrono::seconds(5));
   LogEvent line("prepare_template");
   line.Add("request_id", request_id).Add("outcome", OutcomeLabel(result.status()));
   if (result.ok()) {

@@ -25,6 +25,9 @@
 namespace sliceplan {
 
 inline constexpr std::chrono::milliseconds kPrepareProgressEvery{250};
+// How long an answer waits for a stalled stream client past the run's
+// deadline, at least.
+inline constexpr std::chrono::milliseconds kAnswerGrace{1000};
 
 struct CoordinatorConfig {
   // Hedge a slice running this long while a worker has a slice free; none: never.
