@@ -440,6 +440,18 @@ TEST(HostileClientTest, AStreamNobodyReadsHoldsNoPlace) {
   v1::OptimizeRequest heavy = Request(testing::MakeQuery(GraphShape::kChain, 20, 2), 64);
   heavy.mutable_options()->mutable_cross_products()->set_value(false);
   auto reader = stalled_stub->OptimizeStream(&stalled, heavy);
+  // The stalled stream holds the place first: its slices are being solved.
+  const auto solved = [&] {
+    grpc::ClientContext context;
+    v1::ListWorkersResponse out;
+    uint64_t n = 0;
+    if (c.stub->ListWorkers(&context, {}, &out).ok()) {
+      for (const auto& w : out.workers()) n += w.slices_solved();
+    }
+    return n;
+  };
+  for (int i = 0; i < 200 && solved() == 0; ++i) std::this_thread::sleep_for(10ms);
+  ASSERT_GT(solved(), 0u);
   const auto start = Clock::now();
   grpc::Status s;
   for (int i = 0; i < 200; ++i) {  // until the stalled search has ended
