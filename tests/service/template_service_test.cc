@@ -24,6 +24,7 @@
 #include "tests/support/process.h"
 #include "tests/support/reference_dp.h"
 #include "tests/support/servers.h"
+#include "tests/support/temp_path.h"
 
 namespace sliceplan {
 namespace {
@@ -43,20 +44,6 @@ std::string ReadText(const std::string& path) {
 std::string PortCallsTemplate() {
   return ReadText(std::string(SLICEPLAN_SOURCE_DIR) + "/examples/port_calls_template.json");
 }
-
-class TempFile {
- public:
-  explicit TempFile(const std::string& name)
-      : path_(std::filesystem::temp_directory_path() /
-              ("sliceplan_" + std::to_string(getpid()) + "_" + name)) {
-    std::filesystem::remove(path_);
-  }
-  ~TempFile() { std::filesystem::remove(path_); }
-  std::string str() const { return path_.string(); }
-
- private:
-  std::filesystem::path path_;
-};
 
 v1::PrepareTemplateRequest Request(const std::string& json, uint32_t grid, double max_ratio = 1.2) {
   v1::PrepareTemplateRequest r;
@@ -182,7 +169,7 @@ TEST(TemplateServiceTest, BadRequestsAreRefusedByField) {
 }
 
 TEST(TemplateServiceTest, TheStoreKeepsFinishedTemplatesThroughAKillMidPrepare) {
-  TempFile store("plans.db");
+  testing::TempPath store("plans.db");
   std::vector<std::unique_ptr<testing::ServerProcess>> workers;
   workers.push_back(StartWorker());
   const std::vector<std::string> flags{"--plan_store=" + store.str()};
@@ -232,7 +219,7 @@ TEST(TemplateServiceTest, TheStoreKeepsFinishedTemplatesThroughAKillMidPrepare) 
 }
 
 TEST(TemplateServiceTest, ADamagedStoreStopsTheCoordinatorAtStartByName) {
-  TempFile store("damaged.db");
+  testing::TempPath store("damaged.db");
   std::ofstream(store.str()) << "{\"sliceplan_plan_set\": 1}\n";
   const testing::CommandResult run = testing::RunCommand(
       std::string(SLICEPLAN_COORDINATOR_BIN) +
@@ -250,7 +237,7 @@ TEST(TemplateServiceTest, CliPrepareOnACoordinatorWritesThePlanSetAndPrintsTheId
   workers.push_back(StartWorker());
   auto coordinator = StartCoordinator(workers);
   ASSERT_NE(coordinator, nullptr);
-  TempFile out("cli_plans.json");
+  testing::TempPath out("cli_plans.json");
   const std::string source = std::string(SLICEPLAN_SOURCE_DIR);
   const testing::CommandResult run = testing::RunCommand(
       std::string(SLICEPLAN_CLI_BIN) + " prepare " + source +

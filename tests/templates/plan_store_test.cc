@@ -12,24 +12,10 @@
 #include <fstream>
 
 #include "gtest/gtest.h"
+#include "tests/support/temp_path.h"
 
 namespace sliceplan {
 namespace {
-
-// A fresh path in the test's temporary directory, removed at the end.
-class TempPath {
- public:
-  explicit TempPath(const std::string& name)
-      : path_(std::filesystem::temp_directory_path() /
-              ("sliceplan_" + std::to_string(getpid()) + "_" + name)) {
-    std::filesystem::remove(path_);
-  }
-  ~TempPath() { std::filesystem::remove(path_); }
-  std::string str() const { return path_.string(); }
-
- private:
-  std::filesystem::path path_;
-};
 
 void RunSql(const std::string& path, const char* sql) {
   sqlite3* db = nullptr;
@@ -41,7 +27,7 @@ void RunSql(const std::string& path, const char* sql) {
 }
 
 TEST(PlanStoreTest, TemplatesSurviveReopeningInOrder) {
-  TempPath file("store.db");
+  testing::TempPath file("store.db");
   {
     auto store = PlanStore::Open(file.str());
     ASSERT_TRUE(store.ok()) << store.status();
@@ -59,7 +45,7 @@ TEST(PlanStoreTest, TemplatesSurviveReopeningInOrder) {
 }
 
 TEST(PlanStoreTest, TheLimitAndARepeatedIdWriteNothing) {
-  TempPath file("limit.db");
+  testing::TempPath file("limit.db");
   auto store = PlanStore::Open(file.str());
   ASSERT_TRUE(store.ok()) << store.status();
   ASSERT_TRUE((*store)->Put({"a", "1"}, 2).ok());
@@ -76,7 +62,7 @@ TEST(PlanStoreTest, TheLimitAndARepeatedIdWriteNothing) {
 }
 
 TEST(PlanStoreTest, ATextFileIsRefusedByName) {
-  TempPath file("text.db");
+  testing::TempPath file("text.db");
   std::ofstream(file.str()) << "this is a plan set file, not a database\n";
   auto store = PlanStore::Open(file.str());
   ASSERT_FALSE(store.ok());
@@ -86,7 +72,7 @@ TEST(PlanStoreTest, ATextFileIsRefusedByName) {
 }
 
 TEST(PlanStoreTest, AnotherProgramsDatabaseIsRefused) {
-  TempPath file("other.db");
+  testing::TempPath file("other.db");
   RunSql(file.str(), "CREATE TABLE invoices (id INTEGER);");
   auto store = PlanStore::Open(file.str());
   ASSERT_FALSE(store.ok());
@@ -94,7 +80,7 @@ TEST(PlanStoreTest, AnotherProgramsDatabaseIsRefused) {
 }
 
 TEST(PlanStoreTest, AnotherSchemaVersionIsRefused) {
-  TempPath file("v9.db");
+  testing::TempPath file("v9.db");
   { ASSERT_TRUE(PlanStore::Open(file.str()).ok()); }
   RunSql(file.str(), "PRAGMA user_version = 9;");
   auto store = PlanStore::Open(file.str());
@@ -105,7 +91,7 @@ TEST(PlanStoreTest, AnotherSchemaVersionIsRefused) {
 }
 
 TEST(PlanStoreTest, ADamagedFileFailsItsIntegrityCheck) {
-  TempPath file("damaged.db");
+  testing::TempPath file("damaged.db");
   {
     auto store = PlanStore::Open(file.str());
     ASSERT_TRUE(store.ok());
