@@ -183,14 +183,6 @@ JoinConflicts::Check JoinConflicts::Simplify(const Operator& op, RelSet known) {
   return check;
 }
 
-bool JoinConflicts::Holds(const Check& check, RelSet s) const {
-  if (!IsSubset(check.required, s)) return false;
-  for (size_t i = check.begin; i < check.end; ++i) {
-    if (checked_[i].Broken(s)) return false;
-  }
-  return true;
-}
-
 void JoinConflicts::Index() {
   const size_t n = tree_.nodes().empty() ? 0 : static_cast<size_t>(Size(tree_.root().set));
   touch_ops_.assign(n, 0);
@@ -215,53 +207,97 @@ void JoinConflicts::Index() {
     pair_predicate_[u * kMaxRelations + v] = pair_predicate_[v * kMaxRelations + u] =
         static_cast<int>(j);
   }
+  IndexRules(n);
+}
+
+void JoinConflicts::IndexRules(size_t n) {
+  all_ = n == 0 ? 0 : ~RelSet{0} >> (kMaxRelations - n);
+  rule_tables_ = !checked_.empty() && checked_.size() <= 64;
+  for (const Rule& rule : checked_) rule_tables_ = rule_tables_ && rule.exempt == 0;
+  if (!rule_tables_) return;
+  const auto span = [](size_t begin, size_t end) {
+    return end == begin ? 0 : (~uint64_t{0} >> (64 - (end - begin))) << begin;
+  };
+  for (Operator& op : ops_) op.check.rules = span(op.check.begin, op.check.end);
+  for (Check& check : predicate_checks_) check.rules = span(check.begin, check.end);
+  const size_t bytes = (n + 7) / 8;
+  triggered_.assign(bytes * 256, 0);
+  needed_.assign(bytes * 256, 0);
+  for (size_t i = 0; i < checked_.size(); ++i) {
+    for (size_t byte = 0; byte < bytes; ++byte) {
+      const RelSet trigger = checked_[i].trigger >> (8 * byte) & 0xff;
+      const RelSet need = checked_[i].need >> (8 * byte) & 0xff;
+      for (size_t value = 1; value < 256; ++value) {
+        if ((value & trigger) != 0) triggered_[byte * 256 + value] |= uint64_t{1} << i;
+        if ((value & need) != 0) needed_[byte * 256 + value] |= uint64_t{1} << i;
+      }
+    }
+  }
+}
+
+uint64_t JoinConflicts::BrokenRules(RelSet s) const {
+  // Every kept rule has no exemption, so a rule breaks when s meets its
+  // trigger and lacks part of its need.
+  uint64_t triggered = 0, lacking = 0;
+  const RelSet missing = all_ & ~s;
+  for (size_t at = 0; at < triggered_.size(); at += 256, s >>= 8) {
+    triggered |= triggered_[at + (s & 0xff)];
+  }
+  for (size_t at = 0; at < needed_.size(); at += 256) {
+    lacking |= needed_[at + (missing >> (at / 32) & 0xff)];
+  }
+  return triggered & lacking;
 }
 
 JoinFit JoinConflicts::Fit(RelSet s1, RelSet s2, bool cross_products) const {
   const RelSet s = s1 | s2;
   const RelSet small = Size(s1) <= Size(s2) ? s1 : s2;
   const RelSet other = s ^ small;
-  // The non-inner operator whose predicate lies in s and reads both sides.
+  const uint64_t broken = rule_tables_ ? BrokenRules(s) : 0;
+  // The non-inner operator whose predicate lies in s and reads both sides,
+  // and the inner predicates across the split.
   uint64_t candidates = 0;
-  for (RelSet m = small; m != 0; m &= m - 1) candidates |= touch_ops_[std::countr_zero(m)];
-  JoinFit fit;
+  bool inner_predicate = false;
+  for (RelSet m = small; m != 0; m &= m - 1) {
+    const int v = std::countr_zero(m);
+    candidates |= touch_ops_[v];
+    for (RelSet across = partners_[v] & other; across != 0; across &= across - 1) {
+      const int j = pair_predicate_[v * kMaxRelations + std::countr_zero(across)];
+      if (!Holds(predicate_checks_[j], s, broken)) return {};
+      inner_predicate = true;
+    }
+  }
+  // A scalar, not a JoinFit under construction: a struct filled field by
+  // field is stored to the stack and read back whole, which defeats store
+  // forwarding (a stall of about a dozen cycles on every call).
+  int found = -1;
   for (; candidates != 0; candidates &= candidates - 1) {
     const int k = std::countr_zero(candidates);
     const Operator& op = ops_[k];
     const RelSet reads = op.reads_left | op.reads_right;
     if (!IsSubset(reads, s) || (reads & other) == 0) continue;
-    if (fit.op >= 0) return {};  // two operators at one join
-    fit.op = k;
-    fit.type = op.type;
-  }
-  // The inner predicates across the split.
-  bool inner_predicate = false;
-  for (RelSet m = small; m != 0; m &= m - 1) {
-    const int v = std::countr_zero(m);
-    for (RelSet across = partners_[v] & other; across != 0; across &= across - 1) {
-      if (fit.op >= 0) return {};  // an inner predicate at a non-inner join
-      const int j = pair_predicate_[v * kMaxRelations + std::countr_zero(across)];
-      if (!Holds(predicate_checks_[j], s)) return {};
-      inner_predicate = true;
-    }
+    // Two operators at one join, or an inner predicate at a non-inner one.
+    if (found >= 0 || inner_predicate) return {};
+    found = k;
   }
   for (const size_t j : hyper_predicates_) {
     const RelSet p = predicates_[j].relations;
     if (!IsSubset(p, s) || (p & s1) == 0 || (p & s2) == 0) continue;
-    if (fit.op >= 0) return {};
-    if (!Holds(predicate_checks_[j], s)) return {};
+    if (found >= 0) return {};
+    if (!Holds(predicate_checks_[j], s, broken)) return {};
     inner_predicate = true;
   }
-  if (fit.op >= 0) {
-    const Operator& op = ops_[fit.op];
-    if (!Holds(op.check, s)) return {};
+  if (found >= 0) {
+    const Operator& op = ops_[found];
+    if (!Holds(op.check, s, broken)) return {};
     const bool as_is = IsSubset(op.reads_left, s1) && IsSubset(op.reads_right, s2);
     const bool swapped = IsSubset(op.reads_left, s2) && IsSubset(op.reads_right, s1);
     // A full join commutes: either input may be written first.
     const bool either = IsCommutative(op.type) && (as_is || swapped);
-    fit.forward = as_is || either;
-    fit.backward = IsCommutative(op.type) ? either : swapped;
-    return fit;
+    return {.type = op.type,
+            .forward = as_is || either,
+            .backward = IsCommutative(op.type) ? either : swapped,
+            .op = found};
   }
   if (!inner_predicate) {
     if (!cross_products) return {};
@@ -269,8 +305,7 @@ JoinFit JoinConflicts::Fit(RelSet s1, RelSet s2, bool cross_products) const {
       if (rule.Broken(s)) return {};
     }
   }
-  fit.forward = fit.backward = true;
-  return fit;
+  return {.type = JoinType::kInner, .forward = true, .backward = true, .op = -1};
 }
 
 }  // namespace sliceplan

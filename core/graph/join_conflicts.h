@@ -28,11 +28,12 @@
 namespace sliceplan {
 
 // The join of a split: its type, and which orders the operator allows.
+// Eight bytes, so that it is returned in one register.
 struct JoinFit {
   JoinType type = JoinType::kInner;
-  int op = -1;            // index in Query::joins(); -1 for inner
   bool forward = false;   // S1 as the left input
   bool backward = false;  // S2 as the left input
+  int op = -1;            // index in Query::joins(); -1 for inner
   bool ok() const { return forward || backward; }
 };
 
@@ -65,6 +66,7 @@ class JoinConflicts {
     RelSet required = 0;
     size_t begin = 0;
     size_t end = 0;
+    uint64_t rules = 0;  // bits [begin, end) when the rule tables are kept
   };
   struct Operator {
     JoinType type = JoinType::kInner;
@@ -81,9 +83,23 @@ class JoinConflicts {
   RelSet Reach(int a, bool right_side) const;
   // `op`'s rules at a join known to hold `known`.
   Check Simplify(const Operator& op, RelSet known);
-  bool Holds(const Check& check, RelSet s) const;
+  // `broken`: BrokenRules(s) when the rule tables are kept.
+  bool Holds(const Check& check, RelSet s, uint64_t broken) const {
+    if (!IsSubset(check.required, s)) return false;
+    if (rule_tables_) return (check.rules & broken) == 0;
+    for (size_t i = check.begin; i < check.end; ++i) {
+      if (checked_[i].Broken(s)) return false;
+    }
+    return true;
+  }
   // Fit's tables: the checks and the per-relation masks.
   void Index();
+  // With at most 64 kept rules, the rules a join over s breaks as one
+  // mask: OR over s's bytes of the rules their relations trigger, AND OR
+  // over the bytes of what s lacks of the rules that need those relations.
+  // A few lookups per set instead of a loop over each check's rules.
+  void IndexRules(size_t n);
+  uint64_t BrokenRules(RelSet s) const;
 
   JoinTree tree_;
   std::vector<Rule> rules_;
@@ -99,6 +115,10 @@ class JoinConflicts {
   std::vector<RelSet> partners_;          // relation -> binary inner-predicate partners
   std::vector<int> pair_predicate_;       // [u * 64 + v] -> their predicate's index
   std::vector<size_t> hyper_predicates_;  // inner predicates over three or more
+  RelSet all_ = 0;                        // every relation of the query
+  bool rule_tables_ = false;              // checked_ fits one mask
+  std::vector<uint64_t> triggered_;       // [byte * 256 + value] -> rules triggered
+  std::vector<uint64_t> needed_;          // [byte * 256 + value] -> rules needing one
 };
 
 }  // namespace sliceplan

@@ -41,8 +41,13 @@ class JoinTree {
   // (an operator that loses a whole side gives way to the other),
   // estimated bottom-up with the inner, semi, anti, left and full
   // formulas. An operator whose predicate is not inside X is estimated
-  // with selectivity 1. Saturated at every node. O(nodes).
+  // with selectivity 1. Saturated at every node. O(nodes); in the
+  // product form below, O(relations + predicates + operators) without
+  // recursion through the inner joins.
   double Estimate(RelSet x) const;
+  // True when Estimate runs in the product form (no full join, nothing
+  // near the ceiling; see below).
+  bool product_form() const { return product_form_; }
   // The inner node that completes inner predicate j (Query::predicates()).
   int owner(size_t j) const { return owner_[j]; }
 
@@ -53,6 +58,39 @@ class JoinTree {
   // Node i's join of inputs estimated l and r, restricted to x.
   double Join(int i, RelSet x, double l, double r) const;
   int Add(JoinTreeNode node);
+
+  // The product form (docs/cost-models.md, "Non-inner joins"): every
+  // operator but a full join is linear in its left input, so a subtree's
+  // estimate is the product of its spine's relations and inner
+  // predicates inside x, times one factor per operator on the spine
+  // whose right input meets x. A spine (a region) is what a subtree
+  // reaches without entering an operator's right input; each right input
+  // starts a region of its own. Used when no full join is present and no
+  // value can reach the ceiling (so no node saturates and the product
+  // equals the recursion up to rounding).
+  struct RegionOp {
+    JoinType type = JoinType::kInner;
+    RelSet left = 0;   // every relation of the left input
+    RelSet right = 0;  // ... of the right input
+    RelSet reads = 0;
+    double selectivity = 1;
+    double log_miss = 0;
+    int right_region = -1;
+    double right_whole = 0;   // the right input's estimate over all it holds
+    double factor_whole = 0;  // the factor with the right input and reads inside x
+  };
+  struct Region {
+    RelSet relations = 0;
+    size_t predicates_begin = 0, predicates_end = 0;  // in region_predicates_
+    size_t ops_begin = 0, ops_end = 0;                // in region_ops_
+  };
+  void BuildRegions();
+  void FillRegion(int node, int region, std::vector<int>& right_roots);
+  double EstimateRegion(int region, RelSet x) const;
+  bool product_form_ = false;
+  std::vector<Region> regions_;
+  std::vector<Predicate> region_predicates_;
+  std::vector<RegionOp> region_ops_;
 
   std::vector<JoinTreeNode> nodes_;
   std::vector<double> rows_;
