@@ -208,6 +208,29 @@ void JoinConflicts::Index() {
         static_cast<int>(j);
   }
   IndexRules(n);
+  for (size_t j = 0; j < predicates_.size(); ++j) {
+    const Check& check = predicate_checks_[j];
+    const RelSet p = predicates_[j].relations;
+    if (!IsSubset(check.required, p) || check.begin != check.end) guarded_.push_back({p, check});
+  }
+}
+
+JoinConflicts::AtSet JoinConflicts::At(RelSet s) const {
+  AtSet at;
+  at.set = s;
+  // Hyperedges are tested split by split.
+  at.clean = hyper_predicates_.empty();
+  const uint64_t broken = rule_tables_ ? BrokenRules(s) : 0;
+  for (const auto& [p, check] : guarded_) {
+    if (IsSubset(p, s) && !Holds(check, s, broken)) at.clean = false;
+  }
+  for (size_t k = 0; k < ops_.size(); ++k) {
+    const Operator& op = ops_[k];
+    if (!IsSubset(op.reads_left | op.reads_right, s)) continue;
+    at.active |= uint64_t{1} << k;
+    if (Holds(op.check, s, broken)) at.fits |= uint64_t{1} << k;
+  }
+  return at;
 }
 
 void JoinConflicts::IndexRules(size_t n) {
@@ -288,16 +311,8 @@ JoinFit JoinConflicts::Fit(RelSet s1, RelSet s2, bool cross_products) const {
     inner_predicate = true;
   }
   if (found >= 0) {
-    const Operator& op = ops_[found];
-    if (!Holds(op.check, s, broken)) return {};
-    const bool as_is = IsSubset(op.reads_left, s1) && IsSubset(op.reads_right, s2);
-    const bool swapped = IsSubset(op.reads_left, s2) && IsSubset(op.reads_right, s1);
-    // A full join commutes: either input may be written first.
-    const bool either = IsCommutative(op.type) && (as_is || swapped);
-    return {.type = op.type,
-            .forward = as_is || either,
-            .backward = IsCommutative(op.type) ? either : swapped,
-            .op = found};
+    if (!Holds(ops_[found].check, s, broken)) return {};
+    return Oriented(found, s1, s2);
   }
   if (!inner_predicate) {
     if (!cross_products) return {};

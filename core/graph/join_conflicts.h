@@ -20,6 +20,8 @@
 #ifndef SLICEPLAN_CORE_GRAPH_JOIN_CONFLICTS_H_
 #define SLICEPLAN_CORE_GRAPH_JOIN_CONFLICTS_H_
 
+#include <bit>
+#include <utility>
 #include <vector>
 
 #include "core/model/join_tree.h"
@@ -39,6 +41,17 @@ struct JoinFit {
 
 class JoinConflicts {
  public:
+  // What a set's splits share, worked out once per set (At): the
+  // non-inner operators whose predicate lies in the set, those whose
+  // rules hold on it, and whether every inner predicate inside it may
+  // join there ("clean"; else each split takes the full test).
+  struct AtSet {
+    RelSet set = 0;
+    uint64_t active = 0;  // operators (Query::joins() bits) reading only inside
+    uint64_t fits = 0;    // ... of those, the ones whose rules hold
+    bool clean = false;
+  };
+
   // `query` in the search's numbering; REQUIRES: its joins passed
   // ValidateJoinOps.
   explicit JoinConflicts(const Query& query);
@@ -46,6 +59,39 @@ class JoinConflicts {
   // The join of disjoint non-empty S1 and S2; !ok() when none may join
   // them (or, without cross products, when nothing connects them).
   JoinFit Fit(RelSet s1, RelSet s2, bool cross_products) const;
+
+  // The same answer in a few mask operations per split, for a search that
+  // meets a set's splits together. REQUIRES: at = At(s1 | s2).
+  AtSet At(RelSet s) const;
+  [[gnu::always_inline]] JoinFit Fit(const AtSet& at, RelSet s1, RelSet s2,
+                                     bool cross_products) const {
+    if (!at.clean) return Fit(s1, s2, cross_products);
+    const RelSet small = Size(s1) <= Size(s2) ? s1 : s2;
+    const RelSet other = at.set ^ small;
+    uint64_t candidates = 0;
+    RelSet across = 0;
+    for (RelSet m = small; m != 0; m &= m - 1) {
+      const int v = std::countr_zero(m);
+      candidates |= touch_ops_[v];
+      across |= partners_[v];
+    }
+    candidates &= at.active;
+    across &= other;
+    int found = -1;
+    for (; candidates != 0; candidates &= candidates - 1) {
+      const int k = std::countr_zero(candidates);
+      if ((ops_[k].reads_left & other) == 0 && (ops_[k].reads_right & other) == 0) continue;
+      if (found >= 0) return {};  // two operators at one join
+      found = k;
+    }
+    if (found < 0) {
+      if (across != 0) return {.type = JoinType::kInner, .forward = true, .backward = true};
+      return Fit(s1, s2, cross_products);  // a cross product: its own rules
+    }
+    // An inner predicate at a non-inner join, or the operator's rules broken.
+    if (across != 0 || (at.fits >> found & 1) == 0) return {};
+    return Oriented(found, s1, s2);
+  }
 
   const JoinTree& tree() const { return tree_; }
 
@@ -77,6 +123,18 @@ class JoinConflicts {
     Check check;  // non-inner: at a join that holds all it reads
   };
 
+  // Operator k at the split (S1, S2), its rules known to hold: the orders
+  // its inputs' reads allow (a full join commutes: either order).
+  JoinFit Oriented(int k, RelSet s1, RelSet s2) const {
+    const Operator& op = ops_[k];
+    const bool as_is = IsSubset(op.reads_left, s1) && IsSubset(op.reads_right, s2);
+    const bool swapped = IsSubset(op.reads_left, s2) && IsSubset(op.reads_right, s1);
+    const bool either = IsCommutative(op.type) && (as_is || swapped);
+    return {.type = op.type,
+            .forward = as_is || either,
+            .backward = IsCommutative(op.type) ? either : swapped,
+            .op = k};
+  }
   void AddRules(int node);
   // What the right (else left) input of non-inner tree node `a` may hold
   // in some equivalent tree.
@@ -119,6 +177,9 @@ class JoinConflicts {
   bool rule_tables_ = false;              // checked_ fits one mask
   std::vector<uint64_t> triggered_;       // [byte * 256 + value] -> rules triggered
   std::vector<uint64_t> needed_;          // [byte * 256 + value] -> rules needing one
+  // At's list: inner predicates whose check is more than "inside the set"
+  // (their relations, their check).
+  std::vector<std::pair<RelSet, Check>> guarded_;
 };
 
 }  // namespace sliceplan

@@ -90,10 +90,12 @@ struct LeftDeepSplits {
   template <SearchPolicy Policy>
   bool operator()(const Policy& policy, const DirectMemo& memo, SearchControl&, bool, RelSet set,
                   typename Policy::Acc& acc, uint64_t& pairs) const {
+    const JoinConflicts::AtSet at =
+        joins != nullptr ? joins->conflicts->At(set) : JoinConflicts::AtSet{};
     for (RelSet rest = set; rest != 0; rest &= rest - 1) {
       const RelSet bit = LowestBit(rest), prefix = set ^ bit;
       if (memo.Contains(prefix) && (graph.Adjacent(bit) & prefix) != 0) {
-        if (joins != nullptr && !joins->conflicts->Fit(prefix, bit, false).forward) continue;
+        if (joins != nullptr && !joins->conflicts->Fit(at, prefix, bit, false).forward) continue;
         acc = policy.OfferLeafRight(acc, static_cast<Slot>(prefix), Lowest(bit));
         ++pairs;
       }

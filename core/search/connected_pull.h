@@ -63,11 +63,13 @@ struct EverySplit {
     const RelSet lowest = LowestBit(set);
     const RelSet rest = set ^ lowest;
     uint64_t tested = 0;
+    const JoinConflicts::AtSet at =
+        joins != nullptr ? joins->conflicts->At(set) : JoinConflicts::AtSet{};
     // Offers the split with left part x | lowest if both parts are sets.
     const auto test = [&](typename Policy::Acc a, RelSet x) {
       const RelSet left = x | lowest, right = set ^ left;
       if (memo.Contains(left) && memo.Contains(right)) {
-        if (joins != nullptr) return OfferJoined(policy, a, left, right, *joins, pairs);
+        if (joins != nullptr) return OfferJoined(policy, a, left, right, *joins, at, pairs);
         a = OfferBoth(policy, a, left, right);
         ++pairs;
       }
@@ -118,11 +120,13 @@ struct WalkedSplits {
                   RelSet set, typename Policy::Acc& acc, uint64_t& pairs) const {
     auto a = acc;
     uint64_t offered = 0, walked = 0;
+    const JoinConflicts::AtSet at =
+        joins != nullptr ? joins->conflicts->At(set) : JoinConflicts::AtSet{};
     const bool done = walk.ForEach(set, [&](RelSet left, RelSet right) {
       // Unsliced and inner, every connected set has a plan: no bit to test.
       if (joins != nullptr) {
         if (memo.Contains(left) && memo.Contains(right)) {
-          a = OfferJoined(policy, a, left, right, *joins, offered);
+          a = OfferJoined(policy, a, left, right, *joins, at, offered);
         }
       } else if (!sliced || (memo.Contains(left) && memo.Contains(right))) {
         a = OfferBoth(policy, a, left, right);

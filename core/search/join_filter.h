@@ -20,10 +20,12 @@ struct JoinFilter {
 // Offers the split (left, right) of a direct memo's set (slot = set) as
 // `joins` allows: a symmetric policy once, in an allowed order; an
 // asymmetric one in each allowed order. Counts it in `pairs` when offered.
+// REQUIRES: at = joins.conflicts->At(left | right).
 template <SearchPolicy Policy>
-typename Policy::Acc OfferJoined(const Policy& policy, typename Policy::Acc a, RelSet left,
-                                 RelSet right, const JoinFilter& joins, uint64_t& pairs) {
-  const JoinFit fit = joins.conflicts->Fit(left, right, joins.cross_products);
+[[gnu::always_inline]] inline typename Policy::Acc OfferJoined(
+    const Policy& policy, typename Policy::Acc a, RelSet left, RelSet right,
+    const JoinFilter& joins, const JoinConflicts::AtSet& at, uint64_t& pairs) {
+  const JoinFit fit = joins.conflicts->Fit(at, left, right, joins.cross_products);
   if (!fit.ok()) return a;
   ++pairs;
   const Slot l = static_cast<Slot>(left), r = static_cast<Slot>(right);

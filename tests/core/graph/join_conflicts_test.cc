@@ -52,6 +52,36 @@ std::set<std::string> AdmittedSet(const Query& query, bool cross) {
   return {all.begin(), all.end()};
 }
 
+// The per-set view (At, then Fit per split) gives the full test's answer
+// on every split of every set, with and without cross products.
+TEST(JoinConflictsTest, TheSetViewAnswersAsTheFullTest) {
+  std::mt19937_64 rng(11);
+  int clean = 0, unclean = 0;
+  for (int round = 0; round < 300; ++round) {
+    const JoinCase c = testing::RandomJoinQuery(3 + round % 6, rng);
+    const JoinConflicts conflicts(c.query);
+    for (RelSet s = 1; s <= c.query.all(); ++s) {
+      if (Size(s) < 2) continue;
+      const JoinConflicts::AtSet at = conflicts.At(s);
+      ++(at.clean ? clean : unclean);
+      for (RelSet s1 = (s - 1) & s; s1 != 0; s1 = (s1 - 1) & s) {
+        for (bool cross : {false, true}) {
+          const JoinFit want = conflicts.Fit(s1, s ^ s1, cross);
+          const JoinFit got = conflicts.Fit(at, s1, s ^ s1, cross);
+          ASSERT_EQ(got.ok(), want.ok()) << testing::Text(*c.original) << " " << s1 << "|" << s;
+          if (!want.ok()) continue;
+          EXPECT_EQ(got.forward, want.forward);
+          EXPECT_EQ(got.backward, want.backward);
+          EXPECT_EQ(got.op, want.op);
+          EXPECT_EQ(got.type, want.type);
+        }
+      }
+    }
+  }
+  EXPECT_GT(clean, 1000);
+  EXPECT_GT(unclean, 100);
+}
+
 // 6,000 rounds pass too (36 s); the suite keeps a few hundred.
 constexpr int kRounds = 600;
 
