@@ -17,16 +17,22 @@ std::string Bytes(double b) {
   return absl::StrFormat("%.0f B", b);
 }
 
+bool Cluster(const CapacityInfo& info) { return info.search.cost == CostModelKind::kCluster; }
+
 std::string Header(const CapacityTable& t, const CapacityInfo& info) {
   return absl::StrFormat(
-      "exact search of %d relations, %s plans, cross products %s; deadline %.3g s; %d "
+      "%s of %d relations, %s plans, cross products %s; deadline %.3g s; %d "
       "thread%s per worker\n",
-      info.relations, info.search.shape == PlanShape::kBushy ? "bushy" : "left-deep",
+      Cluster(info) ? "the cluster model's exact Pareto search" : "exact search", info.relations,
+      info.search.shape == PlanShape::kBushy ? "bushy" : "left-deep",
       info.search.cross_products ? "allowed" : "not allowed", t.deadline_seconds,
       t.threads_per_worker, t.threads_per_worker == 1 ? "" : "s");
 }
 
 std::string Rates(const CapacityTable& t, const CapacityInfo& info) {
+  // The cluster model's rows come from its forecast, which the summary
+  // states.
+  if (Cluster(info)) return "";
   std::string s = absl::StrFormat("rates (%s): %.3g ns per split",
                                   info.calibrated ? "measured on this machine" : "given",
                                   t.rates.dense_split_seconds * 1e9);
@@ -48,7 +54,8 @@ std::string RenderCapacityText(const CapacityTable& t, const CapacityInfo& info)
   for (const CapacityRow& r : t.rows) {
     const char* mark = t.enough_workers == r.workers ? "  <- enough" : "";
     absl::StrAppendFormat(&out, "  %7d %7u %14.4g %16s%s%s\n", r.workers, r.slices, r.seconds,
-                          Bytes(r.memo_bytes), r.fits_memo ? "" : "  (past the memo limit)", mark);
+                          Cluster(info) ? "not forecast" : Bytes(r.memo_bytes),
+                          r.fits_memo ? "" : "  (past the memo limit)", mark);
   }
   return out + "\n" + t.summary + "\n";
 }
@@ -59,7 +66,7 @@ std::string RenderCapacityJson(const CapacityTable& t, const CapacityInfo& info)
     const CapacityRow& r = t.rows[i];
     absl::StrAppend(&out, i == 0 ? "\n" : ",\n", "    {\"workers\": ", r.workers,
                     ", \"slices\": ", r.slices, ", \"seconds\": ", JsonNumber(r.seconds),
-                    ", \"memo_bytes\": ", JsonNumber(r.memo_bytes),
+                    ", \"memo_bytes\": ", Cluster(info) ? "null" : JsonNumber(r.memo_bytes),
                     ", \"fits_memo\": ", r.fits_memo ? "true" : "false", "}");
   }
   const auto optional = [](const std::optional<int>& w) {
@@ -69,6 +76,7 @@ std::string RenderCapacityJson(const CapacityTable& t, const CapacityInfo& info)
                   "  \"enough_workers\": ", optional(t.enough_workers), ",\n",
                   "  \"auto_exact_workers\": ", optional(t.auto_exact_workers), ",\n",
                   "  \"relations\": ", info.relations, ",\n",
+                  "  \"cost\": ", Cluster(info) ? "\"cluster\"" : "\"cout\"", ",\n",
                   "  \"deadline_seconds\": ", JsonNumber(t.deadline_seconds), ",\n",
                   "  \"threads_per_worker\": ", t.threads_per_worker, ",\n",
                   "  \"connected_sets_estimated\": ", t.estimated ? "true" : "false", ",\n",
@@ -82,9 +90,12 @@ std::string RenderCapacityJson(const CapacityTable& t, const CapacityInfo& info)
 std::string CapacitySvg(const CapacityTable& t, const CapacityInfo& info) {
   double lo = t.deadline_seconds, hi = t.deadline_seconds;
   for (const CapacityRow& r : t.rows) lo = std::min(lo, r.seconds), hi = std::max(hi, r.seconds);
-  SvgChart chart(absl::StrFormat("Predicted exact search time, %d relations", info.relations),
-                 MakeChartAxis(1, kCapacityMaxWorkers, true), "workers",
-                 MakeChartAxis(lo, hi, true), "predicted seconds (slowest slice x rounds)");
+  SvgChart chart(
+      absl::StrFormat("Predicted %s time, %d relations",
+                      Cluster(info) ? "cluster Pareto search" : "exact search", info.relations),
+      MakeChartAxis(1, kCapacityMaxWorkers, true), "workers", MakeChartAxis(lo, hi, true),
+      Cluster(info) ? "forecast seconds (work split evenly over the slices)"
+                    : "predicted seconds (slowest slice x rounds)");
   std::string s;
   std::string points;
   for (const CapacityRow& r : t.rows) {
@@ -100,7 +111,8 @@ std::string CapacitySvg(const CapacityTable& t, const CapacityInfo& info) {
                           "<circle cx=\"%.1f\" cy=\"%.1f\" r=\"5\" fill=\"%s\" stroke=\"#222\">"
                           "<title>%d workers: %u slices, %.4g s, %s per worker</title></circle>\n",
                           chart.X(r.workers), chart.Y(r.seconds), meets ? "#2ca02c" : "#d62728",
-                          r.workers, r.slices, r.seconds, Bytes(r.memo_bytes));
+                          r.workers, r.slices, r.seconds,
+                          Cluster(info) ? "memo not forecast" : Bytes(r.memo_bytes));
   }
   const double y = chart.Y(t.deadline_seconds);
   absl::StrAppendFormat(&s,

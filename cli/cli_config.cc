@@ -316,6 +316,15 @@ CommandTable CapacityTable(CapacityConfig& config) {
                      "query file",
                      [&config](const std::string& path) { config.query_path = path; },
                      SearchSpaceRows(config.search)};
+  Append(
+      table.flags,
+      {{"cost", "cout|cluster", "cout",
+        "cost model; cluster forecasts the exact Pareto search from short runs on parts of "
+        "the query",
+        OneOf<CostModelKind>("cost", config.search.cost,
+                             {{"cout", CostModelKind::kCout}, {"cluster", CostModelKind::kCluster}},
+                             "cout or cluster")}});
+  Append(table.flags, ClusterRows(config.search.cluster));
   MachineRates& rates = config.rates;
   Append(table.flags,
          {{"deadline-seconds", "S", "", "the time to plan for (required)",

@@ -4,10 +4,13 @@
 #include <atomic>
 #include <chrono>
 #include <cmath>
+#include <optional>
 #include <utility>
 
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_format.h"
+#include "core/capacity/capacity_table.h"
+#include "core/capacity/cluster_forecast.h"
 #include "core/capacity/rate_calibration.h"
 #include "core/cost/pareto.h"
 #include "core/merge.h"
@@ -98,13 +101,13 @@ absl::Status CheckTierFits(const WideQuery& query, const SearchOptions& options,
   return absl::OkStatus();
 }
 
-// The sizes up to which auto tries the cluster model's exact Pareto search
-// before the anytime one (with and without cross products): past them it
-// cannot finish in seconds, and a slice stopped at its deadline still
-// takes a while to give up its memo (a rule of thumb of ours, from
-// docs/benchmarks.md, "Many objectives").
-constexpr int kClusterExactReach = 14;
-constexpr int kClusterExactReachConnected = 18;
+// The cluster model's forecast (core/capacity/cluster_forecast.h) spends
+// a twentieth of the time left, at most a second. The exact tier asked
+// for is refused when the forecast on the pool passes three times the
+// time left: the forecast has been within 0.54x to 2.5x of the search
+// (docs/tiers.md), so a search refused would not have finished.
+constexpr double kClusterForecastShare = 0.05;
+constexpr double kClusterRefuseFactor = 3;
 
 // One run's state: the incumbent and what each tier did.
 class TierRun {
@@ -182,13 +185,50 @@ class TierRun {
     return std::move(out_);
   }
 
+  // The cluster model's exact search forecast, and its seconds on the
+  // `p` slices over this pool's places.
+  struct PoolForecast {
+    ClusterForecast forecast;
+    double pool_seconds = 0;
+    uint32_t places = 1;
+  };
+  absl::StatusOr<PoolForecast> ForecastCluster(const Query& exact, uint32_t p) const {
+    SearchControl control(nullptr, deadline_);
+    if (schedule_.cancelled) control.set_cancel_check(schedule_.cancelled);
+    const double budget = std::min(kClusterForecastMaxSeconds, kClusterForecastShare * Remaining());
+    ASSIGN_OR_RETURN(ClusterForecast f, ForecastClusterSearch(exact, options_, budget, control));
+    PoolForecast out{f, 0,
+                     std::max<uint32_t>(1, std::min(p, static_cast<uint32_t>(concurrent_slices_)))};
+    out.pool_seconds = f.seconds / out.places;
+    return out;
+  }
+
   // The exact tier forced, or the cluster model: the scheduler's rules.
   absl::StatusOr<TieredOutcome> ExactAlone() {
     ASSIGN_OR_RETURN(const Query exact, ToExactQuery(query_));
     const uint32_t p = request_.slice_count != 0
                            ? request_.slice_count
                            : ChooseSliceCount(exact, options_, concurrent_slices_);
+    std::optional<PoolForecast> forecast;
+    if (options_.cost == CostModelKind::kCluster && query_.joins().empty()) {
+      // Refused up front rather than left running to the deadline.
+      ASSIGN_OR_RETURN(const PoolForecast f, ForecastCluster(exact, p));
+      forecast = f;
+      const double left = Remaining();
+      if (!f.forecast.measured && f.pool_seconds > kClusterRefuseFactor * left) {
+        return absl::ResourceExhaustedError(absl::StrFormat(
+            "the cluster model's exact Pareto search is forecast at %s, so about %.3g s over %u "
+            "places in parallel, more than %g times the %.3g s left; --tier=auto returns the "
+            "anytime search's Pareto set by the deadline",
+            f.forecast.Describe(), f.pool_seconds, f.places, kClusterRefuseFactor, left));
+      }
+    }
     absl::StatusOr<ScheduleOutcome> run = RunSlices(exact, options_, p, workers_, schedule_);
+    if (absl::IsDeadlineExceeded(run.status()) && forecast) {
+      run = absl::DeadlineExceededError(absl::StrFormat(
+          "%s (the forecast: %s, so about %.3g s over %u places)", run.status().message(),
+          forecast->forecast.Describe(), forecast->pool_seconds, forecast->places));
+    }
     const bool joins = !query_.joins().empty();
     if (absl::IsDeadlineExceeded(run.status()) && schedule_.partial_on_deadline &&
         options_.cost == CostModelKind::kCout && !joins) {
@@ -232,6 +272,13 @@ class TierRun {
       const uint32_t p = request_.slice_count != 0
                              ? request_.slice_count
                              : ChooseSliceCount(exact, options_, concurrent_slices_);
+      ASSIGN_OR_RETURN(const PoolForecast f, ForecastCluster(exact, p));
+      if (!f.forecast.measured && f.pool_seconds > Remaining()) {
+        return Anytime(
+            {}, absl::StrFormat("anytime: the exact Pareto search is forecast at %s, "
+                                "so about %.3g s over %u places, past the %.3g s left",
+                                f.forecast.Describe(), f.pool_seconds, f.places, Remaining()));
+      }
       ScheduleOptions half = schedule_;
       half.deadline = start_ + (deadline_ - start_) / 2;
       half.partial_on_deadline = true;

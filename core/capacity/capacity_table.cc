@@ -5,8 +5,10 @@
 
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_format.h"
+#include "core/capacity/cluster_forecast.h"
 #include "core/capacity/rate_calibration.h"
 #include "core/model/status_macros.h"
+#include "core/slice_planner.h"
 
 namespace sliceplan {
 namespace {
@@ -53,9 +55,7 @@ std::string Summary(const CapacityTable& t) {
 
 }  // namespace
 
-absl::StatusOr<CapacityTable> PlanCapacity(const Query& query, const SearchOptions& options,
-                                           double deadline_seconds, int threads_per_worker,
-                                           const MachineRates& rates) {
+absl::Status CheckCapacityRequest(double deadline_seconds, int threads_per_worker) {
   if (!std::isfinite(deadline_seconds) || !(deadline_seconds > 0)) {
     return absl::InvalidArgumentError(
         absl::StrCat("deadline: must be a finite number of seconds > 0, got ", deadline_seconds));
@@ -64,6 +64,13 @@ absl::StatusOr<CapacityTable> PlanCapacity(const Query& query, const SearchOptio
     return absl::InvalidArgumentError(absl::StrCat(
         "threads per worker: must be in 1..", kCapacityMaxThreads, ", got ", threads_per_worker));
   }
+  return absl::OkStatus();
+}
+
+absl::StatusOr<CapacityTable> PlanCapacity(const Query& query, const SearchOptions& options,
+                                           double deadline_seconds, int threads_per_worker,
+                                           const MachineRates& rates) {
+  RETURN_IF_ERROR(CheckCapacityRequest(deadline_seconds, threads_per_worker));
   CapacityTable t;
   t.deadline_seconds = deadline_seconds;
   t.threads_per_worker = threads_per_worker;
@@ -97,6 +104,52 @@ CapacityTable CapacityPastExact(int relations, double deadline_seconds, int thre
   return t;
 }
 
+absl::StatusOr<CapacityTable> PlanClusterCapacity(const Query& query, const SearchOptions& options,
+                                                  double deadline_seconds, int threads_per_worker) {
+  RETURN_IF_ERROR(CheckCapacityRequest(deadline_seconds, threads_per_worker));
+  ASSIGN_OR_RETURN(const ClusterForecast f,
+                   ForecastClusterSearch(query, options, kClusterForecastMaxSeconds));
+  CapacityTable t;
+  t.deadline_seconds = deadline_seconds;
+  t.threads_per_worker = threads_per_worker;
+  t.estimated = !f.measured;
+  t.cluster_forecast = f.Describe();
+  const int reach = options.cross_products ? kClusterExactReach : kClusterExactReachConnected;
+  for (int w = 1; w <= kCapacityMaxWorkers; w *= 2) {
+    CapacityRow row;
+    row.workers = w;
+    row.slices = ChooseSliceCount(query, options, w);
+    row.seconds = f.seconds / std::min<double>(row.slices, w);
+    if (row.seconds <= deadline_seconds && !t.enough_workers) t.enough_workers = w;
+    // Auto gives the exact search half the time (docs/tiers.md).
+    if (query.size() <= reach && row.seconds <= deadline_seconds / 2 && !t.auto_exact_workers) {
+      t.auto_exact_workers = w;
+    }
+    t.rows.push_back(row);
+  }
+  t.summary = absl::StrFormat(f.measured ? "The cluster model's exact Pareto search ran whole: %s."
+                                         : "The cluster model's exact Pareto search is forecast "
+                                           "at %s.",
+                              f.Describe());
+  if (t.enough_workers) {
+    absl::StrAppendFormat(&t.summary, " %d worker%s finish%s it within %.3g s", *t.enough_workers,
+                          *t.enough_workers == 1 ? "" : "s", *t.enough_workers == 1 ? "es" : "",
+                          deadline_seconds);
+    if (t.auto_exact_workers) {
+      absl::StrAppendFormat(&t.summary, "; auto runs it from %d worker%s (half the time)",
+                            *t.auto_exact_workers, *t.auto_exact_workers == 1 ? "" : "s");
+    }
+    t.summary += *t.enough_workers > 1 ? ", if the slices share the work evenly" : "";
+    t.summary += "; memory is not forecast.";
+  } else {
+    absl::StrAppendFormat(&t.summary,
+                          " No pool of up to %d workers finishes it within %.3g s: auto returns "
+                          "the anytime search's Pareto set, not proven.",
+                          kCapacityMaxWorkers, deadline_seconds);
+  }
+  return t;
+}
+
 absl::StatusOr<CapacityTable> PlanCapacityFor(const WideQuery& query, const SearchOptions& options,
                                               double deadline_seconds, int threads_per_worker,
                                               MachineRates rates, bool own_rate_given) {
@@ -108,6 +161,9 @@ absl::StatusOr<CapacityTable> PlanCapacityFor(const WideQuery& query, const Sear
     return CapacityPastExact(query.size(), deadline_seconds, threads_per_worker);
   }
   ASSIGN_OR_RETURN(const Query exact, ToExactQuery(query));
+  if (options.cost == CostModelKind::kCluster) {
+    return PlanClusterCapacity(exact, options, deadline_seconds, threads_per_worker);
+  }
   if (!own_rate_given) {
     ASSIGN_OR_RETURN(const MachineRates measured, CalibrateRates(exact, options));
     if (options.cross_products) {

@@ -25,6 +25,15 @@ inline constexpr int kCapacityMaxThreads = kMaxSearchThreads;
 // not see the tiers, so the summary's number is kept here and checked
 // equal there.
 inline constexpr int kMaxLinearTierRelations = 1000;
+// The sizes up to which auto tries the cluster model's exact Pareto search
+// before the anytime one (with and without cross products): past them it
+// cannot finish in seconds, and a slice stopped at its deadline still
+// takes a while to give up its memo (a rule of thumb of ours, from
+// docs/benchmarks.md, "Many objectives"). schedule/ reads them.
+inline constexpr int kClusterExactReach = 14;
+inline constexpr int kClusterExactReachConnected = 18;
+// The cluster model's forecast (cluster_forecast.h) spends at most this.
+inline constexpr double kClusterForecastMaxSeconds = 1.0;
 
 struct CapacityRow {
   int workers = 1;
@@ -35,7 +44,9 @@ struct CapacityRow {
 };
 
 struct CapacityTable {
-  std::vector<CapacityRow> rows;      // workers 1, 2, 4, ... 1,024
+  std::vector<CapacityRow> rows;  // workers 1, 2, 4, ... 1,024
+  // The cluster model: the rows come from this forecast (no memo figure).
+  std::optional<std::string> cluster_forecast;
   std::optional<int> enough_workers;  // smallest pool meeting the deadline
   // Smallest pool on which `auto` runs the exact search (predicted within
   // kExactShare of the deadline); none: auto runs the heuristic tiers.
@@ -59,8 +70,17 @@ absl::StatusOr<CapacityTable> PlanCapacity(const Query& query, const SearchOptio
 // kMaxRelations relations): no rows, and a summary naming what auto does.
 CapacityTable CapacityPastExact(int relations, double deadline_seconds, int threads_per_worker);
 
+// The table for the cluster model's exact Pareto search, from
+// ForecastClusterSearch (a second at most): each pool's seconds are the
+// forecast over its slices (the slice count the coordinator would choose,
+// at most one per worker; the work taken as split evenly); memory is not
+// forecast. Errors: as PlanCapacity; the forecast's.
+absl::StatusOr<CapacityTable> PlanClusterCapacity(const Query& query, const SearchOptions& options,
+                                                  double deadline_seconds, int threads_per_worker);
+
 // The table for a query of any size, as the CLI and the coordinator answer
-// it: past kMaxRelations the rowless CapacityPastExact; else PlanCapacity
+// it: past kMaxRelations the rowless CapacityPastExact; the cluster model
+// PlanClusterCapacity; else PlanCapacity
 // with the search's own rate (dense splits with cross products, connected
 // sets without) measured here by CalibrateRates unless `own_rate_given`.
 // Errors as PlanCapacity and CalibrateRates.

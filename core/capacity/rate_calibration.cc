@@ -119,33 +119,34 @@ absl::StatusOr<double> ConnectedRate(const Query& query, const SearchOptions& op
 
 }  // namespace
 
+Query QueryPart(const Query& query, RelSet keep) {
+  std::vector<Relation> relations;
+  std::vector<RelationId> position(query.size());
+  ForEachMember(keep, [&](RelationId r) {
+    position[r.value] = RelationId{static_cast<uint8_t>(relations.size())};
+    relations.push_back(query.relation(r));
+  });
+  std::vector<Predicate> predicates;
+  for (const Predicate& p : query.predicates()) {
+    if (!IsSubset(p.relations, keep)) continue;
+    RelSet mapped = 0;
+    ForEachMember(p.relations, [&](RelationId r) { mapped |= Singleton(position[r.value]); });
+    predicates.push_back({mapped, p.selectivity});
+  }
+  return *Query::Create(std::move(relations), std::move(predicates));
+}
+
 Query ConnectedPart(const Query& query, uint64_t min_sets) {
   const JoinGraph graph(query);
   RelSet taken = 1;
-  auto restricted = [&query](RelSet keep) {
-    std::vector<Relation> relations;
-    std::vector<RelationId> position(query.size());
-    ForEachMember(keep, [&](RelationId r) {
-      position[r.value] = RelationId{static_cast<uint8_t>(relations.size())};
-      relations.push_back(query.relation(r));
-    });
-    std::vector<Predicate> predicates;
-    for (const Predicate& p : query.predicates()) {
-      if (!IsSubset(p.relations, keep)) continue;
-      RelSet mapped = 0;
-      ForEachMember(p.relations, [&](RelationId r) { mapped |= Singleton(position[r.value]); });
-      predicates.push_back({mapped, p.selectivity});
-    }
-    return *Query::Create(std::move(relations), std::move(predicates));
-  };
   // Grow one relation at a time, the lowest-numbered neighbour first.
   while (taken != query.all()) {
     const RelSet around = graph.Around(taken);
     if (around == 0) break;
     taken |= LowestBit(around);
-    if (CountConnectedSets(restricted(taken), min_sets) >= min_sets) break;
+    if (CountConnectedSets(QueryPart(query, taken), min_sets) >= min_sets) break;
   }
-  return restricted(taken);
+  return QueryPart(query, taken);
 }
 
 absl::StatusOr<MachineRates> CalibrateRates(const Query& query, const SearchOptions& options,

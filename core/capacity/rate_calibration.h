@@ -40,6 +40,11 @@ absl::StatusOr<MachineRates> CalibrateRates(const Query& query, const SearchOpti
 absl::StatusOr<MachineRates> CalibrateRatesOnce(const Query& query, const SearchOptions& options,
                                                 const SearchControl& control = {});
 
+// The query restricted to the relations of `keep` (renumbered in order),
+// with the predicates wholly inside; non-inner joins are dropped.
+// REQUIRES: keep non-empty, within the query.
+Query QueryPart(const Query& query, RelSet keep);
+
 // The query restricted to relations grown from relation 0, adding the
 // lowest-numbered neighbour each step, until it has `min_sets` connected
 // sets (or is the whole component), its predicates those wholly inside.

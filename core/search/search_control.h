@@ -53,6 +53,12 @@ class SearchControl {
   // CANCELLED or DEADLINE_EXCEEDED after Tick returned true, else OK.
   absl::Status status() const { return status_; }
 
+  // The deadline, if any; and the same control with an earlier one.
+  std::optional<Clock::time_point> deadline() const { return deadline_; }
+  void TightenDeadline(Clock::time_point by) {
+    if (!deadline_ || by < *deadline_) deadline_ = by;
+  }
+
  private:
   bool Check();
 
