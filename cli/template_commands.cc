@@ -196,14 +196,14 @@ std::string PrepareJson(const PrepareFigures& f, const std::string& template_id)
 std::string PrepareText(const std::string& template_path, const std::string& out,
                         const PrepareFigures& f, const std::string& template_id) {
   std::string text = absl::StrFormat(
-      "prepared %s: %u grid points (%d per parameter), %u distinct optima, %u plans kept\n"
+      "prepared %s: %u grid points (%d per parameter), %u distinct optim%s, %u plan%s kept\n"
       "  at every grid point a kept plan costs at most %.4g times the optimum (asked: %.4g)\n",
-      template_path, f.grid_points, f.grid, f.distinct_optima, f.stored_plans, f.worst_ratio,
-      f.max_ratio);
+      template_path, f.grid_points, f.grid, f.distinct_optima, f.distinct_optima == 1 ? "um" : "a",
+      f.stored_plans, f.stored_plans == 1 ? "" : "s", f.worst_ratio, f.max_ratio);
   if (f.box_ratio_bound) {
     absl::StrAppendFormat(&text,
                           "  anywhere in the parameter box: at most %.4g times the optimum "
-                          "(the grid cells' corners)\n",
+                          "(bounded from each grid cell's corners; docs/templates.md)\n",
                           *f.box_ratio_bound);
   } else {
     text += "  no bound for the whole box: an anti join's estimate falls as its input grows\n";

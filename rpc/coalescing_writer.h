@@ -91,7 +91,7 @@ class CoalescingWriter {
         pending_.reset();
       }
       if (last) break;
-      if (stopping_) continue;  // Finish came during the write: its message next
+      // A Finish that came during the write is met by the next Await.
     }
     pump_ended_ = true;
   }

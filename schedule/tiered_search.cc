@@ -203,6 +203,16 @@ class TierRun {
     return out;
   }
 
+  // The exact search's run as the answer: its plan, proof and coverage.
+  void TakeExact(ScheduleOutcome outcome) {
+    out_.tier = SearchTier::kExact;
+    out_.proven_optimal = outcome.proven_optimal;
+    out_.coverage = outcome.coverage;
+    out_.plan = FromExactPlan(outcome.result.plan);
+    out_.schedule = std::move(outcome);
+    out_.exact_ran = true;
+  }
+
   // The exact tier forced, or the cluster model: the scheduler's rules.
   absl::StatusOr<TieredOutcome> ExactAlone() {
     ASSIGN_OR_RETURN(const Query exact, ToExactQuery(query_));
@@ -242,12 +252,7 @@ class TierRun {
                                  "; the greedy plan stands, not proven optimal"));
     }
     ASSIGN_OR_RETURN(ScheduleOutcome outcome, std::move(run));
-    out_.tier = SearchTier::kExact;
-    out_.proven_optimal = outcome.proven_optimal;
-    out_.coverage = outcome.coverage;
-    out_.plan = FromExactPlan(outcome.result.plan);
-    out_.schedule = std::move(outcome);
-    out_.exact_ran = true;
+    TakeExact(std::move(outcome));
     if (request_.tier == SearchTier::kExact) return Finish("exact: requested");
     if (options_.cost == CostModelKind::kCluster) return Finish("exact: the cluster model");
     return Finish(
@@ -284,12 +289,7 @@ class TierRun {
       half.partial_on_deadline = true;
       absl::StatusOr<ScheduleOutcome> run = RunSlices(exact, options_, p, workers_, half);
       if (run.ok() && run->proven_optimal) {
-        out_.tier = SearchTier::kExact;
-        out_.proven_optimal = true;
-        out_.coverage = 1;
-        out_.plan = FromExactPlan(run->result.plan);
-        out_.schedule = *std::move(run);
-        out_.exact_ran = true;
+        TakeExact(*std::move(run));
         return Finish("exact: the cluster model's Pareto search finished in half the time");
       }
       if (run.ok()) {

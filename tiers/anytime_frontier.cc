@@ -103,9 +103,8 @@ class Search {
   AnytimeFrontierResult Run(SearchControl& control) {
     const auto start = Clock::now();
     last_report_ = start;
-    WidePlan seed = GreedyPlan(query_, options_.shape);
-    auto current = std::make_shared<const WidePlan>(seed);
-    Evaluate(current);
+    size_t added = 0;
+    std::shared_ptr<const WidePlan> current = Evaluate(GreedyPlan(query_, options_.shape), added);
     uint64_t moves = 0;
     while ((options_.max_moves == 0 || moves < options_.max_moves) &&
            !control.Tick(SearchControl::kTickWork)) {
@@ -119,8 +118,8 @@ class Search {
         ++result_.moves_refused;
         continue;
       }
-      auto tree = std::make_shared<const WidePlan>(std::move(next));
-      if (Evaluate(tree) > 0) {
+      auto tree = Evaluate(std::move(next), added);
+      if (added > 0) {
         current = std::move(tree);
       } else if (rng_() % 8 == 0 && !archive_.empty()) {
         current = archive_[rng_() % archive_.size()].tree;  // a restart
@@ -137,17 +136,17 @@ class Search {
   }
 
  private:
-  // The tree's physical Pareto set into the archive; the plans it added.
-  size_t Evaluate(const std::shared_ptr<const WidePlan>& tree) {
-    WidePlan costed = *tree;
-    CostWidePlan(costed, query_);
-    auto shared = std::make_shared<const WidePlan>(std::move(costed));
+  // The tree costed, its physical Pareto set put into the archive;
+  // `added`: how many of those plans entered it.
+  std::shared_ptr<const WidePlan> Evaluate(WidePlan tree, size_t& added) {
+    CostWidePlan(tree, query_);
+    auto shared = std::make_shared<const WidePlan>(std::move(tree));
     ++result_.trees;
-    size_t added = 0;
+    added = 0;
     for (PhysicalPlan& p : PhysicalFrontier(query_, *shared, config_, {options_.cap_per_node})) {
       added += Insert({shared, std::move(p)});
     }
-    return added;
+    return shared;
   }
 
   // Keeps the archive non-dominated (a plan equal to one there does not

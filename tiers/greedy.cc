@@ -45,13 +45,7 @@ class GreedyBushy {
     int components = query_.size();
     while (components > 1) {
       while (!heap_.empty() && components > 1) {
-        if (++merges_ % kClockEvery == 0 && deadline_ && Clock::now() >= *deadline_) {
-          report.cut = true;
-          report.greedy_joins = query_.size() - components;
-          FinishAlongPredicates();
-          CostWidePlan(plan_, query_);
-          return std::move(plan_);
-        }
+        if (TimeIsUp()) return Cut(report, components);
         const Candidate c = heap_.top();
         heap_.pop();
         if (version_[c.a] != c.version_a || version_[c.b] != c.version_b) continue;
@@ -61,13 +55,7 @@ class GreedyBushy {
       if (components == 1) break;
       // Disconnected: cross products, each O(relations); the clock is
       // read here too.
-      if (deadline_ && ++merges_ % kClockEvery == 0 && Clock::now() >= *deadline_) {
-        report.cut = true;
-        report.greedy_joins = query_.size() - components;
-        FinishAlongPredicates();
-        CostWidePlan(plan_, query_);
-        return std::move(plan_);
-      }
+      if (TimeIsUp()) return Cut(report, components);
       CrossTwoSmallest();
       --components;
     }
@@ -77,6 +65,21 @@ class GreedyBushy {
   }
 
  private:
+  // Every kClockEvery calls, whether the deadline passed.
+  bool TimeIsUp() {
+    return ++merges_ % kClockEvery == 0 && deadline_ && Clock::now() >= *deadline_;
+  }
+
+  // The deadline's answer: the components left joined along the
+  // predicates, the plan costed.
+  WidePlan Cut(GreedyReport& report, int components) {
+    report.cut = true;
+    report.greedy_joins = query_.size() - components;
+    FinishAlongPredicates();
+    CostWidePlan(plan_, query_);
+    return std::move(plan_);
+  }
+
   int32_t Find(int32_t r) {
     while (parent_[r] != r) r = parent_[r] = parent_[parent_[r]];
     return r;

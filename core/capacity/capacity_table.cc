@@ -127,10 +127,8 @@ absl::StatusOr<CapacityTable> PlanClusterCapacity(const Query& query, const Sear
     }
     t.rows.push_back(row);
   }
-  t.summary = absl::StrFormat(f.measured ? "The cluster model's exact Pareto search ran whole: %s."
-                                         : "The cluster model's exact Pareto search is forecast "
-                                           "at %s.",
-                              f.Describe());
+  t.summary = absl::StrCat("The cluster model's exact Pareto search ",
+                           f.measured ? "ran whole: " : "is forecast at ", f.Describe(), ".");
   if (t.enough_workers) {
     absl::StrAppendFormat(&t.summary, " %d worker%s finish%s it within %.3g s", *t.enough_workers,
                           *t.enough_workers == 1 ? "" : "s", *t.enough_workers == 1 ? "es" : "",
