@@ -124,21 +124,17 @@ size_t EditDistance(const std::string& a, const std::string& b) {
 // value, how to give it.
 absl::Status UnknownFlag(const CommandTable& table, const std::string& given) {
   const std::string name = given.substr(given.find_first_not_of('-'));
-  const FlagRow* nearest = nullptr;
-  size_t best = 0;
+  std::vector<std::string> names;
   for (const FlagRow& row : table.flags) {
     if (row.name == name && row.value.empty()) {
       return absl::InvalidArgumentError(
           absl::StrCat(given, ": a switch takes no value; give --", name, " alone"));
     }
-    const size_t d = EditDistance(name, row.name);
-    if (nearest == nullptr || d < best) nearest = &row, best = d;
+    names.push_back(row.name);
   }
-  // A suggestion only when it is close: at most 2 edits, and at most a
-  // third of the name.
-  if (nearest != nullptr && best <= 2 && 3 * best <= name.size()) {
+  if (const std::string meant = DidYouMean(name, names); !meant.empty()) {
     return absl::InvalidArgumentError(
-        absl::StrCat(given, ": unknown flag; did you mean --", nearest->name, "?"));
+        absl::StrCat(given, ": unknown flag; did you mean --", meant, "?"));
   }
   return absl::InvalidArgumentError(absl::StrCat(given, ": unknown flag (see --help)"));
 }
@@ -177,5 +173,22 @@ absl::Status ParseCommand(const CommandTable& table, const std::vector<std::stri
 }
 
 std::string CommandHelp(const CommandTable& table) { return Build(table)->app->help(); }
+
+std::string DidYouMean(const std::string& given, const std::vector<std::string>& names) {
+  const std::string* nearest = nullptr;
+  size_t best = 0;
+  for (const std::string& name : names) {
+    const size_t d = EditDistance(given, name);
+    if (nearest == nullptr || d < best) nearest = &name, best = d;
+  }
+  if (nearest != nullptr && best <= 2 && 3 * best <= given.size()) return *nearest;
+  const std::string* begun = nullptr;
+  for (const std::string& name : names) {
+    if (given.size() < 3 || name.rfind(given, 0) != 0) continue;
+    if (begun != nullptr) return "";  // begins two: no guess
+    begun = &name;
+  }
+  return begun != nullptr ? *begun : "";
+}
 
 }  // namespace sliceplan::cli

@@ -49,6 +49,11 @@ absl::Status ParseCommand(const CommandTable& table, const std::vector<std::stri
 // default.
 std::string CommandHelp(const CommandTable& table);
 
+// What a misspelt `given` most likely meant among `names`: the nearest by
+// edits (at most 2, and at most a third of its length), else the only
+// name it begins ("deadlin" for "deadline-seconds"); empty when neither.
+std::string DidYouMean(const std::string& given, const std::vector<std::string>& names);
+
 }  // namespace sliceplan::cli
 
 #endif  // SLICEPLAN_CLI_COMMAND_TABLE_H_

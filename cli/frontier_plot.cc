@@ -2,6 +2,9 @@
 
 #include <algorithm>
 #include <cmath>
+#include <map>
+#include <utility>
+#include <vector>
 
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_format.h"
@@ -26,6 +29,10 @@ std::string Colour(double t) {
 
 std::string Fmt(double v) { return absl::StrFormat("%.3g", v); }
 
+// Past this many plans the plot draws one point per kCell x kCell pixels.
+constexpr size_t kDrawAll = 400;
+constexpr double kCell = 4;
+
 }  // namespace
 
 std::string FrontierSvg(const std::vector<Plan>& frontier, const Query& query,
@@ -42,22 +49,46 @@ std::string FrontierSvg(const std::vector<Plan>& frontier, const Query& query,
     if (c_lo >= 1) return 1.0;
     return c_log ? (std::log10(c) - std::log10(c_lo)) / -std::log10(c_lo) : (c - c_lo) / (1 - c_lo);
   };
-  SvgChart chart(absl::StrFormat("Pareto frontier: %d plans", static_cast<int>(frontier.size())),
-                 MakeChartAxis(lat_lo, lat_hi), "latency (s)", MakeChartAxis(ns_lo, ns_hi),
-                 "rented node-seconds");
+  const bool thin = frontier.size() > kDrawAll;
+  SvgChart chart(
+      thin ? absl::StrFormat("Pareto frontier: %d plans (drawn: one per %g-pixel cell)",
+                             static_cast<int>(frontier.size()), kCell)
+           : absl::StrFormat("Pareto frontier: %d plans", static_cast<int>(frontier.size())),
+      MakeChartAxis(lat_lo, lat_hi), "latency (s)", MakeChartAxis(ns_lo, ns_hi),
+      "rented node-seconds");
   const auto px = [&](double v) { return chart.X(v); };
   const auto py = [&](double v) { return chart.Y(v); };
   const ChartAxis& x = chart.x_axis();
+  // The plans drawn: all of them, or past kDrawAll the most complete of
+  // each cell (drawing only; the JSON and the text keep every plan).
+  std::vector<size_t> drawn;
+  if (!thin) {
+    for (size_t i = 0; i < frontier.size(); ++i) drawn.push_back(i);
+  } else {
+    std::map<std::pair<int, int>, size_t> cells;
+    for (size_t i = 0; i < frontier.size(); ++i) {
+      const ClusterCosts& m = frontier[i].root().metrics;
+      const std::pair<int, int> cell{static_cast<int>(px(m.latency_s) / kCell),
+                                     static_cast<int>(py(m.node_seconds) / kCell)};
+      auto [it, fresh] = cells.try_emplace(cell, i);
+      if (!fresh && m.completeness > frontier[it->second].root().metrics.completeness) {
+        it->second = i;
+      }
+    }
+    for (const auto& [cell, i] : cells) drawn.push_back(i);
+  }
+  const double radius = thin ? 3 : 6;
   std::string s;
-  for (size_t i = 0; i < frontier.size(); ++i) {
+  for (size_t i : drawn) {
     const ClusterCosts& m = frontier[i].root().metrics;
     const std::string tip = absl::StrFormat(
         "plan %d: %s&#10;latency %.4g s, node-seconds %.4g, completeness %.4g", static_cast<int>(i),
         SvgEscape(TreeString(frontier[i], query)), m.latency_s, m.node_seconds, m.completeness);
     absl::StrAppendFormat(&s,
-                          "<circle cx=\"%.1f\" cy=\"%.1f\" r=\"6\" fill=\"%s\" stroke=\"#222\" "
+                          "<circle cx=\"%.1f\" cy=\"%.1f\" r=\"%g\" fill=\"%s\" stroke=\"#222\" "
                           "stroke-width=\"0.6\"><title>%s</title></circle>\n",
-                          px(m.latency_s), py(m.node_seconds), Colour(c_norm(m.completeness)), tip);
+                          px(m.latency_s), py(m.node_seconds), radius,
+                          Colour(c_norm(m.completeness)), tip);
   }
   if (chosen && *chosen < frontier.size()) {
     const ClusterCosts& m = frontier[*chosen].root().metrics;
@@ -65,6 +96,7 @@ std::string FrontierSvg(const std::vector<Plan>& frontier, const Query& query,
         &s,
         "<circle cx=\"%.1f\" cy=\"%.1f\" r=\"11\" fill=\"none\" stroke=\"#d62728\" "
         "stroke-width=\"2.5\"/><text x=\"%.1f\" y=\"%.1f\" fill=\"#d62728\" "
+        "stroke=\"white\" stroke-width=\"3\" paint-order=\"stroke\" "
         "font-weight=\"bold\" text-anchor=\"%s\">chosen (plan %d)</text>\n",
         px(m.latency_s), py(m.node_seconds),
         px(m.latency_s) + (x.Norm(m.latency_s) > 0.7 ? -14 : 14), py(m.node_seconds) - 12,

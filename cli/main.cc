@@ -261,6 +261,10 @@ int main(int argc, char** argv) {
     std::cout.flush();
     return std::cout ? kExitOk : kExitFailure;
   }
-  std::cerr << "sliceplan: unknown command \"" << command << "\"\n" << Usage();
+  const std::string meant =
+      DidYouMean(command, {"optimize", "workers", "capacity", "prepare", "choose"});
+  std::cerr << "sliceplan: unknown command \"" << command << "\""
+            << (meant.empty() ? "" : absl::StrCat("; did you mean ", meant, "?")) << "\n"
+            << Usage();
   return kExitBadInput;
 }

@@ -5,6 +5,7 @@
 #include <cmath>
 #include <deque>
 #include <memory>
+#include <thread>
 
 #include "absl/base/thread_annotations.h"
 #include "absl/strings/str_cat.h"
@@ -62,11 +63,19 @@ struct Attempt {
   bool finished = false;
 };
 
+// How long the answer waits for cancelled calls to report: past it, the
+// calls still running (a search thread starved of CPU is slow to see its
+// cancel) are left to a reaper thread, and the answer goes out without
+// them (docs/operations.md, "Deadlines under load").
+constexpr auto kCancelGrace = std::chrono::milliseconds(20);
+
 // One Run: all state behind one mutex; calls report back via Finish().
 // Calls are started and their handles stored with the mutex released
 // (a worker may finish a call inside Start), so Dispatch only picks the
-// attempts and StartCalls starts them.
-class Run {
+// attempts and StartCalls starts them. Owned by a shared pointer: a call
+// that outlives Execute keeps the Run (its query copy, its attempts)
+// alive until it reports.
+class Run : public std::enable_shared_from_this<Run> {
  public:
   Run(const Query& query, const SearchOptions& options, uint32_t slice_count,
       std::span<SliceWorker* const> workers, const ScheduleOptions& schedule)
@@ -112,11 +121,27 @@ class Run {
       }
     }
     CancelAll();
-    while (running_ != 0) changed_.Wait(&mu_);
+    const absl::Time grace_end = absl::Now() + absl::FromChrono(kCancelGrace);
+    while (running_ != 0 && !changed_.WaitWithDeadline(&mu_, grace_end)) {
+    }
     absl::StatusOr<ScheduleOutcome> out = Outcome();
     std::vector<std::unique_ptr<Attempt>> attempts = std::move(attempts_);
+    abandoned_ = running_ != 0;
+    const bool abandoned = abandoned_;
     mu_.Unlock();
-    attempts.clear();  // joins local threads; no call is running now
+    {
+      absl::MutexLock report(&report_mu_);
+      returned_ = true;  // no progress reported from here on
+    }
+    if (abandoned) {
+      // The calls still running join on a reaper thread, which keeps this
+      // Run alive until they have reported.
+      std::thread([self = shared_from_this(), attempts = std::move(attempts)]() mutable {
+        attempts.clear();
+      }).detach();
+    } else {
+      attempts.clear();  // joins local threads; no call is running now
+    }
     return out;
   }
 
@@ -218,6 +243,15 @@ class Run {
   }
 
   void Finish(Attempt* a, absl::StatusOr<SliceResult> r) ABSL_LOCKS_EXCLUDED(mu_) {
+    {
+      // The run has answered without this call: only its count.
+      absl::MutexLock lock(&mu_);
+      if (abandoned_) {
+        a->finished = true;
+        --running_;
+        return;
+      }
+    }
     // No worker's answer is trusted: a tree that is not the slice's, or
     // figures the query does not give, is a worker fault (DATA_LOSS): the
     // slice goes to another worker and the client is never blamed.
@@ -240,7 +274,10 @@ class Run {
       --running_of_[a->slice];
       progress = Record(a, std::move(r));
     }
-    if (progress && schedule_.on_progress) schedule_.on_progress(*progress);
+    if (progress) {
+      absl::MutexLock report(&report_mu_);
+      if (!returned_ && schedule_.on_progress) schedule_.on_progress(*progress);
+    }
     changed_.SignalAll();
   }
 
@@ -370,13 +407,14 @@ class Run {
     return out;
   }
 
-  const Query& query_;
+  // Copies: calls may outlive Execute's caller.
+  const Query query_;
   const SearchOptions options_;
   const uint32_t count_;
   // The slices' constraint relations, chosen once to check every answer.
   const std::vector<ConstraintRelations> chosen_;
   const std::vector<SliceWorker*> workers_;
-  const ScheduleOptions& schedule_;
+  const ScheduleOptions schedule_;
   const Clock::time_point start_ = Clock::now();
 
   absl::Mutex mu_;
@@ -399,6 +437,10 @@ class Run {
   uint32_t hedges_ ABSL_GUARDED_BY(mu_) = 0;
   bool cancelled_ ABSL_GUARDED_BY(mu_) = false;
   bool deadline_passed_ ABSL_GUARDED_BY(mu_) = false;
+  bool abandoned_ ABSL_GUARDED_BY(mu_) = false;  // answered with calls still running
+  // Held while progress is reported, so none is after Execute returned.
+  absl::Mutex report_mu_;
+  bool returned_ ABSL_GUARDED_BY(report_mu_) = false;
   absl::Status error_ ABSL_GUARDED_BY(mu_);
 };
 
@@ -437,7 +479,7 @@ absl::StatusOr<ScheduleOutcome> RunSlices(const Query& query, const SearchOption
                                           const ScheduleOptions& schedule) {
   RETURN_IF_ERROR(ValidateSlice({0, slice_count}, query.size(), options.shape));
   RETURN_IF_ERROR(CheckCanFinish(query, options, slice_count, workers, schedule));
-  return Run(query, options, slice_count, workers, schedule).Execute();
+  return std::make_shared<Run>(query, options, slice_count, workers, schedule)->Execute();
 }
 
 }  // namespace sliceplan

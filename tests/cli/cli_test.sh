@@ -135,6 +135,26 @@ assert any("@0.1" in p for p in physical), physical
 PY
 then passed=$((passed + 1)); else failed=$((failed + 1)); echo "FAIL cluster_json"; fi
 
+# Thousands of frontier plans: the JSON keeps every one, the plot draws one
+# point per 4-pixel cell and says so, the chosen plan ringed.
+python3 "$examples/generate_port_query.py" 4 >"$tmp/four.json"
+check cluster_many 0 "" optimize "$tmp/four.json" --cost=cluster --format=json \
+  --node-counts=1,2,3,4,5,6,7,8 --sample-rates=1,0.5,0.25,0.1,0.05,0.02,0.01,0.005 \
+  --plot="$tmp/many.svg"
+if python3 - "$tmp/out" "$tmp/many.svg" <<'PY'
+import json, sys
+doc = json.load(open(sys.argv[1]))
+plans = doc["plans"]
+assert len(plans) > 400, len(plans)
+svg = open(sys.argv[2]).read()
+assert "plans (drawn: one per 4-pixel cell)" in svg, svg[:400]
+assert "%d plans" % len(plans) in svg, svg[:400]
+drawn = svg.count("<title>")
+assert 0 < drawn < len(plans), (drawn, len(plans))
+assert svg.count("chosen (plan %d)" % doc["chosen"]) == 1
+PY
+then passed=$((passed + 1)); else failed=$((failed + 1)); echo "FAIL cluster_many"; fi
+
 # A good run: JSON with the fields of docs/interfaces.md, one plan, P slices.
 check json_ok 0 "" optimize "$examples/port_calls_small.json" --format=json --slices=4 --workers=2
 if python3 - "$tmp/out" <<'PY'

@@ -68,6 +68,16 @@ TEST(CommandTableTest, RefusalsNameTheProblem) {
   }
 }
 
+TEST(CommandTableTest, DidYouMeanTakesTheNearestThenTheOnlyNameBegun) {
+  const std::vector<std::string> names = {"deadline-seconds", "shape", "sample-rates", "slices"};
+  EXPECT_EQ(DidYouMean("shap", names), "shape");                // one edit
+  EXPECT_EQ(DidYouMean("deadlin", names), "deadline-seconds");  // the only name it begins
+  EXPECT_EQ(DidYouMean("s", names), "");                        // too short to guess
+  EXPECT_EQ(DidYouMean("sl", names), "");
+  EXPECT_EQ(DidYouMean("speed", names), "");  // nothing near
+  EXPECT_EQ(DidYouMean("optimise", {"optimize", "workers"}), "optimize");
+}
+
 TEST(CommandTableTest, HelpListsEveryFlagWithItsDefault) {
   Seen seen;
   const std::string help = CommandHelp(Table(seen));

@@ -82,10 +82,73 @@ class LyingWorker : public SliceWorker {
   LocalWorker inner_;
 };
 
+// Its calls see their cancel only after `stall` (a search thread starved
+// of CPU), then solve their slice for real from the task's query.
+class StalledWorker : public SliceWorker {
+ public:
+  explicit StalledWorker(std::chrono::milliseconds stall) : stall_(stall) {}
+  std::string Name() const override { return "stalled"; }
+  std::unique_ptr<SliceCall> Start(const SliceTask& task, SliceDone done) override {
+    ++calls;
+    return std::make_unique<Call>(task, stall_, std::move(done), reported);
+  }
+  std::atomic<int> calls{0};
+  std::atomic<int> reported{0};
+
+ private:
+  class Call : public SliceCall {
+   public:
+    Call(SliceTask task, std::chrono::milliseconds stall, SliceDone done,
+         std::atomic<int>& reported)
+        : thread_([task, stall, done = std::move(done), &reported] {
+            std::this_thread::sleep_for(stall);
+            SearchControl control;
+            done(SolveSlice(*task.query, task.options, task.slice, control));
+            ++reported;
+          }) {}
+    ~Call() override { thread_.join(); }
+    void Cancel() override {}  // seen too late: the stall ends first
+
+   private:
+    std::thread thread_;
+  };
+  std::chrono::milliseconds stall_;
+};
+
 Query TestQuery() { return testing::MakeQuery(testing::GraphShape::kRandom, 10, 7); }
 
 // From the independent subset DP, not from the engine under test.
 double Optimum(const Query& q) { return testing::DpBestBushy(q, true); }
+
+// The answer at the deadline does not wait for calls that are slow to see
+// their cancel; they report later into the run they keep alive (its own
+// copy of the query: the caller's is gone by then), and no progress is
+// reported after the answer.
+TEST(SliceSchedulerTest, TheDeadlineAnswerDoesNotWaitForStarvedCalls) {
+  StalledWorker stalled(1500ms);
+  SliceWorker* workers[] = {&stalled};
+  std::atomic<bool> answered{false};
+  std::atomic<int> late_progress{0};
+  ScheduleOptions schedule;
+  schedule.deadline = std::chrono::steady_clock::now() + 200ms;
+  schedule.on_progress = [&](const ScheduleProgress&) { late_progress += answered ? 1 : 0; };
+  const auto start = std::chrono::steady_clock::now();
+  absl::StatusOr<ScheduleOutcome> out;
+  {
+    const Query q = TestQuery();
+    out = RunSlices(q, {}, 2, workers, schedule);
+  }
+  answered = true;
+  EXPECT_TRUE(absl::IsDeadlineExceeded(out.status())) << out.status();
+  EXPECT_LT(std::chrono::steady_clock::now() - start, 500ms);
+  for (int i = 0; i < 500 && stalled.reported < stalled.calls; ++i) {
+    std::this_thread::sleep_for(10ms);
+  }
+  EXPECT_EQ(stalled.reported, stalled.calls);
+  EXPECT_GE(stalled.calls, 1);
+  EXPECT_EQ(late_progress, 0);
+  std::this_thread::sleep_for(50ms);  // the reaper lets the calls go
+}
 
 TEST(SliceSchedulerTest, FailedWorkerSlicesAreRedispatched) {
   const Query q = TestQuery();
