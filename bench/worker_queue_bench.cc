@@ -1,7 +1,7 @@
 // A worker's memory under a flood of calls: one worker with one slice at a
 // time and its default queue (--max_queued_slices=16), each call held 3 s
 // by the test-only hang; 200 concurrent SolveSlice calls of about 2 MB each
-// (a 64-relation chain with its predicates repeated to 100,000, within the
+// (a 10-relation chain with its predicates repeated to 100,000, within the
 // default input limits). Samples the worker's RSS and threads every 50 ms
 // and prints: calls accepted and refused (busy), the peak RSS and threads,
 // and the RSS once the calls ended and a second later. Not a test; run by
@@ -12,6 +12,7 @@
 #include <chrono>
 #include <cstdio>
 #include <fstream>
+#include <mutex>
 #include <string>
 #include <thread>
 #include <vector>
@@ -25,7 +26,7 @@
 namespace sliceplan {
 namespace {
 
-constexpr int kCalls = 200;
+int kCalls = 200;
 constexpr int kPredicates = 100000;
 
 int Threads(pid_t pid) {
@@ -45,6 +46,7 @@ double MiB(int64_t bytes) { return static_cast<double>(bytes) / (1 << 20); }
 int main(int argc, char** argv) {
   using namespace sliceplan;
   const std::string worker_bin = argc > 1 ? argv[1] : "build/worker/sliceplan-worker";
+  if (argc > 2) kCalls = std::atoi(argv[2]);
   auto worker = testing::ServerProcess::Start(
       {worker_bin, "--listen=127.0.0.1:0", "--concurrent-slices=1", "--test_only_hang_seconds=3"});
   if (!worker.ok()) {
@@ -52,7 +54,7 @@ int main(int argc, char** argv) {
     return 1;
   }
   v1::SolveSliceRequest r;
-  *r.mutable_query() = QueryToProto(testing::MakeQuery(testing::GraphShape::kChain, 64, 1));
+  *r.mutable_query() = QueryToProto(testing::MakeQuery(testing::GraphShape::kChain, 10, 1));
   const v1::Query base = r.query();
   while (r.query().predicates_size() < kPredicates) {
     *r.mutable_query()->add_predicates() =
@@ -65,6 +67,8 @@ int main(int argc, char** argv) {
   auto stub = v1::SliceWorker::NewStub(channel);
   const int64_t idle_rss = (*worker)->RssBytes();
   std::atomic<int> ok{0}, busy{0}, other{0}, done{0};
+  std::mutex first_mu;
+  std::string first_refusal;
   std::vector<std::thread> calls;
   for (int i = 0; i < kCalls; ++i) {
     calls.emplace_back([&] {
@@ -72,7 +76,19 @@ int main(int argc, char** argv) {
       context.set_deadline(std::chrono::system_clock::now() + std::chrono::seconds(60));
       v1::SolveSliceResponse out;
       const grpc::Status s = stub->SolveSlice(&context, r, &out);
-      (s.ok() ? ok : s.error_code() == grpc::StatusCode::RESOURCE_EXHAUSTED ? busy : other)++;
+      if (s.ok()) {
+        ++ok;
+      } else if (s.error_code() == grpc::StatusCode::RESOURCE_EXHAUSTED) {
+        ++busy;
+      } else {
+        ++other;
+      }
+      if (!s.ok()) {
+        std::lock_guard<std::mutex> lock(first_mu);
+        if (first_refusal.empty()) {
+          first_refusal = std::to_string(s.error_code()) + " " + s.error_message();
+        }
+      }
       ++done;
     });
   }
@@ -89,6 +105,7 @@ int main(int argc, char** argv) {
   const int64_t later_rss = (*worker)->RssBytes();
   std::printf("%d calls of %.2f MiB: %d solved, %d refused busy, %d other\n", kCalls, request_mib,
               ok.load(), busy.load(), other.load());
+  if (!first_refusal.empty()) std::printf("first refusal: %s\n", first_refusal.c_str());
   std::printf(
       "worker RSS: idle %.1f MiB, peak %.1f MiB, after the calls %.1f MiB, 1 s later "
       "%.1f MiB; peak threads %d\n",

@@ -17,6 +17,9 @@ std::chrono::system_clock::time_point ToSystem(std::chrono::steady_clock::time_p
              t - std::chrono::steady_clock::now());
 }
 
+// What gRPC says when a server's resource quota has no thread for a call.
+constexpr char kThreadsExhausted[] = "Server Threadpool Exhausted";
+
 class RpcCall : public SliceCall {
  public:
   RpcCall(v1::SliceWorker::Stub* stub, const SliceTask& task, SliceDone done,
@@ -44,8 +47,11 @@ class RpcCall : public SliceCall {
     absl::StatusOr<SliceResult> result =
         s.ok() ? SliceResultFromProto(response_, *task_.query, task_.options.cost, task_.slice)
                : absl::StatusOr<SliceResult>(FromGrpc(s));
+    // Busy: the worker's own refusal (marked), or its server out of the
+    // threads its queue allows (gRPC's own words, rpc/serve.h).
     if (s.error_code() == grpc::StatusCode::RESOURCE_EXHAUSTED &&
-        context_.GetServerTrailingMetadata().count(kBusyKey) != 0) {
+        (context_.GetServerTrailingMetadata().count(kBusyKey) != 0 ||
+         s.error_message() == kThreadsExhausted)) {
       result = BusyError(s.error_message());
     }
     if (s.ok() && !result.ok()) {

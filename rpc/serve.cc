@@ -161,6 +161,12 @@ std::unique_ptr<grpc::Server> StartServiceServer(const std::string& listen,
   const int max_bytes = static_cast<int>(std::min<int64_t>(options.max_request_bytes, INT32_MAX));
   builder.SetMaxReceiveMessageSize(max_bytes);
   builder.SetMaxSendMessageSize(64 << 20);
+  if (options.max_threads > 0) {
+    grpc::ResourceQuota quota("sliceplan-calls");
+    quota.SetMaxThreads(options.max_threads);
+    if (options.max_buffer_bytes > 0) quota.Resize(static_cast<size_t>(options.max_buffer_bytes));
+    builder.SetResourceQuota(quota);
+  }
   for (grpc::Service* s : services) builder.RegisterService(s);
   std::vector<std::unique_ptr<grpc::experimental::ServerInterceptorFactoryInterface>> interceptors;
   interceptors.push_back(std::make_unique<UnparsedRequestInterceptorFactory>());

@@ -47,6 +47,15 @@ struct ServeOptions {
   // Largest request accepted (gRPC's receive limit); larger ones fail with
   // RESOURCE_EXHAUSTED before they are parsed.
   int64_t max_request_bytes = int64_t{16} << 20;
+  // Threads the server may run calls on (gRPC's resource quota); 0: its
+  // default. Each call a thread serves holds its parsed request, so this
+  // bounds the memory of a flood of large calls; a call past it is
+  // refused by gRPC (RESOURCE_EXHAUSTED "Server Threadpool Exhausted",
+  // which the coordinator takes as busy).
+  int max_threads = 0;
+  // With max_threads: the bytes gRPC may hold for calls (its memory
+  // quota; reading stops past it); 0: unbounded.
+  int64_t max_buffer_bytes = 0;
   // On a stop signal: stop accepting calls, let running ones finish for
   // this long (their answers are delivered), then cancel the rest.
   std::chrono::milliseconds shutdown_grace{5000};

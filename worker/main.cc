@@ -10,6 +10,7 @@
 #include "absl/flags/flag.h"
 #include "absl/strings/str_cat.h"
 #include "core/search_options.h"
+#include "rpc/idle_trim.h"
 #include "rpc/serve.h"
 #include "rpc/server_flags.h"
 #include "rpc/server_setup.h"
@@ -75,6 +76,11 @@ int main(int argc, char** argv) {
                config.threads_per_slice, config.threads_per_slice == 1 ? "" : "s", gib,
                config.test_hang_seconds > 0 ? " (test fault: hanging)" : "");
   flags->serve.metrics = service.MetricsCollectables();
+  // The running and waiting calls, and a few for health checks and
+  // refusals: each served call holds its parsed request.
+  flags->serve.max_threads = config.concurrent_slices + config.max_queued_slices + 8;
+  flags->serve.max_buffer_bytes = int64_t{256} << 20;
+  const sliceplan::IdleTrim trim([&service] { return service.IdleAfterCalls(); });
   const auto status = sliceplan::Serve(flags->listen, {&service}, flags->serve);
   if (!status.ok()) {
     std::cerr << "sliceplan-worker: " << status.message() << "\n";

@@ -123,12 +123,23 @@ absl::StatusOr<SliceResult> WorkerService::Solve(grpc::ServerContext* context,
   return result;
 }
 
+bool WorkerService::IdleAfterCalls() {
+  absl::MutexLock lock(&mu_);
+  if (running_ != 0 || waiting_ != 0 || calls_ended_ == ended_at_last_idle_) return false;
+  ended_at_last_idle_ = calls_ended_;
+  return true;
+}
+
 grpc::Status WorkerService::SolveSlice(grpc::ServerContext* context,
                                        const v1::SolveSliceRequest* request,
                                        v1::SolveSliceResponse* response) {
   const auto start = Clock::now();
   SearchOptions options;
   const absl::StatusOr<SliceResult> result = Solve(context, *request, options);
+  {
+    absl::MutexLock lock(&mu_);
+    ++calls_ended_;
+  }
   const double wall = std::chrono::duration<double>(Clock::now() - start).count();
   metrics_.Call(result.status(), result.ok() ? &result->stats : nullptr);
   LogEvent line("slice");

@@ -52,6 +52,10 @@ class WorkerService final : public v1::SliceWorker::Service {
                               const v1::DescribeWorkerRequest* request,
                               v1::DescribeWorkerResponse* response) override;
 
+  // True once per burst: no call runs or waits, and some call ended since
+  // the last true (rpc/idle_trim.h then gives the heap back).
+  bool IdleAfterCalls() ABSL_LOCKS_EXCLUDED(mu_);
+
  private:
   // Parses, waits for a slot and solves; the call's outcome.
   absl::StatusOr<SliceResult> Solve(grpc::ServerContext* context,
@@ -68,6 +72,8 @@ class WorkerService final : public v1::SliceWorker::Service {
   absl::Mutex mu_;
   int running_ ABSL_GUARDED_BY(mu_) = 0;
   int waiting_ ABSL_GUARDED_BY(mu_) = 0;
+  uint64_t calls_ended_ ABSL_GUARDED_BY(mu_) = 0;
+  uint64_t ended_at_last_idle_ ABSL_GUARDED_BY(mu_) = 0;
   WorkerMetrics metrics_;
 };
 
