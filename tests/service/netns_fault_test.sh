@@ -96,10 +96,16 @@ print(p["tree"], repr(p["costs"]["cout"]))
 if len(sys.argv) > 1:
     print(r["stats"]["retries"], r["stats"]["hedges"])' "$@"
 }
+e0=$(date +%s.%N)
 want=$("$build/cli/sliceplan" optimize "$query" --tier=exact --slices=8 --format=json | plan_of)
+e1=$(date +%s.%N)
 [ -n "$want" ] || { echo "embedded run failed"; exit 1; }
 
-deadline=30
+# Each run's deadline: 30 s, or six times the embedded run's time on this
+# machine as it is now (a busy machine, a neighbour compiling, slows the
+# work itself; the deadline must still be kept, and the work must fit it).
+deadline=$(awk -v a="$e0" -v b="$e1" 'BEGIN { d = 6 * (b - a); print (d > 30 ? int(d + 1) : 30) }')
+echo "embedded run $(awk -v a="$e0" -v b="$e1" 'BEGIN { printf "%.2f", b - a }') s; deadline per run $deadline s"
 passed=0
 failed=0
 run() {  # run NAME [PROXY FLAGS...]: one optimization under one fault
@@ -162,10 +168,12 @@ run() {  # run NAME [PROXY FLAGS...]: one optimization under one fault
     [ -z "$(ip netns pids "$n")" ] || left=$((left + 1))
   done
   # The fault must have hit the run (slices re-dispatched or hedged), and
-  # the baseline must have been clean.
+  # the baseline must have had no fault to recover from.
   local hit=1
   case $name in
-    none) [ "${retries:-1}" = 0 ] && [ "${hedges:-1}" = 0 ] || hit=0 ;;
+    # The baseline has no fault: nothing re-dispatched (on a busy machine
+    # a slow slice may still be hedged, which is the hedge's job).
+    none) [ "${retries:-1}" = 0 ] || hit=0 ;;
     cut | kill) [ "${retries:-0}" -gt 0 ] || hit=0 ;;
     freeze) [ "${hedges:-0}" -gt 0 ] || [ "${retries:-0}" -gt 0 ] || hit=0 ;;
     discovery)
