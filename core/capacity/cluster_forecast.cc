@@ -109,7 +109,8 @@ absl::StatusOr<ClusterForecast> ForecastClusterSearch(const Query& query,
   ClusterForecast f;
   f.relations = query.size();
   f.probed = 1;
-  double before = 0;  // the previous part's time per split
+  double before = 0;         // the previous part's time per split
+  double probed_splits = 1;  // the largest finished part's splits
   bool ran_out = false;
   for (const RelSet keep : GrowthOrder(query)) {
     if (Size(keep) < 2) continue;
@@ -123,13 +124,15 @@ absl::StatusOr<ClusterForecast> ForecastClusterSearch(const Query& query,
       ran_out = true;
       break;
     }
-    const double per_split = *t / ClusterSplitCount(query, keep, options);
+    const double splits = ClusterSplitCount(query, keep, options);
+    const double per_split = *t / splits;
     // Two relations are leaves joined once: their frontiers are no guide
     // to the growth, which is read from parts of three relations on.
     if (before > 0 && Size(keep) > kFirstGuide) f.growth = std::max(kMinGrowth, per_split / before);
     before = per_split;
     f.probed = Size(keep);
     f.probed_seconds = *t;
+    probed_splits = splits;
   }
   f.measured = f.probed == f.relations && !ran_out;
   if (f.relations < 2) f.measured = true;
@@ -137,9 +140,7 @@ absl::StatusOr<ClusterForecast> ForecastClusterSearch(const Query& query,
     f.seconds = f.probed_seconds;
     return f;
   }
-  const RelSet probed = GrowthOrder(query)[std::max(f.probed, 1) - 1];
-  f.split_ratio =
-      ClusterSplitCount(query, query.all(), options) / ClusterSplitCount(query, probed, options);
+  f.split_ratio = ClusterSplitCount(query, query.all(), options) / probed_splits;
   // The work per split grows as the frontiers joined grow, and they
   // saturate: each further relation's growth is the square root of the
   // last one's (in all, at most growth^2).
