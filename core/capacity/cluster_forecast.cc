@@ -23,6 +23,10 @@ constexpr int kRepeats = 3;
 // frontiers are never smaller in the model's worst case).
 constexpr double kMinGrowth = 1.0;
 
+// Splits per added relation when the whole query's count did not finish
+// and fewer than two parts did (a guess of ours: at least doubling).
+constexpr double kSplitGrowthGuess = 2.0;
+
 // The smallest part whose work per split guides the growth.
 constexpr int kFirstGuide = 3;
 
@@ -50,7 +54,8 @@ std::vector<RelSet> GrowthOrder(const Query& query) {
 
 }  // namespace
 
-double ClusterSplitCount(const Query& query, RelSet keep, const SearchOptions& options) {
+double ClusterSplitCount(const Query& query, RelSet keep, const SearchOptions& options,
+                         SearchControl& control) {
   const double k = Size(keep);
   if (options.cross_products) {
     return options.shape == PlanShape::kBushy ? (std::pow(3, k) - std::pow(2, k + 1) + 1) / 2
@@ -58,8 +63,8 @@ double ClusterSplitCount(const Query& query, RelSet keep, const SearchOptions& o
   }
   SearchOptions cout = options;
   cout.cost = CostModelKind::kCout;
-  SearchControl control;
   const auto result = SolveSlice(QueryPart(query, keep), cout, {0, 1}, control);
+  if (absl::IsCancelled(result.status()) || absl::IsDeadlineExceeded(result.status())) return 0;
   return result.ok() ? std::max<double>(1, static_cast<double>(result->stats.splits)) : 1;
 }
 
@@ -103,14 +108,16 @@ absl::StatusOr<ClusterForecast> ForecastClusterSearch(const Query& query,
                                                       const SearchOptions& options,
                                                       double budget_seconds,
                                                       const SearchControl& outer) {
+  const Clock::time_point start = Clock::now();
   const Clock::time_point end =
-      Clock::now() + std::chrono::duration_cast<Clock::duration>(
-                         std::chrono::duration<double>(std::max(budget_seconds, 0.0)));
+      start + std::chrono::duration_cast<Clock::duration>(
+                  std::chrono::duration<double>(std::max(budget_seconds, 0.0)));
   ClusterForecast f;
   f.relations = query.size();
   f.probed = 1;
   double before = 0;         // the previous part's time per split
   double probed_splits = 1;  // the largest finished part's splits
+  double before_splits = 0;  // ... and the one before's
   bool ran_out = false;
   for (const RelSet keep : GrowthOrder(query)) {
     if (Size(keep) < 2) continue;
@@ -124,7 +131,8 @@ absl::StatusOr<ClusterForecast> ForecastClusterSearch(const Query& query,
       ran_out = true;
       break;
     }
-    const double splits = ClusterSplitCount(query, keep, options);
+    SearchControl unbounded;  // a part that finished its cluster search counts fast
+    const double splits = ClusterSplitCount(query, keep, options, unbounded);
     const double per_split = *t / splits;
     // Two relations are leaves joined once: their frontiers are no guide
     // to the growth, which is read from parts of three relations on.
@@ -132,6 +140,7 @@ absl::StatusOr<ClusterForecast> ForecastClusterSearch(const Query& query,
     before = per_split;
     f.probed = Size(keep);
     f.probed_seconds = *t;
+    before_splits = probed_splits;
     probed_splits = splits;
   }
   f.measured = f.probed == f.relations && !ran_out;
@@ -140,7 +149,19 @@ absl::StatusOr<ClusterForecast> ForecastClusterSearch(const Query& query,
     f.seconds = f.probed_seconds;
     return f;
   }
-  f.split_ratio = ClusterSplitCount(query, query.all(), options) / probed_splits;
+  // The whole query's count, within the outer control and one more budget:
+  // a connected-only count of a large query is itself a search. Past
+  // that, the last two parts' ratio per further relation.
+  SearchControl count_control = outer;
+  count_control.TightenDeadline(Clock::now() + (end - start));
+  const double whole = ClusterSplitCount(query, query.all(), options, count_control);
+  if (whole > 0) {
+    f.split_ratio = whole / probed_splits;
+  } else {
+    const double per_relation =
+        before_splits > 0 ? std::max(1.0, probed_splits / before_splits) : kSplitGrowthGuess;
+    f.split_ratio = std::pow(per_relation, f.relations - f.probed);
+  }
   // The work per split grows as the frontiers joined grow, and they
   // saturate: each further relation's growth is the square root of the
   // last one's (in all, at most growth^2).

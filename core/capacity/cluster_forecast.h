@@ -52,9 +52,10 @@ absl::StatusOr<ClusterForecast> ForecastClusterSearch(const Query& query,
 // where only ratios matter: with cross products in closed form (bushy:
 // 3^k - 2^(k+1) + 1, the ordered splits of every set of k relations;
 // left-deep: k 2^(k-1) - k, a set's relations on the right), else the
-// cout search's count over that part (connected-only, one slice).
-// Exposed for tests.
-double ClusterSplitCount(const Query& query, RelSet keep, const SearchOptions& options);
+// cout search's count over that part (connected-only, one slice, under
+// `control`: 0 when it stopped it). Exposed for tests.
+double ClusterSplitCount(const Query& query, RelSet keep, const SearchOptions& options,
+                         SearchControl& control);
 
 }  // namespace sliceplan
 

@@ -38,14 +38,16 @@ TEST(ClusterForecastTest, SplitCountsAreTheSearchsOwn) {
       ASSERT_TRUE(result.ok()) << result.status();
       const double want = shape == PlanShape::kBushy ? (std::pow(3, n) - std::pow(2, n + 1) + 1) / 2
                                                      : n * std::pow(2, n - 1) - n;
-      EXPECT_EQ(ClusterSplitCount(q, q.all(), options), want) << n;
+      SearchControl count;
+      EXPECT_EQ(ClusterSplitCount(q, q.all(), options, count), want) << n;
       EXPECT_EQ(static_cast<double>(result->stats.splits), want) << n;
     }
   }
   // Without cross products: the cout search's count of the part (a chain
   // of n relations has (n^3 - n) / 6 unordered connected splits).
   const Query chain = testing::MakeQuery(GraphShape::kChain, 6, 3);
-  EXPECT_EQ(ClusterSplitCount(chain, chain.all(), Cluster(PlanShape::kBushy, false)),
+  SearchControl count;
+  EXPECT_EQ(ClusterSplitCount(chain, chain.all(), Cluster(PlanShape::kBushy, false), count),
             (216 - 6) / 6);
 }
 
