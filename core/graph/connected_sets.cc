@@ -32,8 +32,18 @@ class CsgEnumerator {
     for (RelSet sub = nb & (0 - nb); Emit1(s | sub); sub = (sub - nb) & nb) {
       if (sub == nb) break;
     }
+    // A child s | sub can grow only through a member of sub with a
+    // neighbour outside s, x and nb (the rest of Around(s | sub) is in
+    // them): the subsets holding none of those are not entered, where
+    // each would cost an Around (a star's hub has 2^(n-1) such subsets).
+    const RelSet seen = s | x | nb;
+    RelSet growers = 0;
+    for (RelSet m = nb; m != 0; m &= m - 1) {
+      if ((graph_.Around(LowestBit(m)) & ~seen) != 0) growers |= LowestBit(m);
+    }
+    if (growers == 0) return;
     for (RelSet sub = nb & (0 - nb); !stopped_; sub = (sub - nb) & nb) {
-      Grow(s | sub, x | nb);
+      if ((sub & growers) != 0) Grow(s | sub, x | nb);
       if (sub == nb) break;
     }
   }
