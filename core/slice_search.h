@@ -251,8 +251,8 @@ class SliceSearch {
     }
     // A slice touches only its admissible blocks (MakeLayout): no huge
     // page may make the others resident.
-    std::optional<SmallPagesScope> small_pages;
-    if (layout_) small_pages.emplace();
+    std::optional<TouchedRunsScope> admitted_pages;
+    if (layout_) admitted_pages.emplace(AdmittedBlocks());
     memo_->Visit([&]<class Memo>(Memo& memo) {
       if constexpr (!Memo::kGrows) policy_.Resize(memo.slot_count());
       if constexpr (std::is_same_v<Memo, DirectMemo>) {
@@ -273,6 +273,20 @@ class SliceSearch {
                                                        kHashBytesPerSet, " bytes per entry)"));
     }
     return status;
+  }
+
+  // The blocks of 2^f sets (slot = set) whose high pattern the slice
+  // admits: the only entries of a sliced connected memo ever touched.
+  const TouchedRuns& AdmittedBlocks() {
+    if (admitted_blocks_.touched.empty()) {
+      const int f = layout_->free_bits();
+      admitted_blocks_.block_bits = f;
+      admitted_blocks_.touched.resize(size_t{1} << (working_.size() - f));
+      for (size_t b = 0; b < admitted_blocks_.touched.size(); ++b) {
+        admitted_blocks_.touched[b] = layout_->Admissible(RelSet{b} << f) ? 1 : 0;
+      }
+    }
+    return admitted_blocks_;
   }
 
   // A direct memo's bytes: the presence bits, and the policy's entries of
@@ -363,7 +377,8 @@ class SliceSearch {
   // Set for the dense search, and for a sliced connected-only one (its
   // numbering only).
   std::optional<DenseLayout> layout_;
-  Query working_;  // renumbered by the layout, else the query itself
+  TouchedRuns admitted_blocks_;  // AdmittedBlocks(), built on first use
+  Query working_;                // renumbered by the layout, else the query itself
   // The constraints in working_'s numbering (connected-only search).
   SliceConstraints connected_constraints_;
   Cardinality card_;

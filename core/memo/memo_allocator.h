@@ -4,31 +4,71 @@
 // uses; blocks of 2 MiB or more are aligned to 2 MiB and their whole 2 MiB
 // pages offered to the kernel as transparent huge pages, so first touching
 // a large memo takes one page fault per 2 MiB instead of per 4 KiB, and a
-// block's resident size is still its bytes, not its bytes rounded up
-// (SmallPagesScope turns the huge pages off). Only for element types every
+// block's resident size is still its bytes, not its bytes rounded up. A
+// memo of which the search touches only some runs of entries (a sliced
+// connected-only search) says which (TouchedRunsScope): only the 2 MiB
+// pages wholly inside touched runs are huge. Only for element types every
 // reader initialises first.
 #ifndef SLICEPLAN_CORE_MEMO_MEMO_ALLOCATOR_H_
 #define SLICEPLAN_CORE_MEMO_MEMO_ALLOCATOR_H_
 
 #include <sys/mman.h>
 
+#include <cstdint>
 #include <cstdlib>
 #include <new>
 #include <type_traits>
 #include <utility>
+#include <vector>
 
 namespace sliceplan {
+
+// The entries a search will touch, as blocks of 2^block_bits consecutive
+// entries: block b is touched when touched[b] is non-zero (entries past the
+// table count as touched).
+struct TouchedRuns {
+  int block_bits = 0;
+  std::vector<uint8_t> touched;
+};
 
 namespace memo_allocator_internal {
 inline constexpr size_t kHugePage = size_t{2} << 20;
 // Past any machine's memory; keeps the rounding below from overflowing.
 inline constexpr size_t kMaxBytes = size_t{1} << 60;
 
-// Set while a SmallPagesScope is live on this thread.
-inline thread_local bool small_pages = false;
+// Set while a TouchedRunsScope is live on this thread.
+inline thread_local const TouchedRuns* touched_runs = nullptr;
 
-inline void* Allocate(size_t bytes) {
-  if (bytes < kHugePage || small_pages) {
+// True when every entry of the 2 MiB page [first, last] (entry indices)
+// lies in a touched block.
+inline bool WhollyTouched(const TouchedRuns& runs, uint64_t first, uint64_t last) {
+  for (uint64_t b = first >> runs.block_bits; b <= last >> runs.block_bits; ++b) {
+    if (b < runs.touched.size() && runs.touched[b] == 0) return false;
+  }
+  return true;
+}
+
+// Advises the whole 2 MiB pages of [p, p + whole) huge where every entry
+// of the page is touched, and the others not, in runs of like pages.
+inline void AdviseTouched(char* p, size_t whole, size_t element) {
+  const TouchedRuns& runs = *touched_runs;
+  size_t run_start = 0;
+  bool run_huge = false;
+  for (size_t page = 0; page <= whole; page += kHugePage) {
+    const bool huge =
+        page < whole && WhollyTouched(runs, page / element, (page + kHugePage - 1) / element);
+    if (page == whole || (page > run_start && huge != run_huge)) {
+      if (page > run_start) {
+        madvise(p + run_start, page - run_start, run_huge ? MADV_HUGEPAGE : MADV_NOHUGEPAGE);
+      }
+      run_start = page;
+    }
+    run_huge = huge;
+  }
+}
+
+inline void* Allocate(size_t bytes, size_t element) {
+  if (bytes < kHugePage) {
     if (void* p = std::malloc(bytes)) return p;
     throw std::bad_alloc();
   }
@@ -42,27 +82,35 @@ inline void* Allocate(size_t bytes) {
   // tail is advised against them where huge pages are the default. Advice
   // only: ignored where unsupported.
   const size_t whole = bytes / kHugePage * kHugePage;
-  madvise(p, whole, MADV_HUGEPAGE);
+  if (touched_runs != nullptr) {
+    AdviseTouched(static_cast<char*>(p), whole, element);
+  } else {
+    madvise(p, whole, MADV_HUGEPAGE);
+  }
   if (rounded > whole) madvise(static_cast<char*>(p) + whole, rounded - whole, MADV_NOHUGEPAGE);
   return p;
 }
 }  // namespace memo_allocator_internal
 
-// While one lives, memo arrays allocated on this thread keep the kernel's
-// 4 KiB pages: for a memo of which the search touches only some blocks
-// (a sliced connected-only search), a huge page over a touched entry would
-// make 2 MiB around it resident. Not nestable across threads; RAII.
-class SmallPagesScope {
+// While one lives, memo arrays allocated on this thread take huge pages
+// only where a whole 2 MiB page lies in touched entries: a huge page over
+// one touched entry would make 2 MiB around it resident, so a slice's
+// memory would not shrink with the slice; where the touched runs are 2 MiB
+// or longer (a sliced search on two workers) the slice keeps the huge
+// pages' fewer faults. `runs` must outlive the scope. Not nestable across
+// threads; RAII.
+class TouchedRunsScope {
  public:
-  SmallPagesScope() : before_(memo_allocator_internal::small_pages) {
-    memo_allocator_internal::small_pages = true;
+  explicit TouchedRunsScope(const TouchedRuns& runs)
+      : before_(memo_allocator_internal::touched_runs) {
+    memo_allocator_internal::touched_runs = &runs;
   }
-  ~SmallPagesScope() { memo_allocator_internal::small_pages = before_; }
-  SmallPagesScope(const SmallPagesScope&) = delete;
-  SmallPagesScope& operator=(const SmallPagesScope&) = delete;
+  ~TouchedRunsScope() { memo_allocator_internal::touched_runs = before_; }
+  TouchedRunsScope(const TouchedRunsScope&) = delete;
+  TouchedRunsScope& operator=(const TouchedRunsScope&) = delete;
 
  private:
-  bool before_;
+  const TouchedRuns* before_;
 };
 
 template <class T>
@@ -74,7 +122,7 @@ class MemoAllocator {
   MemoAllocator(const MemoAllocator<U>&) noexcept {}  // NOLINT: allocator rebind
 
   T* allocate(size_t n) {
-    return static_cast<T*>(memo_allocator_internal::Allocate(n * sizeof(T)));
+    return static_cast<T*>(memo_allocator_internal::Allocate(n * sizeof(T), sizeof(T)));
   }
   void deallocate(T* p, size_t) noexcept { std::free(p); }
 
