@@ -240,10 +240,14 @@ class SliceSearch {
       memo_.emplace(strategy.connected ? std::move(*strategy.connected)
                                        : DirectMemo(working_.size()));
     }
-    // Every split tested reads the sets in mask order; the ccp walks take
-    // cardinalities from operands (connected_pull.h).
+    // Every split tested reads the sets in mask order; the ccp walks and
+    // the left-deep searches take cardinalities from operands
+    // (connected_pull.h).
     if constexpr (ScatteredLayout<Policy>) {
-      if (strategy.method != ConnectedMethod::kPullEverySplit) policy_.UseScatteredLayout();
+      if (strategy.method != ConnectedMethod::kPullEverySplit ||
+          options_.shape == PlanShape::kLeftDeep) {
+        policy_.UseScatteredLayout();
+      }
     }
     constexpr bool kCanLeaveUnfilled = requires(Policy & p) { p.LeaveUnfilled(); };
     if constexpr (kCanLeaveUnfilled) {

@@ -7,6 +7,7 @@
 #ifndef SLICEPLAN_CORE_COST_COUT_POLICY_H_
 #define SLICEPLAN_CORE_COST_COUT_POLICY_H_
 
+#include <bit>
 #include <limits>
 #include <vector>
 
@@ -39,7 +40,13 @@ class CoutPolicy {
   // (connected pairs): each set's cardinality is then cached beside its
   // cost (set_card_), so relaxing a pair reads it without a pass over the
   // predicates, and the arrays are left uninitialised until a set is met.
-  void UseScatteredLayout() { scattered_ = true; }
+  void UseScatteredLayout() {
+    scattered_ = true;
+    leaf_card_.resize(card_.relations());
+    for (int r = 0; r < card_.relations(); ++r) {
+      leaf_card_[r] = card_.Of(Singleton(RelationId{static_cast<uint8_t>(r)}));
+    }
+  }
 
   // Called before Resize by a search that writes every entry it keeps
   // before any read (the connected-only pull searches): Resize then leaves
@@ -99,10 +106,15 @@ class CoutPolicy {
   // Finish in scattered mode over a direct memo (slots are sets): the
   // set's cardinality from its best split's cached operand cardinalities
   // (O(|smaller side|)) instead of a pass over the predicates, and cached.
+  // A one-relation right operand's comes from the leaf table: a left-deep
+  // slice joins relations whose own set it does not admit (a relation
+  // that must come after another is no prefix alone).
   void FinishJoin(Slot s, RelSet set, const Acc& a) {
     if (a.left == kNoSlot) return;
     const RelSet left = a.left, right = set ^ left;
-    const double card = card_.OfJoin(left, set_card_[a.left], right, set_card_[right]);
+    const double right_card =
+        (right & (right - 1)) == 0 ? leaf_card_[std::countr_zero(right)] : set_card_[right];
+    const double card = card_.OfJoin(left, set_card_[a.left], right, right_card);
     set_card_[s] = card;
     left_[s] = a.left;
     cost_[s] = CoutJoin(card, a.best, 0.0);
@@ -152,6 +164,7 @@ class CoutPolicy {
   std::vector<double, MemoAllocator<double>> cost_;
   std::vector<Slot, MemoAllocator<Slot>> left_;
   std::vector<double, MemoAllocator<double>> set_card_;  // scattered mode
+  std::vector<double> leaf_card_;  // scattered mode: relation -> card({relation})
 };
 
 static_assert(SearchPolicy<CoutPolicy>);

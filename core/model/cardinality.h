@@ -60,6 +60,7 @@ class Cardinality {
   // True when some predicate spans the join of L and R (not a cross product).
   bool Connects(RelSet left, RelSet right) const;
   double Rows(RelationId r) const { return rows_[r.value]; }
+  int relations() const { return static_cast<int>(rows_.size()); }
   // True when products of this query's factors could leave double's range.
   bool wide_range() const { return wide_range_; }
   // The engine's listed estimates this cardinality honours, or null.

@@ -82,7 +82,10 @@ namespace connected_left_deep_internal {
 // the memo (connected, with a plan in this slice) and whose relation r
 // shares a binary predicate with it, tested by one memo bit and one mask.
 struct LeftDeepSplits {
-  static constexpr bool kScattered = false;
+  // A scattered policy's set cardinality comes from the best prefix's
+  // cached one times the relation's factors (search_policy.h), where a
+  // pass over the predicates per set was 40% of a 22-star's search.
+  static constexpr bool kScattered = true;
   static constexpr bool kOneWay = true;  // the right input is always the relation
   const JoinGraph& graph;
   const JoinFilter* joins = nullptr;  // non-inner joins: the prefix must be the left input
