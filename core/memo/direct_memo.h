@@ -43,6 +43,8 @@ class DirectMemo {
   // Takes `s` out again (a set found to have no admissible split). Threads
   // may erase sets of different 64-set words at once.
   void Erase(RelSet s) { present_[s >> 6] &= ~(uint64_t{1} << (s & 63)); }
+  // Takes out the 64 sets of presence word `w` (sets 64w .. 64w + 63).
+  void EraseWord(size_t w) { present_[w] = 0; }
   RelSet SetOf(Slot slot) const { return slot; }
   // The sets held, counted: O(2^n / 64).
   // The sets present, counted over every word: O(2^n / 64), never per split.
