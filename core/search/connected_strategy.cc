@@ -1,5 +1,6 @@
 #include "core/search/connected_strategy.h"
 
+#include <algorithm>
 #include <cmath>
 
 #include "core/graph/connected_sets.h"
@@ -10,12 +11,31 @@ namespace {
 
 constexpr int kHitRateSamples = 4096;
 
-// Calls fn(set) for every set of `memo` of two or more relations, in
-// increasing order.
+// Presence words read per hit-rate estimate: past this, one word in
+// words / kHitRateWords (chosen by a hash of its number, so no relation's
+// bit is left out the way a plain stride would leave the low ones) stands
+// for the others. A 22-star's estimate read its 2 million sets twice, 6%
+// of a slice's time.
+constexpr size_t kHitRateWords = 4096;
+
+uint64_t SplitMix(uint64_t& state) {
+  uint64_t z = (state += 0x9E3779B97F4A7C15ull);
+  z = (z ^ (z >> 30)) * 0xBF58476D1CE4E5B9ull;
+  z = (z ^ (z >> 27)) * 0x94D049BB133111EBull;
+  return z ^ (z >> 31);
+}
+
+// Calls fn(set) for every set of two or more relations in the words of
+// `memo` the estimate reads, in increasing order.
 template <class Fn>
 void ForEachJoinSet(const DirectMemo& memo, Fn&& fn) {
   const std::vector<uint64_t>& words = memo.words();
+  const size_t stride = std::max<size_t>(1, words.size() / kHitRateWords);
   for (size_t w = 0; w < words.size(); ++w) {
+    if (stride > 1) {
+      uint64_t state = w;
+      if (SplitMix(state) % stride != 0) continue;
+    }
     for (uint64_t bits = words[w]; bits != 0; bits &= bits - 1) {
       const RelSet set = (RelSet{w} << 6) | static_cast<RelSet>(std::countr_zero(bits));
       if (Size(set) >= 2) fn(set);
@@ -26,13 +46,6 @@ void ForEachJoinSet(const DirectMemo& memo, Fn&& fn) {
 // The splits the every-split pull search tests for `set`.
 double TestedSplits(RelSet set) {
   return static_cast<double>((uint64_t{1} << (Size(set) - 1)) - 1);
-}
-
-uint64_t SplitMix(uint64_t& state) {
-  uint64_t z = (state += 0x9E3779B97F4A7C15ull);
-  z = (z ^ (z >> 30)) * 0xBF58476D1CE4E5B9ull;
-  z = (z ^ (z >> 27)) * 0x94D049BB133111EBull;
-  return z ^ (z >> 31);
 }
 
 }  // namespace
