@@ -1,14 +1,16 @@
 // The allocator of memo arrays: new elements of trivial types are left
 // uninitialised (default-initialised) instead of zeroed, so a memo of 2^n
 // entries is not written in full before the search writes the entries it
-// uses; blocks of 2 MiB or more are aligned to 2 MiB and their whole 2 MiB
-// pages offered to the kernel as transparent huge pages, so first touching
-// a large memo takes one page fault per 2 MiB instead of per 4 KiB, and a
-// block's resident size is still its bytes, not its bytes rounded up. A
-// memo of which the search touches only some runs of entries (a sliced
-// connected-only search) says which (TouchedRunsScope): only the 2 MiB
-// pages wholly inside touched runs are huge. Only for element types every
-// reader initialises first.
+// uses. Blocks of 2 MiB or more are aligned to 2 MiB and left to the
+// kernel's own huge-page policy: they are not advised as transparent huge
+// pages, because a fault in an advised region may first compact memory,
+// and that made searches spike to 2-3.6 times their time (a 0.45 s
+// search took 1.6 s; docs/benchmarks.md, "Huge pages"). Where a huge page
+// could make untouched bytes resident it is advised against: the tail of
+// each block, and (TouchedRunsScope) the pages of a memo that are not
+// wholly inside the runs of entries its search touches (a sliced
+// connected-only search). Only for element types every reader
+// initialises first.
 #ifndef SLICEPLAN_CORE_MEMO_MEMO_ALLOCATOR_H_
 #define SLICEPLAN_CORE_MEMO_MEMO_ALLOCATOR_H_
 
@@ -48,22 +50,17 @@ inline bool WhollyTouched(const TouchedRuns& runs, uint64_t first, uint64_t last
   return true;
 }
 
-// Advises the whole 2 MiB pages of [p, p + whole) huge where every entry
-// of the page is touched, and the others not, in runs of like pages.
+// Advises against huge pages on the 2 MiB pages of [p, p + whole) that
+// are not wholly inside touched entries, in runs of such pages.
 inline void AdviseTouched(char* p, size_t whole, size_t element) {
   const TouchedRuns& runs = *touched_runs;
   size_t run_start = 0;
-  bool run_huge = false;
   for (size_t page = 0; page <= whole; page += kHugePage) {
-    const bool huge =
-        page < whole && WhollyTouched(runs, page / element, (page + kHugePage - 1) / element);
-    if (page == whole || (page > run_start && huge != run_huge)) {
-      if (page > run_start) {
-        madvise(p + run_start, page - run_start, run_huge ? MADV_HUGEPAGE : MADV_NOHUGEPAGE);
-      }
-      run_start = page;
-    }
-    run_huge = huge;
+    const bool untouched =
+        page < whole && !WhollyTouched(runs, page / element, (page + kHugePage - 1) / element);
+    if (untouched) continue;
+    if (page > run_start) madvise(p + run_start, page - run_start, MADV_NOHUGEPAGE);
+    run_start = page + kHugePage;
   }
 }
 
@@ -76,29 +73,23 @@ inline void* Allocate(size_t bytes, size_t element) {
   const size_t rounded = (bytes + kHugePage - 1) / kHugePage * kHugePage;
   void* p = std::aligned_alloc(kHugePage, rounded);
   if (p == nullptr) throw std::bad_alloc();
-  // Huge pages for the whole 2 MiB pages of the block only: a huge page
-  // over its tail would make the tail's every byte resident, up to 2 MiB an
-  // array (a slice's memo would then not shrink with the slice), so the
-  // tail is advised against them where huge pages are the default. Advice
-  // only: ignored where unsupported.
+  // A huge page over the block's tail would make the tail's every byte
+  // resident, up to 2 MiB an array (a slice's memo would then not shrink
+  // with the slice), so the tail is advised against them where huge pages
+  // are the default. Advice only: ignored where unsupported.
   const size_t whole = bytes / kHugePage * kHugePage;
-  if (touched_runs != nullptr) {
-    AdviseTouched(static_cast<char*>(p), whole, element);
-  } else {
-    madvise(p, whole, MADV_HUGEPAGE);
-  }
+  if (touched_runs != nullptr) AdviseTouched(static_cast<char*>(p), whole, element);
   if (rounded > whole) madvise(static_cast<char*>(p) + whole, rounded - whole, MADV_NOHUGEPAGE);
   return p;
 }
 }  // namespace memo_allocator_internal
 
-// While one lives, memo arrays allocated on this thread take huge pages
-// only where a whole 2 MiB page lies in touched entries: a huge page over
-// one touched entry would make 2 MiB around it resident, so a slice's
-// memory would not shrink with the slice; where the touched runs are 2 MiB
-// or longer (a sliced search on two workers) the slice keeps the huge
-// pages' fewer faults. `runs` must outlive the scope. Not nestable across
-// threads; RAII.
+// While one lives, memo arrays allocated on this thread are advised
+// against huge pages wherever a 2 MiB page is not wholly inside touched
+// entries: where huge pages are the kernel's default, a huge page over one
+// touched entry would make 2 MiB around it resident, so a slice's memory
+// would not shrink with the slice. `runs` must outlive the scope. Not
+// nestable across threads; RAII.
 class TouchedRunsScope {
  public:
   explicit TouchedRunsScope(const TouchedRuns& runs)

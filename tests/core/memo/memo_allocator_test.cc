@@ -1,5 +1,6 @@
-// Which 2 MiB pages of a memo array a sliced search may take huge: only
-// those wholly inside touched blocks (memo_allocator.h).
+// Which 2 MiB pages of a memo array a sliced search leaves to the kernel's
+// huge-page policy: only those wholly inside touched blocks; the others are
+// advised against huge pages (memo_allocator.h).
 #include "core/memo/memo_allocator.h"
 
 #include "gtest/gtest.h"
@@ -15,7 +16,7 @@ bool PageTouched(const TouchedRuns& runs, uint64_t page, uint64_t bytes) {
   return WhollyTouched(runs, page * kHugePage / bytes, ((page + 1) * kHugePage - 1) / bytes);
 }
 
-TEST(MemoAllocatorTest, BlocksOfTwoMiBOrMoreKeepTheirPagesHuge) {
+TEST(MemoAllocatorTest, BlocksOfTwoMiBOrMoreLeaveTheirPagesToTheKernel) {
   // Blocks of 2^19 entries: 4 MiB of 8-byte entries, 2 MiB of 4-byte ones.
   const TouchedRuns runs{19, {1, 0, 1, 1}};
   EXPECT_TRUE(PageTouched(runs, 0, 8));
@@ -28,7 +29,7 @@ TEST(MemoAllocatorTest, BlocksOfTwoMiBOrMoreKeepTheirPagesHuge) {
   EXPECT_TRUE(PageTouched(runs, 2, 4));
 }
 
-TEST(MemoAllocatorTest, APageOverOneUntouchedSmallBlockIsNotHuge) {
+TEST(MemoAllocatorTest, APageOverOneUntouchedSmallBlockIsAdvisedAgainstHuge) {
   // Blocks of 2^16 8-byte entries (512 KiB): a page spans four of them.
   TouchedRuns runs{16, std::vector<uint8_t>(16, 1)};
   runs.touched[5] = 0;
