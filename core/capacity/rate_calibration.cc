@@ -1,7 +1,5 @@
 #include "core/capacity/rate_calibration.h"
 
-#include <cstdio>
-
 #include <algorithm>
 #include <chrono>
 #include <cmath>
@@ -116,7 +114,6 @@ absl::StatusOr<double> ConnectedRate(const Query& query, const SearchOptions& op
   const double growth = std::clamp(
       std::log(large.seconds_per_set / small.seconds_per_set) / std::log(large.sets / small.sets),
       0.0, kMaxRateGrowth);
-  if (getenv("XCAL")) fprintf(stderr, "small %.0f sets %.3f us, large %.0f sets %.3f us, whole %.0f growth %.3f -> %.3f us\n", small.sets, small.seconds_per_set*1e6, large.sets, large.seconds_per_set*1e6, sets, growth, 1e6*large.seconds_per_set * std::pow(sets / large.sets, growth));
   return large.seconds_per_set * std::pow(sets / large.sets, growth);
 }
 
