@@ -253,11 +253,14 @@ class SliceSearch {
     if constexpr (kCanLeaveUnfilled) {
       if (pulled && joins == nullptr) policy_.LeaveUnfilled();
     }
-    // A slice touches only its admissible blocks (MakeLayout): no huge
-    // page may make the others resident.
-    std::optional<TouchedRunsScope> admitted_pages;
-    if (layout_) admitted_pages.emplace(AdmittedBlocks());
     memo_->Visit([&]<class Memo>(Memo& memo) {
+      // A slice's direct memo is touched in its admissible blocks only
+      // (MakeLayout): no huge page may make the others resident.
+      TouchedRuns admitted;
+      std::optional<TouchedRunsScope> admitted_pages;
+      if constexpr (std::is_same_v<Memo, DirectMemo>) {
+        if (layout_) admitted_pages.emplace(admitted = AdmittedBlocks());
+      }
       if constexpr (!Memo::kGrows) policy_.Resize(memo.slot_count());
       if constexpr (std::is_same_v<Memo, DirectMemo>) {
         if (pulled) {
@@ -280,17 +283,12 @@ class SliceSearch {
   }
 
   // The blocks of 2^f sets (slot = set) whose high pattern the slice
-  // admits: the only entries of a sliced connected memo ever touched.
-  const TouchedRuns& AdmittedBlocks() {
-    if (admitted_blocks_.touched.empty()) {
-      const int f = layout_->free_bits();
-      admitted_blocks_.block_bits = f;
-      admitted_blocks_.touched.resize(size_t{1} << (working_.size() - f));
-      for (size_t b = 0; b < admitted_blocks_.touched.size(); ++b) {
-        admitted_blocks_.touched[b] = layout_->Admissible(RelSet{b} << f) ? 1 : 0;
-      }
-    }
-    return admitted_blocks_;
+  // admits: the only entries of a sliced direct memo the pull searches
+  // touch. Tested per block, with no table (8^k bytes at k triples).
+  TouchedRuns AdmittedBlocks() const {
+    const int f = layout_->free_bits();
+    const DenseLayout* layout = &*layout_;
+    return {f, [layout, f](uint64_t b) { return layout->Admissible(RelSet{b} << f); }};
   }
 
   // A direct memo's bytes: the presence bits, and the policy's entries of
@@ -381,8 +379,7 @@ class SliceSearch {
   // Set for the dense search, and for a sliced connected-only one (its
   // numbering only).
   std::optional<DenseLayout> layout_;
-  TouchedRuns admitted_blocks_;  // AdmittedBlocks(), built on first use
-  Query working_;                // renumbered by the layout, else the query itself
+  Query working_;  // renumbered by the layout, else the query itself
   // The constraints in working_'s numbering (connected-only search).
   SliceConstraints connected_constraints_;
   Cardinality card_;

@@ -36,7 +36,8 @@ class CoutPolicy {
   // `card` must outlive the policy and use the enumerator's numbering.
   explicit CoutPolicy(const Cardinality& card) : card_(card) {}
 
-  // Called before Resize by a search that relaxes sets in scattered order
+  // Called before Resize by a search that relaxes sets in scattered order,
+  // or solves each set from its best split's cached cardinalities
   // (connected pairs): each set's cardinality is then cached beside its
   // cost (set_card_), so relaxing a pair reads it without a pass over the
   // predicates, and the arrays are left uninitialised until a set is met.

@@ -1,8 +1,9 @@
 // The allocator of memo arrays: new elements of trivial types are left
 // uninitialised (default-initialised) instead of zeroed, so a memo of 2^n
 // entries is not written in full before the search writes the entries it
-// uses. Blocks of 2 MiB or more are aligned to 2 MiB and left to the
-// kernel's own huge-page policy: they are not advised as transparent huge
+// uses. Blocks of 2 MiB or more are mapped on their own (no advice left
+// over from an earlier memo, pages given back when freed), aligned to 2
+// MiB, and left to the kernel's own huge-page policy: they are not advised as transparent huge
 // pages, because a fault in an advised region may first compact memory,
 // and that made searches spike to 2-3.6 times their time (a 0.45 s
 // search took 1.6 s; docs/benchmarks.md, "Huge pages"). Where a huge page
@@ -18,19 +19,21 @@
 
 #include <cstdint>
 #include <cstdlib>
+#include <functional>
 #include <new>
 #include <type_traits>
 #include <utility>
-#include <vector>
 
 namespace sliceplan {
 
 // The entries a search will touch, as blocks of 2^block_bits consecutive
-// entries: block b is touched when touched[b] is non-zero (entries past the
-// table count as touched).
+// entries: block b is touched when touched(b). A page is tested block by
+// block up to its first untouched one, so the test must find one within a
+// few blocks wherever a page spans many (a slice's forbidden patterns
+// recur every 8 blocks at most).
 struct TouchedRuns {
   int block_bits = 0;
-  std::vector<uint8_t> touched;
+  std::function<bool(uint64_t block)> touched;
 };
 
 namespace memo_allocator_internal {
@@ -45,7 +48,7 @@ inline thread_local const TouchedRuns* touched_runs = nullptr;
 // lies in a touched block.
 inline bool WhollyTouched(const TouchedRuns& runs, uint64_t first, uint64_t last) {
   for (uint64_t b = first >> runs.block_bits; b <= last >> runs.block_bits; ++b) {
-    if (b < runs.touched.size() && runs.touched[b] == 0) return false;
+    if (!runs.touched(b)) return false;
   }
   return true;
 }
@@ -64,23 +67,46 @@ inline void AdviseTouched(char* p, size_t whole, size_t element) {
   }
 }
 
+// Blocks of 2 MiB or more are mapped afresh, 2 MiB aligned: a mapping
+// carries no advice from an earlier memo (heap memory the allocator hands
+// out again would keep an earlier slice's), and unmapping gives the pages
+// back at once.
+inline size_t MappedBytes(size_t bytes) { return (bytes + kHugePage - 1) / kHugePage * kHugePage; }
+
 inline void* Allocate(size_t bytes, size_t element) {
   if (bytes < kHugePage) {
     if (void* p = std::malloc(bytes)) return p;
     throw std::bad_alloc();
   }
   if (bytes > kMaxBytes) throw std::bad_alloc();
-  const size_t rounded = (bytes + kHugePage - 1) / kHugePage * kHugePage;
-  void* p = std::aligned_alloc(kHugePage, rounded);
-  if (p == nullptr) throw std::bad_alloc();
+  const size_t rounded = MappedBytes(bytes);
+  // Over-map by one huge page and trim to the aligned part.
+  void* raw = mmap(nullptr, rounded + kHugePage, PROT_READ | PROT_WRITE,
+                   MAP_PRIVATE | MAP_ANONYMOUS, -1, 0);
+  if (raw == MAP_FAILED) throw std::bad_alloc();
+  const auto start = reinterpret_cast<uintptr_t>(raw);
+  const uintptr_t aligned = (start + kHugePage - 1) / kHugePage * kHugePage;
+  if (aligned > start) munmap(raw, aligned - start);
+  const uintptr_t end = start + rounded + kHugePage;
+  if (end > aligned + rounded)
+    munmap(reinterpret_cast<void*>(aligned + rounded), end - aligned - rounded);
+  char* p = reinterpret_cast<char*>(aligned);
   // A huge page over the block's tail would make the tail's every byte
   // resident, up to 2 MiB an array (a slice's memo would then not shrink
   // with the slice), so the tail is advised against them where huge pages
   // are the default. Advice only: ignored where unsupported.
   const size_t whole = bytes / kHugePage * kHugePage;
-  if (touched_runs != nullptr) AdviseTouched(static_cast<char*>(p), whole, element);
-  if (rounded > whole) madvise(static_cast<char*>(p) + whole, rounded - whole, MADV_NOHUGEPAGE);
+  if (touched_runs != nullptr) AdviseTouched(p, whole, element);
+  if (rounded > whole) madvise(p + whole, rounded - whole, MADV_NOHUGEPAGE);
   return p;
+}
+
+inline void Deallocate(void* p, size_t bytes) noexcept {
+  if (bytes < kHugePage) {
+    std::free(p);
+  } else {
+    munmap(p, MappedBytes(bytes));
+  }
 }
 }  // namespace memo_allocator_internal
 
@@ -115,7 +141,9 @@ class MemoAllocator {
   T* allocate(size_t n) {
     return static_cast<T*>(memo_allocator_internal::Allocate(n * sizeof(T), sizeof(T)));
   }
-  void deallocate(T* p, size_t) noexcept { std::free(p); }
+  void deallocate(T* p, size_t n) noexcept {
+    memo_allocator_internal::Deallocate(p, n * sizeof(T));
+  }
 
   template <class U>
   void construct(U* p) noexcept(std::is_nothrow_default_constructible_v<U>) {

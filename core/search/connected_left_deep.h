@@ -83,8 +83,10 @@ namespace connected_left_deep_internal {
 // shares a binary predicate with it, tested by one memo bit and one mask.
 struct LeftDeepSplits {
   // A scattered policy's set cardinality comes from the best prefix's
-  // cached one times the relation's factors (search_policy.h), where a
-  // pass over the predicates per set was 40% of a 22-star's search.
+  // cached one times the relation's factors where every predicate is
+  // binary and in range (Cardinality::OfJoin; else a pass over the
+  // predicates, as before); that pass per set was 40% of a 22-star's
+  // search.
   static constexpr bool kScattered = true;
   static constexpr bool kOneWay = true;  // the right input is always the relation
   const JoinGraph& graph;
@@ -114,7 +116,8 @@ struct LeftDeepSplits {
 // from its own splits, so the reads of S \ {r} run in n sequential streams
 // rather than scattered pushes. `memo` holds exactly the connected sets on
 // entry, those with a plan in this slice on return; the policy is sized to
-// memo.slot_count(). Binary predicates only (a hyperedge can join r to a
+// memo.slot_count(), after UseScatteredLayout() where it has a scattered
+// layout (search_policy.h). Binary predicates only (a hyperedge can join r to a
 // prefix no binary predicate reaches). Errors: CANCELLED /
 // DEADLINE_EXCEEDED.
 template <SearchPolicy Policy>

@@ -220,7 +220,9 @@ bool SolveWordsFrom(const SetCcpWalk* walk, const SliceConstraints& constraints,
 
 }  // namespace connected_pull_internal
 
-// Runs the search into `policy` (sized to memo.slot_count()). `memo` holds
+// Runs the search into `policy` (sized to memo.slot_count(); a policy with
+// a scattered layout must have had UseScatteredLayout() before it was
+// sized, walk given: search_policy.h). `memo` holds
 // exactly the connected sets on entry; on return it holds those with a plan
 // in this slice (inadmissible sets and sets with no admissible split are
 // taken out as they are met). Errors: CANCELLED / DEADLINE_EXCEEDED.

@@ -11,7 +11,7 @@ namespace {
 
 constexpr int kHitRateSamples = 4096;
 
-// Presence words read per hit-rate estimate: past this, one word in
+// Presence words read per hit-rate estimate, about: past this, one word in
 // words / kHitRateWords (chosen by a hash of its number, so no relation's
 // bit is left out the way a plain stride would leave the low ones) stands
 // for the others. A 22-star's estimate read its 2 million sets twice, 6%

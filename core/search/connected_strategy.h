@@ -77,7 +77,7 @@ double ConnectedMemoBytes(int n, double sets, uint64_t bytes_per_slot, uint64_t 
 // S's lowest relation, S1 != S, over every connected S of two or more
 // relations) whose two sides are both connected, estimated from `samples`
 // splits drawn with probability proportional to each set's split count,
-// among the sets of at most 4096 presence words (all of them up to 18
+// among the sets of about 4,096 presence words (all of them up to 18
 // relations; past that a hashed choice of words). 0 when there is no set
 // of two or more relations. Deterministic.
 double EverySplitHitRate(const DirectMemo& connected, int samples);

@@ -73,9 +73,10 @@ concept TwoChains = requires(const Policy& p, typename Policy::Acc a) {
 };
 
 // Policies with a scattered layout (UseScatteredLayout before Resize, for
-// searches that meet sets out of mask order): each set's cardinality is
-// cached beside its cost, so a set solved from its own splits over a direct
-// memo (slot = set) takes its cardinality from its best split's operands.
+// searches that meet sets out of mask order, and the pull searches): each
+// set's cardinality is cached beside its cost, so a set solved from its
+// own splits over a direct memo (slot = set) takes its cardinality from its
+// best split's operands.
 // Optional:
 //   void UseScatteredLayout();
 //   void FinishJoin(Slot s, RelSet set, const Acc&);  // Finish, so

@@ -81,8 +81,11 @@ TEST(TemplateServiceTest, TheGridOnThePoolKeepsItsGuaranteeAndChooseMatchesTheFi
         last_done = done;
       });
   ASSERT_TRUE(result.ok()) << result.status();
-  EXPECT_GE(events, 1u);
-  EXPECT_EQ(last_done, 36u);
+  // Progress is coalesced, and an event not yet sent when the answer is
+  // ready gives way to it (rpc/coalescing_writer.h): a prepare of a few
+  // milliseconds may send none, so only their order and total are owed.
+  EXPECT_LE(last_done, 36u);
+  EXPECT_LE(events, 36u);
   EXPECT_EQ(result->report().grid_points(), 36u);
   EXPECT_EQ(result->template_id().size(), 32u);
   auto set = ParsePlanSet(result->plan_set_json());

@@ -104,9 +104,11 @@ bool ConnectedByPredicates(const Query& q, RelSet s) {
   return reached == s;
 }
 
-// Every subset tested against ConnectedSets on random graphs, sparse and
-// dense, with and without a three-relation predicate: each connected set
-// once, nothing else (a pruned recursion that dropped a set fails it).
+// Every subset tested against ConnectedSets on random graphs (a random
+// tree with extra edges) and on chains with a three-relation predicate,
+// every other one with a chord from the first relation to the last added:
+// each connected set once, nothing else (a pruned recursion that dropped
+// a set fails it).
 TEST(ConnectedSetsTest, RandomGraphsMatchEverySubsetTested) {
   std::mt19937_64 rng(23);
   for (int round = 0; round < 60; ++round) {

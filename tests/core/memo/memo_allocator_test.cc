@@ -3,6 +3,11 @@
 // advised against huge pages (memo_allocator.h).
 #include "core/memo/memo_allocator.h"
 
+#include <cstdio>
+#include <fstream>
+#include <string>
+#include <vector>
+
 #include "gtest/gtest.h"
 
 namespace sliceplan {
@@ -11,14 +16,20 @@ namespace {
 using memo_allocator_internal::kHugePage;
 using memo_allocator_internal::WhollyTouched;
 
+// Blocks of 2^bits entries, touched where `table` says so (blocks past it
+// count as touched).
+TouchedRuns Runs(int bits, std::vector<uint8_t> table) {
+  return {bits, [table](uint64_t b) { return b >= table.size() || table[b] != 0; }};
+}
+
 // A page's first and last entry for elements of `bytes` each.
 bool PageTouched(const TouchedRuns& runs, uint64_t page, uint64_t bytes) {
   return WhollyTouched(runs, page * kHugePage / bytes, ((page + 1) * kHugePage - 1) / bytes);
 }
 
-TEST(MemoAllocatorTest, BlocksOfTwoMiBOrMoreLeaveTheirPagesToTheKernel) {
+TEST(MemoAllocatorTest, BlocksOfTwoMiBOrMoreTouchWholePages) {
   // Blocks of 2^19 entries: 4 MiB of 8-byte entries, 2 MiB of 4-byte ones.
-  const TouchedRuns runs{19, {1, 0, 1, 1}};
+  const TouchedRuns runs = Runs(19, {1, 0, 1, 1});
   EXPECT_TRUE(PageTouched(runs, 0, 8));
   EXPECT_TRUE(PageTouched(runs, 1, 8));
   EXPECT_FALSE(PageTouched(runs, 2, 8));  // block 1
@@ -31,23 +42,59 @@ TEST(MemoAllocatorTest, BlocksOfTwoMiBOrMoreLeaveTheirPagesToTheKernel) {
 
 TEST(MemoAllocatorTest, APageOverOneUntouchedSmallBlockIsAdvisedAgainstHuge) {
   // Blocks of 2^16 8-byte entries (512 KiB): a page spans four of them.
-  TouchedRuns runs{16, std::vector<uint8_t>(16, 1)};
-  runs.touched[5] = 0;
+  std::vector<uint8_t> table(16, 1);
+  table[5] = 0;
+  const TouchedRuns runs = Runs(16, table);
   EXPECT_TRUE(PageTouched(runs, 0, 8));   // blocks 0-3
   EXPECT_FALSE(PageTouched(runs, 1, 8));  // blocks 4-7, 5 untouched
   EXPECT_TRUE(PageTouched(runs, 2, 8));
-  // Entries past the table count as touched.
   EXPECT_TRUE(PageTouched(runs, 9, 8));
 }
 
-TEST(MemoAllocatorTest, ArraysAllocateUnderTouchedRuns) {
-  const TouchedRuns runs{16, {1, 0, 1, 1, 0, 1, 1, 1}};
+// The kernel's flags of the mapping holding `address` (/proc/self/smaps's
+// VmFlags line: "nh" is advised against huge pages); "" if none found.
+std::string VmFlags(const void* address) {
+  std::ifstream smaps("/proc/self/smaps");
+  const auto at = reinterpret_cast<uintptr_t>(address);
+  bool inside = false;
+  for (std::string line; std::getline(smaps, line);) {
+    uintptr_t begin = 0, end = 0;
+    if (std::sscanf(line.c_str(), "%lx-%lx ", &begin, &end) == 2 && line.find('-') < 16) {
+      inside = begin <= at && at < end;
+    } else if (inside && line.rfind("VmFlags:", 0) == 0) {
+      return line;
+    }
+  }
+  return "";
+}
+
+bool NoHuge(const void* address) { return VmFlags(address).find(" nh") != std::string::npos; }
+
+// Blocks of 4 MiB of doubles, the middle one untouched: its two pages
+// are advised against huge pages, the others are left to the kernel.
+TEST(MemoAllocatorTest, UntouchedPagesAreAdvisedAgainstHugePages) {
+  const TouchedRuns runs = Runs(19, {1, 0, 1});
   TouchedRunsScope scope(runs);
+  std::vector<double, MemoAllocator<double>> memo(size_t{3} << 19);
+  const char* base = reinterpret_cast<const char*>(memo.data());
+  ASSERT_EQ(reinterpret_cast<uintptr_t>(base) % kHugePage, 0u);
+  ASSERT_NE(VmFlags(base), "") << "no smaps entry";
+  EXPECT_FALSE(NoHuge(base));
+  EXPECT_FALSE(NoHuge(base + kHugePage));
+  EXPECT_TRUE(NoHuge(base + 2 * kHugePage));
+  EXPECT_TRUE(NoHuge(base + 3 * kHugePage));
+  EXPECT_FALSE(NoHuge(base + 4 * kHugePage));
+  EXPECT_FALSE(NoHuge(base + 5 * kHugePage));
+}
+
+// Outside a scope no page of a block is advised either way, and the
+// block is aligned to a huge page.
+TEST(MemoAllocatorTest, BlocksOutsideAScopeAreLeftToTheKernel) {
   std::vector<double, MemoAllocator<double>> memo(size_t{1} << 19);
-  memo[0] = 1;
-  memo[memo.size() - 1] = 2;
-  EXPECT_EQ(memo[0] + memo[memo.size() - 1], 3);
-  EXPECT_EQ(reinterpret_cast<uintptr_t>(memo.data()) % kHugePage, 0u);
+  const char* base = reinterpret_cast<const char*>(memo.data());
+  EXPECT_EQ(reinterpret_cast<uintptr_t>(base) % kHugePage, 0u);
+  EXPECT_FALSE(NoHuge(base));
+  EXPECT_FALSE(NoHuge(base + kHugePage));
 }
 
 }  // namespace

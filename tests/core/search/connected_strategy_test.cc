@@ -39,7 +39,7 @@ TEST(SubsetHitRateTest, CliqueSplitsAreAllPairs) {
 
 TEST(SubsetHitRateTest, StarMatchesClosedForm) {
   // A star of n: (n-1) 2^(n-2) csg-cmp pairs; the hub with m of the n-1
-  // leaves has 2^m - 1 tested splits, in all 3^(n-1) - 2^(n-1). From 20
+  // leaves has 2^m - 1 tested splits, in all 3^(n-1) - 2^(n-1). Past 18
   // relations on, only some words are read.
   for (int n : {8, 10, 14, 20, 22}) {
     const double pairs = (n - 1) * std::ldexp(1.0, n - 2);
