@@ -73,6 +73,9 @@ bool NoHuge(const void* address) { return VmFlags(address).find(" nh") != std::s
 // Blocks of 4 MiB of doubles, the middle one untouched: its two pages
 // are advised against huge pages, the others are left to the kernel.
 TEST(MemoAllocatorTest, UntouchedPagesAreAdvisedAgainstHugePages) {
+  if (!std::ifstream("/sys/kernel/mm/transparent_hugepage/enabled")) {
+    GTEST_SKIP() << "no transparent huge pages on this kernel: nothing to advise";
+  }
   const TouchedRuns runs = Runs(19, {1, 0, 1});
   TouchedRunsScope scope(runs);
   std::vector<double, MemoAllocator<double>> memo(size_t{3} << 19);
