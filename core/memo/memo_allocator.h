@@ -1,17 +1,16 @@
 // The allocator of memo arrays: new elements of trivial types are left
 // uninitialised (default-initialised) instead of zeroed, so a memo of 2^n
 // entries is not written in full before the search writes the entries it
-// uses. Blocks of 2 MiB or more are mapped on their own (no advice left
-// over from an earlier memo, pages given back when freed), aligned to 2
-// MiB, and left to the kernel's own huge-page policy: they are not advised as transparent huge
+// uses. Blocks of 2 MiB or more are aligned to 2 MiB and left to the
+// kernel's own huge-page policy: they are not advised as transparent huge
 // pages, because a fault in an advised region may first compact memory,
 // and that made searches spike to 2-3.6 times their time (a 0.45 s
-// search took 1.6 s; docs/benchmarks.md, "Huge pages"). Where a huge page
-// could make untouched bytes resident it is advised against: the tail of
-// each block, and (TouchedRunsScope) the pages of a memo that are not
-// wholly inside the runs of entries its search touches (a sliced
-// connected-only search). Only for element types every reader
-// initialises first.
+// search took 1.6 s; docs/benchmarks.md, "Huge pages"). A memo of which
+// the search touches only some runs of entries (a sliced connected-only
+// search, TouchedRunsScope) is advised against them where a huge page
+// could make untouched bytes resident: the pages not wholly inside the
+// touched runs, and each block's tail. Only for element types every
+// reader initialises first.
 #ifndef SLICEPLAN_CORE_MEMO_MEMO_ALLOCATOR_H_
 #define SLICEPLAN_CORE_MEMO_MEMO_ALLOCATOR_H_
 
@@ -23,6 +22,10 @@
 #include <new>
 #include <type_traits>
 #include <utility>
+
+#include "absl/base/thread_annotations.h"
+#include "absl/container/flat_hash_set.h"
+#include "absl/synchronization/mutex.h"
 
 namespace sliceplan {
 
@@ -67,19 +70,21 @@ inline void AdviseTouched(char* p, size_t whole, size_t element) {
   }
 }
 
-// Blocks of 2 MiB or more are mapped afresh, 2 MiB aligned: a mapping
-// carries no advice from an earlier memo (heap memory the allocator hands
-// out again would keep an earlier slice's), and unmapping gives the pages
-// back at once.
+// A block allocated under a TouchedRunsScope is mapped on its own and
+// unmapped when freed, so its advice never reaches heap memory that a
+// later memo would be given (heap blocks are reused warm, with no page
+// faults: a calibration part's 5 MiB memo ran twice as long per set when
+// every block was mapped afresh).
 inline size_t MappedBytes(size_t bytes) { return (bytes + kHugePage - 1) / kHugePage * kHugePage; }
 
-inline void* Allocate(size_t bytes, size_t element) {
-  if (bytes < kHugePage) {
-    if (void* p = std::malloc(bytes)) return p;
-    throw std::bad_alloc();
-  }
-  if (bytes > kMaxBytes) throw std::bad_alloc();
-  const size_t rounded = MappedBytes(bytes);
+inline absl::Mutex mapped_mu(absl::kConstInit);
+inline absl::flat_hash_set<void*>& Mapped() ABSL_EXCLUSIVE_LOCKS_REQUIRED(mapped_mu) {
+  static auto* const mapped = new absl::flat_hash_set<void*>();  // never destroyed
+  return *mapped;
+}
+
+// `rounded` bytes, 2 MiB aligned, in a mapping of their own.
+inline char* MapAligned(size_t rounded) {
   // Over-map by one huge page and trim to the aligned part.
   void* raw = mmap(nullptr, rounded + kHugePage, PROT_READ | PROT_WRITE,
                    MAP_PRIVATE | MAP_ANONYMOUS, -1, 0);
@@ -88,25 +93,48 @@ inline void* Allocate(size_t bytes, size_t element) {
   const uintptr_t aligned = (start + kHugePage - 1) / kHugePage * kHugePage;
   if (aligned > start) munmap(raw, aligned - start);
   const uintptr_t end = start + rounded + kHugePage;
-  if (end > aligned + rounded)
+  if (end > aligned + rounded) {
     munmap(reinterpret_cast<void*>(aligned + rounded), end - aligned - rounded);
-  char* p = reinterpret_cast<char*>(aligned);
+  }
+  return reinterpret_cast<char*>(aligned);
+}
+
+inline void* Allocate(size_t bytes, size_t element) {
+  if (bytes < kHugePage) {
+    if (void* p = std::malloc(bytes)) return p;
+    throw std::bad_alloc();
+  }
+  if (bytes > kMaxBytes) throw std::bad_alloc();
+  const size_t rounded = MappedBytes(bytes);
+  if (touched_runs == nullptr) {
+    void* p = std::aligned_alloc(kHugePage, rounded);
+    if (p == nullptr) throw std::bad_alloc();
+    return p;
+  }
+  char* p = MapAligned(rounded);
+  {
+    absl::MutexLock lock(&mapped_mu);
+    Mapped().insert(p);
+  }
   // A huge page over the block's tail would make the tail's every byte
   // resident, up to 2 MiB an array (a slice's memo would then not shrink
   // with the slice), so the tail is advised against them where huge pages
   // are the default. Advice only: ignored where unsupported.
   const size_t whole = bytes / kHugePage * kHugePage;
-  if (touched_runs != nullptr) AdviseTouched(p, whole, element);
+  AdviseTouched(p, whole, element);
   if (rounded > whole) madvise(p + whole, rounded - whole, MADV_NOHUGEPAGE);
   return p;
 }
 
 inline void Deallocate(void* p, size_t bytes) noexcept {
-  if (bytes < kHugePage) {
-    std::free(p);
-  } else {
-    munmap(p, MappedBytes(bytes));
+  if (bytes >= kHugePage) {
+    absl::MutexLock lock(&mapped_mu);
+    if (Mapped().erase(p) != 0) {
+      munmap(p, MappedBytes(bytes));
+      return;
+    }
   }
+  std::free(p);
 }
 }  // namespace memo_allocator_internal
 
