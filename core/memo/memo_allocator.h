@@ -70,13 +70,16 @@ inline void AdviseTouched(char* p, size_t whole, size_t element) {
   }
 }
 
+// x rounded up to a whole number of huge pages (a size or an address).
+inline uint64_t RoundUpToHugePage(uint64_t x) {
+  return (x + kHugePage - 1) / kHugePage * kHugePage;
+}
+
 // A block allocated under a TouchedRunsScope is mapped on its own and
 // unmapped when freed, so its advice never reaches heap memory that a
 // later memo would be given (heap blocks are reused warm, with no page
 // faults: a calibration part's 5 MiB memo ran twice as long per set when
-// every block was mapped afresh).
-inline size_t MappedBytes(size_t bytes) { return (bytes + kHugePage - 1) / kHugePage * kHugePage; }
-
+// every block was mapped afresh). The registry holds those blocks.
 inline absl::Mutex mapped_mu(absl::kConstInit);
 inline absl::flat_hash_set<void*>& Mapped() ABSL_EXCLUSIVE_LOCKS_REQUIRED(mapped_mu) {
   static auto* const mapped = new absl::flat_hash_set<void*>();  // never destroyed
@@ -90,7 +93,7 @@ inline char* MapAligned(size_t rounded) {
                    MAP_PRIVATE | MAP_ANONYMOUS, -1, 0);
   if (raw == MAP_FAILED) throw std::bad_alloc();
   const auto start = reinterpret_cast<uintptr_t>(raw);
-  const uintptr_t aligned = (start + kHugePage - 1) / kHugePage * kHugePage;
+  const uintptr_t aligned = RoundUpToHugePage(start);
   if (aligned > start) munmap(raw, aligned - start);
   const uintptr_t end = start + rounded + kHugePage;
   if (end > aligned + rounded) {
@@ -105,7 +108,7 @@ inline void* Allocate(size_t bytes, size_t element) {
     throw std::bad_alloc();
   }
   if (bytes > kMaxBytes) throw std::bad_alloc();
-  const size_t rounded = MappedBytes(bytes);
+  const size_t rounded = RoundUpToHugePage(bytes);
   if (touched_runs == nullptr) {
     void* p = std::aligned_alloc(kHugePage, rounded);
     if (p == nullptr) throw std::bad_alloc();
@@ -130,7 +133,7 @@ inline void Deallocate(void* p, size_t bytes) noexcept {
   if (bytes >= kHugePage) {
     absl::MutexLock lock(&mapped_mu);
     if (Mapped().erase(p) != 0) {
-      munmap(p, MappedBytes(bytes));
+      munmap(p, RoundUpToHugePage(bytes));
       return;
     }
   }
