@@ -46,7 +46,6 @@ class DirectMemo {
   // Takes out the 64 sets of presence word `w` (sets 64w .. 64w + 63).
   void EraseWord(size_t w) { present_[w] = 0; }
   RelSet SetOf(Slot slot) const { return slot; }
-  // The sets held, counted: O(2^n / 64).
   // The sets present, counted over every word: O(2^n / 64), never per split.
   size_t size() const {
     size_t count = 0;
