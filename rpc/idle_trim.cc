@@ -2,9 +2,15 @@
 
 #include <malloc.h>
 
+#include <cstdlib>
+
 #include "absl/time/time.h"
 
 namespace sliceplan {
+
+void CapHeapArenas(int arenas) {
+  if (std::getenv("MALLOC_ARENA_MAX") == nullptr) mallopt(M_ARENA_MAX, arenas);
+}
 
 IdleTrim::IdleTrim(std::function<bool()> should_trim)
     : should_trim_(std::move(should_trim)), thread_([this] { Loop(); }) {}

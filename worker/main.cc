@@ -77,7 +77,9 @@ int main(int argc, char** argv) {
                config.test_hang_seconds > 0 ? " (test fault: hanging)" : "");
   flags->serve.metrics = service.MetricsCollectables();
   // The running and waiting calls, and a few for health checks and
-  // refusals: each served call holds its parsed request.
+  // refusals: only the running calls hold their requests
+  // (worker_service.h), and two heap arenas keep little of them after.
+  sliceplan::CapHeapArenas(2);
   flags->serve.max_threads = config.concurrent_slices + config.max_queued_slices + 8;
   flags->serve.max_buffer_bytes = int64_t{256} << 20;
   const sliceplan::IdleTrim trim([&service] { return service.IdleAfterCalls(); });

@@ -5,9 +5,11 @@
 #include <cstdlib>
 #include <thread>
 
+#include "absl/cleanup/cleanup.h"
 #include "absl/strings/str_cat.h"
 #include "core/model/status_macros.h"
 #include "core/slice_solver.h"
+#include "google/protobuf/arena.h"
 #include "rpc/call_deadline.h"
 #include "rpc/outcome_label.h"
 #include "rpc/request_id.h"
@@ -91,21 +93,23 @@ void WorkerService::Release() {
   --running_;
 }
 
-absl::StatusOr<SliceResult> WorkerService::Solve(grpc::ServerContext* context,
-                                                 const v1::SolveSliceRequest& request,
-                                                 SearchOptions& options) {
-  // The queue's bound holds before the query is parsed: memory held by
-  // waiting calls is at most their messages.
+absl::StatusOr<SliceResult> WorkerService::Solve(
+    grpc::ServerContext* context,
+    grpc::ServerUnaryStreamer<v1::SolveSliceRequest, v1::SolveSliceResponse>& stream,
+    v1::SolveSliceRequest& request, SearchOptions& options) {
+  // Admission before the request is read: a refused call costs no more
+  // than its headers, and a waiting one holds only its transport window.
   RETURN_IF_ERROR(Enqueue());
-  auto parsed = Parse(request, config_);
-  if (!parsed.ok()) {
-    absl::MutexLock lock(&mu_);
-    --waiting_;
-    return parsed.status();
-  }
-  options = parsed->options;
-  if (parsed->slice.index == config_.test_crash_slice) std::abort();
   if (!Acquire(context)) return absl::CancelledError("call ended");
+  const absl::Cleanup release = [this] { Release(); };
+  if (!stream.Read(&request)) {
+    return absl::InvalidArgumentError(
+        "the request could not be read: the call ended, a string field holds invalid UTF-8, "
+        "or the bytes are not a SolveSliceRequest");
+  }
+  ASSIGN_OR_RETURN(Parsed parsed, Parse(request, config_));
+  options = parsed.options;
+  if (parsed.slice.index == config_.test_crash_slice) std::abort();
   const auto hang_until =
       Clock::now() + std::chrono::duration_cast<Clock::duration>(
                          std::chrono::duration<double>(config_.test_hang_seconds));
@@ -118,9 +122,7 @@ absl::StatusOr<SliceResult> WorkerService::Solve(grpc::ServerContext* context,
   if (const auto call = CallDeadline(context); call && *call < deadline) deadline = *call;
   SearchControl control(nullptr, deadline);
   control.set_cancel_check([context] { return context->IsCancelled(); });
-  auto result = sliceplan::SolveSlice(parsed->query, parsed->options, parsed->slice, control);
-  Release();
-  return result;
+  return sliceplan::SolveSlice(parsed.query, parsed.options, parsed.slice, control);
 }
 
 bool WorkerService::IdleAfterCalls() {
@@ -130,12 +132,16 @@ bool WorkerService::IdleAfterCalls() {
   return true;
 }
 
-grpc::Status WorkerService::SolveSlice(grpc::ServerContext* context,
-                                       const v1::SolveSliceRequest* request,
-                                       v1::SolveSliceResponse* response) {
+grpc::Status WorkerService::StreamedSolveSlice(
+    grpc::ServerContext* context,
+    grpc::ServerUnaryStreamer<v1::SolveSliceRequest, v1::SolveSliceResponse>* stream) {
   const auto start = Clock::now();
+  // The request lives on an arena: a large query's many small messages
+  // come from a few blocks and go back in one release.
+  google::protobuf::Arena arena;
+  auto* request = google::protobuf::Arena::Create<v1::SolveSliceRequest>(&arena);
   SearchOptions options;
-  const absl::StatusOr<SliceResult> result = Solve(context, *request, options);
+  const absl::StatusOr<SliceResult> result = Solve(context, *stream, *request, options);
   {
     absl::MutexLock lock(&mu_);
     ++calls_ended_;
@@ -143,11 +149,12 @@ grpc::Status WorkerService::SolveSlice(grpc::ServerContext* context,
   const double wall = std::chrono::duration<double>(Clock::now() - start).count();
   metrics_.Call(result.status(), result.ok() ? &result->stats : nullptr);
   LogEvent line("slice");
-  line.Add("request_id", RequestIdOf(*context))
-      .Add("outcome", OutcomeLabel(result.status()))
-      .Add("index", request->slice_index())
-      .Add("count", request->slice_count())
-      .Add("relations", request->query().relations_size());
+  line.Add("request_id", RequestIdOf(*context)).Add("outcome", OutcomeLabel(result.status()));
+  if (request->has_query()) {  // read (a refused or cancelled call never is)
+    line.Add("index", request->slice_index())
+        .Add("count", request->slice_count())
+        .Add("relations", request->query().relations_size());
+  }
   if (result.ok()) {
     line.Add("splits", result->stats.splits)
         .Add("memo_bytes", result->stats.memo_bytes)
@@ -163,7 +170,9 @@ grpc::Status WorkerService::SolveSlice(grpc::ServerContext* context,
     }
     return ToGrpc(result.status());
   }
-  *response = SliceResultToProto(*result, options.cost);
+  if (!stream->Write(SliceResultToProto(*result, options.cost))) {
+    return grpc::Status(grpc::StatusCode::CANCELLED, "the caller went away before the answer");
+  }
   return grpc::Status::OK;
 }
 

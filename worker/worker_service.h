@@ -4,9 +4,14 @@
 // RESOURCE_EXHAUSTED. At most `concurrent_slices` slices run at once, each
 // on `threads_per_slice` threads; at most `max_queued_slices` further
 // calls wait for a slot (while their deadline allows), and calls past
-// those are refused before their query is parsed (RESOURCE_EXHAUSTED with
-// the busy mark of schedule/slice_worker.h). One log line and one metrics record per call,
-// with the coordinator's request id (x-request-id). Thread-safe.
+// those are refused before their request is read off the connection
+// (RESOURCE_EXHAUSTED with the busy mark of schedule/slice_worker.h). A
+// waiting call holds no request either: it is read (onto an arena) and
+// checked once the call has its slot, so the memory held by queued calls
+// is their transport windows, whatever their requests' size
+// (docs/operations.md, "Overload, hangs and slow clients"). One log line
+// and one metrics record per call, with the coordinator's request id
+// (x-request-id). Thread-safe.
 #ifndef SLICEPLAN_WORKER_WORKER_SERVICE_H_
 #define SLICEPLAN_WORKER_WORKER_SERVICE_H_
 
@@ -37,7 +42,10 @@ struct WorkerConfig {
   int64_t test_crash_slice = -1;
 };
 
-class WorkerService final : public v1::SliceWorker::Service {
+// SolveSlice is a streamed unary method: the handler runs before the
+// request is read, so admission comes first.
+class WorkerService final
+    : public v1::SliceWorker::WithStreamedUnaryMethod_SolveSlice<v1::SliceWorker::Service> {
  public:
   explicit WorkerService(const WorkerConfig& config);
 
@@ -46,8 +54,9 @@ class WorkerService final : public v1::SliceWorker::Service {
     return metrics_.Collectables();
   }
 
-  grpc::Status SolveSlice(grpc::ServerContext* context, const v1::SolveSliceRequest* request,
-                          v1::SolveSliceResponse* response) override;
+  grpc::Status StreamedSolveSlice(
+      grpc::ServerContext* context,
+      grpc::ServerUnaryStreamer<v1::SolveSliceRequest, v1::SolveSliceResponse>* stream) override;
   grpc::Status DescribeWorker(grpc::ServerContext* context,
                               const v1::DescribeWorkerRequest* request,
                               v1::DescribeWorkerResponse* response) override;
@@ -57,9 +66,12 @@ class WorkerService final : public v1::SliceWorker::Service {
   bool IdleAfterCalls() ABSL_LOCKS_EXCLUDED(mu_);
 
  private:
-  // Parses, waits for a slot and solves; the call's outcome.
-  absl::StatusOr<SliceResult> Solve(grpc::ServerContext* context,
-                                    const v1::SolveSliceRequest& request, SearchOptions& options);
+  // Admits the call, waits for a slot, reads the request into `request`
+  // (owned by the caller's arena), parses and solves; the call's outcome.
+  absl::StatusOr<SliceResult> Solve(
+      grpc::ServerContext* context,
+      grpc::ServerUnaryStreamer<v1::SolveSliceRequest, v1::SolveSliceResponse>& stream,
+      v1::SolveSliceRequest& request, SearchOptions& options);
   // Takes a place among the waiting calls; the busy refusal when they
   // are full.
   absl::Status Enqueue() ABSL_LOCKS_EXCLUDED(mu_);

@@ -569,6 +569,43 @@ TEST(HostileClientTest, AWorkerRefusesCallsPastItsQueue) {
   EXPECT_GT(Clock::now() - start, 5s);
 }
 
+// Admission comes before the request is read: with the worker full, a
+// call whose bytes do not even parse is refused busy (its request never
+// read), and once the slot is free the same call is refused for its bytes.
+TEST(HostileClientTest, AWorkerRefusesABusyCallBeforeReadingIt) {
+  auto w = testing::StartWorker(
+      {"--concurrent-slices=1", "--max_queued_slices=0", "--test_only_hang_seconds=2"});
+  ASSERT_TRUE(w);
+  auto stub = v1::SliceWorker::NewStub(
+      grpc::CreateChannel(w->address(), grpc::InsecureChannelCredentials()));
+  v1::SolveSliceRequest good;
+  *good.mutable_query() = QueryToProto(testing::MakeQuery(GraphShape::kChain, 4, 1));
+  good.set_slice_count(1);
+  v1::SolveSliceRequest bad = good;
+  bad.mutable_query()->mutable_relations(0)->set_name("\xff\xfe");  // sent unchecked
+  const auto call = [&](const v1::SolveSliceRequest& r, bool* busy_mark = nullptr) {
+    grpc::ClientContext context;
+    context.set_deadline(std::chrono::system_clock::now() + 10s);
+    v1::SolveSliceResponse out;
+    const grpc::Status s = stub->SolveSlice(&context, r, &out);
+    if (busy_mark) *busy_mark = context.GetServerTrailingMetadata().count(kBusyKey) != 0;
+    return s;
+  };
+  grpc::Status first;
+  std::thread holder([&] { first = call(good); });
+  std::this_thread::sleep_for(300ms);  // the good call holds the one slot
+  bool busy_mark = false;
+  const grpc::Status refused = call(bad, &busy_mark);
+  EXPECT_EQ(refused.error_code(), grpc::StatusCode::RESOURCE_EXHAUSTED) << refused.error_message();
+  EXPECT_TRUE(busy_mark);
+  holder.join();
+  EXPECT_TRUE(first.ok()) << first.error_message();
+  const grpc::Status unread = call(bad);
+  EXPECT_EQ(unread.error_code(), grpc::StatusCode::INVALID_ARGUMENT);
+  EXPECT_NE(unread.error_message().find("could not be read"), std::string::npos)
+      << unread.error_message();
+}
+
 TEST(HostileClientTest, BadValuesGetMessagesThatSayWhatIsWrong) {
   Cluster c = StartCluster(1);
   ASSERT_TRUE(c.coordinator);
