@@ -106,18 +106,19 @@ absl::Status CheckOptionsWithinLimits(const SearchOptions& options, const InputL
 // most `max_workers` of them (0: no limit), counted with their concurrent slices in
 // `facts`, then every unhealthy one: the scheduler skips them (and uses
 // them if they recover), and names them if nothing is left.
-std::vector<SliceWorker*> WorkersForSearch(const std::vector<std::shared_ptr<RpcWorker>>& pool,
-                                           uint32_t max_workers, RequestFacts& facts) {
-  std::vector<SliceWorker*> workers;
+std::vector<std::shared_ptr<SliceWorker>> WorkersForSearch(
+    const std::vector<std::shared_ptr<RpcWorker>>& pool, uint32_t max_workers,
+    RequestFacts& facts) {
+  std::vector<std::shared_ptr<SliceWorker>> workers;
   for (const auto& w : pool) {
     if (max_workers != 0 && workers.size() >= max_workers) break;
     if (!w->Healthy()) continue;
-    workers.push_back(w.get());
+    workers.push_back(w);
     facts.concurrent_slices += w->ConcurrentSlices();
   }
   facts.workers = workers.size();
   for (const auto& w : pool) {
-    if (!w->Healthy()) workers.push_back(w.get());
+    if (!w->Healthy()) workers.push_back(w);
   }
   return workers;
 }
@@ -231,7 +232,7 @@ absl::StatusOr<TieredOutcome> CoordinatorService::Search(
     const std::function<void(const ScheduleProgress&)>& on_progress, RequestFacts& facts) {
   RETURN_IF_ERROR(ValidateRequest(request));
   ASSIGN_OR_RETURN(const Clock::time_point deadline, RunDeadline(context, request, config_));
-  ASSIGN_OR_RETURN(const WideQuery query, QueryOfRequest(request, config_.limits));
+  ASSIGN_OR_RETURN(WideQuery query, QueryOfRequest(request, config_.limits));
   facts.relations = query.size();
   ASSIGN_OR_RETURN(const SearchOptions options, SearchOptionsFromProto(request.options()));
   facts.cost = options.cost;
@@ -245,14 +246,15 @@ absl::StatusOr<TieredOutcome> CoordinatorService::Search(
       deadline, [context] { return context->IsCancelled(); }, ticket));
   const auto start = Clock::now();  // admitted: the search's own time from here
 
-  const std::vector<std::shared_ptr<RpcWorker>> pool = pool_.Workers();
-  const std::vector<SliceWorker*> workers = WorkersForSearch(pool, request.max_workers(), facts);
   RETURN_IF_ERROR(CheckSliceCount(request.slice_count(), query.size(), options.shape));
-  const TierRequest tiers =
-      TiersOfRequest(request, facts.asked, budget, config_.default_budget_seconds);
-  const ScheduleOptions schedule =
-      ScheduleOfRequest(context, request, config_, deadline, request_id, on_progress);
-  auto outcome = RunTiers(query, options, tiers, workers, schedule);
+  // The tiers run on a thread of their own; this one answers by the
+  // deadline whatever CPU that thread gets (schedule/timed_tiers.h).
+  TimedTierInputs run{
+      std::move(query), options,
+      TiersOfRequest(request, facts.asked, budget, config_.default_budget_seconds),
+      WorkersForSearch(pool_.Workers(), request.max_workers(), facts),
+      ScheduleOfRequest(context, request, config_, deadline, request_id, on_progress)};
+  auto outcome = timed_tiers_.Run(std::move(run));
   facts.search_seconds = std::chrono::duration<double>(Clock::now() - start).count();
   if (!outcome.ok()) return outcome;
   RETURN_IF_ERROR(CheckFrontierSize(*outcome, config_.limits));
@@ -443,9 +445,11 @@ absl::StatusOr<v1::PrepareTemplateResult> CoordinatorService::Prepare(
   std::optional<Admission::Ticket> ticket;
   RETURN_IF_ERROR(admission_.Enter(
       deadline, [context] { return context->IsCancelled(); }, ticket));
-  const std::vector<std::shared_ptr<RpcWorker>> pool = pool_.Workers();
   RequestFacts facts;
-  const std::vector<SliceWorker*> workers = WorkersForSearch(pool, 0, facts);
+  const std::vector<std::shared_ptr<SliceWorker>> held =
+      WorkersForSearch(pool_.Workers(), 0, facts);
+  std::vector<SliceWorker*> workers;
+  for (const auto& w : held) workers.push_back(w.get());
   ScheduleOptions schedule;
   schedule.hedge_after = HedgeDelay(config_, deadline);
   schedule.deadline = deadline;

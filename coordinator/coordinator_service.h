@@ -20,6 +20,7 @@
 #include "core/model/input_limits.h"
 #include "rpc/bearer_tokens.h"
 #include "schedule/slice_scheduler.h"
+#include "schedule/timed_tiers.h"
 #include "sliceplan.grpc.pb.h"
 
 namespace sliceplan {
@@ -125,6 +126,8 @@ class CoordinatorService final : public v1::Coordinator::Service {
   const std::unique_ptr<TemplateDesk> templates_;
   mutable absl::Mutex tokens_mu_;
   std::shared_ptr<const BearerTokens> tokens_ ABSL_GUARDED_BY(tokens_mu_);
+  // Last: its destructor cancels and joins the runs still going first.
+  TimedTiers timed_tiers_;
 };
 
 }  // namespace sliceplan

@@ -137,8 +137,9 @@ class TierRun {
     // A join that saturates makes every plan's cost the ceiling: refused
     // at any size, as the exact tier refuses it (docs/numeric-range.md).
     RETURN_IF_ERROR(CheckCoutInRange(query_));
-    Offer(GreedyPlan(query_, options_.shape, deadline_, &greedy_), SearchTier::kGreedy);
-    out_.start_cost = out_.plan.cost();
+    WidePlan greedy = GreedyPlan(query_, options_.shape, deadline_, &greedy_);
+    out_.start_cost = greedy.cost();
+    Offer(std::move(greedy), SearchTier::kGreedy);
     if (query_.size() <= 2) out_.proven_optimal = true;  // one plan (up to sides)
     if (tier == SearchTier::kGreedy || query_.size() <= 2) {
       return Finish(tier == SearchTier::kGreedy ? "greedy: requested" : "greedy: one plan");
@@ -172,6 +173,11 @@ class TierRun {
     if (!out_.plan.nodes.empty() && !(plan.cost() < out_.plan.cost())) return;
     out_.plan = std::move(plan);
     out_.tier = tier;
+    Post();
+  }
+
+  void Post() const {
+    if (request_.board != nullptr) request_.board->Post({out_.plan, out_.tier, out_.start_cost});
   }
 
   absl::StatusOr<TieredOutcome> Finish(std::string reason) {
@@ -409,6 +415,7 @@ class TierRun {
       out_.plan = FromExactPlan(outcome->result.plan);
       out_.tier = SearchTier::kExact;
       out_.proven_optimal = true;
+      Post();
     } else {
       Offer(FromExactPlan(outcome->result.plan), SearchTier::kExact);
     }

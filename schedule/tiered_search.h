@@ -36,6 +36,7 @@
 #include "core/capacity/capacity_model.h"
 #include "core/model/search_tier.h"
 #include "core/model/wide_query.h"
+#include "schedule/incumbent_board.h"
 #include "schedule/slice_scheduler.h"
 #include "tiers/idp.h"
 #include "tiers/linear_dp.h"
@@ -69,6 +70,9 @@ struct TierRequest {
   // (CalibrateRatesOnce) before it gives the exact search up.
   MachineRates rates;
   bool rates_given = false;
+  // Where the cout tiers post each better plan as they find it (greedy's
+  // first); null: nowhere. Must outlive the run.
+  IncumbentBoard* board = nullptr;
 };
 
 struct TieredOutcome {
