@@ -55,7 +55,7 @@ int Fail(const absl::Status& status) {
 }
 
 absl::StatusOr<TieredOutcome> Solve(const OptimizeConfig& config, const WideQuery& query,
-                                    ProgressBar& bar) {
+                                    ProgressBar& bar, TimedTiers& timer) {
   const auto progress = [&bar](const ScheduleProgress& p) { bar.Update(p); };
   if (config.coordinator) {
     RemoteRequest request;
@@ -79,7 +79,7 @@ absl::StatusOr<TieredOutcome> Solve(const OptimizeConfig& config, const WideQuer
   schedule.on_progress = progress;
   schedule.partial_on_deadline = config.partial_on_deadline;
   if (config.deadline_seconds > 0) schedule.deadline = SteadyAfter(config.deadline_seconds);
-  return RunEmbeddedTiers(query, config.search, tiers, config.workers, schedule);
+  return RunEmbeddedTiers(query, config.search, tiers, config.workers, schedule, &timer);
 }
 
 // --slices fixes the exact search's slice count: checked against the query.
@@ -129,10 +129,13 @@ int Optimize(const std::vector<std::string>& args) {
   WarnIfOversubscribed(*config, cores);
   std::optional<Query> exact;
   if (query->size() <= kMaxRelations) exact = *ToExactQuery(*query);
+  // With a deadline the tiers run on its thread and the answer comes by
+  // the deadline; a run cut off there is joined when the command returns.
+  TimedTiers timer;
   absl::StatusOr<TieredOutcome> outcome;
   {
     ProgressBar bar(!config->quiet);
-    outcome = Solve(*config, *query, bar);
+    outcome = Solve(*config, *query, bar, timer);
   }
   if (!outcome.ok()) return Fail(outcome.status());
   RunInfo info{&*query, exact ? &*exact : nullptr, config->search, config->workers,

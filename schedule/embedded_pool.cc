@@ -33,7 +33,14 @@ absl::StatusOr<ScheduleOutcome> RunEmbedded(const Query& query, const SearchOpti
 
 absl::StatusOr<TieredOutcome> RunEmbeddedTiers(const WideQuery& query, const SearchOptions& options,
                                                const TierRequest& request, int workers,
-                                               const ScheduleOptions& schedule) {
+                                               const ScheduleOptions& schedule, TimedTiers* timer) {
+  if (timer != nullptr && schedule.deadline) {
+    std::vector<std::shared_ptr<SliceWorker>> pool;
+    for (int w = 0; w < workers; ++w) {
+      pool.push_back(std::make_shared<LocalWorker>("local-" + std::to_string(w)));
+    }
+    return timer->Run({query, options, request, std::move(pool), schedule});
+  }
   LocalPool pool(workers);
   return RunTiers(query, options, request, pool.handles, schedule);
 }

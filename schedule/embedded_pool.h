@@ -10,6 +10,7 @@
 #include "core/slice_solver.h"
 #include "schedule/slice_scheduler.h"
 #include "schedule/tiered_search.h"
+#include "schedule/timed_tiers.h"
 
 namespace sliceplan {
 
@@ -19,10 +20,14 @@ absl::StatusOr<ScheduleOutcome> RunEmbedded(const Query& query, const SearchOpti
                                             uint32_t slice_count, int workers,
                                             const ScheduleOptions& schedule = {});
 
-// The tiers (tiered_search.h) over `workers` in-process workers.
+// The tiers (tiered_search.h) over `workers` in-process workers. With
+// `timer` and a deadline, they run on its thread and the answer comes by
+// the deadline whatever CPU they get (timed_tiers.h); a run the deadline
+// cut off is joined when `timer` is destroyed.
 absl::StatusOr<TieredOutcome> RunEmbeddedTiers(const WideQuery& query, const SearchOptions& options,
                                                const TierRequest& request, int workers,
-                                               const ScheduleOptions& schedule = {});
+                                               const ScheduleOptions& schedule = {},
+                                               TimedTiers* timer = nullptr);
 
 // RunEmbedded's merged result alone.
 absl::StatusOr<OptimizeResult> OptimizeEmbedded(const Query& query, const SearchOptions& options,
