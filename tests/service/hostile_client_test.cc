@@ -479,6 +479,36 @@ TEST(HostileClientTest, AStreamNobodyReadsHoldsNoPlace) {
   EXPECT_LT(progress, 64);
 }
 
+// Streams nobody reads do not hold a stopping coordinator past its
+// grace: one stalled on its progress, two with long searches, then
+// SIGTERM with a 1 s grace.
+TEST(HostileClientTest, UnreadStreamsDoNotHoldShutdownPastTheGrace) {
+  Cluster c = StartCluster(2, {}, {"--shutdown_grace_seconds=1"});
+  ASSERT_TRUE(c.coordinator);
+  grpc::ChannelArguments args;
+  args.SetInt(GRPC_ARG_HTTP2_STREAM_LOOKAHEAD_BYTES, 1024);
+  args.SetInt(GRPC_ARG_HTTP2_BDP_PROBE, 0);
+  auto stalled_stub = v1::Coordinator::NewStub(grpc::CreateCustomChannel(
+      c.coordinator->address(), grpc::InsecureChannelCredentials(), args));
+  v1::OptimizeRequest chatty = Request(testing::MakeQuery(GraphShape::kChain, 20, 2), 64);
+  chatty.mutable_options()->mutable_cross_products()->set_value(false);
+  std::vector<std::unique_ptr<grpc::ClientContext>> contexts;
+  std::vector<std::unique_ptr<grpc::ClientReader<v1::OptimizeEvent>>> readers;
+  for (const v1::OptimizeRequest& r : {chatty, Request(Endless(), 4), Request(Endless(), 8)}) {
+    contexts.push_back(std::make_unique<grpc::ClientContext>());
+    contexts.back()->set_deadline(std::chrono::system_clock::now() + 120s);
+    readers.push_back(stalled_stub->OptimizeStream(contexts.back().get(), r));
+  }
+  std::this_thread::sleep_for(1s);  // every search running, none read
+  const auto start = Clock::now();
+  c.coordinator->Signal(SIGTERM);
+  auto exit = c.coordinator->WaitExit(10s);
+  ASSERT_TRUE(exit.ok()) << exit.status();
+  EXPECT_EQ(*exit, 0);
+  EXPECT_LT(Clock::now() - start, 2500ms);
+  for (auto& context : contexts) context->TryCancel();
+}
+
 // A worker whose health says SERVING while its calls hang: a 1 s request
 // is hedged in time (the delay scales with the deadline, not the server's
 // 2 s), and after two slices lost to hedges the worker is demoted, shown
