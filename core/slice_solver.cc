@@ -56,7 +56,7 @@ absl::Status AllRelationsSaturate(std::span<const Relation> relations) {
   }
   return absl::OutOfRangeError(absl::StrFormat(
       "the join of all %d relations has at least %g rows (the largest value the engine "
-      "represents), so every plan's cout passes it; the largest relations: %s rows; "
+      "represents), so every plan's cost passes it; the largest relations: %s rows; "
       "scale the row estimates down",
       relations.size(), kValueCeiling, largest));
 }

@@ -12,10 +12,12 @@
 #include "core/capacity/capacity_table.h"
 #include "core/capacity/cluster_forecast.h"
 #include "core/capacity/rate_calibration.h"
+#include "core/cost/cluster_range.h"
 #include "core/cost/pareto.h"
 #include "core/merge.h"
 #include "core/model/input_limits.h"
 #include "core/model/status_macros.h"
+#include "core/model/value_range.h"
 #include "core/slice_planner.h"
 #include "core/slice_solver.h"
 #include "tiers/anytime_frontier.h"
@@ -63,6 +65,10 @@ absl::Status CheckTierFits(const WideQuery& query, const SearchOptions& options,
         "(`joins`) is searched by the exact tier (or auto)");
   }
   if (options.cost == CostModelKind::kCluster) {
+    // Parameters that saturate every plan are refused before any search
+    // (docs/numeric-range.md), in every tier.
+    RETURN_IF_ERROR(CheckClusterInRange(query.relations(), options.cluster.params));
+    RETURN_IF_ERROR(CheckCoutInRange(query));  // the last stage's output rows
     if (tier != SearchTier::kAuto && tier != SearchTier::kExact && tier != SearchTier::kAnytime) {
       return absl::InvalidArgumentError(
           absl::StrCat("tier ", TierName(tier),
@@ -257,6 +263,9 @@ class TierRun {
       return Finish(absl::StrCat("exact: ", run.status().message(),
                                  "; the greedy plan stands, not proven optimal"));
     }
+    if (options_.cost == CostModelKind::kCluster && absl::IsOutOfRange(run.status())) {
+      return ClusterPlansSaturated(query_.relations(), options_.cluster.params);
+    }
     ASSIGN_OR_RETURN(ScheduleOutcome outcome, std::move(run));
     TakeExact(std::move(outcome));
     if (request_.tier == SearchTier::kExact) return Finish("exact: requested");
@@ -308,6 +317,8 @@ class TierRun {
             100 * out_.coverage);
       } else if (absl::IsCancelled(run.status())) {
         return run.status();
+      } else if (absl::IsOutOfRange(run.status())) {  // every plan reaches the ceiling
+        return ClusterPlansSaturated(query_.relations(), options_.cluster.params);
       } else {
         reason = absl::StrCat("anytime: the exact Pareto search gave nothing in half the time (",
                               run.status().message(), ")");
@@ -326,6 +337,11 @@ class TierRun {
     const AnytimeFrontierResult r = AnytimeFrontier(query_, options_.cluster, o, control);
     if (absl::IsCancelled(control.status())) return absl::CancelledError("the caller cancelled");
     for (const FrontierPlan& p : r.frontier) plans.push_back(ClusterPlanOf(*p.tree, p.physical));
+    // A plan at the ceiling is no number to report (docs/numeric-range.md).
+    std::erase_if(plans, [](const Plan& p) {
+      return IsSaturated(p.root().metrics.latency_s) || IsSaturated(p.root().metrics.node_seconds);
+    });
+    if (plans.empty()) return ClusterPlansSaturated(query_.relations(), options_.cluster.params);
     std::vector<ClusterCosts> costs;
     for (const Plan& p : plans) costs.push_back(p.root().metrics);
     OptimizeResult& result = out_.schedule.result;

@@ -215,6 +215,31 @@ TEST(TieredSearchTest, RefusalsNameTheReason) {
   EXPECT_NE(exact.status().message().find("64"), std::string::npos) << exact.status();
 }
 
+// Cluster parameters that saturate every plan are refused in every tier,
+// naming them: up front where even the cheapest stage saturates, after the
+// search where only the plans' larger stages do (the anytime tier used to
+// return a set of plans at the ceiling).
+TEST(TieredSearchTest, SaturatingClusterParametersAreRefusedInEveryTier) {
+  const WideQuery q = WideQuery::FromExact(testing::MakeQuery(GraphShape::kRandom, 6, 3));
+  SearchOptions startup = Bushy(true);
+  startup.cost = CostModelKind::kCluster;
+  startup.cluster.params.stage_startup_s = 1e308;
+  SearchOptions slow = Bushy(true);
+  slow.cost = CostModelKind::kCluster;
+  slow.cluster.params.cpu_rows_per_s = 1e-296;
+  slow.cluster.params.net_bytes_per_s = 1e-296;
+  slow.cluster.params.scan_bytes_per_s = 1e-296;
+  for (SearchTier tier : {SearchTier::kAuto, SearchTier::kExact, SearchTier::kAnytime}) {
+    SCOPED_TRACE(TierName(tier));
+    auto out = Tiers(q, startup, tier, 1);
+    EXPECT_TRUE(absl::IsOutOfRange(out.status())) << out.status();
+    EXPECT_NE(out.status().message().find("stage_startup_s"), std::string::npos) << out.status();
+    out = Tiers(q, slow, tier, 1);
+    EXPECT_TRUE(absl::IsOutOfRange(out.status())) << out.status();
+    EXPECT_NE(out.status().message().find("cpu_rows_per_s"), std::string::npos) << out.status();
+  }
+}
+
 TEST(TieredSearchTest, ADisconnectedGraphWithoutCrossProductsIsNotFound) {
   const Query two = testing::MakeQueryOrDie({{"quays", 10, 8}, {"tugs", 20, 8}}, {});
   auto out = Tiers(WideQuery::FromExact(two), Bushy(false), SearchTier::kAuto);
