@@ -223,7 +223,10 @@ CoordinatorService::CoordinatorService(WorkerPool& pool, const CoordinatorConfig
       admission_(config.max_concurrent_requests, config.max_queued_requests),
       metrics_(pool, admission_),
       templates_(templates != nullptr ? std::move(templates)
-                                      : std::move(TemplateDesk::Open(nullptr, {})).value()) {
+                                      : std::move(TemplateDesk::Open(nullptr, {})).value()),
+      // The answer leaves before the caller's own deadline: the run's ends
+      // deadline_margin before it, and the wait at most half that after.
+      timed_tiers_(std::min<Clock::duration>(kTimedTierSlack, config.deadline_margin / 2)) {
   if (config.tokens) tokens_ = std::make_shared<const BearerTokens>(*config.tokens);
 }
 
@@ -254,6 +257,9 @@ absl::StatusOr<TieredOutcome> CoordinatorService::Search(
       TiersOfRequest(request, facts.asked, budget, config_.default_budget_seconds),
       WorkersForSearch(pool_.Workers(), request.max_workers(), facts),
       ScheduleOfRequest(context, request, config_, deadline, request_id, on_progress)};
+  // The place is the run's: a run cut off at the deadline holds it until
+  // it stops, so cut-off runs never pile up past the limit.
+  run.hold = std::make_shared<Admission::Ticket>(*std::move(ticket));
   auto outcome = timed_tiers_.Run(std::move(run));
   facts.search_seconds = std::chrono::duration<double>(Clock::now() - start).count();
   if (!outcome.ok()) return outcome;

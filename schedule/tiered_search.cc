@@ -67,6 +67,7 @@ absl::Status CheckTierFits(const WideQuery& query, const SearchOptions& options,
   if (options.cost == CostModelKind::kCluster) {
     // Parameters that saturate every plan are refused before any search
     // (docs/numeric-range.md), in every tier.
+    RETURN_IF_ERROR(ValidateClusterParams(options.cluster.params));
     RETURN_IF_ERROR(CheckClusterInRange(query.relations(), options.cluster.params));
     RETURN_IF_ERROR(CheckCoutInRange(query));  // the last stage's output rows
     if (tier != SearchTier::kAuto && tier != SearchTier::kExact && tier != SearchTier::kAnytime) {
@@ -245,25 +246,36 @@ class TierRun {
             f.forecast.Describe(), f.pool_seconds, f.places, kClusterRefuseFactor, left));
       }
     }
+    const bool joins = !query_.joins().empty();
+    const bool fallback =
+        schedule_.partial_on_deadline && options_.cost == CostModelKind::kCout && !joins;
+    std::optional<WidePlan> greedy;
+    if (fallback) {  // posted first: a deadline answer is never nothing
+      greedy = GreedyPlan(query_, options_.shape);
+      if (request_.board != nullptr && !IsSaturated(greedy->cost())) {
+        request_.board->Post({*greedy, SearchTier::kGreedy, greedy->cost()});
+      }
+    }
     absl::StatusOr<ScheduleOutcome> run = RunSlices(exact, options_, p, workers_, schedule_);
     if (absl::IsDeadlineExceeded(run.status()) && forecast) {
       run = absl::DeadlineExceededError(absl::StrFormat(
           "%s (the forecast: %s, so about %.3g s over %u places)", run.status().message(),
           forecast->forecast.Describe(), forecast->pool_seconds, forecast->places));
     }
-    const bool joins = !query_.joins().empty();
-    if (absl::IsDeadlineExceeded(run.status()) && schedule_.partial_on_deadline &&
-        options_.cost == CostModelKind::kCout && !joins) {
+    if (absl::IsDeadlineExceeded(run.status()) && fallback) {
       // Not one slice by the deadline: the best plan so far is greedy's
       // (milliseconds), marked unproven, never nothing.
-      out_.plan = GreedyPlan(query_, options_.shape);
+      out_.plan = *std::move(greedy);
       out_.tier = SearchTier::kGreedy;
       out_.proven_optimal = false;
       out_.coverage = 0;
       return Finish(absl::StrCat("exact: ", run.status().message(),
                                  "; the greedy plan stands, not proven optimal"));
     }
-    if (options_.cost == CostModelKind::kCluster && absl::IsOutOfRange(run.status())) {
+    // Only a complete search shows every plan saturates (a partial merge
+    // has seen some slices).
+    if (options_.cost == CostModelKind::kCluster && absl::IsOutOfRange(run.status()) &&
+        !schedule_.partial_on_deadline) {
       return ClusterPlansSaturated(query_.relations(), options_.cluster.params);
     }
     ASSIGN_OR_RETURN(ScheduleOutcome outcome, std::move(run));
@@ -317,8 +329,6 @@ class TierRun {
             100 * out_.coverage);
       } else if (absl::IsCancelled(run.status())) {
         return run.status();
-      } else if (absl::IsOutOfRange(run.status())) {  // every plan reaches the ceiling
-        return ClusterPlansSaturated(query_.relations(), options_.cluster.params);
       } else {
         reason = absl::StrCat("anytime: the exact Pareto search gave nothing in half the time (",
                               run.status().message(), ")");
@@ -478,6 +488,10 @@ class TierRun {
     config.cross_products = options_.cross_products;
     config.block = std::min(query_.size(), 10);
     config.out_of_time = [this] { return Cancelled() || Clock::now() >= deadline_; };
+    config.on_improved = [this](const WidePlan& plan) {
+      if (request_.board != nullptr)
+        request_.board->Post({plan, SearchTier::kIdp, out_.start_cost});
+    };
     config.next_block = [this](int k, double seconds, int searched) {
       return NextBlock(k, seconds, searched);
     };

@@ -3,6 +3,7 @@
 #include <algorithm>
 #include <atomic>
 #include <optional>
+#include <system_error>
 #include <utility>
 
 #include "absl/strings/str_cat.h"
@@ -22,8 +23,11 @@ struct TimedTiers::Flight {
   std::function<void(const ScheduleProgress&)> caller_progress;
   std::atomic<bool> cancel{false};
   absl::Mutex mu;
-  bool answered ABSL_GUARDED_BY(mu) = false;  // the caller has its answer
   std::optional<absl::StatusOr<TieredOutcome>> result ABSL_GUARDED_BY(mu);
+  // Apart from `mu`, so a slow progress target never holds up the wait or
+  // the reaping.
+  absl::Mutex progress_mu;
+  bool answered ABSL_GUARDED_BY(progress_mu) = false;  // the caller has its answer
 
   bool Ended() const ABSL_EXCLUSIVE_LOCKS_REQUIRED(mu) { return result.has_value(); }
 };
@@ -92,50 +96,65 @@ absl::StatusOr<TieredOutcome> TimedTiers::Run(TimedTierInputs in, Work work) {
   f->caller_cancelled = std::move(caller_cancelled);
   f->caller_progress = std::move(caller_progress);
   f->in.request.board = &f->board;
-  f->in.schedule.cancelled = [f] { return f->cancel.load(); };
+  // Weak: the scheduler's own reaper may keep copies of these past the
+  // flight.
+  const std::weak_ptr<Flight> weak = flight;
+  f->in.schedule.cancelled = [weak] {
+    const auto held = weak.lock();
+    return held == nullptr || held->cancel.load();
+  };
   if (f->caller_progress) {
-    f->in.schedule.on_progress = [f](const ScheduleProgress& p) {
-      absl::MutexLock lock(&f->mu);
-      if (!f->answered) f->caller_progress(p);
+    f->in.schedule.on_progress = [weak](const ScheduleProgress& p) {
+      const auto held = weak.lock();
+      if (held == nullptr) return;
+      absl::MutexLock lock(&held->progress_mu);
+      if (!held->answered) held->caller_progress(p);
     };
   }
-  std::thread thread([flight, work = std::move(work)] {
-    std::vector<SliceWorker*> workers;
-    for (const auto& w : flight->in.workers) workers.push_back(w.get());
-    const TimedTierInputs& own = flight->in;
-    absl::StatusOr<TieredOutcome> r =
-        work ? work(own, workers)
-             : RunTiers(own.query, own.options, own.request, workers, own.schedule);
-    absl::MutexLock lock(&flight->mu);
-    flight->result = std::move(r);
-  });
+  std::thread thread;
+  try {
+    thread = std::thread([flight, work = std::move(work)] {
+      std::vector<SliceWorker*> workers;
+      for (const auto& w : flight->in.workers) workers.push_back(w.get());
+      const TimedTierInputs& own = flight->in;
+      absl::StatusOr<TieredOutcome> r =
+          work ? work(own, workers)
+               : RunTiers(own.query, own.options, own.request, workers, own.schedule);
+      flight->in.hold.reset();  // the run has stopped: its place is free
+      absl::MutexLock lock(&flight->mu);
+      flight->result = std::move(r);
+    });
+  } catch (const std::system_error& e) {
+    return absl::ResourceExhaustedError(
+        absl::StrCat("busy: no thread could be started for the search (", e.what(), "); retry"));
+  }
   {
     absl::MutexLock lock(&mu_);
     Reap();
     flights_.emplace_back(flight, std::move(thread));
   }
-  const std::optional<Clock::time_point> deadline = f->in.schedule.deadline;
-  absl::MutexLock lock(&f->mu);
+  absl::StatusOr<TieredOutcome> answer = Wait(*f, start);
+  f->cancel = true;  // a no-op for a run that ended
+  absl::MutexLock lock(&f->progress_mu);
+  f->answered = true;
+  return answer;
+}
+
+absl::StatusOr<TieredOutcome> TimedTiers::Wait(Flight& f, Clock::time_point start) const {
+  const std::optional<Clock::time_point> deadline = f.in.schedule.deadline;
+  absl::MutexLock lock(&f.mu);
   while (true) {
     // Wakes for the result, the caller's cancel (polled) or the deadline.
     Clock::duration wait = kCancelPoll;
-    if (deadline)
+    if (deadline) {
       wait = std::min(wait, std::max(Clock::duration{0}, *deadline + slack_ - Clock::now()));
-    f->mu.AwaitWithTimeout(absl::Condition(f, &Flight::Ended), absl::FromChrono(wait));
-    if (f->Ended()) {
-      f->answered = true;
-      return std::move(*f->result);
     }
-    if (f->caller_cancelled && f->caller_cancelled()) {
-      f->cancel = true;
-      f->answered = true;
+    f.mu.AwaitWithTimeout(absl::Condition(&f, &Flight::Ended), absl::FromChrono(wait));
+    if (f.Ended()) return std::move(*f.result);
+    if (f.caller_cancelled && f.caller_cancelled()) {
       return absl::CancelledError("the caller cancelled");
     }
-    if (deadline && Clock::now() >= *deadline + slack_) {
-      f->cancel = true;
-      f->answered = true;
-      return AtDeadline(f->board.Best(), start);
-    }
+    if (deadline && Clock::now() >= *deadline + slack_) return AtDeadline(f.board.Best(), start);
   }
 }
 

@@ -44,6 +44,9 @@ struct TimedTierInputs {
   TierRequest request;  // its board is the run's own
   std::vector<std::shared_ptr<SliceWorker>> workers;
   ScheduleOptions schedule;
+  // Held until the run itself ends, not the wait (the coordinator's
+  // admission place: a run cut off still counts until it stops).
+  std::shared_ptr<void> hold;
 };
 
 inline constexpr std::chrono::milliseconds kTimedTierSlack{50};
@@ -56,7 +59,8 @@ class TimedTiers {
   TimedTiers& operator=(const TimedTiers&) = delete;
 
   // RunTiers on `in`, answered by in.schedule.deadline + slack (no
-  // deadline: when the run ends). `work` replaces RunTiers (tests); it
+  // deadline: when the run ends). RESOURCE_EXHAUSTED when no thread can
+  // be started. `work` replaces RunTiers (tests); it
   // must post to request.board and poll schedule.cancelled as RunTiers
   // does.
   using Work = std::function<absl::StatusOr<TieredOutcome>(const TimedTierInputs&,
@@ -66,6 +70,8 @@ class TimedTiers {
 
  private:
   struct Flight;
+  // The run's outcome, the caller's cancel or the deadline's answer.
+  absl::StatusOr<TieredOutcome> Wait(Flight& f, std::chrono::steady_clock::time_point start) const;
   // Joins the threads whose runs have ended.
   void Reap() ABSL_EXCLUSIVE_LOCKS_REQUIRED(mu_);
 

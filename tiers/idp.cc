@@ -195,6 +195,7 @@ class BlockImprover {
     ++stats.improved;
     std::vector<int32_t> mapping = Splice(plan, v, units, *answer);
     CostWidePlan(plan, query_);
+    if (config_.on_improved) config_.on_improved(plan);
     return mapping;
   }
 

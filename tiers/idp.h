@@ -59,6 +59,8 @@ struct IdpConfig {
   // Answer a block met again from its first search (the outcome is the
   // same; false searches it again, for the tests that show so).
   bool reuse_answers = true;
+  // Called with the whole plan (costed) after each block that improved it.
+  std::function<void(const WidePlan&)> on_improved;
 };
 
 struct IdpStats {

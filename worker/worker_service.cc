@@ -11,6 +11,7 @@
 #include "core/slice_solver.h"
 #include "google/protobuf/arena.h"
 #include "rpc/call_deadline.h"
+#include "rpc/call_watchdog.h"
 #include "rpc/outcome_label.h"
 #include "rpc/request_id.h"
 #include "rpc/rpc_status.h"
@@ -71,6 +72,11 @@ absl::Status WorkerService::Enqueue() {
   return absl::OkStatus();
 }
 
+void WorkerService::Leave() {
+  absl::MutexLock lock(&mu_);
+  --waiting_;
+}
+
 bool WorkerService::Acquire(grpc::ServerContext* context) {
   absl::MutexLock lock(&mu_);
   const auto free = [this]() ABSL_EXCLUSIVE_LOCKS_REQUIRED(mu_) {
@@ -98,18 +104,38 @@ absl::StatusOr<SliceResult> WorkerService::Solve(
     grpc::ServerUnaryStreamer<v1::SolveSliceRequest, v1::SolveSliceResponse>& stream,
     v1::SolveSliceRequest& request, SearchOptions& options) {
   // Admission before the request is read: a refused call costs no more
-  // than its headers, and a waiting one holds only its transport window.
+  // than its headers. The read is bounded (kRequestReadLimit), so a client
+  // that sends slowly holds a place in the queue for that long at most,
+  // never a running slot.
   RETURN_IF_ERROR(Enqueue());
-  if (!Acquire(context)) return absl::CancelledError("call ended");
-  const absl::Cleanup release = [this] { Release(); };
-  if (!stream.Read(&request)) {
-    return absl::InvalidArgumentError(
-        "the request could not be read: the call ended, a string field holds invalid UTF-8, "
-        "or the bytes are not a SolveSliceRequest");
+  bool read = false;
+  {
+    CallWatchdog watchdog(context, kRequestReadLimit);
+    read = stream.Read(&request);
+    if (watchdog.Disarm()) {
+      Leave();
+      return absl::DeadlineExceededError(absl::StrCat(
+          "the request was not received within ",
+          absl::FormatDuration(absl::FromChrono(kRequestReadLimit)), "; the call was ended"));
+    }
   }
-  ASSIGN_OR_RETURN(Parsed parsed, Parse(request, config_));
+  if (!read) {
+    Leave();
+    if (context->IsCancelled()) return absl::CancelledError("the call ended before its request");
+    return absl::InvalidArgumentError(
+        "the request could not be read: a string field holds invalid UTF-8, or the bytes are "
+        "not a SolveSliceRequest");
+  }
+  absl::StatusOr<Parsed> parsed_or = Parse(request, config_);
+  if (!parsed_or.ok()) {
+    Leave();
+    return parsed_or.status();
+  }
+  Parsed& parsed = *parsed_or;
   options = parsed.options;
   if (parsed.slice.index == config_.test_crash_slice) std::abort();
+  if (!Acquire(context)) return absl::CancelledError("call ended");
+  const absl::Cleanup release = [this] { Release(); };
   const auto hang_until =
       Clock::now() + std::chrono::duration_cast<Clock::duration>(
                          std::chrono::duration<double>(config_.test_hang_seconds));

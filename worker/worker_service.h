@@ -5,16 +5,17 @@
 // on `threads_per_slice` threads; at most `max_queued_slices` further
 // calls wait for a slot (while their deadline allows), and calls past
 // those are refused before their request is read off the connection
-// (RESOURCE_EXHAUSTED with the busy mark of schedule/slice_worker.h). A
-// waiting call holds no request either: it is read (onto an arena) and
-// checked once the call has its slot, so the memory held by queued calls
-// is their transport windows, whatever their requests' size
+// (RESOURCE_EXHAUSTED with the busy mark of schedule/slice_worker.h). An
+// admitted call reads its request (onto an arena, within
+// kRequestReadLimit) and checks it before it waits, so the memory queued
+// calls hold is bounded by the queue times the request size limit
 // (docs/operations.md, "Overload, hangs and slow clients"). One log line
 // and one metrics record per call, with the coordinator's request id
 // (x-request-id). Thread-safe.
 #ifndef SLICEPLAN_WORKER_WORKER_SERVICE_H_
 #define SLICEPLAN_WORKER_WORKER_SERVICE_H_
 
+#include <chrono>
 #include <cstdint>
 #include <memory>
 #include <vector>
@@ -27,6 +28,10 @@
 #include "worker/worker_metrics.h"
 
 namespace sliceplan {
+
+// How long an admitted call may take to send its request: past it the
+// call is ended (DEADLINE_EXCEEDED) and its place in the queue freed.
+inline constexpr std::chrono::seconds kRequestReadLimit{10};
 
 struct WorkerConfig {
   int concurrent_slices = 1;   // slices solved at once
@@ -66,8 +71,9 @@ class WorkerService final
   bool IdleAfterCalls() ABSL_LOCKS_EXCLUDED(mu_);
 
  private:
-  // Admits the call, waits for a slot, reads the request into `request`
-  // (owned by the caller's arena), parses and solves; the call's outcome.
+  // Admits the call, reads the request into `request` (owned by the
+  // caller's arena) and parses it, waits for a slot and solves; the
+  // call's outcome.
   absl::StatusOr<SliceResult> Solve(
       grpc::ServerContext* context,
       grpc::ServerUnaryStreamer<v1::SolveSliceRequest, v1::SolveSliceResponse>& stream,
@@ -78,6 +84,8 @@ class WorkerService final
   // Waits (from the queue) for a free slot; false when the call ended
   // first, its place in the queue given back.
   bool Acquire(grpc::ServerContext* context) ABSL_LOCKS_EXCLUDED(mu_);
+  // Gives back a place in the queue without running.
+  void Leave() ABSL_LOCKS_EXCLUDED(mu_);
   void Release() ABSL_LOCKS_EXCLUDED(mu_);
 
   const WorkerConfig config_;
