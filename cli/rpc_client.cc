@@ -101,7 +101,7 @@ absl::StatusOr<TieredOutcome> OptimizeRemote(
       const v1::Progress& p = event.progress();
       ScheduleProgress progress{p.slices_done(), p.slice_count(), std::nullopt,
                                 p.elapsed_seconds()};
-      if (p.has_best_cost()) progress.best_cost = p.best_cost().value();
+      if (p.has_best_cost()) progress.best_cost = p.best_cost();
       on_progress(progress);
     }
     if (event.has_result()) result = event.result();

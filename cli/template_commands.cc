@@ -176,7 +176,7 @@ PrepareFigures FiguresOf(const v1::PrepareReport& r) {
   f.distinct_optima = r.distinct_optima();
   f.max_ratio = r.max_ratio();
   f.worst_ratio = r.max_ratio_on_grid();
-  if (r.has_box_ratio_bound()) f.box_ratio_bound = r.box_ratio_bound().value();
+  if (r.has_box_ratio_bound()) f.box_ratio_bound = r.box_ratio_bound();
   f.seconds = r.seconds();
   return f;
 }

@@ -332,7 +332,7 @@ grpc::Status CoordinatorService::OptimizeStream(grpc::ServerContext* context,
     v1::Progress* out = event.mutable_progress();
     out->set_slices_done(p.slices_done);
     out->set_slice_count(p.slice_count);
-    if (p.best_cost) out->mutable_best_cost()->set_value(*p.best_cost);
+    if (p.best_cost) out->set_best_cost(*p.best_cost);
     out->set_elapsed_seconds(p.elapsed_seconds);
     progress.Offer(std::move(event));
   });

@@ -115,7 +115,7 @@ bool RpcWorker::ProbeAnswers(std::chrono::milliseconds timeout) {
   for (const char* name : {"probe_a", "probe_b"}) {
     v1::Relation* r = probe.mutable_query()->add_relations();
     r->set_name(name);
-    r->mutable_rows()->set_value(10);
+    r->set_rows(10);
   }
   probe.set_slice_count(1);
   grpc::ClientContext context;

@@ -73,7 +73,7 @@ v1::PrepareReport ReportOf(const PrepareFigures& f) {
   r.set_distinct_optima(f.distinct_optima);
   r.set_max_ratio(f.max_ratio);
   r.set_max_ratio_on_grid(f.worst_ratio);
-  if (f.box_ratio_bound) r.mutable_box_ratio_bound()->set_value(*f.box_ratio_bound);
+  if (f.box_ratio_bound) r.set_box_ratio_bound(*f.box_ratio_bound);
   r.set_seconds(f.seconds);
   return r;
 }

@@ -20,8 +20,8 @@ absl::StatusOr<Relation> RelationFromProto(const v1::Relation& m, int i) {
                                                    ").rows: missing; every relation "
                                                    "needs an estimated row count"));
   }
-  Relation rel{m.name(), m.rows().value(), kDefaultRowBytes};
-  if (m.has_row_bytes()) rel.row_bytes = m.row_bytes().value();
+  Relation rel{m.name(), m.rows(), kDefaultRowBytes};
+  if (m.has_row_bytes()) rel.row_bytes = m.row_bytes();
   return rel;
 }
 
@@ -56,7 +56,7 @@ absl::StatusOr<WidePredicate> PredicateFromProto(
   if (!m.has_selectivity()) {
     return absl::InvalidArgumentError(absl::StrCat("predicates[", j, "].selectivity: missing"));
   }
-  p.selectivity = m.selectivity().value();
+  p.selectivity = m.selectivity();
   return p;
 }
 
@@ -75,7 +75,7 @@ absl::StatusOr<ListedRows> ListedFromProto(
     if (!m.has_rows()) {
       return absl::InvalidArgumentError(absl::StrCat("cardinalities[", i, "].rows: missing"));
     }
-    set.rows = m.rows().value();
+    set.rows = m.rows();
     sets.push_back(set);
   }
   return ListedRows::Create(static_cast<int>(message.relations_size()), std::move(sets));
@@ -116,7 +116,7 @@ absl::StatusOr<std::vector<JoinOp>> JoinsFromProto(
     if (!m.predicate().has_selectivity()) {
       return absl::InvalidArgumentError(at + ".predicate.selectivity: missing");
     }
-    op.selectivity = m.predicate().selectivity().value();
+    op.selectivity = m.predicate().selectivity();
     ops.push_back(op);
   }
   return ops;
@@ -227,20 +227,20 @@ v1::Query WideQueryToProto(const WideQuery& query) {
   for (const Relation& rel : query.relations()) {
     v1::Relation* r = m.add_relations();
     r->set_name(rel.name);
-    r->mutable_rows()->set_value(rel.rows);
-    r->mutable_row_bytes()->set_value(rel.row_bytes);
+    r->set_rows(rel.rows);
+    r->set_row_bytes(rel.row_bytes);
   }
   for (const WidePredicate& p : query.predicates()) {
     v1::Predicate* out = m.add_predicates();
     for (const int32_t r : p.relations) out->add_relations(query.relation(r).name);
-    out->mutable_selectivity()->set_value(p.selectivity);
+    out->set_selectivity(p.selectivity);
   }
   if (query.listed() != nullptr) {
     for (const ListedSet& set : query.listed()->sets()) {
       v1::SetRows* out = m.add_cardinalities();
       ForEachMember(set.relations,
                     [&](RelationId r) { out->add_relations(query.relation(r.value).name); });
-      out->mutable_rows()->set_value(set.rows);
+      out->set_rows(set.rows);
     }
   }
   for (const JoinOp& op : query.joins()) {
@@ -252,7 +252,7 @@ v1::Query WideQueryToProto(const WideQuery& query) {
     names(op.left, out->mutable_left());
     names(op.right, out->mutable_right());
     names(op.predicate, out->mutable_predicate()->mutable_relations());
-    out->mutable_predicate()->mutable_selectivity()->set_value(op.selectivity);
+    out->mutable_predicate()->set_selectivity(op.selectivity);
   }
   return m;
 }

@@ -173,9 +173,9 @@ absl::StatusOr<Query> QueryTemplate::At(std::span<const double> values) const {
   for (const Use& u : uses_) {
     const double v = values[u.parameter];
     if (u.rows) {
-      m.mutable_relations(u.index)->mutable_rows()->set_value(v);
+      m.mutable_relations(u.index)->set_rows(v);
     } else {
-      m.mutable_predicates(u.index)->mutable_selectivity()->set_value(v);
+      m.mutable_predicates(u.index)->set_selectivity(v);
     }
   }
   return QueryFromProto(m);

@@ -167,10 +167,10 @@ absl::Status ClusterParamsFromProto(const v1::ClusterParams& m, ClusterParams& p
   if (m.sample_rates_size() > 0) {
     p.sample_rates.assign(m.sample_rates().begin(), m.sample_rates().end());
   }
-  if (m.has_net_bytes_per_s()) p.net_bytes_per_s = m.net_bytes_per_s().value();
-  if (m.has_cpu_rows_per_s()) p.cpu_rows_per_s = m.cpu_rows_per_s().value();
-  if (m.has_scan_bytes_per_s()) p.scan_bytes_per_s = m.scan_bytes_per_s().value();
-  if (m.has_stage_startup_s()) p.stage_startup_s = m.stage_startup_s().value();
+  if (m.has_net_bytes_per_s()) p.net_bytes_per_s = m.net_bytes_per_s();
+  if (m.has_cpu_rows_per_s()) p.cpu_rows_per_s = m.cpu_rows_per_s();
+  if (m.has_scan_bytes_per_s()) p.scan_bytes_per_s = m.scan_bytes_per_s();
+  if (m.has_stage_startup_s()) p.stage_startup_s = m.stage_startup_s();
   return absl::OkStatus();
 }
 
@@ -310,7 +310,7 @@ absl::StatusOr<SearchOptions> SearchOptionsFromProto(const v1::SearchOptions& m)
   SearchOptions out;
   ASSIGN_OR_RETURN(out.shape, ShapeFromProto(m.shape()));
   ASSIGN_OR_RETURN(out.cost, CostModelFromProto(m.cost()));
-  out.cross_products = !m.has_cross_products() || m.cross_products().value();
+  out.cross_products = !m.has_cross_products() || m.cross_products();
   if (m.memo_limit_bytes() != 0) out.memo_limit_bytes = m.memo_limit_bytes();
   RETURN_IF_ERROR(ClusterParamsFromProto(m.cluster(), out.cluster.params));
   RETURN_IF_ERROR(ParetoOptionsFromProto(m, out));
@@ -324,7 +324,7 @@ v1::SearchOptions SearchOptionsToProto(const SearchOptions& options) {
   v1::SearchOptions m;
   m.set_shape(options.shape == PlanShape::kBushy ? v1::PLAN_SHAPE_BUSHY : v1::PLAN_SHAPE_LEFT_DEEP);
   m.set_cost(v1::COST_MODEL_COUT);
-  m.mutable_cross_products()->set_value(options.cross_products);
+  m.set_cross_products(options.cross_products);
   m.set_memo_limit_bytes(options.memo_limit_bytes);
   if (options.cost == CostModelKind::kCluster) {
     m.set_cost(v1::COST_MODEL_CLUSTER);
@@ -332,10 +332,10 @@ v1::SearchOptions SearchOptionsToProto(const SearchOptions& options) {
     v1::ClusterParams* c = m.mutable_cluster();
     for (int n : p.node_counts) c->add_node_counts(static_cast<uint32_t>(n));
     for (double f : p.sample_rates) c->add_sample_rates(f);
-    c->mutable_net_bytes_per_s()->set_value(p.net_bytes_per_s);
-    c->mutable_cpu_rows_per_s()->set_value(p.cpu_rows_per_s);
-    c->mutable_scan_bytes_per_s()->set_value(p.scan_bytes_per_s);
-    c->mutable_stage_startup_s()->set_value(p.stage_startup_s);
+    c->set_net_bytes_per_s(p.net_bytes_per_s);
+    c->set_cpu_rows_per_s(p.cpu_rows_per_s);
+    c->set_scan_bytes_per_s(p.scan_bytes_per_s);
+    c->set_stage_startup_s(p.stage_startup_s);
     for (Metric o : {Metric::kLatency, Metric::kNodeSeconds, Metric::kCompleteness}) {
       if (options.cluster.objectives.has(ObjectiveBit(o))) m.add_objectives(MetricToProto(o));
     }

@@ -7,18 +7,21 @@ CERT_DIR holds ca.pem, client.pem, client.key and tokens (one token per
 line), as deploy/make-certs writes them (.local-cluster/certs for
 deploy/local-cluster). SECONDS (default 10) is the request's deadline: the
 best plan found by then comes back, marked not proven optimal, never a
-time error. Needs Debian's python3-grpcio and python3-grpc-tools (the stubs
-are generated from proto/ at start).
+time error. Needs Debian's python3-grpcio, and protoc with
+grpc_python_plugin (protobuf-compiler, protobuf-compiler-grpc): the stubs
+are generated from proto/ at start.
 """
 import os
+import shutil
+import subprocess
 import sys
 import tempfile
 
 try:
-    from grpc_tools import protoc
+    import grpc  # noqa: F401
 except ImportError:
-    # Debian's python3-grpcio and python3-grpc-tools are for Debian's own
-    # python3; another python3 first on PATH (a pyenv, a venv) lacks them.
+    # Debian's python3-grpcio is for Debian's own python3; another python3
+    # first on PATH (a pyenv, a venv) lacks it.
     if os.path.exists("/usr/bin/python3") and sys.executable != "/usr/bin/python3":
         os.execv("/usr/bin/python3", ["/usr/bin/python3"] + sys.argv)
     raise
@@ -28,10 +31,10 @@ PROTO_DIR = os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "..",
 
 def load_stubs():
     out = tempfile.mkdtemp(prefix="sliceplan-stubs-")
-    well_known = os.path.join(os.path.dirname(protoc.__file__), "_proto")
-    if protoc.main(["protoc", "-I" + PROTO_DIR, "-I" + well_known, "--python_out=" + out,
-                    "--grpc_python_out=" + out, PROTO_DIR + "/query.proto",
-                    PROTO_DIR + "/sliceplan.proto"]) != 0:
+    plugin = shutil.which("grpc_python_plugin") or "/usr/bin/grpc_python_plugin"
+    if subprocess.run(["protoc", "-I" + PROTO_DIR, "--python_out=" + out,
+                       "--grpc_python_out=" + out, "--plugin=protoc-gen-grpc_python=" + plugin,
+                       PROTO_DIR + "/query.proto", PROTO_DIR + "/sliceplan.proto"]).returncode != 0:
         sys.exit("protoc failed on " + PROTO_DIR)
     sys.path.insert(0, out)
 

@@ -1,28 +1,29 @@
 """The foreign-client check: a client that is not ours (Debian's
-python3-grpcio, stubs generated from proto/ by python3-grpc-tools at test
-time) calls the coordinator and prints the plan tree it gets back.
+python3-grpcio, stubs generated from proto/ at test time by Debian's protoc
+and grpc_python_plugin) calls the coordinator and prints the plan tree it
+gets back.
 
 usage: foreign_client.py COORDINATOR_ADDRESS PROTO_DIR QUERY.json SLICES
            [CA.pem CLIENT.pem CLIENT.key TOKENS]
 With the last four it speaks mutual TLS and sends the first bearer token.
 """
 import os
+import shutil
+import subprocess
 import sys
 import tempfile
-
-from grpc_tools import protoc
 
 
 def main():
     address, proto_dir, query_path, slices = sys.argv[1:5]
     secure = sys.argv[5:9]
     out = tempfile.mkdtemp(prefix="sliceplan-stubs-")
-    well_known = os.path.join(os.path.dirname(protoc.__file__), "_proto")
-    status = protoc.main(["protoc", "-I" + proto_dir, "-I" + well_known,
-                          "--python_out=" + out,
-                          "--grpc_python_out=" + out,
-                          proto_dir + "/query.proto", proto_dir + "/sliceplan.proto"])
-    if status != 0:
+    plugin = shutil.which("grpc_python_plugin") or "/usr/bin/grpc_python_plugin"
+    status = subprocess.run(["protoc", "-I" + proto_dir, "--python_out=" + out,
+                             "--grpc_python_out=" + out,
+                             "--plugin=protoc-gen-grpc_python=" + plugin,
+                             proto_dir + "/query.proto", proto_dir + "/sliceplan.proto"])
+    if status.returncode != 0:
         sys.exit("protoc failed")
     sys.path.insert(0, out)
     import grpc

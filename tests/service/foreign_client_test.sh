@@ -7,8 +7,6 @@ set -u
 build=$1
 src=$2
 python=/usr/bin/python3  # Debian's, which sees python3-grpcio
-# Stubs from python3-grpc-tools' older protoc need the pure-Python runtime.
-export PROTOCOL_BUFFERS_PYTHON_IMPLEMENTATION=python
 state=$(mktemp -d)
 export SLICEPLAN_CLUSTER_DIR=$state SLICEPLAN_BUILD=$build
 trap '"$src/deploy/local-cluster" stop >/dev/null; rm -rf "$state"' EXIT

@@ -442,7 +442,7 @@ TEST(HostileClientTest, AStreamNobodyReadsHoldsNoPlace) {
   // 64 slices of a 20-relation chain without cross products (each slice
   // quick): a progress event each, past the window.
   v1::OptimizeRequest heavy = Request(testing::MakeQuery(GraphShape::kChain, 20, 2), 64);
-  heavy.mutable_options()->mutable_cross_products()->set_value(false);
+  heavy.mutable_options()->set_cross_products(false);
   auto reader = stalled_stub->OptimizeStream(&stalled, heavy);
   // The stalled stream holds the place first: its slices are being solved.
   const auto solved = [&] {
@@ -491,7 +491,7 @@ TEST(HostileClientTest, UnreadStreamsDoNotHoldShutdownPastTheGrace) {
   auto stalled_stub = v1::Coordinator::NewStub(grpc::CreateCustomChannel(
       c.coordinator->address(), grpc::InsecureChannelCredentials(), args));
   v1::OptimizeRequest chatty = Request(testing::MakeQuery(GraphShape::kChain, 20, 2), 64);
-  chatty.mutable_options()->mutable_cross_products()->set_value(false);
+  chatty.mutable_options()->set_cross_products(false);
   std::vector<std::unique_ptr<grpc::ClientContext>> contexts;
   std::vector<std::unique_ptr<grpc::ClientReader<v1::OptimizeEvent>>> readers;
   for (const v1::OptimizeRequest& r : {chatty, Request(Endless(), 4), Request(Endless(), 8)}) {

@@ -86,7 +86,7 @@ std::vector<v1::OptimizeRequest> InvalidRequests() {
   for (auto& r : out) *r.mutable_query() = base;
   out[0].mutable_query()->mutable_relations(1)->set_name(base.relations(0).name());
   out[1].mutable_query()->mutable_predicates(0)->add_relations("no_such_relation");
-  out[2].mutable_query()->mutable_relations(2)->mutable_rows()->set_value(std::nan(""));
+  out[2].mutable_query()->mutable_relations(2)->set_rows(std::nan(""));
   out[3].set_slice_count(3);
   out[4].set_deadline_seconds(-1);
   return out;
@@ -148,7 +148,7 @@ class LoadClient {
   void Exact(const Known& k, const char* kind) {
     v1::OptimizeRequest r;
     *r.mutable_query() = QueryToProto(k.query);
-    r.mutable_options()->mutable_cross_products()->set_value(k.cross_products);
+    r.mutable_options()->set_cross_products(k.cross_products);
     r.set_tier(v1::TIER_EXACT);
     v1::OptimizeResponse out;
     grpc::ClientContext context;
@@ -191,7 +191,7 @@ class LoadClient {
     const Query q = testing::MakeQuery(GraphShape::kRandom, 40, 1 + i % 7);
     v1::OptimizeRequest r;
     *r.mutable_query() = QueryToProto(q);
-    r.mutable_options()->mutable_cross_products()->set_value(false);
+    r.mutable_options()->set_cross_products(false);
     r.set_deadline_seconds(0.5);
     const v1::OptimizeResponse out = Timed(r, 0.5, grpc::StatusCode::OK, "past reach");
     if (out.plan().nodes_size() > 0 && !PlanFromProto(out.plan(), q, CostModelKind::kCout).ok()) {

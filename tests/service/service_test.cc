@@ -400,7 +400,7 @@ TEST(ServiceTest, BadRpcInputIsInvalidArgumentNamingTheField) {
   v1::SolveSliceRequest bad_query;
   *bad_query.mutable_query() = query;
   bad_query.set_slice_count(1);
-  bad_query.mutable_query()->mutable_relations(2)->mutable_rows()->set_value(-3);
+  bad_query.mutable_query()->mutable_relations(2)->set_rows(-3);
   s = Call(*worker, &v1::SliceWorker::Stub::SolveSlice, bad_query, &slice_out);
   EXPECT_EQ(s.error_code(), grpc::StatusCode::INVALID_ARGUMENT);
   EXPECT_NE(s.error_message().find("query.relations[2] (r2).rows: must be a finite number > 0"),
