@@ -29,6 +29,7 @@ function main(argv) {
   const seconds = argv.length === 4 ? Number(argv[3]) : 10;
   const definition = protoLoader.loadSync(path.join(PROTO_DIR, 'sliceplan.proto'), {
     includeDirs: [PROTO_DIR], keepCase: true, enums: String, longs: Number, oneofs: true,
+    defaults: true,  // a join's left input 0 is a value, not an absent field
   });
   const v1 = grpc.loadPackageDefinition(definition).sliceplan.v1;
   const read = (name) => fs.readFileSync(path.join(certs, name));
@@ -43,7 +44,14 @@ function main(argv) {
   const token = read('tokens').toString().split(/\s+/).filter((t) => t && !t.startsWith('#'))[0];
   const credentials = grpc.credentials.createSsl(read('ca.pem'), read('client.key'),
                                                  read('client.pem'));
-  const client = new v1.Coordinator(address, credentials);
+  // Node will not send an IP address as the TLS server name (RFC 6066):
+  // for an address by IP, check the certificate for SLICEPLAN_TLS_NAME
+  // (default localhost, which deploy/make-certs puts in every certificate).
+  const host = address.replace(/:\d+$/, '').replace(/^\[|\]$/g, '');
+  const ip = /^[\d.]+$/.test(host) || host.includes(':');
+  const name = process.env.SLICEPLAN_TLS_NAME || 'localhost';
+  const options = ip ? {'grpc.ssl_target_name_override': name} : {};
+  const client = new v1.Coordinator(address, credentials, options);
   const metadata = new grpc.Metadata();
   metadata.set('authorization', 'Bearer ' + token);
   const deadline = new Date(Date.now() + (seconds + 5) * 1000);
