@@ -87,15 +87,44 @@ std::string RenderCapacityJson(const CapacityTable& t, const CapacityInfo& info)
   return out;
 }
 
+namespace {
+
+constexpr const char* kMeets = "#2ca02c";
+constexpr const char* kMisses = "#d62728";
+
+std::string Dot(const char* fill) {
+  return absl::StrFormat("<circle r=\"5\" fill=\"%s\" stroke=\"#222\"/>", fill);
+}
+
+std::string Plural(int n, const char* one) {
+  return absl::StrFormat("%d %s%s", n, one, n == 1 ? "" : "s");
+}
+
+// The first row past which the slices stop growing: more workers than
+// slices, so the extra ones idle and the time stays flat; none when every
+// row has a slice per worker.
+const CapacityRow* FlatFrom(const CapacityTable& t) {
+  for (size_t i = 1; i < t.rows.size(); ++i) {
+    if (t.rows[i].slices == t.rows[i - 1].slices) return &t.rows[i - 1];
+  }
+  return nullptr;
+}
+
+}  // namespace
+
 std::string CapacitySvg(const CapacityTable& t, const CapacityInfo& info) {
   double lo = t.deadline_seconds, hi = t.deadline_seconds;
   for (const CapacityRow& r : t.rows) lo = std::min(lo, r.seconds), hi = std::max(hi, r.seconds);
-  SvgChart chart(
-      absl::StrFormat("Predicted %s time, %d relations",
-                      Cluster(info) ? "cluster Pareto search" : "exact search", info.relations),
-      MakeChartAxis(1, kCapacityMaxWorkers, true), "workers", MakeChartAxis(lo, hi, true),
-      Cluster(info) ? "forecast seconds (work split evenly over the slices)"
-                    : "predicted seconds (slowest slice x rounds)");
+  ChartAxis x = MakeChartAxis(1, kCapacityMaxWorkers, true);
+  for (const CapacityRow& r : t.rows) x.fixed_ticks.push_back(r.workers);
+  ChartAxis y = MakeChartAxis(lo, hi, true);
+  y.seconds = true;
+  SvgChart chart(absl::StrFormat("Predicted %s time, %d relations, deadline %s",
+                                 Cluster(info) ? "cluster Pareto search" : "exact search",
+                                 info.relations, HumanSeconds(t.deadline_seconds)),
+                 x, "workers (one slice at a time each)", y,
+                 Cluster(info) ? "forecast time (work split evenly over the slices)"
+                               : "predicted time (slowest slice x rounds)");
   std::string s;
   std::string points;
   for (const CapacityRow& r : t.rows) {
@@ -105,28 +134,66 @@ std::string CapacitySvg(const CapacityTable& t, const CapacityInfo& info) {
                         "<polyline points=\"%s\" fill=\"none\" stroke=\"#1f77b4\" "
                         "stroke-width=\"2\"/>\n",
                         points);
+  const double left = SvgChart::kLeft, right = SvgChart::kLeft + chart.PlotWidth();
+  const double dy = chart.Y(t.deadline_seconds);
+  absl::StrAppendFormat(&s,
+                        "<line x1=\"%.0f\" y1=\"%.1f\" x2=\"%.0f\" y2=\"%.1f\" stroke=\"%s\" "
+                        "stroke-dasharray=\"6 4\" stroke-width=\"1.5\"/>\n",
+                        left, dy, right, dy, kMisses);
   for (const CapacityRow& r : t.rows) {
     const bool meets = r.fits_memo && r.seconds <= t.deadline_seconds;
     absl::StrAppendFormat(&s,
                           "<circle cx=\"%.1f\" cy=\"%.1f\" r=\"5\" fill=\"%s\" stroke=\"#222\">"
-                          "<title>%d workers: %u slices, %.4g s, %s per worker</title></circle>\n",
-                          chart.X(r.workers), chart.Y(r.seconds), meets ? "#2ca02c" : "#d62728",
-                          r.workers, r.slices, r.seconds,
+                          "<title>%s: %u slices, %s, %s per worker</title></circle>\n",
+                          chart.X(r.workers), chart.Y(r.seconds), meets ? kMeets : kMisses,
+                          Plural(r.workers, "worker"), r.slices, HumanSeconds(r.seconds),
                           Cluster(info) ? "memo not forecast" : Bytes(r.memo_bytes));
   }
-  const double y = chart.Y(t.deadline_seconds);
-  absl::StrAppendFormat(&s,
-                        "<line x1=\"%.0f\" y1=\"%.1f\" x2=\"%.0f\" y2=\"%.1f\" stroke=\"#d62728\" "
-                        "stroke-dasharray=\"6 4\" stroke-width=\"1.5\"/>"
-                        "<text x=\"%.0f\" y=\"%.1f\" fill=\"#d62728\">deadline %.3g s</text>\n",
-                        SvgChart::kLeft, y, SvgChart::kLeft + chart.PlotWidth(), y,
-                        SvgChart::kLeft + chart.PlotWidth() + 8, y + 4, t.deadline_seconds);
-  if (t.enough_workers) {
+  if (const CapacityRow* flat = FlatFrom(t)) {
+    // A dotted line where the slices stop growing, explained above the
+    // flat tail, right of the line.
+    const double fx = chart.X(flat->workers);
+    const double ty = chart.Y(flat->seconds) - 44;
     absl::StrAppendFormat(
-        &s, "<text x=\"%.0f\" y=\"%.0f\" fill=\"#2ca02c\">enough: %d workers</text>\n",
-        SvgChart::kLeft + chart.PlotWidth() + 8, SvgChart::kTop + 20, *t.enough_workers);
+        &s,
+        "<line x1=\"%.1f\" y1=\"%.0f\" x2=\"%.1f\" y2=\"%.0f\" stroke=\"#888\" "
+        "stroke-dasharray=\"2 3\"/><text x=\"%.1f\" y=\"%.1f\" fill=\"#555\">"
+        "<tspan x=\"%.1f\">past %s: no more</tspan><tspan x=\"%.1f\" dy=\"15\">slices (%u at "
+        "most), the rest</tspan><tspan x=\"%.1f\" dy=\"15\">idle</tspan></text>\n",
+        fx, SvgChart::kTop, fx, SvgChart::kTop + chart.PlotHeight(), fx + 8, ty, fx + 8,
+        Plural(flat->workers, "worker"), fx + 8, flat->slices, fx + 8);
+  }
+  for (const CapacityRow& r : t.rows) {
+    if (t.enough_workers != r.workers) continue;
+    const double cx = chart.X(r.workers), cy = chart.Y(r.seconds);
+    absl::StrAppendFormat(&s,
+                          "<circle cx=\"%.1f\" cy=\"%.1f\" r=\"10\" fill=\"none\" stroke=\"%s\" "
+                          "stroke-width=\"2.5\"/><text x=\"%.1f\" y=\"%.1f\" fill=\"%s\" "
+                          "stroke=\"white\" stroke-width=\"3\" paint-order=\"stroke\" "
+                          "font-weight=\"bold\">enough: %s</text>\n",
+                          cx, cy, kMeets, cx + 14, cy + 22, kMeets, Plural(r.workers, "worker"));
+  }
+  if (!t.enough_workers && !t.rows.empty()) {
+    absl::StrAppendFormat(&s,
+                          "<text x=\"%.0f\" y=\"%.0f\" fill=\"%s\" font-weight=\"bold\" "
+                          "text-anchor=\"middle\">no pool of up to %s meets the deadline</text>\n",
+                          left + chart.PlotWidth() / 2, SvgChart::kTop + 20, kMisses,
+                          Plural(t.rows.back().workers, "worker"));
   }
   chart.Append(s);
+  chart.Legend(0, Dot(kMeets), "meets the deadline");
+  chart.Legend(1, Dot(kMisses), Cluster(info) ? "misses it" : "misses it (time or memo)");
+  chart.Legend(2,
+               absl::StrFormat("<line x1=\"-9\" x2=\"9\" stroke=\"%s\" stroke-dasharray=\"6 4\" "
+                               "stroke-width=\"1.5\"/>",
+                               kMisses),
+               "deadline " + HumanSeconds(t.deadline_seconds));
+  if (t.enough_workers) {
+    chart.Legend(3,
+                 absl::StrFormat(
+                     "<circle r=\"9\" fill=\"none\" stroke=\"%s\" stroke-width=\"2.5\"/>", kMeets),
+                 "fewest workers enough");
+  }
   return chart.Finish();
 }
 

@@ -11,7 +11,48 @@ namespace {
 
 std::string Fmt(double v) { return absl::StrFormat("%.4g", v); }
 
+// Round durations for a time axis, in seconds; the major ones first
+// (each a factor of about 10 above the last), then the ones between.
+constexpr double kMinute = 60, kHour = 3600, kDay = 86400;
+const std::vector<double>& MajorDurations() {
+  static const auto* v = new std::vector<double>{
+      1e-6,       1e-5,        1e-4,         1e-3,       1e-2,       0.1,  1,
+      10,         kMinute,     10 * kMinute, kHour,      10 * kHour, kDay, 10 * kDay,
+      100 * kDay, 1000 * kDay, 1e4 * kDay,   1e5 * kDay, 1e6 * kDay};
+  return *v;
+}
+const std::vector<double>& MinorDurations() {
+  static const auto* v = new std::vector<double>{
+      2e-3,      5e-3,      2e-2,     5e-2,        0.2,         0.5,          2,
+      5,         20,        30,       2 * kMinute, 5 * kMinute, 20 * kMinute, 30 * kMinute,
+      2 * kHour, 5 * kHour, 2 * kDay, 5 * kDay,    20 * kDay,   50 * kDay};
+  return *v;
+}
+
+std::vector<double> TimeTicks(double lo, double hi) {
+  std::vector<double> t;
+  const auto add = [&](const std::vector<double>& from) {
+    for (double d : from) {
+      if (d >= lo * 0.9999 && d <= hi * 1.0001) t.push_back(d);
+    }
+  };
+  add(MajorDurations());
+  if (t.size() < 4) add(MinorDurations());
+  std::sort(t.begin(), t.end());
+  return t;
+}
+
 }  // namespace
+
+std::string HumanSeconds(double s) {
+  const auto f = [](double v, const char* unit) { return absl::StrFormat("%.3g %s", v, unit); };
+  if (s < 1e-3) return f(s * 1e6, "us");
+  if (s < 1) return f(s * 1e3, "ms");
+  if (s < kMinute) return f(s, "s");
+  if (s < kHour) return f(s / kMinute, "min");
+  if (s < kDay) return f(s / kHour, "h");
+  return f(s / kDay, s < 2 * kDay ? "day" : "days");
+}
 
 double ChartAxis::Norm(double v) const {
   return log ? (std::log10(v) - std::log10(lo)) / (std::log10(hi) - std::log10(lo))
@@ -19,6 +60,8 @@ double ChartAxis::Norm(double v) const {
 }
 
 std::vector<double> ChartAxis::Ticks() const {
+  if (!fixed_ticks.empty()) return fixed_ticks;
+  if (seconds) return TimeTicks(lo, hi);
   std::vector<double> t;
   if (log) {  // decades, or 1-2-5 steps when fewer than three decades show
     for (const double step : {1.0, 2.0, 5.0}) {
@@ -81,13 +124,15 @@ SvgChart::SvgChart(const std::string& title, ChartAxis x, const std::string& x_t
     absl::StrAppendFormat(&svg_,
                           "<line x1=\"%.1f\" y1=\"%.0f\" x2=\"%.1f\" y2=\"%.0f\" stroke=\"#ddd\"/>"
                           "<text x=\"%.1f\" y=\"%.0f\" text-anchor=\"middle\">%s</text>\n",
-                          X(t), kTop, X(t), kTop + ph, X(t), kTop + ph + 18, Fmt(t));
+                          X(t), kTop, X(t), kTop + ph, X(t), kTop + ph + 18,
+                          x_.seconds ? HumanSeconds(t) : Fmt(t));
   }
   for (double t : y_.Ticks()) {
     absl::StrAppendFormat(&svg_,
                           "<line x1=\"%.0f\" y1=\"%.1f\" x2=\"%.0f\" y2=\"%.1f\" stroke=\"#ddd\"/>"
                           "<text x=\"%.0f\" y=\"%.1f\" text-anchor=\"end\">%s</text>\n",
-                          kLeft, Y(t), kLeft + pw, Y(t), kLeft - 6, Y(t) + 4, Fmt(t));
+                          kLeft, Y(t), kLeft + pw, Y(t), kLeft - 6, Y(t) + 4,
+                          y_.seconds ? HumanSeconds(t) : Fmt(t));
   }
   absl::StrAppendFormat(&svg_, "<text x=\"%.0f\" y=\"%.0f\" text-anchor=\"middle\">%s%s</text>\n",
                         kLeft + pw / 2, kHeight - 22, SvgEscape(x_title),
@@ -96,6 +141,14 @@ SvgChart::SvgChart(const std::string& title, ChartAxis x, const std::string& x_t
                         "<text transform=\"translate(24 %.0f) rotate(-90)\" "
                         "text-anchor=\"middle\">%s%s</text>\n",
                         kTop + ph / 2, SvgEscape(y_title), y_.log ? ", log scale" : "");
+}
+
+void SvgChart::Legend(int row, const std::string& mark, const std::string& text) {
+  const double x = kLeft + PlotWidth() + 16, y = kTop + 10 + 20 * row;
+  absl::StrAppendFormat(&svg_,
+                        "<g transform=\"translate(%.0f %.0f)\">%s</g>"
+                        "<text x=\"%.0f\" y=\"%.0f\">%s</text>\n",
+                        x + 8, y, mark, x + 22, y + 4, SvgEscape(text));
 }
 
 double SvgChart::X(double v) const { return kLeft + x_.Norm(v) * PlotWidth(); }

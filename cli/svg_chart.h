@@ -14,6 +14,12 @@ namespace sliceplan::cli {
 struct ChartAxis {
   double lo = 0, hi = 1;
   bool log = false;
+  // Ticks at exactly these values (the plotted ones) instead of ones
+  // chosen from the range.
+  std::vector<double> fixed_ticks;
+  // Tick labels as durations in human units (HumanSeconds), the ticks at
+  // round durations (1 ms, 10 ms, ..., 1 min, 10 min, 1 h, 1 day, ...).
+  bool seconds = false;
   // v's place along the axis, 0 at lo and 1 at hi.
   double Norm(double v) const;
   // Tick values: decades (or 1-2-5 steps) on a log axis, round steps else.
@@ -23,13 +29,17 @@ struct ChartAxis {
 // An axis over [lo, hi], padded; logarithmic when hi / lo > 20 or `log`.
 ChartAxis MakeChartAxis(double lo, double hi, bool log = false);
 
+// A duration in the unit a person reads it in: "250 ms", "1.5 s",
+// "10 min", "3.2 h", "7.6 days" (3 significant digits).
+std::string HumanSeconds(double seconds);
+
 // Escapes <, > and & for SVG text.
 std::string SvgEscape(const std::string& s);
 
 class SvgChart {
  public:
-  static constexpr double kWidth = 860, kHeight = 560;
-  static constexpr double kLeft = 90, kRight = 170, kTop = 50, kBottom = 70;
+  static constexpr double kWidth = 900, kHeight = 560;
+  static constexpr double kLeft = 90, kRight = 210, kTop = 50, kBottom = 70;
 
   SvgChart(const std::string& title, ChartAxis x, const std::string& x_title, ChartAxis y,
            const std::string& y_title);
@@ -41,6 +51,10 @@ class SvgChart {
   // The plot area's width and height in pixels.
   double PlotWidth() const { return kWidth - kLeft - kRight; }
   double PlotHeight() const { return kHeight - kTop - kBottom; }
+
+  // A legend entry in the right margin, `row` lines below its top:
+  // `mark` is SVG drawn around (0, 0) (a circle, a line), then the text.
+  void Legend(int row, const std::string& mark, const std::string& text);
 
   // Appends raw SVG elements.
   void Append(const std::string& elements) { svg_ += elements; }

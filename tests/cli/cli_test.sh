@@ -110,7 +110,7 @@ check plot_needs_cluster 2 "--plot: needs --cost=cluster" optimize "$small" --pl
 check cluster_ok 0 "" optimize "$small" --cost=cluster --sample-rates=1,0.1 --format=json \
   --bound=completeness\>=0.5 --prefer=node_seconds --plot="$tmp/frontier.svg" --slices=2
 if python3 - "$tmp/out" "$tmp/frontier.svg" <<'PY'
-import json, sys
+import json, re, sys
 doc = json.load(open(sys.argv[1]))
 plans = doc["plans"]
 assert len(plans) >= 2, plans
@@ -122,9 +122,15 @@ ok = [p["costs"] for p in plans if p["costs"]["completeness"] >= 0.5]
 assert chosen["node_seconds"] == min(c["node_seconds"] for c in ok), (chosen, ok)
 svg = open(sys.argv[2]).read()
 assert svg.startswith("<svg") and svg.count("<title>") == len(plans), svg[:200]
+# The plot explains itself: the rule that chose, the chosen plan named,
+# the third objective's scale, and physical choices in every tooltip.
+assert "chosen by: least node_seconds" in svg and "bound: completeness &gt;= 0.5" in svg, svg
+assert svg.count("chosen: plan %d<" % doc["chosen"]) == 1, svg
+assert "colour: completeness" in svg, svg
+tips = re.findall(r"<title>([^<]*)</title>", svg)
+assert all(re.search(r"\[(shuffle|bcast-r|bcast-l) \d+\]", t) for t in tips), tips[:3]
 # Each plan's physical choices: one leaf per relation, one [strategy nodes]
 # per join, and no two frontier plans written alike.
-import re
 physical = [p["physical"] for p in plans]
 assert len(set(physical)) == len(physical), physical
 for p in plans:
@@ -151,7 +157,7 @@ assert "plans (drawn: one per 4-pixel cell)" in svg, svg[:400]
 assert "%d plans" % len(plans) in svg, svg[:400]
 drawn = svg.count("<title>")
 assert 0 < drawn < len(plans), (drawn, len(plans))
-assert svg.count("chosen (plan %d)" % doc["chosen"]) == 1
+assert svg.count("chosen: plan %d<" % doc["chosen"]) == 1
 PY
 then passed=$((passed + 1)); else failed=$((failed + 1)); echo "FAIL cluster_many"; fi
 
@@ -291,9 +297,27 @@ first = next(r["workers"] for r in rows if r["seconds"] <= 0.4 and r["fits_memo"
 assert doc["enough_workers"] == first, (doc["enough_workers"], first)
 assert doc["rates"]["calibrated"] is False and doc["rates"]["split_seconds"] == 1e-9
 svg = open(sys.argv[2]).read()
-assert svg.count("<circle") == 11 and "deadline 0.4 s" in svg, svg[:200]
+# One tooltip per row, the deadline in human units, a legend, ticks at the
+# plotted worker counts, the fewest enough ringed and named.
+assert svg.count("<title>") == 11 and "deadline 400 ms" in svg, svg[:400]
+assert "meets the deadline" in svg and "misses it (time or memo)" in svg, svg
+assert all(">%d</text>" % (2 ** i) in svg for i in range(11)), svg
+assert "enough: %d worker" % doc["enough_workers"] in svg, svg
+flat = next((a for a, b in zip(rows, rows[1:]) if a["slices"] == b["slices"]), None)
+assert flat is None or "past %d workers: no more" % flat["workers"] in svg, svg
 PY
 then passed=$((passed + 1)); else failed=$((failed + 1)); echo "FAIL capacity_table"; fi
+# The plots render as pictures (rsvg-convert, librsvg2-bin): what a person
+# sees, not only well-formed text.
+if command -v rsvg-convert >/dev/null; then
+  for svg in "$tmp/capacity.svg" "$tmp/frontier.svg" "$tmp/many.svg"; do
+    if rsvg-convert "$svg" -o "$svg.png" 2>"$tmp/err" && [ -s "$svg.png" ] && [ ! -s "$tmp/err" ]; then
+      passed=$((passed + 1))
+    else
+      failed=$((failed + 1)); echo "FAIL render $(basename "$svg")"; cat "$tmp/err"
+    fi
+  done
+fi
 # Past the exact reach: no rows, and the summary names what auto does.
 "$bin" capacity "$bad/too_many_relations.json" --deadline-seconds=2 --format=json \
   >"$tmp/capacity.json" 2>"$tmp/err"
