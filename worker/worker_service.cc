@@ -25,13 +25,10 @@ namespace {
 
 using Clock = std::chrono::steady_clock;
 
-struct Parsed {
-  Query query;
-  SearchOptions options;
-  SliceSpec slice;
-};
+}  // namespace
 
-absl::StatusOr<Parsed> Parse(const v1::SolveSliceRequest& request, const WorkerConfig& config) {
+absl::StatusOr<WorkerService::Parsed> WorkerService::Parse(const v1::SolveSliceRequest& request,
+                                                           const WorkerConfig& config) {
   if (!request.has_query()) return absl::InvalidArgumentError("query: missing");
   auto query = QueryFromProto(request.query(), config.limits);
   if (!query.ok()) {
@@ -47,8 +44,6 @@ absl::StatusOr<Parsed> Parse(const v1::SolveSliceRequest& request, const WorkerC
   RETURN_IF_ERROR(ValidateSlice(slice, query->size(), options.shape, kRpcSliceFields));
   return Parsed{*std::move(query), options, slice};
 }
-
-}  // namespace
 
 WorkerService::WorkerService(const WorkerConfig& config)
     : config_(config),
@@ -99,34 +94,45 @@ void WorkerService::Release() {
   --running_;
 }
 
-absl::StatusOr<SliceResult> WorkerService::Solve(
+absl::StatusOr<WorkerService::Parsed> WorkerService::ReadRequest(
     grpc::ServerContext* context,
     grpc::ServerUnaryStreamer<v1::SolveSliceRequest, v1::SolveSliceResponse>& stream,
-    v1::SolveSliceRequest& request, SearchOptions& options) {
-  // Admission before the request is read: a refused call costs no more
-  // than its headers. The read is bounded (kRequestReadLimit), so a client
-  // that sends slowly holds a place in the queue for that long at most,
-  // never a running slot.
-  RETURN_IF_ERROR(Enqueue());
+    CallFacts& facts) {
+  // The message lives on an arena only until it is parsed: its many small
+  // parts come from a few blocks and go back in one release, and a
+  // waiting call holds the compact parsed query, not the message.
+  google::protobuf::Arena arena;
+  auto* request = google::protobuf::Arena::Create<v1::SolveSliceRequest>(&arena);
   bool read = false;
   {
     CallWatchdog watchdog(context, kRequestReadLimit);
-    read = stream.Read(&request);
+    read = stream.Read(request);
     if (watchdog.Disarm()) {
-      Leave();
       return absl::DeadlineExceededError(absl::StrCat(
           "the request was not received within ",
           absl::FormatDuration(absl::FromChrono(kRequestReadLimit)), "; the call was ended"));
     }
   }
   if (!read) {
-    Leave();
     if (context->IsCancelled()) return absl::CancelledError("the call ended before its request");
     return absl::InvalidArgumentError(
         "the request could not be read: a string field holds invalid UTF-8, or the bytes are "
         "not a SolveSliceRequest");
   }
-  absl::StatusOr<Parsed> parsed_or = Parse(request, config_);
+  facts = {true, request->slice_index(), request->slice_count(), request->query().relations_size()};
+  return Parse(*request, config_);
+}
+
+absl::StatusOr<SliceResult> WorkerService::Solve(
+    grpc::ServerContext* context,
+    grpc::ServerUnaryStreamer<v1::SolveSliceRequest, v1::SolveSliceResponse>& stream,
+    SearchOptions& options, CallFacts& facts) {
+  // Admission before the request is read: a refused call costs no more
+  // than its headers. The read is bounded (kRequestReadLimit), so a client
+  // that sends slowly holds a place in the queue for that long at most,
+  // never a running slot.
+  RETURN_IF_ERROR(Enqueue());
+  absl::StatusOr<Parsed> parsed_or = ReadRequest(context, stream, facts);
   if (!parsed_or.ok()) {
     Leave();
     return parsed_or.status();
@@ -162,12 +168,9 @@ grpc::Status WorkerService::StreamedSolveSlice(
     grpc::ServerContext* context,
     grpc::ServerUnaryStreamer<v1::SolveSliceRequest, v1::SolveSliceResponse>* stream) {
   const auto start = Clock::now();
-  // The request lives on an arena: a large query's many small messages
-  // come from a few blocks and go back in one release.
-  google::protobuf::Arena arena;
-  auto* request = google::protobuf::Arena::Create<v1::SolveSliceRequest>(&arena);
   SearchOptions options;
-  const absl::StatusOr<SliceResult> result = Solve(context, *stream, *request, options);
+  CallFacts facts;
+  const absl::StatusOr<SliceResult> result = Solve(context, *stream, options, facts);
   {
     absl::MutexLock lock(&mu_);
     ++calls_ended_;
@@ -176,10 +179,8 @@ grpc::Status WorkerService::StreamedSolveSlice(
   metrics_.Call(result.status(), result.ok() ? &result->stats : nullptr);
   LogEvent line("slice");
   line.Add("request_id", RequestIdOf(*context)).Add("outcome", OutcomeLabel(result.status()));
-  if (request->has_query()) {  // read (a refused or cancelled call never is)
-    line.Add("index", request->slice_index())
-        .Add("count", request->slice_count())
-        .Add("relations", request->query().relations_size());
+  if (facts.read) {  // a refused or cancelled call never is
+    line.Add("index", facts.index).Add("count", facts.count).Add("relations", facts.relations);
   }
   if (result.ok()) {
     line.Add("splits", result->stats.splits)

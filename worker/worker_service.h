@@ -71,13 +71,33 @@ class WorkerService final
   bool IdleAfterCalls() ABSL_LOCKS_EXCLUDED(mu_);
 
  private:
-  // Admits the call, reads the request into `request` (owned by the
-  // caller's arena) and parses it, waits for a slot and solves; the
-  // call's outcome.
+  // A request checked and parsed: all a waiting call keeps of it.
+  struct Parsed {
+    Query query;
+    SearchOptions options;
+    SliceSpec slice;
+  };
+  // INVALID_ARGUMENT (or the limits' errors) naming the field.
+  static absl::StatusOr<Parsed> Parse(const v1::SolveSliceRequest& request,
+                                      const WorkerConfig& config);
+  // What the call's log line says of its request, once read.
+  struct CallFacts {
+    bool read = false;
+    uint32_t index = 0, count = 0;
+    int relations = 0;
+  };
+  // Admits the call, reads and parses its request, waits for a slot and
+  // solves; the call's outcome.
   absl::StatusOr<SliceResult> Solve(
       grpc::ServerContext* context,
       grpc::ServerUnaryStreamer<v1::SolveSliceRequest, v1::SolveSliceResponse>& stream,
-      v1::SolveSliceRequest& request, SearchOptions& options);
+      SearchOptions& options, CallFacts& facts);
+  // Reads the request (within kRequestReadLimit, onto an arena freed on
+  // return) and parses it; fills `facts` once read.
+  absl::StatusOr<Parsed> ReadRequest(
+      grpc::ServerContext* context,
+      grpc::ServerUnaryStreamer<v1::SolveSliceRequest, v1::SolveSliceResponse>& stream,
+      CallFacts& facts);
   // Takes a place among the waiting calls; the busy refusal when they
   // are full.
   absl::Status Enqueue() ABSL_LOCKS_EXCLUDED(mu_);
