@@ -21,20 +21,31 @@ absl::Status CheckDenseMemo(int n, PlanShape shape, int k, size_t bytes_per_slot
   if (bytes <= static_cast<double>(limit) && slots < static_cast<double>(kNoSlot)) {
     return absl::OkStatus();
   }
-  std::string advice = "no slice count of this shape fits";
-  for (int more = k + 1; more <= MaxSliceBits(n, shape); ++more) {
+  const auto fits = [&](double s) {
+    return s * static_cast<double>(bytes_per_slot) <= static_cast<double>(limit) &&
+           s < static_cast<double>(kNoSlot);
+  };
+  std::string advice;
+  for (int more = k + 1; more <= MaxSliceBits(n, shape) && advice.empty(); ++more) {
     const double s = DenseSlots(n, shape, more);
-    if (s * static_cast<double>(bytes_per_slot) <= static_cast<double>(limit) &&
-        s < static_cast<double>(kNoSlot)) {
-      advice = absl::StrCat("at least ", uint64_t{1} << more, " slices would fit");
-      break;
+    if (fits(s)) {
+      advice = absl::StrFormat("use at least %d slices (a slice then needs %.4g bytes), or raise "
+                               "the memo limit",
+                               uint64_t{1} << more, s * static_cast<double>(bytes_per_slot));
     }
   }
+  if (advice.empty()) {
+    const int most = std::max(k, MaxSliceBits(n, shape));
+    advice = absl::StrFormat(
+        "more slices do not bring it under: even %d slices need %.4g bytes each; raise the "
+        "memo limit",
+        uint64_t{1} << most, DenseSlots(n, shape, most) * static_cast<double>(bytes_per_slot));
+  }
   return absl::ResourceExhaustedError(absl::StrFormat(
-      "slice memo needs %.4g bytes (%.4g sets x %d bytes), over the limit of "
-      "%d bytes (%s); raise the memo limit or use more slices: %s",
+      "a slice's memo needs %.4g bytes (%.4g sets x %d bytes), over the memo limit of %d "
+      "bytes%s; %s",
       bytes, slots, static_cast<int>(bytes_per_slot), limit,
-      slots >= static_cast<double>(kNoSlot) ? "and 2^32 slots" : "memo bytes", advice));
+      slots >= static_cast<double>(kNoSlot) ? " or past 2^32 sets" : "", advice));
 }
 
 namespace {

@@ -174,6 +174,23 @@ TEST(SliceSolverErrorsTest, RefusesMemoOverTheLimitWithTheNumbers) {
   EXPECT_NE(r.status().message().find("at least 16 slices"), std::string::npos) << r.status();
 }
 
+// A limit no slice count meets says so, with the smallest slice's size,
+// rather than advising more slices.
+TEST(SliceSolverErrorsTest, AMemoLimitNoSliceCountMeetsSaysToRaiseIt) {
+  const Query query = testing::MakeQuery(GraphShape::kChain, 6, 1);
+  SearchOptions options;
+  options.memo_limit_bytes = 1;
+  SearchControl control;
+  auto r = SolveSlice(query, options, {0, 1}, control);
+  ASSERT_FALSE(r.ok());
+  EXPECT_EQ(r.status().code(), absl::StatusCode::kResourceExhausted);
+  const std::string m(r.status().message());
+  EXPECT_NE(m.find("over the memo limit of 1 bytes"), std::string::npos) << m;
+  EXPECT_NE(m.find("more slices do not bring it under"), std::string::npos) << m;
+  EXPECT_NE(m.find("raise the memo limit"), std::string::npos) << m;
+  EXPECT_EQ(m.find("use at least"), std::string::npos) << m;
+}
+
 TEST(SliceSolverErrorsTest, ConnectedMemoLimitIsResourceExhausted) {
   const Query query = testing::MakeQuery(GraphShape::kClique, 12, 1);
   SearchOptions options;
