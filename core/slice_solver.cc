@@ -29,17 +29,23 @@ absl::Status CheckDenseMemo(int n, PlanShape shape, int k, size_t bytes_per_slot
   for (int more = k + 1; more <= MaxSliceBits(n, shape) && advice.empty(); ++more) {
     const double s = DenseSlots(n, shape, more);
     if (fits(s)) {
-      advice = absl::StrFormat("use at least %d slices (a slice then needs %.4g bytes), or raise "
-                               "the memo limit",
-                               uint64_t{1} << more, s * static_cast<double>(bytes_per_slot));
+      advice = absl::StrFormat(
+          "use at least %d slices (a slice then needs %.4g bytes), or raise "
+          "the memo limit",
+          uint64_t{1} << more, s * static_cast<double>(bytes_per_slot));
     }
   }
   if (advice.empty()) {
     const int most = std::max(k, MaxSliceBits(n, shape));
-    advice = absl::StrFormat(
-        "more slices do not bring it under: even %d slices need %.4g bytes each; raise the "
-        "memo limit",
-        uint64_t{1} << most, DenseSlots(n, shape, most) * static_cast<double>(bytes_per_slot));
+    advice = most == k ? absl::StrFormat(
+                             "no slice count brings it under (%d slices is the most "
+                             "this query takes); raise the memo limit",
+                             uint64_t{1} << k)
+                       : absl::StrFormat(
+                             "more slices do not bring it under: even %d slices need "
+                             "%.4g bytes each; raise the memo limit",
+                             uint64_t{1} << most,
+                             DenseSlots(n, shape, most) * static_cast<double>(bytes_per_slot));
   }
   return absl::ResourceExhaustedError(absl::StrFormat(
       "a slice's memo needs %.4g bytes (%.4g sets x %d bytes), over the memo limit of %d "

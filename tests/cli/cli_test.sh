@@ -86,7 +86,7 @@ check hopeless_deadline 1 "refused up front" optimize "$examples/port_logistics.
 check node_counts_past_limit 2 "node_counts: 17 given; the limit is 16" optimize "$examples/port_calls_small.json" --cost=cluster --node-counts=1,2,3,4,5,6,7,8,9,10,11,12,13,14,15,16,17
 check no_coordinator 1 "coordinator 127.0.0.1:1: nothing listens at that address (UNAVAILABLE:" optimize "$examples/port_calls_small.json" --coordinator=127.0.0.1:1
 check workers_no_coordinator 1 "coordinator 127.0.0.1:1:" workers --coordinator=127.0.0.1:1
-check memo_limit 2 "over the limit" optimize "$examples/port_logistics.json" --tier=exact --slices=1 --memo-limit=1MiB
+check memo_limit 2 "over the memo limit of 1048576 bytes; more slices do not bring it under" optimize "$examples/port_logistics.json" --tier=exact --slices=1 --memo-limit=1MiB
 check bad_tier 2 "--tier=fast: expected auto, exact, idp, linear, greedy or anytime" optimize "$examples/port_logistics.json" --tier=fast
 check idp_left_deep 2 "idp builds bushy plans" optimize "$examples/port_logistics.json" --tier=idp --shape=left-deep
 check anytime_cout 2 "tier anytime: searches the cluster model" optimize "$examples/port_calls_small.json" --tier=anytime
