@@ -15,8 +15,17 @@ ProgressBar::~ProgressBar() {
 }
 
 void ProgressBar::Update(const ScheduleProgress& p) {
-  if (!enabled_ || p.elapsed_seconds < 1.0 || p.slice_count == 0) return;
+  if (!enabled_ || p.elapsed_seconds < 1.0) return;
   absl::MutexLock lock(&mu_);
+  if (p.frontier_plans) {  // the anytime search: no slices, a growing set
+    std::fprintf(stderr, "\r\033[Kanytime search: %llu plans in the set, %llu trees, %.0f s",
+                 static_cast<unsigned long long>(*p.frontier_plans),
+                 static_cast<unsigned long long>(p.trees), p.elapsed_seconds);
+    std::fflush(stderr);
+    drawn_ = true;
+    return;
+  }
+  if (p.slice_count == 0) return;
   constexpr int kWidth = 30;
   const double done = static_cast<double>(p.slices_done) / p.slice_count;
   const int filled = static_cast<int>(done * kWidth);

@@ -1,5 +1,6 @@
 // A one-line progress bar on stderr for long runs: slices done / total,
-// best cost so far, ETA. Silent for the first second and whenever stderr
+// best cost so far, ETA; for the anytime search, the plans in its set and
+// the trees evaluated. Silent for the first second and whenever stderr
 // is not a terminal (or the user asked for quiet). Thread-safe.
 #ifndef SLICEPLAN_CLI_PROGRESS_BAR_H_
 #define SLICEPLAN_CLI_PROGRESS_BAR_H_

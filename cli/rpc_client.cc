@@ -102,6 +102,8 @@ absl::StatusOr<TieredOutcome> OptimizeRemote(
       ScheduleProgress progress{p.slices_done(), p.slice_count(), std::nullopt,
                                 p.elapsed_seconds()};
       if (p.has_best_cost()) progress.best_cost = p.best_cost();
+      if (p.has_frontier_plans()) progress.frontier_plans = p.frontier_plans();
+      progress.trees = p.trees();
       on_progress(progress);
     }
     if (event.has_result()) result = event.result();

@@ -334,6 +334,8 @@ grpc::Status CoordinatorService::OptimizeStream(grpc::ServerContext* context,
     out->set_slice_count(p.slice_count);
     if (p.best_cost) out->set_best_cost(*p.best_cost);
     out->set_elapsed_seconds(p.elapsed_seconds);
+    if (p.frontier_plans) out->set_frontier_plans(*p.frontier_plans);
+    out->set_trees(p.trees);
     progress.Offer(std::move(event));
   });
   // A client that reads takes the answer at once; one that stalls gets

@@ -39,6 +39,10 @@ struct ScheduleProgress {
   uint32_t slice_count = 0;
   std::optional<double> best_cost;  // of the slices done so far
   double elapsed_seconds = 0;
+  // The cluster model's anytime search (no slices): the plans in its set
+  // so far, and the trees it has evaluated.
+  std::optional<uint64_t> frontier_plans;
+  uint64_t trees = 0;
 };
 
 struct ScheduleOptions {

@@ -344,6 +344,15 @@ class TierRun {
     o.shape = options_.shape;
     o.cross_products = options_.cross_products;
     o.cap_per_node = query_.size() <= 16 ? 32 : 8;
+    if (schedule_.on_progress) {  // at least once a second, with the set's size
+      o.on_progress = [this](size_t kept, uint64_t trees) {
+        ScheduleProgress p;
+        p.elapsed_seconds = SecondsBetween(start_, Clock::now());
+        p.frontier_plans = kept;
+        p.trees = trees;
+        schedule_.on_progress(p);
+      };
+    }
     const AnytimeFrontierResult r = AnytimeFrontier(query_, options_.cluster, o, control);
     if (absl::IsCancelled(control.status())) return absl::CancelledError("the caller cancelled");
     for (const FrontierPlan& p : r.frontier) plans.push_back(ClusterPlanOf(*p.tree, p.physical));

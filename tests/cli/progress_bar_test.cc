@@ -59,6 +59,20 @@ TEST(ProgressBarTest, DrawnOnATerminalAfterTheFirstSecondAndCleared) {
   EXPECT_EQ(out.substr(out.size() - 4), "\r\033[K") << "cleared at the end";
 }
 
+// The anytime search has no slices: the set's size and the trees.
+TEST(ProgressBarTest, TheAnytimeSearchShowsItsSetsSize) {
+  const std::string out = OnTerminal([] {
+    ProgressBar bar(true);
+    ScheduleProgress p;
+    p.elapsed_seconds = 3;
+    p.frontier_plans = 41;
+    p.trees = 1200;
+    bar.Update(p);
+  });
+  EXPECT_NE(out.find("anytime search: 41 plans in the set, 1200 trees, 3 s"), std::string::npos)
+      << out;
+}
+
 TEST(ProgressBarTest, QuietDrawsNothing) {
   const std::string out = OnTerminal([] {
     ProgressBar bar(false);

@@ -244,6 +244,32 @@ TEST(TieredSearchTest, SaturatingClusterParametersAreRefusedInEveryTier) {
   }
 }
 
+// The anytime search reports the set's size at least once a second (and
+// at its end), through the request's progress callback.
+TEST(TieredSearchTest, TheAnytimeSearchReportsItsSetsSizeEverySecond) {
+  const WideQuery q = WideQuery::FromExact(testing::MakeQuery(GraphShape::kRandom, 12, 5));
+  SearchOptions cluster = Bushy(true);
+  cluster.cost = CostModelKind::kCluster;
+  std::vector<ScheduleProgress> events;
+  ScheduleOptions schedule;
+  schedule.on_progress = [&](const ScheduleProgress& p) { events.push_back(p); };
+  TierRequest request;
+  request.tier = SearchTier::kAnytime;
+  request.budget_seconds = 1.3;
+  auto out = RunEmbeddedTiers(q, cluster, request, 1, schedule);
+  ASSERT_TRUE(out.ok()) << out.status();
+  ASSERT_GE(events.size(), 2u);  // at about 1 s, and at the end
+  for (size_t i = 0; i < events.size(); ++i) {
+    ASSERT_TRUE(events[i].frontier_plans.has_value());
+    EXPECT_GT(*events[i].frontier_plans, 0u);
+    EXPECT_GT(events[i].trees, 0u);
+    if (i > 0) {
+      EXPECT_GE(events[i].elapsed_seconds, events[i - 1].elapsed_seconds);
+    }
+  }
+  EXPECT_EQ(*events.back().frontier_plans, out->schedule.result.frontier.size());
+}
+
 TEST(TieredSearchTest, ADisconnectedGraphWithoutCrossProductsIsNotFound) {
   const Query two = testing::MakeQueryOrDie({{"quays", 10, 8}, {"tugs", 20, 8}}, {});
   auto out = Tiers(WideQuery::FromExact(two), Bushy(false), SearchTier::kAuto);
