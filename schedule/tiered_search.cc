@@ -18,6 +18,7 @@
 #include "core/model/input_limits.h"
 #include "core/model/status_macros.h"
 #include "core/model/value_range.h"
+#include "core/search/search_control.h"
 #include "core/slice_planner.h"
 #include "core/slice_solver.h"
 #include "tiers/anytime_frontier.h"
@@ -29,10 +30,6 @@ namespace sliceplan {
 namespace {
 
 using Clock = std::chrono::steady_clock;
-
-double SecondsBetween(Clock::time_point a, Clock::time_point b) {
-  return std::chrono::duration<double>(b - a).count();
-}
 
 // The options the capacity model forecasts with: a slice runs on the
 // threads the caller asked for, or on those the slowest healthy worker

@@ -32,10 +32,6 @@ constexpr int kFirstGuide = 3;
 
 using Clock = std::chrono::steady_clock;
 
-double SecondsBetween(Clock::time_point a, Clock::time_point b) {
-  return std::chrono::duration<double>(b - a).count();
-}
-
 // The relations in the order the parts grow: from relation 0, the
 // lowest-numbered neighbour of what is taken first (the lowest untaken
 // relation where none is: a cross product).

@@ -70,6 +70,13 @@ class SearchControl {
   absl::Status status_;
 };
 
+// Seconds from `a` to `b` (negative when b comes first): the one clock
+// helper the searches, the forecasts and the tiers share.
+inline double SecondsBetween(SearchControl::Clock::time_point a,
+                             SearchControl::Clock::time_point b) {
+  return std::chrono::duration<double>(b - a).count();
+}
+
 }  // namespace sliceplan
 
 #endif  // SLICEPLAN_CORE_SEARCH_SEARCH_CONTROL_H_
