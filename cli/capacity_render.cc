@@ -100,14 +100,17 @@ std::string Plural(int n, const char* one) {
   return absl::StrFormat("%d %s%s", n, one, n == 1 ? "" : "s");
 }
 
-// The first row past which the slices stop growing: more workers than
-// slices, so the extra ones idle and the time stays flat; none when every
-// row has a slice per worker.
+// The row from which more workers no longer help: each has a slice
+// already, and the time stays flat to the last row; none when the time
+// still falls at the last row.
 const CapacityRow* FlatFrom(const CapacityTable& t) {
-  for (size_t i = 1; i < t.rows.size(); ++i) {
-    if (t.rows[i].slices == t.rows[i - 1].slices) return &t.rows[i - 1];
+  if (t.rows.size() < 2) return nullptr;
+  size_t i = t.rows.size() - 1;
+  while (i > 0 && t.rows[i - 1].seconds <= t.rows[i].seconds &&
+         t.rows[i - 1].workers >= static_cast<int>(t.rows[i - 1].slices)) {
+    --i;
   }
-  return nullptr;
+  return i + 1 < t.rows.size() ? &t.rows[i] : nullptr;
 }
 
 }  // namespace
@@ -144,24 +147,29 @@ std::string CapacitySvg(const CapacityTable& t, const CapacityInfo& info) {
     const bool meets = r.fits_memo && r.seconds <= t.deadline_seconds;
     absl::StrAppendFormat(&s,
                           "<circle cx=\"%.1f\" cy=\"%.1f\" r=\"5\" fill=\"%s\" stroke=\"#222\">"
-                          "<title>%s: %u slices, %s, %s per worker</title></circle>\n",
+                          "<title>%s: %s, %s, %s per worker</title></circle>\n",
                           chart.X(r.workers), chart.Y(r.seconds), meets ? kMeets : kMisses,
-                          Plural(r.workers, "worker"), r.slices, HumanSeconds(r.seconds),
+                          Plural(r.workers, "worker"), Plural(static_cast<int>(r.slices), "slice"),
+                          HumanSeconds(r.seconds),
                           Cluster(info) ? "memo not forecast" : Bytes(r.memo_bytes));
   }
   if (const CapacityRow* flat = FlatFrom(t)) {
     // A dotted line where the slices stop growing, explained above the
-    // flat tail, right of the line.
-    const double fx = chart.X(flat->workers);
-    const double ty = chart.Y(flat->seconds) - 44;
+    // flat tail right of the line, or (the line near the right edge) below
+    // the curve left of it.
+    const double fx = chart.X(flat->workers), fy = chart.Y(flat->seconds);
+    const bool left_of = fx > left + 0.6 * chart.PlotWidth();
+    const double ty = left_of ? std::min(SvgChart::kTop + chart.PlotHeight() - 44, fy + 24)
+                              : std::max(SvgChart::kTop + 14, fy - 44);
+    const double tx = left_of ? fx - 8 : fx + 8;
     absl::StrAppendFormat(
         &s,
         "<line x1=\"%.1f\" y1=\"%.0f\" x2=\"%.1f\" y2=\"%.0f\" stroke=\"#888\" "
-        "stroke-dasharray=\"2 3\"/><text x=\"%.1f\" y=\"%.1f\" fill=\"#555\">"
+        "stroke-dasharray=\"2 3\"/><text y=\"%.1f\" fill=\"#555\" text-anchor=\"%s\">"
         "<tspan x=\"%.1f\">past %s: no more</tspan><tspan x=\"%.1f\" dy=\"15\">slices (%u at "
         "most), the rest</tspan><tspan x=\"%.1f\" dy=\"15\">idle</tspan></text>\n",
-        fx, SvgChart::kTop, fx, SvgChart::kTop + chart.PlotHeight(), fx + 8, ty, fx + 8,
-        Plural(flat->workers, "worker"), fx + 8, flat->slices, fx + 8);
+        fx, SvgChart::kTop, fx, SvgChart::kTop + chart.PlotHeight(), ty, left_of ? "end" : "start",
+        tx, Plural(flat->workers, "worker"), tx, flat->slices, tx);
   }
   for (const CapacityRow& r : t.rows) {
     if (t.enough_workers != r.workers) continue;
@@ -177,8 +185,8 @@ std::string CapacitySvg(const CapacityTable& t, const CapacityInfo& info) {
     absl::StrAppendFormat(&s,
                           "<text x=\"%.0f\" y=\"%.0f\" fill=\"%s\" font-weight=\"bold\" "
                           "text-anchor=\"middle\">no pool of up to %s meets the deadline</text>\n",
-                          left + chart.PlotWidth() / 2, SvgChart::kTop + 20, kMisses,
-                          Plural(t.rows.back().workers, "worker"));
+                          left + chart.PlotWidth() / 2, SvgChart::kTop + chart.PlotHeight() - 14,
+                          kMisses, Plural(t.rows.back().workers, "worker"));
   }
   chart.Append(s);
   chart.Legend(0, Dot(kMeets), "meets the deadline");

@@ -123,7 +123,8 @@ std::string FrontierSvg(const std::vector<Plan>& frontier, const Query& query,
     const double at = vertical ? px(b.value) : py(b.value);
     const double lo = vertical ? SvgChart::kLeft : SvgChart::kTop;
     const double span = vertical ? chart.PlotWidth() : chart.PlotHeight();
-    if (at < lo || at > lo + span) continue;  // outside the plotted range
+    // Outside the plotted range, or no place on a log axis (a bound <= 0).
+    if (!std::isfinite(at) || at < lo || at > lo + span) continue;
     const double x1 = vertical ? at : SvgChart::kLeft, x2 = vertical ? at : lo + span;
     const double y1 = vertical ? SvgChart::kTop : at;
     const double y2 = vertical ? SvgChart::kTop + chart.PlotHeight() : at;

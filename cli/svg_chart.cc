@@ -2,6 +2,8 @@
 
 #include <algorithm>
 #include <cmath>
+#include <iterator>
+#include <string>
 
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_format.h"
@@ -13,12 +15,14 @@ std::string Fmt(double v) { return absl::StrFormat("%.4g", v); }
 
 // Round durations for a time axis, in seconds; the major ones first
 // (each a factor of about 10 above the last), then the ones between.
-constexpr double kMinute = 60, kHour = 3600, kDay = 86400;
+constexpr double kMinute = 60, kHour = 3600, kDay = 86400, kYear = 365 * kDay;
 const std::vector<double>& MajorDurations() {
   static const auto* v = new std::vector<double>{
-      1e-6,       1e-5,        1e-4,         1e-3,       1e-2,       0.1,  1,
-      10,         kMinute,     10 * kMinute, kHour,      10 * kHour, kDay, 10 * kDay,
-      100 * kDay, 1000 * kDay, 1e4 * kDay,   1e5 * kDay, 1e6 * kDay};
+      1e-6,        1e-5,         1e-4,         1e-3,         1e-2,        0.1,
+      1,           10,           kMinute,      10 * kMinute, kHour,       10 * kHour,
+      kDay,        10 * kDay,    100 * kDay,   kYear,        10 * kYear,  100 * kYear,
+      1e3 * kYear, 1e4 * kYear,  1e5 * kYear,  1e6 * kYear,  1e7 * kYear, 1e8 * kYear,
+      1e9 * kYear, 1e10 * kYear, 1e11 * kYear, 1e12 * kYear};
   return *v;
 }
 const std::vector<double>& MinorDurations() {
@@ -39,19 +43,43 @@ std::vector<double> TimeTicks(double lo, double hi) {
   add(MajorDurations());
   if (t.size() < 4) add(MinorDurations());
   std::sort(t.begin(), t.end());
+  // At most about 8 labels: every other major one (or fewer) over a range
+  // of many decades.
+  const size_t step = (t.size() + 7) / 8;
+  if (step > 1) {
+    std::vector<double> thinned;
+    for (size_t i = 0; i < t.size(); i += step) thinned.push_back(t[i]);
+    t = std::move(thinned);
+  }
   return t;
 }
 
 }  // namespace
 
 std::string HumanSeconds(double s) {
-  const auto f = [](double v, const char* unit) { return absl::StrFormat("%.3g %s", v, unit); };
-  if (s < 1e-3) return f(s * 1e6, "us");
-  if (s < 1) return f(s * 1e3, "ms");
-  if (s < kMinute) return f(s, "s");
-  if (s < kHour) return f(s / kMinute, "min");
-  if (s < kDay) return f(s / kHour, "h");
-  return f(s / kDay, s < 2 * kDay ? "day" : "days");
+  if (!std::isfinite(s) || s <= 0) return absl::StrFormat("%g s", s);
+  struct Unit {
+    double seconds;
+    const char* name;
+  };
+  static constexpr Unit kUnits[] = {{1e-6, "us"}, {1e-3, "ms"},   {1, "s"},        {kMinute, "min"},
+                                    {kHour, "h"}, {kDay, "days"}, {kYear, "years"}};
+  constexpr int kLast = static_cast<int>(std::size(kUnits)) - 1;
+  // The largest unit at most `s`, then one up if the rounded figure
+  // reaches it ("999.9 ms" is "1 s", never "1e+03 ms").
+  int u = 0;
+  while (u < kLast && s >= kUnits[u + 1].seconds) ++u;
+  const auto figure = [](double v) {  // whole years in full up to a million
+    return v >= 1000 && v < 1e6 ? absl::StrFormat("%.0f", v) : absl::StrFormat("%.3g", v);
+  };
+  std::string text = figure(s / kUnits[u].seconds);
+  if (u < kLast && std::stod(text) * kUnits[u].seconds >= kUnits[u + 1].seconds) {
+    ++u;
+    text = figure(s / kUnits[u].seconds);
+  }
+  const bool one = text == "1";
+  const std::string unit = one && u == 5 ? "day" : one && u == 6 ? "year" : kUnits[u].name;
+  return absl::StrCat(text, " ", unit);
 }
 
 double ChartAxis::Norm(double v) const {
@@ -61,7 +89,11 @@ double ChartAxis::Norm(double v) const {
 
 std::vector<double> ChartAxis::Ticks() const {
   if (!fixed_ticks.empty()) return fixed_ticks;
-  if (seconds) return TimeTicks(lo, hi);
+  if (seconds) {
+    // Round durations where at least two fall in the range; else (a
+    // narrow range, or one past a million days) the plain ticks below.
+    if (std::vector<double> t = TimeTicks(lo, hi); t.size() >= 2) return t;
+  }
   std::vector<double> t;
   if (log) {  // decades, or 1-2-5 steps when fewer than three decades show
     for (const double step : {1.0, 2.0, 5.0}) {
@@ -138,7 +170,7 @@ SvgChart::SvgChart(const std::string& title, ChartAxis x, const std::string& x_t
                         kLeft + pw / 2, kHeight - 22, SvgEscape(x_title),
                         x_.log ? ", log scale" : "");
   absl::StrAppendFormat(&svg_,
-                        "<text transform=\"translate(24 %.0f) rotate(-90)\" "
+                        "<text transform=\"translate(16 %.0f) rotate(-90)\" "
                         "text-anchor=\"middle\">%s%s</text>\n",
                         kTop + ph / 2, SvgEscape(y_title), y_.log ? ", log scale" : "");
 }

@@ -38,8 +38,8 @@ std::string SvgEscape(const std::string& s);
 
 class SvgChart {
  public:
-  static constexpr double kWidth = 900, kHeight = 560;
-  static constexpr double kLeft = 90, kRight = 210, kTop = 50, kBottom = 70;
+  static constexpr double kWidth = 920, kHeight = 560;
+  static constexpr double kLeft = 110, kRight = 210, kTop = 50, kBottom = 70;
 
   SvgChart(const std::string& title, ChartAxis x, const std::string& x_title, ChartAxis y,
            const std::string& y_title);

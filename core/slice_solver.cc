@@ -37,15 +37,23 @@ absl::Status CheckDenseMemo(int n, PlanShape shape, int k, size_t bytes_per_slot
   }
   if (advice.empty()) {
     const int most = std::max(k, MaxSliceBits(n, shape));
-    advice = most == k ? absl::StrFormat(
-                             "no slice count brings it under (%d slices is the most "
-                             "this query takes); raise the memo limit",
-                             uint64_t{1} << k)
-                       : absl::StrFormat(
-                             "more slices do not bring it under: even %d slices need "
-                             "%.4g bytes each; raise the memo limit",
-                             uint64_t{1} << most,
-                             DenseSlots(n, shape, most) * static_cast<double>(bytes_per_slot));
+    const double most_slots = DenseSlots(n, shape, most);
+    if (most_slots >= static_cast<double>(kNoSlot)) {  // a memo limit cannot help
+      advice = absl::StrFormat(
+          "even %d slices have %.4g sets each, past the 2^32 a slice can index; search "
+          "without cross products or with the idp tier",
+          uint64_t{1} << most, most_slots);
+    } else if (most == k) {
+      advice = absl::StrFormat(
+          "no slice count brings it under (%d slices is the most this query takes); raise the "
+          "memo limit",
+          uint64_t{1} << k);
+    } else {
+      advice = absl::StrFormat(
+          "more slices do not bring it under: even %d slices need %.4g bytes each; raise the "
+          "memo limit",
+          uint64_t{1} << most, most_slots * static_cast<double>(bytes_per_slot));
+    }
   }
   return absl::ResourceExhaustedError(absl::StrFormat(
       "a slice's memo needs %.4g bytes (%.4g sets x %d bytes), over the memo limit of %d "

@@ -109,6 +109,7 @@ class Search {
     while ((options_.max_moves == 0 || moves < options_.max_moves) &&
            !control.Tick(SearchControl::kTickWork)) {
       ++moves;
+      Report(false);  // first: a refused move skips the rest of the loop
       Links links = LinksOf(*current);
       const bool moved =
           options_.shape == PlanShape::kBushy ? MoveBushy(links, rng_) : MoveLeftDeep(links, rng_);
@@ -124,7 +125,6 @@ class Search {
       } else if (rng_() % 8 == 0 && !archive_.empty()) {
         current = archive_[rng_() % archive_.size()].tree;  // a restart
       }
-      Report(false);
     }
     Report(true);
     std::vector<ClusterCosts> costs;

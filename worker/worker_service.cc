@@ -19,6 +19,7 @@
 #include "schedule/slice_worker.h"
 #include "wire/query_proto.h"
 #include "wire/service_proto.h"
+#include "wire/version.h"
 
 namespace sliceplan {
 namespace {
@@ -208,7 +209,7 @@ grpc::Status WorkerService::DescribeWorker(grpc::ServerContext*, const v1::Descr
   response->set_concurrent_slices(static_cast<uint32_t>(config_.concurrent_slices));
   response->set_threads_per_slice(static_cast<uint32_t>(config_.threads_per_slice));
   response->set_memo_limit_bytes(config_.memo_limit_bytes);
-  response->set_version("sliceplan 0.1.0");
+  response->set_version(VersionLine("sliceplan-worker"));  // the project version, not a copy
   return grpc::Status::OK;
 }
 

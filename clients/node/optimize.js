@@ -7,18 +7,46 @@
 // line), as deploy/make-certs writes them (.local-cluster/certs for
 // deploy/local-cluster). SECONDS (default 10) is the request's deadline:
 // the best plan found by then comes back, marked not proven optimal, never
-// a time error. Needs `npm ci` in clients/node (@grpc/grpc-js and
-// @grpc/proto-loader); the schema is read from proto/ at start.
+// a time error. Needs `npm ci` in clients/node (@grpc/grpc-js,
+// @grpc/proto-loader and protobufjs); the schema is read from proto/ at
+// start, and the query file's keys are checked against it.
 'use strict';
 
 const fs = require('fs');
 const path = require('path');
 const grpc = require('@grpc/grpc-js');
 const protoLoader = require('@grpc/proto-loader');
+const protobuf = require('protobufjs');
 
 const PROTO_DIR = path.join(__dirname, '..', '..', 'proto');
 const KEYWORD = {JOIN_KIND_LEFT: ' LEFT', JOIN_KIND_FULL: ' FULL', JOIN_KIND_SEMI: ' SEMI',
                  JOIN_KIND_ANTI: ' ANTI'};
+
+// The query file's keys checked against the schema, as the C++ reader
+// checks them: a field's proto name or its JSON name (rowBytes), renamed
+// to the proto name the loader sends; anything else is refused by name
+// (the loader would drop it without a word and send a different query).
+function checkKeys(obj, type, at) {
+  const camel = (name) => name.replace(/_([a-z])/g, (_, c) => c.toUpperCase());
+  for (const key of Object.keys(obj)) {
+    const field = type.fields[key] || type.fieldsArray.find((f) => camel(f.name) === key);
+    if (!field) throw new Error(`${at}${key}: not a field of ${type.name}`);
+    if (field.name !== key) {
+      if (field.name in obj) throw new Error(`${at}${field.name}: given twice`);
+      obj[field.name] = obj[key];
+      delete obj[key];
+    }
+    field.resolve();
+    if (!(field.resolvedType instanceof protobuf.Type)) continue;
+    const values = field.repeated ? obj[field.name] : [obj[field.name]];
+    if (!Array.isArray(values)) continue;
+    values.forEach((v, i) => {
+      if (v && typeof v === 'object' && !Array.isArray(v)) {
+        checkKeys(v, field.resolvedType, `${at}${field.name}${field.repeated ? `[${i}]` : ''}.`);
+      }
+    });
+  }
+}
 
 function main(argv) {
   if (argv.length < 3 || argv.length > 4) {
@@ -37,6 +65,15 @@ function main(argv) {
   // The query file is the Query message in its JSON form: optional numbers
   // (rows, row_bytes, selectivity) are plain numbers, as in the file.
   const query = JSON.parse(fs.readFileSync(queryPath, 'utf8'));
+  const root = new protobuf.Root();
+  root.resolvePath = (origin, target) => path.join(PROTO_DIR, path.basename(target));
+  root.loadSync('sliceplan.proto', {keepCase: true});
+  try {
+    checkKeys(query, root.lookupType('sliceplan.v1.Query'), '');
+  } catch (e) {
+    console.error(`sliceplan: ${queryPath}: ${e.message}`);
+    process.exit(2);
+  }
   // deadline_seconds with partial_on_deadline: the best plan by then; the
   // call's own deadline a little later covers the network
   // (docs/interfaces.md, "Time controls").

@@ -31,8 +31,12 @@ PROTO_DIR = os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "..",
 
 def load_stubs():
     out = tempfile.mkdtemp(prefix="sliceplan-stubs-")
-    plugin = shutil.which("grpc_python_plugin") or "/usr/bin/grpc_python_plugin"
-    if subprocess.run(["protoc", "-I" + PROTO_DIR, "--python_out=" + out,
+    # Debian's protoc and plugin first, matching Debian's python3-protobuf.
+    protoc = "/usr/bin/protoc" if os.path.exists("/usr/bin/protoc") else "protoc"
+    plugin = "/usr/bin/grpc_python_plugin"
+    if not os.path.exists(plugin):
+        plugin = shutil.which("grpc_python_plugin") or plugin
+    if subprocess.run([protoc, "-I" + PROTO_DIR, "--python_out=" + out,
                        "--grpc_python_out=" + out, "--plugin=protoc-gen-grpc_python=" + plugin,
                        PROTO_DIR + "/query.proto", PROTO_DIR + "/sliceplan.proto"]).returncode != 0:
         sys.exit("protoc failed on " + PROTO_DIR)

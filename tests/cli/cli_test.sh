@@ -309,7 +309,9 @@ PY
 then passed=$((passed + 1)); else failed=$((failed + 1)); echo "FAIL capacity_table"; fi
 # The plots render as pictures (rsvg-convert, librsvg2-bin): what a person
 # sees, not only well-formed text.
-if command -v rsvg-convert >/dev/null; then
+if ! command -v rsvg-convert >/dev/null; then
+  echo "SKIP render: no rsvg-convert (deploy/install-deps brings librsvg2-bin)"
+else
   for svg in "$tmp/capacity.svg" "$tmp/frontier.svg" "$tmp/many.svg"; do
     if rsvg-convert "$svg" -o "$svg.png" 2>"$tmp/err" && [ -s "$svg.png" ] && [ ! -s "$tmp/err" ]; then
       passed=$((passed + 1))

@@ -18,8 +18,12 @@ def main():
     address, proto_dir, query_path, slices = sys.argv[1:5]
     secure = sys.argv[5:9]
     out = tempfile.mkdtemp(prefix="sliceplan-stubs-")
-    plugin = shutil.which("grpc_python_plugin") or "/usr/bin/grpc_python_plugin"
-    status = subprocess.run(["protoc", "-I" + proto_dir, "--python_out=" + out,
+    # Debian's protoc and plugin first, matching Debian's python3-protobuf.
+    protoc = "/usr/bin/protoc" if os.path.exists("/usr/bin/protoc") else "protoc"
+    plugin = "/usr/bin/grpc_python_plugin"
+    if not os.path.exists(plugin):
+        plugin = shutil.which("grpc_python_plugin") or plugin
+    status = subprocess.run([protoc, "-I" + proto_dir, "--python_out=" + out,
                              "--grpc_python_out=" + out,
                              "--plugin=protoc-gen-grpc_python=" + plugin,
                              proto_dir + "/query.proto", proto_dir + "/sliceplan.proto"])
