@@ -177,11 +177,14 @@ class TierRun {
     if (!out_.plan.nodes.empty() && !(plan.cost() < out_.plan.cost())) return;
     out_.plan = std::move(plan);
     out_.tier = tier;
-    Post();
+    Post(out_.plan, tier);
   }
 
-  void Post() const {
-    if (request_.board != nullptr) request_.board->Post({out_.plan, out_.tier, out_.start_cost});
+  // Posts `plan` to the request's board, if it has one (the deadline
+  // answer's candidates); `start_cost` defaults to greedy's.
+  void Post(const WidePlan& plan, SearchTier tier, std::optional<double> start_cost = {}) const {
+    if (request_.board == nullptr) return;
+    request_.board->Post({plan, tier, start_cost.value_or(out_.start_cost)});
   }
 
   absl::StatusOr<TieredOutcome> Finish(std::string reason) {
@@ -249,9 +252,7 @@ class TierRun {
     std::optional<WidePlan> greedy;
     if (fallback) {  // posted first: a deadline answer is never nothing
       greedy = GreedyPlan(query_, options_.shape);
-      if (request_.board != nullptr && !IsSaturated(greedy->cost())) {
-        request_.board->Post({*greedy, SearchTier::kGreedy, greedy->cost()});
-      }
+      if (!IsSaturated(greedy->cost())) Post(*greedy, SearchTier::kGreedy, greedy->cost());
     }
     absl::StatusOr<ScheduleOutcome> run = RunSlices(exact, options_, p, workers_, schedule_);
     if (absl::IsDeadlineExceeded(run.status()) && forecast) {
@@ -447,7 +448,7 @@ class TierRun {
       out_.plan = FromExactPlan(outcome->result.plan);
       out_.tier = SearchTier::kExact;
       out_.proven_optimal = true;
-      Post();
+      Post(out_.plan, SearchTier::kExact);
     } else {
       Offer(FromExactPlan(outcome->result.plan), SearchTier::kExact);
     }
@@ -494,10 +495,7 @@ class TierRun {
     config.cross_products = options_.cross_products;
     config.block = std::min(query_.size(), 10);
     config.out_of_time = [this] { return Cancelled() || Clock::now() >= deadline_; };
-    config.on_improved = [this](const WidePlan& plan) {
-      if (request_.board != nullptr)
-        request_.board->Post({plan, SearchTier::kIdp, out_.start_cost});
-    };
+    config.on_improved = [this](const WidePlan& plan) { Post(plan, SearchTier::kIdp); };
     config.next_block = [this](int k, double seconds, int searched) {
       return NextBlock(k, seconds, searched);
     };

@@ -8,6 +8,7 @@
 
 #include "absl/strings/str_cat.h"
 #include "absl/time/time.h"
+#include "core/search/search_control.h"
 #include "schedule/incumbent_board.h"
 
 namespace sliceplan {
@@ -51,7 +52,7 @@ absl::StatusOr<TieredOutcome> AtDeadline(const std::optional<Incumbent>& best,
   out.start_cost = best->start_cost;
   out.reason = absl::StrCat("the deadline passed while the tiers still ran; the best plan so far (",
                             TierName(best->tier), ") stands, not proven optimal");
-  out.wall_seconds = std::chrono::duration<double>(Clock::now() - start).count();
+  out.wall_seconds = SecondsBetween(start, Clock::now());
   return out;
 }
 

@@ -90,6 +90,32 @@ grpc::Status Optimize(const Cluster& c, const v1::OptimizeRequest& request,
 // 3^22 / 2 splits: minutes of work, so only a cancel or deadline ends it.
 Query Endless() { return testing::MakeQuery(GraphShape::kRandom, 22, 3); }
 
+// A plaintext stub of one worker.
+std::unique_ptr<v1::SliceWorker::Stub> WorkerStub(const testing::ServerProcess& w) {
+  return v1::SliceWorker::NewStub(
+      grpc::CreateChannel(w.address(), grpc::InsecureChannelCredentials()));
+}
+
+// The whole search of `q` as one slice.
+v1::SolveSliceRequest OneSlice(const Query& q) {
+  v1::SolveSliceRequest r;
+  *r.mutable_query() = QueryToProto(q);
+  r.set_slice_count(1);
+  return r;
+}
+
+// One SolveSlice call within 10 s; `busy_mark` (if given) says whether the
+// refusal carried the busy mark.
+grpc::Status SolveOnce(v1::SliceWorker::Stub& stub, const v1::SolveSliceRequest& r,
+                       bool* busy_mark = nullptr) {
+  grpc::ClientContext context;
+  context.set_deadline(std::chrono::system_clock::now() + 10s);
+  v1::SolveSliceResponse out;
+  const grpc::Status s = stub.SolveSlice(&context, r, &out);
+  if (busy_mark) *busy_mark = context.GetServerTrailingMetadata().count(kBusyKey) != 0;
+  return s;
+}
+
 TEST(HostileClientTest, EachServerListensOnExactlyTheAnnouncedPort) {
   Cluster c = StartCluster(1);
   ASSERT_TRUE(c.coordinator);
@@ -405,11 +431,8 @@ TEST(HostileClientTest, SigtermDeliversTheRunningAnswerAndExits) {
 TEST(HostileClientTest, SigtermStopsAWorkerMidSliceWithinTheGrace) {
   auto w = testing::StartWorker({"--shutdown_grace_seconds=1"});
   ASSERT_TRUE(w);
-  auto stub = v1::SliceWorker::NewStub(
-      grpc::CreateChannel(w->address(), grpc::InsecureChannelCredentials()));
-  v1::SolveSliceRequest r;
-  *r.mutable_query() = QueryToProto(Endless());
-  r.set_slice_count(1);
+  auto stub = WorkerStub(*w);
+  const v1::SolveSliceRequest r = OneSlice(Endless());
   std::thread call([&] {
     grpc::ClientContext context;
     v1::SolveSliceResponse out;
@@ -561,11 +584,8 @@ TEST(HostileClientTest, AWorkerRefusesCallsPastItsQueue) {
   auto w = testing::StartWorker(
       {"--concurrent-slices=1", "--max_queued_slices=2", "--test_only_hang_seconds=2"});
   ASSERT_TRUE(w);
-  auto stub = v1::SliceWorker::NewStub(
-      grpc::CreateChannel(w->address(), grpc::InsecureChannelCredentials()));
-  v1::SolveSliceRequest r;
-  *r.mutable_query() = QueryToProto(testing::MakeQuery(GraphShape::kChain, 6, 1));
-  r.set_slice_count(1);
+  auto stub = WorkerStub(*w);
+  const v1::SolveSliceRequest r = OneSlice(testing::MakeQuery(GraphShape::kChain, 6, 1));
   constexpr int kCalls = 10;
   std::vector<grpc::Status> status(kCalls);
   std::vector<bool> busy_mark(kCalls, false);
@@ -573,11 +593,9 @@ TEST(HostileClientTest, AWorkerRefusesCallsPastItsQueue) {
   const auto start = Clock::now();
   for (int i = 0; i < kCalls; ++i) {
     calls.emplace_back([&, i] {
-      grpc::ClientContext context;
-      context.set_deadline(std::chrono::system_clock::now() + 10s);
-      v1::SolveSliceResponse out;
-      status[i] = stub->SolveSlice(&context, r, &out);
-      busy_mark[i] = context.GetServerTrailingMetadata().count(kBusyKey) != 0;
+      bool busy = false;
+      status[i] = SolveOnce(*stub, r, &busy);
+      busy_mark[i] = busy;
     });
     std::this_thread::sleep_for(20ms);  // the first three take the slot and the queue
   }
@@ -606,31 +624,20 @@ TEST(HostileClientTest, AWorkerRefusesABusyCallBeforeReadingIt) {
   auto w = testing::StartWorker(
       {"--concurrent-slices=1", "--max_queued_slices=0", "--test_only_hang_seconds=2"});
   ASSERT_TRUE(w);
-  auto stub = v1::SliceWorker::NewStub(
-      grpc::CreateChannel(w->address(), grpc::InsecureChannelCredentials()));
-  v1::SolveSliceRequest good;
-  *good.mutable_query() = QueryToProto(testing::MakeQuery(GraphShape::kChain, 4, 1));
-  good.set_slice_count(1);
+  auto stub = WorkerStub(*w);
+  const v1::SolveSliceRequest good = OneSlice(testing::MakeQuery(GraphShape::kChain, 4, 1));
   v1::SolveSliceRequest bad = good;
   bad.mutable_query()->mutable_relations(0)->set_name("\xff\xfe");  // sent unchecked
-  const auto call = [&](const v1::SolveSliceRequest& r, bool* busy_mark = nullptr) {
-    grpc::ClientContext context;
-    context.set_deadline(std::chrono::system_clock::now() + 10s);
-    v1::SolveSliceResponse out;
-    const grpc::Status s = stub->SolveSlice(&context, r, &out);
-    if (busy_mark) *busy_mark = context.GetServerTrailingMetadata().count(kBusyKey) != 0;
-    return s;
-  };
   grpc::Status first;
-  std::thread holder([&] { first = call(good); });
+  std::thread holder([&] { first = SolveOnce(*stub, good); });
   std::this_thread::sleep_for(300ms);  // the good call holds the one slot
   bool busy_mark = false;
-  const grpc::Status refused = call(bad, &busy_mark);
+  const grpc::Status refused = SolveOnce(*stub, bad, &busy_mark);
   EXPECT_EQ(refused.error_code(), grpc::StatusCode::RESOURCE_EXHAUSTED) << refused.error_message();
   EXPECT_TRUE(busy_mark);
   holder.join();
   EXPECT_TRUE(first.ok()) << first.error_message();
-  const grpc::Status unread = call(bad);
+  const grpc::Status unread = SolveOnce(*stub, bad);
   EXPECT_EQ(unread.error_code(), grpc::StatusCode::INVALID_ARGUMENT);
   EXPECT_NE(unread.error_message().find("could not be read"), std::string::npos)
       << unread.error_message();
