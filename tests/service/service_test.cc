@@ -229,6 +229,24 @@ TEST(ServiceTest, CapacityTableOverRpcEqualsTheLocalOne) {
   const std::string query = std::string(SLICEPLAN_SOURCE_DIR) + "/examples/port_logistics.json";
   const std::string common = std::string(SLICEPLAN_CLI_BIN) + " capacity " + query +
                              " --deadline-seconds=0.3 --seconds-per-split=1e-9 --format=json";
+  // The coordinator learns each worker's threads by describing it after
+  // start; until then it plans with one. Wait for both descriptions (a
+  // loaded machine made this race visible), at most 10 s.
+  auto stub = v1::Coordinator::NewStub(
+      grpc::CreateChannel(coordinator->address(), grpc::InsecureChannelCredentials()));
+  const auto described = [&] {
+    grpc::ClientContext context;
+    v1::ListWorkersResponse out;
+    if (!stub->ListWorkers(&context, {}, &out).ok() || out.workers_size() != 2) return false;
+    for (const auto& w : out.workers()) {
+      if (w.threads_per_slice() < 2) return false;
+    }
+    return true;
+  };
+  for (int i = 0; i < 200 && !described(); ++i) {
+    std::this_thread::sleep_for(std::chrono::milliseconds(50));
+  }
+  ASSERT_TRUE(described());
   // The pool's threads per worker: its slowest worker's, 2.
   const testing::CommandResult remote =
       testing::RunCommand(common + " --coordinator=" + coordinator->address());
@@ -239,8 +257,6 @@ TEST(ServiceTest, CapacityTableOverRpcEqualsTheLocalOne) {
   EXPECT_NE(remote.output.find("\"threads_per_worker\": 2"), std::string::npos) << remote.output;
   EXPECT_EQ(remote.output.find("\"enough_workers\": null"), std::string::npos) << remote.output;
 
-  auto stub = v1::Coordinator::NewStub(
-      grpc::CreateChannel(coordinator->address(), grpc::InsecureChannelCredentials()));
   v1::CapacityRequest r;
   *r.mutable_query() = QueryToProto(testing::MakeQuery(GraphShape::kChain, 12, 1));
   r.set_deadline_seconds(0);
