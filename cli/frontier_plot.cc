@@ -55,16 +55,26 @@ std::string RuleText(const ChoiceRule& rule) {
   return out;
 }
 
+// A tooltip's tree: whole up to kTipChars characters, else cut there
+// (a plan of hundreds of relations would make the file megabytes).
+constexpr size_t kTipChars = 600;
+std::string TipTree(const WidePlan& plan, const WideQuery& query) {
+  std::string tree = PhysicalTreeString(plan, query);
+  if (tree.size() <= kTipChars) return tree;
+  tree.resize(kTipChars);
+  return absl::StrCat(tree, " ... (", query.size(), " relations; the JSON has the whole tree)");
+}
+
 std::string BoundText(const Bound& b) {
   return absl::StrFormat("%s %s %g", MetricLabel(b.metric), b.at_most ? "<=" : ">=", b.value);
 }
 
 }  // namespace
 
-std::string FrontierSvg(const std::vector<Plan>& frontier, const Query& query,
+std::string FrontierSvg(const std::vector<WidePlan>& frontier, const WideQuery& query,
                         std::optional<size_t> chosen, const ChoiceRule& rule) {
   double lat_lo = 1e300, lat_hi = 0, ns_lo = 1e300, ns_hi = 0, c_lo = 1;
-  for (const Plan& p : frontier) {
+  for (const WidePlan& p : frontier) {
     const ClusterCosts& m = p.root().metrics;
     lat_lo = std::min(lat_lo, m.latency_s), lat_hi = std::max(lat_hi, m.latency_s);
     ns_lo = std::min(ns_lo, m.node_seconds), ns_hi = std::max(ns_hi, m.node_seconds);
@@ -106,10 +116,9 @@ std::string FrontierSvg(const std::vector<Plan>& frontier, const Query& query,
   std::string s;
   for (size_t i : drawn) {
     const ClusterCosts& m = frontier[i].root().metrics;
-    const std::string tip =
-        absl::StrFormat("plan %d: %s&#10;latency %.4g s, node-seconds %.4g, completeness %.4g",
-                        static_cast<int>(i), SvgEscape(PhysicalTreeString(frontier[i], query)),
-                        m.latency_s, m.node_seconds, m.completeness);
+    const std::string tip = absl::StrFormat(
+        "plan %d: %s&#10;latency %.4g s, node-seconds %.4g, completeness %.4g", static_cast<int>(i),
+        SvgEscape(TipTree(frontier[i], query)), m.latency_s, m.node_seconds, m.completeness);
     absl::StrAppendFormat(&s,
                           "<circle cx=\"%.1f\" cy=\"%.1f\" r=\"%g\" fill=\"%s\" stroke=\"#222\" "
                           "stroke-width=\"0.6\"><title>%s</title></circle>\n",

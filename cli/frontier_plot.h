@@ -5,7 +5,8 @@
 // the chosen plan ringed and named in the legend with its figures, the
 // choice rule's bounds on latency and node-seconds drawn as lines and the
 // rule written out, and every point's tooltip (<title>) giving its plan
-// tree with its physical choices and three figures. Past 400 plans the
+// tree with its physical choices (cut past 600 characters) and three
+// figures. Past 400 plans the
 // drawing is thinned, never the data: one smaller point per 4 x 4 pixels
 // (the most complete plan there), the title saying so; the chosen plan
 // is ringed whether drawn or not.
@@ -17,12 +18,12 @@
 #include <vector>
 
 #include "core/cost/plan_choice.h"
-#include "core/model/plan.h"
-#include "core/model/query.h"
+#include "core/model/wide_query.h"
+#include "tiers/wide_plan.h"
 
 namespace sliceplan::cli {
 
-std::string FrontierSvg(const std::vector<Plan>& frontier, const Query& query,
+std::string FrontierSvg(const std::vector<WidePlan>& frontier, const WideQuery& query,
                         std::optional<size_t> chosen, const ChoiceRule& rule = {});
 
 }  // namespace sliceplan::cli

@@ -155,9 +155,8 @@ int Optimize(const std::vector<std::string>& args) {
   // The answer is printed first: a plot that fails to write loses nothing.
   if (plot) {
     std::cout.flush();
-    const absl::Status written =
-        plot->Commit(FrontierSvg(outcome->schedule.result.frontier, *exact,
-                                 outcome->schedule.result.chosen, config->search.cluster.choice));
+    const absl::Status written = plot->Commit(
+        FrontierSvg(outcome->frontier, *query, outcome->chosen, config->search.cluster.choice));
     if (!written.ok()) return Fail(written);
   }
   std::cout.flush();

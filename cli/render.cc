@@ -21,13 +21,12 @@ std::string JoinLabel(JoinType type) {
   return type == JoinType::kInner ? "join" : absl::StrCat(JoinTypeName(type), " join");
 }
 
-std::string NodeLabel(const PlanNode& node, const Query& query) {
-  if (node.is_leaf()) return query.relation(Lowest(node.relations)).name;
-  return JoinLabel(node.type);
+std::string NodeLabel(const WideNode& node, const WideQuery& query) {
+  return node.is_leaf() ? query.relation(node.relation).name : JoinLabel(node.type);
 }
 
 // The cluster model's physical choice at a node.
-std::string PhysicalLabel(const PlanNode& node, const Query& query) {
+std::string PhysicalLabel(const WideNode& node, const WideQuery& query) {
   if (node.is_leaf()) {
     return node.sample_rate < 1
                ? absl::StrFormat("%s (sample %g)", NodeLabel(node, query), node.sample_rate)
@@ -50,85 +49,70 @@ std::string StrategyShort(JoinStrategy s) {
   return "?";
 }
 
-void AppendPhysical(const Plan& plan, int i, const Query& query, std::string& out) {
-  const PlanNode& node = plan.nodes[i];
-  if (node.is_leaf()) {
-    out += NodeLabel(node, query);
-    if (node.sample_rate < 1) absl::StrAppendFormat(&out, "@%g", node.sample_rate);
-    return;
-  }
-  out += "(";
-  AppendPhysical(plan, node.left, query, out);
-  absl::StrAppendFormat(
-      &out, " [%s %d]%s ", StrategyShort(node.strategy), node.nodes,
-      node.type == JoinType::kInner ? "" : absl::StrCat(" ", JoinTypeKeyword(node.type)));
-  AppendPhysical(plan, node.right, query, out);
-  out += ")";
-}
-
 }  // namespace
 
-std::string PhysicalTreeString(const Plan& plan, const Query& query) {
-  std::string out;
-  AppendPhysical(plan, static_cast<int>(plan.nodes.size()) - 1, query, out);
-  return out;
+std::string PhysicalTreeString(const WidePlan& plan, const WideQuery& query) {
+  return WriteTree(
+      plan,
+      [&](const WideNode& leaf, std::string& out) {
+        out += NodeLabel(leaf, query);
+        if (leaf.sample_rate < 1) absl::StrAppendFormat(&out, "@%g", leaf.sample_rate);
+      },
+      [](const WideNode& join, std::string& out) {
+        absl::StrAppendFormat(
+            &out, " [%s %d]%s ", StrategyShort(join.strategy), join.nodes,
+            join.type == JoinType::kInner ? "" : absl::StrCat(" ", JoinTypeKeyword(join.type)));
+      });
 }
 
 namespace {
 
-struct TextLine {
-  std::string head;  // indentation and label
-  const PlanNode* node;
-};
-
-void CollectLines(const Plan& plan, int i, int depth, const Query& query,
-                  std::vector<TextLine>& out) {
-  const PlanNode& node = plan.nodes[i];
-  out.push_back({std::string(2 * depth, ' ') + NodeLabel(node, query), &node});
-  if (node.is_leaf()) return;
-  CollectLines(plan, node.left, depth + 1, query, out);
-  CollectLines(plan, node.right, depth + 1, query, out);
-}
-
-// The cluster plan, one line per node with its physical choice, children
-// indented under their join, figures aligned.
-void AppendClusterTree(const Plan& plan, const Query& query, std::string& out) {
-  std::vector<TextLine> lines;
-  CollectLines(plan, static_cast<int>(plan.nodes.size()) - 1, 0, query, lines);
-  for (TextLine& l : lines) {
-    l.head = l.head.substr(0, l.head.find_first_not_of(' ')) + PhysicalLabel(*l.node, query);
-  }
-  size_t width = 0;
-  for (const TextLine& l : lines) width = std::max(width, l.head.size());
-  absl::StrAppendFormat(&out, "%-*s  %12s  %10s  %12s  %12s\n", width, "node", "rows", "latency_s",
-                        "node_seconds", "completeness");
-  for (const TextLine& l : lines) {
-    const ClusterCosts& m = l.node->metrics;
-    absl::StrAppendFormat(&out, "%-*s  %12.4g  %10.4g  %12.4g  %12.4g\n", width, l.head,
-                          l.node->cardinality * m.completeness, m.latency_s, m.node_seconds,
-                          m.completeness);
-  }
-}
-
-// The cout plan as an indented table, children under their join; built
-// without recursion (a left-deep plan of thousands is thousands deep).
-void AppendWideTree(const WidePlan& plan, const WideQuery& query, std::string& out) {
+// The plan as indented lines, children under their join, each labelled
+// by `label`; built without recursion (a left-deep plan of thousands is
+// thousands deep).
+std::vector<std::pair<std::string, const WideNode*>> IndentedLines(
+    const WidePlan& plan, absl::FunctionRef<std::string(const WideNode&)> label) {
   std::vector<std::pair<std::string, const WideNode*>> lines;
   std::vector<std::pair<int32_t, int>> stack{{static_cast<int32_t>(plan.nodes.size()) - 1, 0}};
   while (!stack.empty()) {
     const auto [i, depth] = stack.back();
     stack.pop_back();
     const WideNode& node = plan.nodes[i];
-    lines.push_back(
-        {std::string(2 * depth, ' ') +
-             (node.is_leaf() ? query.relation(node.relation).name : JoinLabel(node.type)),
-         &node});
+    lines.push_back({std::string(2 * depth, ' ') + label(node), &node});
     if (node.is_leaf()) continue;
     stack.push_back({node.right, depth + 1});
     stack.push_back({node.left, depth + 1});
   }
+  return lines;
+}
+
+size_t HeadWidth(const std::vector<std::pair<std::string, const WideNode*>>& lines) {
   size_t width = 0;
   for (const auto& l : lines) width = std::max(width, l.first.size());
+  return width;
+}
+
+// The cluster plan, one line per node with its physical choice, figures
+// aligned.
+void AppendClusterTree(const WidePlan& plan, const WideQuery& query, std::string& out) {
+  const auto lines =
+      IndentedLines(plan, [&](const WideNode& node) { return PhysicalLabel(node, query); });
+  const size_t width = HeadWidth(lines);
+  absl::StrAppendFormat(&out, "%-*s  %12s  %10s  %12s  %12s\n", width, "node", "rows", "latency_s",
+                        "node_seconds", "completeness");
+  for (const auto& [head, node] : lines) {
+    const ClusterCosts& m = node->metrics;
+    absl::StrAppendFormat(&out, "%-*s  %12.4g  %10.4g  %12.4g  %12.4g\n", width, head,
+                          node->cardinality * m.completeness, m.latency_s, m.node_seconds,
+                          m.completeness);
+  }
+}
+
+// The cout plan as an indented table, children under their join.
+void AppendWideTree(const WidePlan& plan, const WideQuery& query, std::string& out) {
+  const auto lines =
+      IndentedLines(plan, [&](const WideNode& node) { return NodeLabel(node, query); });
+  const size_t width = HeadWidth(lines);
   absl::StrAppendFormat(&out, "%-*s  %12s  %12s\n", width, "node", "card", "cost");
   for (const auto& [head, node] : lines) {
     absl::StrAppendFormat(&out, "%-*s  %12.4g  %12.4g\n", width, head, node->cardinality,
@@ -181,10 +165,12 @@ std::optional<ListedUse> ListedUsed(const TieredOutcome& outcome, const RunInfo&
 }
 
 // The cluster model's report: the Pareto frontier, one line per plan, and
-// the chosen plan's tree (or why there is none).
+// the chosen plan's tree (or why there is none). Past
+// kMaxTextTableRelations the trees are left to --format=json but the
+// chosen plan's line.
 void AppendFrontierReport(const TieredOutcome& outcome, const RunInfo& info, std::string& out) {
-  const OptimizeResult& result = outcome.schedule.result;
-  const Query& query = *info.exact;
+  const WideQuery& query = *info.query;
+  const bool wide = query.size() > kMaxTextTableRelations;
   // The exact search's set is the frontier (within alpha); the anytime
   // search's is the best found so far, not proven.
   const std::string what =
@@ -195,25 +181,34 @@ void AppendFrontierReport(const TieredOutcome& outcome, const RunInfo& info, std
       &out, "%s of %s plans of %d relations (cross products %s), objectives %s: %d plans\n\n", what,
       ShapeName(info.search.shape), query.size(),
       info.search.cross_products ? "allowed" : "excluded",
-      ObjectivesString(info.search.cluster.objectives), static_cast<int>(result.frontier.size()));
+      ObjectivesString(info.search.cluster.objectives), static_cast<int>(outcome.frontier.size()));
   absl::StrAppendFormat(&out, "  %4s  %12s  %14s  %12s  %s\n", "plan", "latency_s", "node_seconds",
-                        "completeness", "tree");
-  for (size_t i = 0; i < result.frontier.size(); ++i) {
-    const ClusterCosts& m = result.frontier[i].root().metrics;
+                        "completeness", wide ? "" : "tree");
+  for (size_t i = 0; i < outcome.frontier.size(); ++i) {
+    const ClusterCosts& m = outcome.frontier[i].root().metrics;
     absl::StrAppendFormat(&out, "%s %4d  %12.4g  %14.4g  %12.4g  %s\n",
-                          result.chosen == i ? "*" : " ", static_cast<int>(i), m.latency_s,
+                          outcome.chosen == i ? "*" : " ", static_cast<int>(i), m.latency_s,
                           m.node_seconds, m.completeness,
-                          PhysicalTreeString(result.frontier[i], query));
+                          wide ? "" : PhysicalTreeString(outcome.frontier[i], query));
+  }
+  if (wide) {
+    absl::StrAppendFormat(&out,
+                          "\n  (the trees are shown up to %d relations; --format=json has every "
+                          "plan's tree and nodes)\n",
+                          kMaxTextTableRelations);
   }
   out +=
       "\n  (name@r: a leaf sampled at rate r; [strategy n]: a join's strategy, shuffle or\n"
       "  broadcast of the right or left side, on n rented nodes)\n";
-  if (result.chosen) {
-    absl::StrAppendFormat(&out, "\nchosen: plan %d (* above)\n\n",
-                          static_cast<int>(*result.chosen));
-    AppendClusterTree(result.plan, query, out);
-  } else {
+  if (!outcome.chosen) {
     out += "\nno plan of the frontier meets the bounds\n";
+    return;
+  }
+  absl::StrAppendFormat(&out, "\nchosen: plan %d (* above)\n\n", static_cast<int>(*outcome.chosen));
+  if (wide) {
+    out += PhysicalTreeString(outcome.plan, query) + "\n";
+  } else {
+    AppendClusterTree(outcome.plan, query, out);
   }
 }
 
@@ -331,20 +326,20 @@ std::string RenderJson(const TieredOutcome& outcome, const RunInfo& info) {
   const OptimizeResult& result = outcome.schedule.result;
   std::string out = "{\n  \"plans\": [\n";
   if (info.search.cost == CostModelKind::kCluster) {
-    const Query& query = *info.exact;
-    for (size_t i = 0; i < result.frontier.size(); ++i) {
-      const ClusterCosts& m = result.frontier[i].root().metrics;
-      absl::StrAppend(&out, "    {\"tree\": ", JsonString(TreeString(result.frontier[i], query)),
-                      ", \"nodes\": ",
-                      PlanNodesJson(FromExactPlan(result.frontier[i]), WideQuery::FromExact(query)),
-                      ", \"physical\": ", JsonString(PhysicalTreeString(result.frontier[i], query)),
+    const WideQuery& query = *info.query;
+    for (size_t i = 0; i < outcome.frontier.size(); ++i) {
+      const WidePlan& plan = outcome.frontier[i];
+      const ClusterCosts& m = plan.root().metrics;
+      absl::StrAppend(&out, "    {\"tree\": ", JsonString(WideTreeString(plan, query)),
+                      ", \"nodes\": ", PlanNodesJson(plan, query),
+                      ", \"physical\": ", JsonString(PhysicalTreeString(plan, query)),
                       ", \"costs\": {\"latency_s\": ", JsonNumber(m.latency_s),
                       ", \"node_seconds\": ", JsonNumber(m.node_seconds),
                       ", \"completeness\": ", JsonNumber(m.completeness), "}}",
-                      i + 1 < result.frontier.size() ? ",\n" : "\n");
+                      i + 1 < outcome.frontier.size() ? ",\n" : "\n");
     }
     absl::StrAppend(&out, "  ],\n  \"chosen\": ",
-                    result.chosen ? absl::StrCat(*result.chosen) : std::string("null"), ",\n");
+                    outcome.chosen ? absl::StrCat(*outcome.chosen) : std::string("null"), ",\n");
   } else {
     absl::StrAppend(&out, "    {\"tree\": ", JsonString(WideTreeString(outcome.plan, *info.query)),
                     ", \"nodes\": ", PlanNodesJson(outcome.plan, *info.query), ", \"costs\": {",

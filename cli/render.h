@@ -18,7 +18,9 @@ namespace sliceplan::cli {
 // What the run was, for the headers of the outputs.
 struct RunInfo {
   const WideQuery* query = nullptr;
-  const Query* exact = nullptr;  // the same query for the exact engine (n <= 64), else null
+  // The same query for the exact engine (n <= 64), else null: the listed
+  // estimates' counts need it.
+  const Query* exact = nullptr;
   SearchOptions search;
   int workers = 1;
   bool slices_chosen = false;  // by the planner, not by --slices
@@ -29,7 +31,6 @@ struct RunInfo {
 // "inner", "left": I, "right": J, "cardinality": C}.
 std::string PlanNodesJson(const WidePlan& plan, const WideQuery& query);
 
-// The cluster model's outputs need info.exact.
 std::string RenderText(const TieredOutcome& outcome, const RunInfo& info);
 std::string RenderJson(const TieredOutcome& outcome, const RunInfo& info);
 std::string RenderDot(const TieredOutcome& outcome, const RunInfo& info);
@@ -37,7 +38,7 @@ std::string RenderDot(const TieredOutcome& outcome, const RunInfo& info);
 // A cluster plan on one line with what tells frontier neighbours apart:
 // each sampled leaf as name@rate, each join as [strategy nodes], e.g.
 // "((berths@0.1 [shuffle 4] cranes) [bcast-r 16] moves)".
-std::string PhysicalTreeString(const Plan& plan, const Query& query);
+std::string PhysicalTreeString(const WidePlan& plan, const WideQuery& query);
 
 // Summary figures of the slices: the slowest slice and max/mean splits.
 struct SliceBalance {

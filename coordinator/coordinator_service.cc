@@ -15,6 +15,7 @@
 #include "rpc/request_id.h"
 #include "rpc/rpc_status.h"
 #include "rpc/server_log.h"
+#include "schedule/frontier_thinning.h"
 #include "schedule/tiered_search.h"
 #include "spdlog/spdlog.h"
 #include "tiers/join_forest.h"
@@ -57,6 +58,27 @@ absl::StatusOr<v1::OptimizeResponse> CheckResponseSize(v1::OptimizeResponse resp
       limit,
       " (--max_response_bytes); ask for a precision alpha > 1, fewer objectives, sample rates "
       "or node counts, or raise the limit together with the client's receive limit"));
+}
+
+// An anytime set too large for the answer's limit is thinned to fit
+// (schedule/frontier_thinning.h), never refused after its whole deadline:
+// as many plans as the largest plan's size lets the rest of the answer
+// hold, with a kilobyte and a hundredth of the limit to spare for the
+// longer reason.
+void FitAnytimeSet(TieredOutcome& outcome, CostModelKind cost, int64_t limit) {
+  if (outcome.tier != SearchTier::kAnytime || outcome.frontier.size() < 2) return;
+  const auto bytes = static_cast<int64_t>(TieredToProto(outcome, cost).ByteSizeLong());
+  if (bytes <= limit) return;
+  int64_t plans = 0, largest = 0;
+  for (const WidePlan& p : outcome.frontier) {
+    const auto size = static_cast<int64_t>(WidePlanToProto(p, cost).ByteSizeLong()) + 8;
+    plans += size;
+    largest = std::max(largest, size);
+  }
+  const int64_t room = limit - limit / 100 - 1024 - (bytes - plans);
+  const auto keep = static_cast<size_t>(std::max<int64_t>(1, room / largest));
+  ThinFrontier(outcome, keep,
+               absl::StrCat("the answer's limit of ", limit, " bytes, --max_response_bytes"));
 }
 
 // The request's one log line: who asked what, which tier answered, how.
@@ -185,7 +207,7 @@ ScheduleOptions ScheduleOfRequest(grpc::ServerContext* context, const v1::Optimi
 // RESOURCE_EXHAUSTED when the outcome's Pareto set has more plans than the
 // server returns.
 absl::Status CheckFrontierSize(const TieredOutcome& outcome, const InputLimits& limits) {
-  const auto plans = static_cast<int64_t>(outcome.schedule.result.frontier.size());
+  const auto plans = static_cast<int64_t>(outcome.frontier.size());
   if (plans > limits.max_frontier_plans) {
     return absl::ResourceExhaustedError(absl::StrCat(
         "the Pareto set has ", plans, " plans, over the limit of ", limits.max_frontier_plans,
@@ -282,6 +304,7 @@ absl::StatusOr<v1::OptimizeResponse> CoordinatorService::Run(
   // logged as refused), not a success the caller never receives.
   absl::StatusOr<v1::OptimizeResponse> answer = absl::UnknownError("no answer");
   if (outcome.ok()) {
+    FitAnytimeSet(*outcome, facts.cost, config_.max_response_bytes);
     answer = CheckResponseSize(TieredToProto(*outcome, facts.cost), config_.max_response_bytes);
     if (!answer.ok()) outcome = answer.status();
   }

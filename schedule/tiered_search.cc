@@ -72,12 +72,10 @@ absl::Status CheckTierFits(const WideQuery& query, const SearchOptions& options,
           absl::StrCat("tier ", TierName(tier),
                        ": the cluster model is searched by the exact or the anytime tier"));
     }
-    if (query.size() > kMaxRelations) {
-      return absl::InvalidArgumentError(
-          absl::StrCat("relations: ", query.size(),
-                       " relations given; the cluster model is searched by the "
-                       "exact tier only, which takes at most ",
-                       kMaxRelations, " (the cout model takes more)"));
+    if (tier == SearchTier::kExact && query.size() > kMaxRelations) {
+      return absl::InvalidArgumentError(absl::StrCat(
+          "relations: ", query.size(), " relations given; the exact Pareto search takes at most ",
+          kMaxRelations, " (the anytime tier, or auto, takes any size)"));
     }
   }
   if (tier == SearchTier::kIdp && options.shape == PlanShape::kLeftDeep) {
@@ -222,6 +220,8 @@ class TierRun {
     out_.proven_optimal = outcome.proven_optimal;
     out_.coverage = outcome.coverage;
     out_.plan = FromExactPlan(outcome.result.plan);
+    for (const Plan& p : outcome.result.frontier) out_.frontier.push_back(FromExactPlan(p));
+    out_.chosen = outcome.result.chosen;
     out_.schedule = std::move(outcome);
     out_.exact_ran = true;
   }
@@ -290,7 +290,7 @@ class TierRun {
   // anytime search takes the rest, or all of it when asked for, and the
   // answer is the non-dominated union of both.
   absl::StatusOr<TieredOutcome> ClusterTiers() {
-    std::vector<Plan> exact_plans;
+    std::vector<WidePlan> exact_plans;
     std::string reason = "anytime: requested";
     const int reach = options_.cross_products ? kClusterExactReach : kClusterExactReachConnected;
     if (request_.tier == SearchTier::kAuto && query_.size() > reach) {
@@ -318,7 +318,8 @@ class TierRun {
         return Finish("exact: the cluster model's Pareto search finished in half the time");
       }
       if (run.ok()) {
-        exact_plans = run->result.frontier;
+        for (const Plan& plan : run->result.frontier) exact_plans.push_back(FromExactPlan(plan));
+        run->result.frontier.clear();
         out_.coverage = run->coverage;
         out_.schedule = *std::move(run);
         reason = absl::StrFormat(
@@ -335,8 +336,20 @@ class TierRun {
     return Anytime(std::move(exact_plans), std::move(reason));
   }
 
-  absl::StatusOr<TieredOutcome> Anytime(std::vector<Plan> plans, std::string reason) {
-    SearchControl control(nullptr, deadline_);
+  // The anytime search stops this much before the deadline: its set is
+  // filtered and converted after it stops, and one more tree may be
+  // evaluated first (tens of ms at 10,000 relations), all before a
+  // deadline answer must leave (schedule/timed_tiers.h). A twentieth of
+  // the time left, at least 20 ms, plus 10 us per relation; at most half
+  // the time left.
+  Clock::duration AnytimeReserve() const {
+    const double left = Remaining();
+    const double reserve = std::min(0.5 * left, std::max(0.05 * left, 0.02) + 1e-5 * query_.size());
+    return std::chrono::duration_cast<Clock::duration>(std::chrono::duration<double>(reserve));
+  }
+
+  absl::StatusOr<TieredOutcome> Anytime(std::vector<WidePlan> plans, std::string reason) {
+    SearchControl control(nullptr, deadline_ - AnytimeReserve());
     if (schedule_.cancelled) control.set_cancel_check(schedule_.cancelled);
     AnytimeFrontierOptions o;
     o.shape = options_.shape;
@@ -353,25 +366,34 @@ class TierRun {
     }
     const AnytimeFrontierResult r = AnytimeFrontier(query_, options_.cluster, o, control);
     if (absl::IsCancelled(control.status())) return absl::CancelledError("the caller cancelled");
-    for (const FrontierPlan& p : r.frontier) plans.push_back(ClusterPlanOf(*p.tree, p.physical));
-    // A plan at the ceiling is no number to report (docs/numeric-range.md).
-    std::erase_if(plans, [](const Plan& p) {
+    for (const FrontierPlan& p : r.frontier)
+      plans.push_back(WithPhysicalChoices(*p.tree, p.physical));
+    RETURN_IF_ERROR(TakeFrontier(std::move(plans)));
+    out_.tier = SearchTier::kAnytime;
+    out_.proven_optimal = false;
+    return Finish(absl::StrFormat("%s; %d trees evaluated, %d plans in the set", reason, r.trees,
+                                  out_.frontier.size()));
+  }
+
+  // The answer's Pareto set: the non-dominated plans of `plans` on the
+  // selected objectives, less those at the ceiling (no number to report,
+  // docs/numeric-range.md), and the plan the choice rule names.
+  absl::Status TakeFrontier(std::vector<WidePlan> plans) {
+    std::erase_if(plans, [](const WidePlan& p) {
       return IsSaturated(p.root().metrics.latency_s) || IsSaturated(p.root().metrics.node_seconds);
     });
     if (plans.empty()) return ClusterPlansSaturated(query_.relations(), options_.cluster.params);
     std::vector<ClusterCosts> costs;
-    for (const Plan& p : plans) costs.push_back(p.root().metrics);
-    OptimizeResult& result = out_.schedule.result;
-    result.frontier.clear();
+    for (const WidePlan& p : plans) costs.push_back(p.root().metrics);
+    out_.frontier.clear();
+    std::vector<ClusterCosts> kept;
     for (size_t k : FrontierIndices(costs, options_.cluster.objectives)) {
-      result.frontier.push_back(plans[k]);
+      out_.frontier.push_back(std::move(plans[k]));
+      kept.push_back(costs[k]);
     }
-    ApplyChoice(result, options_.cluster.choice);
-    out_.tier = SearchTier::kAnytime;
-    out_.proven_optimal = false;
-    out_.plan = FromExactPlan(result.plan);
-    return Finish(absl::StrFormat("%s; %d trees evaluated, %d plans in the set", reason, r.trees,
-                                  result.frontier.size()));
+    out_.chosen = ChoosePlan(kept, options_.cluster.choice);
+    out_.plan = out_.frontier[out_.chosen.value_or(0)];
+    return absl::OkStatus();
   }
 
   absl::Status TryLinear(bool forced) {

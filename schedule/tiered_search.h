@@ -20,8 +20,12 @@
 // linear one where it ran), and names the tier that found it.
 //
 // A forced tier runs that tier alone (idp: seeded as in auto). `exact`
-// keeps the scheduler's deadline rules (partial_on_deadline). The cluster
-// model is searched by the exact tier only.
+// keeps the scheduler's deadline rules (partial_on_deadline).
+//
+// The cluster model is searched by the exact tier (up to 64 relations) or
+// the anytime tier (any size); auto runs the exact search where it is
+// forecast to fit, else the anytime search seeded with what the exact
+// search solved (tiers/anytime_frontier.h).
 //
 // Thread-safe: one call per request, any number at once.
 #ifndef SLICEPLAN_SCHEDULE_TIERED_SEARCH_H_
@@ -80,6 +84,12 @@ struct TieredOutcome {
   bool proven_optimal = false;
   double coverage = 0;  // exact: the fraction of slices solved
   WidePlan plan;        // the answer (cout; the cluster model's chosen plan)
+  // The cluster model's Pareto set, at any query size (the exact search's
+  // frontier or the anytime set), by increasing latency_s, and the plan the
+  // choice rule names (`plan` is that plan; none when no plan meets the
+  // bounds, and `plan` is the first). Empty for the cout model.
+  std::vector<WidePlan> frontier;
+  std::optional<size_t> chosen;
   // The slices solved: the exact search's over the whole query (with its
   // retries, hedges and, for the cluster model, the frontier), or those of
   // idp's blocks (slice_count 0); empty for greedy and linear.

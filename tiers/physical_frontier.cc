@@ -148,25 +148,18 @@ std::vector<PhysicalPlan> PhysicalFrontier(const WideQuery& query, const WidePla
   return out;
 }
 
-Plan ClusterPlanOf(const WidePlan& tree, const PhysicalPlan& choices) {
-  Plan plan;
-  for (size_t i = 0; i < tree.nodes.size(); ++i) {
-    const WideNode& w = tree.nodes[i];
-    PlanNode node;
-    node.cardinality = w.cardinality;
+WidePlan WithPhysicalChoices(const WidePlan& tree, const PhysicalPlan& choices) {
+  WidePlan plan = tree;
+  for (size_t i = 0; i < plan.nodes.size(); ++i) {
+    WideNode& node = plan.nodes[i];
     node.metrics = choices.metrics[i];
     node.cost = node.metrics.latency_s;
-    if (w.is_leaf()) {
-      node.relations = RelSet{1} << w.relation;
+    if (node.is_leaf()) {
       node.sample_rate = choices.sample_rate[i];
     } else {
-      node.left = w.left;
-      node.right = w.right;
-      node.relations = plan.nodes[w.left].relations | plan.nodes[w.right].relations;
       node.strategy = choices.strategy[i];
       node.nodes = choices.nodes[i];
     }
-    plan.nodes.push_back(node);
   }
   return plan;
 }

@@ -41,10 +41,10 @@ std::vector<PhysicalPlan> PhysicalFrontier(const WideQuery& query, const WidePla
                                            const ClusterSearchConfig& config,
                                            const PhysicalFrontierOptions& options = {});
 
-// The plan as the exact engine's Plan, for a query of at most 64
-// relations: relation masks, the tree's cardinalities, the metrics and
-// physical choices, cost = latency_s as the exact Pareto search sets it.
-Plan ClusterPlanOf(const WidePlan& tree, const PhysicalPlan& choices);
+// The tree with its physical choices and metrics in its nodes, cost =
+// latency_s as the exact Pareto search sets it: the answer's form at any
+// size.
+WidePlan WithPhysicalChoices(const WidePlan& tree, const PhysicalPlan& choices);
 
 }  // namespace sliceplan
 

@@ -145,6 +145,18 @@ bool HasCrossProduct(const WidePlan& plan, const WideQuery& query) {
 }
 
 std::string WideTreeString(const WidePlan& plan, const WideQuery& query) {
+  return WriteTree(
+      plan,
+      [&](const WideNode& leaf, std::string& out) { out += query.relation(leaf.relation).name; },
+      [](const WideNode& join, std::string& out) {
+        out += ' ';
+        if (join.type != JoinType::kInner) absl::StrAppend(&out, JoinTypeKeyword(join.type), " ");
+      });
+}
+
+std::string WriteTree(const WidePlan& plan,
+                      absl::FunctionRef<void(const WideNode&, std::string&)> leaf,
+                      absl::FunctionRef<void(const WideNode&, std::string&)> between) {
   std::string out;
   // (node, state): 0 = not yet opened, 1 = between children, 2 = after.
   std::vector<std::pair<int32_t, int>> stack{{static_cast<int32_t>(plan.nodes.size()) - 1, 0}};
@@ -152,7 +164,7 @@ std::string WideTreeString(const WidePlan& plan, const WideQuery& query) {
     auto& [i, state] = stack.back();
     const WideNode& node = plan.nodes[i];
     if (node.is_leaf()) {
-      out += query.relation(node.relation).name;
+      leaf(node, out);
       stack.pop_back();
       continue;
     }
@@ -161,11 +173,7 @@ std::string WideTreeString(const WidePlan& plan, const WideQuery& query) {
       state = 1;
       stack.push_back({node.left, 0});
     } else if (state == 1) {
-      out += ' ';
-      if (node.type != JoinType::kInner) {
-        out += JoinTypeKeyword(node.type);
-        out += ' ';
-      }
+      between(node, out);
       state = 2;
       stack.push_back({node.right, 0});
     } else {
@@ -176,18 +184,46 @@ std::string WideTreeString(const WidePlan& plan, const WideQuery& query) {
   return out;
 }
 
+namespace {
+
+// The figures PlanNode and WideNode name alike: children, cardinality,
+// cost, join type, the cluster model's choices and metrics.
+template <typename From, typename To>
+void CopyFigures(const From& from, To& to) {
+  to.left = from.left;
+  to.right = from.right;
+  to.cardinality = from.cardinality;
+  to.cost = from.cost;
+  to.type = from.type;
+  to.strategy = from.strategy;
+  to.nodes = from.nodes;
+  to.sample_rate = from.sample_rate;
+  to.metrics = from.metrics;
+}
+
+}  // namespace
+
 WidePlan FromExactPlan(const Plan& plan) {
   WidePlan out;
   out.nodes.reserve(plan.nodes.size());
   for (const PlanNode& n : plan.nodes) {
     WideNode w;
     if (n.is_leaf()) w.relation = Lowest(n.relations).value;
-    w.left = n.left;
-    w.right = n.right;
-    w.cardinality = n.cardinality;
-    w.cost = n.cost;
-    w.type = n.type;
+    CopyFigures(n, w);
     out.nodes.push_back(w);
+  }
+  return out;
+}
+
+Plan ToExactPlan(const WidePlan& plan) {
+  const std::vector<RelSet> sets = WideNodeSets(plan);
+  Plan out;
+  out.nodes.reserve(plan.nodes.size());
+  for (size_t i = 0; i < plan.nodes.size(); ++i) {
+    PlanNode n;
+    n.relations = sets[i];
+    CopyFigures(plan.nodes[i], n);
+    out.nodes.push_back(n);
   }
   return out;
 }

@@ -1,7 +1,9 @@
 // A join plan over a query of any size: a binary tree whose leaves name
-// relation ids, with every node's cardinality and C_out cost. The exact
-// engine's Plan (core/model/plan.h) converts to it; the heuristic tiers build it
-// directly. Plain value type.
+// relation ids, with every node's cardinality and cost (C_out; for the
+// cluster model, latency_s beside its physical choices and metrics). The
+// exact engine's Plan (core/model/plan.h) converts to it; the heuristic
+// tiers build it directly, and every answer leaves in this form. Plain
+// value type.
 #ifndef SLICEPLAN_TIERS_WIDE_PLAN_H_
 #define SLICEPLAN_TIERS_WIDE_PLAN_H_
 
@@ -9,6 +11,7 @@
 #include <string>
 #include <vector>
 
+#include "absl/functional/function_ref.h"
 #include "absl/status/status.h"
 #include "core/model/plan.h"
 #include "core/model/wide_query.h"
@@ -20,9 +23,15 @@ struct WideNode {
   int32_t left = -1;      // joins: child node indices
   int32_t right = -1;
   double cardinality = 0;
-  double cost = 0;  // C_out of the subtree
+  double cost = 0;  // C_out of the subtree (cluster model: latency_s)
   // joins: the type (left, semi, anti: `left` is the preserved input)
   JoinType type = JoinType::kInner;
+  // The cluster model's physical choices and the subtree's metrics (as
+  // PlanNode holds them); untouched by the cout model.
+  JoinStrategy strategy = JoinStrategy::kShuffle;  // joins
+  int32_t nodes = 0;                               // joins: rented nodes
+  double sample_rate = 1;                          // leaves
+  ClusterCosts metrics;
   bool is_leaf() const { return left < 0; }
 };
 
@@ -61,9 +70,20 @@ bool HasCrossProduct(const WidePlan& plan, const WideQuery& query);
 // a 10,000-deep left-deep plan does not recurse.
 std::string WideTreeString(const WidePlan& plan, const WideQuery& query);
 
+// The parenthesised tree with the caller's text: `leaf` writes a leaf,
+// `between` what stands between a join's two inputs (WideTreeString: " ",
+// or " LEFT " for a left join). Iterative, as WideTreeString.
+std::string WriteTree(const WidePlan& plan,
+                      absl::FunctionRef<void(const WideNode&, std::string&)> leaf,
+                      absl::FunctionRef<void(const WideNode&, std::string&)> between);
+
 // The exact engine's plan in this form (leaf = the set's single member),
-// cardinalities and costs copied.
+// cardinalities, costs and the cluster model's choices and metrics copied.
 WidePlan FromExactPlan(const Plan& plan);
+
+// The reverse: relation masks from the leaves, every figure copied.
+// REQUIRES: CheckWidePlan is OK and the query has at most 64 relations.
+Plan ToExactPlan(const WidePlan& plan);
 
 }  // namespace sliceplan
 

@@ -10,6 +10,7 @@
 #include "core/model/status_macros.h"
 #include "core/model/value_range.h"
 #include "wire/join_kind.h"
+#include "wire/node_figures.h"
 
 namespace sliceplan {
 
@@ -93,37 +94,6 @@ absl::StatusOr<Preference> PreferenceFromProto(const v1::Preference& m) {
     }
   }
   return Preference{w.latency_s(), w.node_seconds(), w.incompleteness()};
-}
-
-v1::Operator OperatorOf(const PlanNode& node, CostModelKind model) {
-  if (node.is_leaf()) return v1::OPERATOR_SCAN;
-  if (model != CostModelKind::kCluster) return v1::OPERATOR_JOIN;
-  switch (node.strategy) {
-    case JoinStrategy::kShuffle:
-      return v1::OPERATOR_SHUFFLE;
-    case JoinStrategy::kBroadcastRight:
-      return v1::OPERATOR_BROADCAST_RIGHT;
-    case JoinStrategy::kBroadcastLeft:
-      return v1::OPERATOR_BROADCAST_LEFT;
-  }
-  return v1::OPERATOR_UNSPECIFIED;
-}
-
-// Sets node.strategy from the node's operator; INVALID_ARGUMENT when the
-// operator does not fit the node (a scan for leaves, a join of the model).
-absl::Status ReadOperator(const v1::PlanNode& in, const std::string& at, CostModelKind model,
-                          PlanNode& node) {
-  if (in.kind_case() == v1::PlanNode::kJoin) {
-    for (JoinStrategy st : kAllStrategies) {
-      node.strategy = st;
-      if (in.op() == OperatorOf(node, model)) return absl::OkStatus();
-    }
-  } else if (in.op() == v1::OPERATOR_SCAN) {
-    return absl::OkStatus();
-  }
-  return absl::InvalidArgumentError(
-      absl::StrCat(at, ".op: ", v1::Operator_Name(in.op()), " is not an operator of ",
-                   in.kind_case() == v1::PlanNode::kJoin ? "a join" : "a leaf"));
 }
 
 absl::StatusOr<PlanShape> ShapeFromProto(v1::PlanShape shape) {
@@ -233,55 +203,6 @@ absl::Status ReadJoin(const v1::PlanNode& in, const std::string& at, int i, cons
   return absl::OkStatus();
 }
 
-// The cluster model's figures of a node besides its latency: node-seconds,
-// completeness, a leaf's sample rate, a join's node count; INVALID_ARGUMENT
-// when the costs lack node_seconds or completeness.
-absl::Status ReadClusterFigures(const v1::PlanNode& in, const std::string& at, PlanNode& node) {
-  const auto ns = in.costs().find("node_seconds");
-  const auto comp = in.costs().find("completeness");
-  if (ns == in.costs().end() || comp == in.costs().end()) {
-    return absl::InvalidArgumentError(
-        absl::StrCat(at, ".costs: needs node_seconds and completeness"));
-  }
-  node.metrics.node_seconds = ns->second;
-  node.metrics.completeness = comp->second;
-  node.sample_rate = in.kind_case() == v1::PlanNode::kRelation ? in.sample_rate() : 1;
-  node.nodes = static_cast<int>(in.nodes());
-  return absl::OkStatus();
-}
-
-// The model's own cost entry into node.cost (and the cluster model's
-// latency); INVALID_ARGUMENT when the entry is missing.
-absl::Status ReadModelCost(const v1::PlanNode& in, const std::string& at, CostModelKind model,
-                           PlanNode& node) {
-  const auto cost = in.costs().find(MetricName(model));
-  if (cost == in.costs().end()) {
-    return absl::InvalidArgumentError(
-        absl::StrCat(at, ".costs: no \"", MetricName(model), "\" entry"));
-  }
-  node.cost = cost->second;
-  if (model == CostModelKind::kCluster) node.metrics.latency_s = cost->second;
-  return absl::OkStatus();
-}
-
-// A reply's numbers are checked like a request's: a worker that sends NaN
-// or a negative cost must not decide the merge. INVALID_ARGUMENT unless the
-// cost, cardinality and node-seconds lie in [0, kValueCeiling] and the
-// completeness in (0, 1].
-absl::Status CheckNodeFigures(const PlanNode& node, const std::string& at) {
-  for (const double v : {node.cost, node.cardinality, node.metrics.node_seconds}) {
-    if (!(v >= 0 && v <= kValueCeiling)) {
-      return absl::InvalidArgumentError(
-          absl::StrCat(at, ": a cost or cardinality is not a number in [0, 1e300], got ", v));
-    }
-  }
-  if (!(node.metrics.completeness > 0 && node.metrics.completeness <= 1)) {
-    return absl::InvalidArgumentError(absl::StrCat(
-        at, ".costs: completeness must lie in (0, 1], got ", node.metrics.completeness));
-  }
-  return absl::OkStatus();
-}
-
 // Node i of a plan reply, read against the nodes before it in `plan` (a
 // leaf's relation is added to `leaves`); INVALID_ARGUMENT naming the first
 // bad field of the node.
@@ -296,11 +217,7 @@ absl::StatusOr<PlanNode> NodeFromProto(const v1::PlanNode& in, int i, const Quer
   } else {
     return absl::InvalidArgumentError(absl::StrCat(at, ": neither relation nor join"));
   }
-  node.cardinality = in.cardinality();
-  if (model == CostModelKind::kCluster) RETURN_IF_ERROR(ReadClusterFigures(in, at, node));
-  RETURN_IF_ERROR(ReadOperator(in, at, model, node));
-  RETURN_IF_ERROR(ReadModelCost(in, at, model, node));
-  RETURN_IF_ERROR(CheckNodeFigures(node, at));
+  RETURN_IF_ERROR(wire_node::ReadFigures(in, at, model, node));
   return node;
 }
 
@@ -359,24 +276,14 @@ v1::Plan PlanToProto(const Plan& plan, CostModelKind model) {
   v1::Plan m;
   for (const PlanNode& node : plan.nodes) {
     v1::PlanNode* out = m.add_nodes();
-    const bool cluster = model == CostModelKind::kCluster;
     if (node.is_leaf()) {
       out->set_relation(Lowest(node.relations).value);
-      out->set_op(v1::OPERATOR_SCAN);
-      if (cluster) out->set_sample_rate(node.sample_rate);
     } else {
       out->mutable_join()->set_left(static_cast<uint32_t>(node.left));
       out->mutable_join()->set_right(static_cast<uint32_t>(node.right));
       out->mutable_join()->set_kind(static_cast<v1::JoinKind>(node.type));
-      out->set_op(OperatorOf(node, model));
-      if (cluster) out->set_nodes(static_cast<uint32_t>(node.nodes));
     }
-    out->set_cardinality(node.cardinality);
-    (*out->mutable_costs())[MetricName(model)] = node.cost;
-    if (cluster) {
-      (*out->mutable_costs())["node_seconds"] = node.metrics.node_seconds;
-      (*out->mutable_costs())["completeness"] = node.metrics.completeness;
-    }
+    wire_node::WriteFigures(node, model, *out);
   }
   return m;
 }

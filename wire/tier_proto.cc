@@ -4,6 +4,7 @@
 #include "core/model/status_macros.h"
 #include "core/model/value_range.h"
 #include "wire/join_kind.h"
+#include "wire/node_figures.h"
 #include "wire/service_proto.h"
 
 namespace sliceplan {
@@ -46,32 +47,31 @@ absl::StatusOr<SearchTier> TierFromProto(int tier) {
   }
 }
 
-v1::Plan WidePlanToProto(const WidePlan& plan) {
+v1::Plan WidePlanToProto(const WidePlan& plan, CostModelKind model) {
   v1::Plan m;
   for (const WideNode& node : plan.nodes) {
     v1::PlanNode* out = m.add_nodes();
     if (node.is_leaf()) {
       out->set_relation(static_cast<uint32_t>(node.relation));
-      out->set_op(v1::OPERATOR_SCAN);
     } else {
       out->mutable_join()->set_left(static_cast<uint32_t>(node.left));
       out->mutable_join()->set_right(static_cast<uint32_t>(node.right));
       out->mutable_join()->set_kind(static_cast<v1::JoinKind>(node.type));
-      out->set_op(v1::OPERATOR_JOIN);
     }
-    out->set_cardinality(node.cardinality);
-    (*out->mutable_costs())["cout"] = node.cost;
+    wire_node::WriteFigures(node, model, *out);
   }
   return m;
 }
 
-absl::StatusOr<WidePlan> WidePlanFromProto(const v1::Plan& m, const WideQuery& query) {
+absl::StatusOr<WidePlan> WidePlanFromProto(const v1::Plan& m, const WideQuery& query,
+                                           CostModelKind model) {
   if (m.nodes_size() != 2 * query.size() - 1) {
     return absl::InvalidArgumentError(absl::StrCat("plan: ", m.nodes_size(), " nodes; ",
                                                    query.size(), " relations need ",
                                                    2 * query.size() - 1));
   }
   WidePlan plan;
+  plan.nodes.reserve(static_cast<size_t>(m.nodes_size()));
   for (int i = 0; i < m.nodes_size(); ++i) {
     const v1::PlanNode& in = m.nodes(i);
     const std::string at = absl::StrCat("plan.nodes[", i, "]");
@@ -93,18 +93,7 @@ absl::StatusOr<WidePlan> WidePlanFromProto(const v1::Plan& m, const WideQuery& q
     } else {
       return absl::InvalidArgumentError(absl::StrCat(at, ": neither relation nor join"));
     }
-    const auto cost = in.costs().find("cout");
-    if (cost == in.costs().end()) {
-      return absl::InvalidArgumentError(absl::StrCat(at, ".costs: no \"cout\" entry"));
-    }
-    node.cost = cost->second;
-    node.cardinality = in.cardinality();
-    for (const double v : {node.cost, node.cardinality}) {
-      if (!(v >= 0 && v <= kValueCeiling)) {
-        return absl::InvalidArgumentError(
-            absl::StrCat(at, ": a cost or cardinality is not a number in [0, 1e300], got ", v));
-      }
-    }
+    RETURN_IF_ERROR(wire_node::ReadFigures(in, at, model, node));
     plan.nodes.push_back(node);
   }
   if (auto s = CheckWidePlan(plan, query.size()); !s.ok()) {
@@ -115,7 +104,12 @@ absl::StatusOr<WidePlan> WidePlanFromProto(const v1::Plan& m, const WideQuery& q
 
 v1::OptimizeResponse TieredToProto(const TieredOutcome& outcome, CostModelKind model) {
   v1::OptimizeResponse m = OutcomeToProto(outcome.schedule, model);
-  if (model == CostModelKind::kCout) *m.mutable_plan() = WidePlanToProto(outcome.plan);
+  // The answer's plans in the form of any size (the schedule's are the
+  // exact engine's, at most 64 relations, and may be none).
+  *m.mutable_plan() = WidePlanToProto(outcome.plan, model);
+  m.clear_frontier();
+  for (const WidePlan& p : outcome.frontier) *m.add_frontier() = WidePlanToProto(p, model);
+  m.set_chosen(outcome.chosen ? static_cast<int32_t>(*outcome.chosen) : -1);
   m.set_proven_optimal(outcome.proven_optimal);
   m.set_coverage(outcome.coverage);
   m.set_wall_seconds(outcome.wall_seconds);
@@ -135,18 +129,23 @@ absl::StatusOr<TieredOutcome> TieredFromProto(const v1::OptimizeResponse& m, con
   out.coverage = m.coverage();
   out.wall_seconds = m.wall_seconds();
   out.reason = m.tier_reason();
-  if (model == CostModelKind::kCluster) {
-    ASSIGN_OR_RETURN(const Query exact, ToExactQuery(query));
-    ASSIGN_OR_RETURN(out.schedule, OutcomeFromProto(m, exact, model));
-    out.exact_ran = true;
-    out.plan = FromExactPlan(out.schedule.result.plan);
-    return out;
-  }
   out.schedule = OutcomeStatsFromProto(m);
-  ASSIGN_OR_RETURN(out.plan, WidePlanFromProto(m.plan(), query));
+  ASSIGN_OR_RETURN(out.plan, WidePlanFromProto(m.plan(), query, model));
+  for (int i = 0; i < m.frontier_size(); ++i) {
+    auto plan = WidePlanFromProto(m.frontier(i), query, model);
+    if (!plan.ok()) {
+      return absl::InvalidArgumentError(
+          absl::StrCat("frontier[", i, "].", plan.status().message()));
+    }
+    out.frontier.push_back(*std::move(plan));
+  }
+  if (m.chosen() >= 0 && static_cast<size_t>(m.chosen()) < out.frontier.size()) {
+    out.chosen = static_cast<size_t>(m.chosen());
+  }
   if (query.size() <= kMaxRelations) {  // the exact engine's form too
-    ASSIGN_OR_RETURN(const Query exact, ToExactQuery(query));
-    ASSIGN_OR_RETURN(out.schedule.result.plan, PlanFromProto(m.plan(), exact, model));
+    out.schedule.result.plan = ToExactPlan(out.plan);
+    for (const WidePlan& p : out.frontier) out.schedule.result.frontier.push_back(ToExactPlan(p));
+    out.schedule.result.chosen = out.chosen;
   }
   out.exact_ran = out.tier == SearchTier::kExact && m.slice_count() != 0;
   return out;

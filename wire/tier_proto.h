@@ -20,12 +20,17 @@ v1::Tier TierToProto(SearchTier tier);
 // TIER_UNSPECIFIED is auto; a value outside the enum is INVALID_ARGUMENT.
 absl::StatusOr<SearchTier> TierFromProto(int tier);
 
-// A cout plan: leaves by relation id, costs {"cout": C_out}.
-v1::Plan WidePlanToProto(const WidePlan& plan);
-absl::StatusOr<WidePlan> WidePlanFromProto(const v1::Plan& m, const WideQuery& query);
+// A plan of any size: leaves by relation id, children by node index,
+// costs {"cout": C_out} or the cluster model's three metrics with its
+// physical choices (wire/node_figures.h). Reading checks the tree
+// (CheckWidePlan) and every figure's range.
+v1::Plan WidePlanToProto(const WidePlan& plan, CostModelKind model = CostModelKind::kCout);
+absl::StatusOr<WidePlan> WidePlanFromProto(const v1::Plan& m, const WideQuery& query,
+                                           CostModelKind model = CostModelKind::kCout);
 
+// The answer's plan, and for the cluster model its Pareto set and choice,
+// travel in the form of any size.
 v1::OptimizeResponse TieredToProto(const TieredOutcome& outcome, CostModelKind model);
-// REQUIRES for the cluster model: the query has at most 64 relations.
 absl::StatusOr<TieredOutcome> TieredFromProto(const v1::OptimizeResponse& m, const WideQuery& query,
                                               CostModelKind model);
 

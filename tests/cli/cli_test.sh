@@ -161,6 +161,37 @@ assert svg.count("chosen: plan %d<" % doc["chosen"]) == 1
 PY
 then passed=$((passed + 1)); else failed=$((failed + 1)); echo "FAIL cluster_many"; fi
 
+# Past 64 relations the cluster model answers by the anytime search: every
+# plan a tree over all 200 relations with its physical choices, the set
+# non-dominated, the plot drawn with cut tooltips; the text table leaves
+# the trees to the JSON but the chosen plan's.
+python3 "$examples/generate_port_query.py" 200 >"$tmp/wide.json"
+check cluster_wide 0 "" optimize "$tmp/wide.json" --cost=cluster --format=json \
+  --deadline-seconds=1.5 --plot="$tmp/wide.svg" --quiet
+if python3 - "$tmp/out" "$tmp/wide.json" "$tmp/wide.svg" <<'PY'
+import json, re, sys
+doc, query = json.load(open(sys.argv[1])), json.load(open(sys.argv[2]))
+names = sorted(r["name"] for r in query["relations"])
+assert doc["tier"] == "anytime" and doc["proven_optimal"] is False, doc["tier"]
+plans = doc["plans"]
+assert plans and doc["chosen"] is not None and 0 <= doc["chosen"] < len(plans)
+costs = [(p["costs"]["latency_s"], p["costs"]["node_seconds"], p["costs"]["completeness"]) for p in plans]
+for i, a in enumerate(costs):
+    for j, b in enumerate(costs):
+        assert i == j or not (b[0] <= a[0] and b[1] <= a[1] and b[2] >= a[2]), (i, j)
+for p in plans:
+    assert sorted(n["relation"] for n in p["nodes"] if "relation" in n) == names
+    assert len(p["nodes"]) == 2 * len(names) - 1
+    assert len(re.findall(r"\[(shuffle|bcast-r|bcast-l) \d+\]", p["physical"])) == len(names) - 1
+svg = open(sys.argv[3]).read()
+assert svg.count("<title>") >= 1 and "(200 relations; the JSON has the whole tree)" in svg
+PY
+then passed=$((passed + 1)); else failed=$((failed + 1)); echo "FAIL cluster_wide_json"; fi
+check cluster_wide_text 0 "" optimize "$tmp/wide.json" --cost=cluster --deadline-seconds=1 --quiet
+if grep -q "the trees are shown up to 64 relations" "$tmp/out" && grep -q "^chosen: plan" "$tmp/out" \
+  && grep -q "of bushy plans of 200 relations" "$tmp/out"
+then passed=$((passed + 1)); else failed=$((failed + 1)); echo "FAIL cluster_wide_text"; cat "$tmp/out" | head -20; fi
+
 # A good run: JSON with the fields of docs/interfaces.md, one plan, P slices.
 check json_ok 0 "" optimize "$examples/port_calls_small.json" --format=json --slices=4 --workers=2
 if python3 - "$tmp/out" <<'PY'

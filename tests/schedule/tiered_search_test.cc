@@ -14,6 +14,7 @@
 #include "core/model/cardinality.h"
 #include "gtest/gtest.h"
 #include "schedule/embedded_pool.h"
+#include "tests/support/cluster_reference.h"
 #include "tests/support/reference_dp.h"
 #include "tests/support/test_queries.h"
 #include "tests/support/wide_queries.h"
@@ -27,6 +28,15 @@ using testing::GraphShape;
 SearchOptions Bushy(bool cross_products) {
   SearchOptions options;
   options.cross_products = cross_products;
+  return options;
+}
+
+// The cluster model with node counts {4, 16} and sample rates {1, 0.1}.
+SearchOptions SmallCluster() {
+  SearchOptions options;
+  options.cost = CostModelKind::kCluster;
+  options.cluster.params.node_counts = {4, 16};
+  options.cluster.params.sample_rates = {1.0, 0.1};
   return options;
 }
 
@@ -139,10 +149,7 @@ TEST(TieredSearchTest, APartialExactRunWithNoSliceSolvedStillAnswers) {
 // the anytime set (not proven), never nothing, every plan's metrics its
 // physical choices' (recomputed here).
 TEST(TieredSearchTest, TheClusterModelGetsASetAtEverySize) {
-  SearchOptions options;
-  options.cost = CostModelKind::kCluster;
-  options.cluster.params.node_counts = {4, 16};
-  options.cluster.params.sample_rates = {1.0, 0.1};
+  SearchOptions options = SmallCluster();
   const Query small = testing::MakeQuery(GraphShape::kRandom, 6, 2);
   auto exact = Tiers(WideQuery::FromExact(small), options, SearchTier::kAuto, 10);
   ASSERT_TRUE(exact.ok()) << exact.status();
@@ -155,10 +162,10 @@ TEST(TieredSearchTest, TheClusterModelGetsASetAtEverySize) {
   ASSERT_TRUE(anytime.ok()) << anytime.status();
   EXPECT_EQ(anytime->tier, SearchTier::kAnytime);
   EXPECT_FALSE(anytime->proven_optimal);
-  const auto& frontier = anytime->schedule.result.frontier;
-  ASSERT_FALSE(frontier.empty());
+  ASSERT_FALSE(anytime->frontier.empty());
   const Cardinality card(large);
-  for (const Plan& plan : frontier) {
+  for (const WidePlan& wide : anytime->frontier) {
+    const Plan plan = ToExactPlan(wide);
     auto again = RecostClusterPlan(large, card, options.cluster.params, plan);
     ASSERT_TRUE(again.ok()) << again.status();
     EXPECT_NEAR(again->back().latency_s, plan.root().metrics.latency_s,
@@ -170,6 +177,69 @@ TEST(TieredSearchTest, TheClusterModelGetsASetAtEverySize) {
   ASSERT_TRUE(forced.ok()) << forced.status();
   EXPECT_EQ(forced->tier, SearchTier::kAnytime);
   EXPECT_NE(forced->reason.find("anytime: requested"), std::string::npos) << forced->reason;
+}
+
+// Past the exact engine's 64 relations the cluster model's auto and
+// anytime tiers answer with a Pareto set: every plan a valid tree over
+// all relations, the set non-dominated, each plan's metrics recomputed
+// from its tree and physical choices by the independent reference (its
+// own cardinalities), the chosen plan the answer's. The exact tier alone
+// is refused by size.
+void ExpectAValidWideFrontier(const TieredOutcome& out, const WideQuery& q,
+                              const ClusterParams& params) {
+  ASSERT_FALSE(out.frontier.empty());
+  ASSERT_TRUE(out.chosen.has_value());
+  EXPECT_EQ(WideTreeString(out.plan, q), WideTreeString(out.frontier[*out.chosen], q));
+  for (size_t i = 0; i < out.frontier.size(); ++i) {
+    const WidePlan& plan = out.frontier[i];
+    ASSERT_TRUE(CheckWidePlan(plan, q.size()).ok()) << CheckWidePlan(plan, q.size());
+    const testing::RefCosts ref = testing::RefCostsOfWide(q, params, plan);
+    const ClusterCosts& m = plan.root().metrics;
+    EXPECT_NEAR(ref.latency, m.latency_s, 1e-9 * m.latency_s) << i;
+    EXPECT_NEAR(ref.node_seconds, m.node_seconds, 1e-9 * m.node_seconds) << i;
+    EXPECT_NEAR(ref.completeness, m.completeness, 1e-12) << i;
+    for (size_t j = 0; j < out.frontier.size(); ++j) {
+      const ClusterCosts& o = out.frontier[j].root().metrics;
+      EXPECT_FALSE(j != i && o.latency_s <= m.latency_s && o.node_seconds <= m.node_seconds &&
+                   o.completeness >= m.completeness)
+          << "plan " << j << " dominates plan " << i;
+    }
+  }
+}
+
+TEST(TieredSearchTest, TheClusterModelTakesQueriesPastSixtyFourRelations) {
+  SearchOptions options = SmallCluster();
+  const WideQuery q65 = testing::MakeWideQuery(testing::WideShape::kTreeWithCycles, 65, 7);
+  for (SearchTier tier : {SearchTier::kAuto, SearchTier::kAnytime}) {
+    auto out = Tiers(q65, options, tier, 0.5);
+    ASSERT_TRUE(out.ok()) << out.status();
+    EXPECT_EQ(out->tier, SearchTier::kAnytime);
+    EXPECT_FALSE(out->proven_optimal);
+    ExpectAValidWideFrontier(*out, q65, options.cluster.params);
+  }
+  auto exact = Tiers(q65, options, SearchTier::kExact, 0.5);
+  ASSERT_FALSE(exact.ok());
+  EXPECT_EQ(exact.status().code(), absl::StatusCode::kInvalidArgument);
+  EXPECT_NE(exact.status().message().find("the anytime tier, or auto, takes any size"),
+            std::string::npos)
+      << exact.status();
+}
+
+TEST(TieredSearchTest, AThousandRelationsGetAParetoSetWithinTheDeadline) {
+  SearchOptions options = SmallCluster();
+  const WideQuery q = testing::MakeWideQuery(testing::WideShape::kTreeWithCycles, 1000, 3);
+  for (const bool cross : {true, false}) {
+    options.cross_products = cross;
+    const auto start = std::chrono::steady_clock::now();
+    auto out = Tiers(q, options, SearchTier::kAuto, 1.5);
+    EXPECT_LT(std::chrono::steady_clock::now() - start, std::chrono::seconds(5));
+    ASSERT_TRUE(out.ok()) << out.status();
+    EXPECT_EQ(out->tier, SearchTier::kAnytime);
+    ExpectAValidWideFrontier(*out, q, options.cluster.params);
+    if (!cross) {
+      for (const WidePlan& p : out->frontier) EXPECT_FALSE(HasCrossProduct(p, q));
+    }
+  }
 }
 
 TEST(TieredSearchTest, ASaturatingJoinIsRefusedAtAnySize) {
@@ -267,7 +337,7 @@ TEST(TieredSearchTest, TheAnytimeSearchReportsItsSetsSizeEverySecond) {
       EXPECT_GE(events[i].elapsed_seconds, events[i - 1].elapsed_seconds);
     }
   }
-  EXPECT_EQ(*events.back().frontier_plans, out->schedule.result.frontier.size());
+  EXPECT_EQ(*events.back().frontier_plans, out->frontier.size());
 }
 
 TEST(TieredSearchTest, ADisconnectedGraphWithoutCrossProductsIsNotFound) {

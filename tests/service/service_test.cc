@@ -18,6 +18,7 @@
 #include "tests/support/reference_dp.h"
 #include "tests/support/servers.h"
 #include "tests/support/test_queries.h"
+#include "tests/support/wide_queries.h"
 #include "wire/query_proto.h"
 
 namespace sliceplan {
@@ -120,6 +121,42 @@ TEST(ServiceTest, ClusterFrontierOverRpcEqualsEmbedded) {
     ASSERT_TRUE(local->chosen.has_value());
     EXPECT_GE(local->plan.root().metrics.completeness, 0.5);
   }
+}
+
+// Past 64 relations the coordinator answers the cluster model with the
+// anytime set, plans in the form of any size: each a tree over all 120
+// relations with its physical choices, as the coordinator sent them. A
+// set too large for the answer's limit (here 300 kB, about 14 plans) is
+// thinned to fit and says so, never refused after its deadline.
+TEST(ServiceTest, AClusterQueryPastSixtyFourRelationsGetsASetOverRpc) {
+  Cluster c = StartCluster(1, {"--max_response_bytes=300000"});
+  ASSERT_TRUE(c.coordinator);
+  const WideQuery q = testing::MakeWideQuery(testing::WideShape::kSnowflake, 120, 5);
+  cli::RemoteRequest r;
+  r.coordinator = c.coordinator->address();
+  r.options.cost = CostModelKind::kCluster;
+  r.options.cluster.params.node_counts = {4, 16};
+  r.options.cluster.params.sample_rates = {1.0, 0.1};
+  r.deadline_seconds = 2.5;  // room for an event at 1 s that the answer does not supersede
+  uint64_t events = 0;
+  auto out = cli::OptimizeRemote(r, q, [&](const ScheduleProgress& p) {
+    if (p.frontier_plans) ++events;
+  });
+  ASSERT_TRUE(out.ok()) << out.status();
+  EXPECT_EQ(out->tier, SearchTier::kAnytime);
+  EXPECT_FALSE(out->proven_optimal);
+  ASSERT_FALSE(out->frontier.empty());
+  ASSERT_TRUE(out->chosen.has_value());
+  for (const WidePlan& plan : out->frontier) {
+    EXPECT_TRUE(CheckWidePlan(plan, q.size()).ok());
+    EXPECT_GT(plan.root().metrics.latency_s, 0);
+  }
+  EXPECT_EQ(WideTreeString(out->plan, q), WideTreeString(out->frontier[*out->chosen], q));
+  EXPECT_NE(out->reason.find("plans are returned (the answer's limit of 300000 bytes"),
+            std::string::npos)
+      << out->reason;
+  EXPECT_GE(out->frontier.size(), 5u);
+  EXPECT_GE(events, 1u);  // the set's size at least once a second (and at the end)
 }
 
 TEST(ServiceTest, KilledWorkerMidRunStillGivesTheOptimum) {

@@ -1,9 +1,11 @@
 #include "tests/support/cluster_reference.h"
 
 #include <algorithm>
+#include <cmath>
 #include <map>
 
 #include "tests/support/reference_search.h"
+#include "tiers/wide_plan.h"
 
 namespace sliceplan::testing {
 namespace {
@@ -174,6 +176,49 @@ RefCosts RefCostsOf(const Query& query, const ClusterParams& params, const Plan&
     const double t = Stage(params, strategy, n.nodes, a, Width(query, l), b, Width(query, r), rows);
     at[i] = {{std::max(a.c.latency, b.c.latency) + t,
               a.c.node_seconds + b.c.node_seconds + n.nodes * t, comp},
+             rows,
+             false};
+  }
+  return at.back().c;
+}
+
+RefCosts RefCostsOfWide(const WideQuery& query, const ClusterParams& params, const WidePlan& plan) {
+  const size_t n = static_cast<size_t>(query.size());
+  std::vector<std::vector<bool>> in(plan.nodes.size(), std::vector<bool>(n, false));
+  std::vector<RefPlan> at(plan.nodes.size());
+  std::vector<double> width(plan.nodes.size(), 0);
+  for (size_t i = 0; i < plan.nodes.size(); ++i) {
+    const WideNode& node = plan.nodes[i];
+    if (node.is_leaf()) {
+      const Relation& r = query.relation(node.relation);
+      in[i][static_cast<size_t>(node.relation)] = true;
+      width[i] = r.row_bytes;
+      at[i] = {{0, 0, node.sample_rate}, r.rows * node.sample_rate, true};
+      continue;
+    }
+    const size_t l = static_cast<size_t>(node.left), r = static_cast<size_t>(node.right);
+    // Summed in logarithms: the rows of hundreds of relations overflow a
+    // double long before their selectivities bring the product back.
+    double log_card = 0;
+    for (size_t k = 0; k < n; ++k) {
+      in[i][k] = in[l][k] || in[r][k];
+      if (in[i][k]) log_card += std::log(query.relation(static_cast<int32_t>(k)).rows);
+    }
+    for (const WidePredicate& p : query.predicates()) {
+      bool inside = true;
+      for (int32_t k : p.relations) inside = inside && in[i][static_cast<size_t>(k)];
+      if (inside) log_card += std::log(p.selectivity);
+    }
+    const double card = std::exp(log_card);
+    width[i] = width[l] + width[r];
+    const RefPlan& a = at[l];
+    const RefPlan& b = at[r];
+    const double comp = a.c.completeness * b.c.completeness;
+    const double rows = card * comp;
+    const double t =
+        Stage(params, static_cast<int>(node.strategy), node.nodes, a, width[l], b, width[r], rows);
+    at[i] = {{std::max(a.c.latency, b.c.latency) + t,
+              a.c.node_seconds + b.c.node_seconds + node.nodes * t, comp},
              rows,
              false};
   }

@@ -9,6 +9,11 @@
 #include "core/cost/cluster_model.h"
 #include "core/model/plan.h"
 #include "core/model/query.h"
+#include "core/model/wide_query.h"
+
+namespace sliceplan {
+struct WidePlan;  // tiers/wide_plan.h: above the core suites' layer
+}  // namespace sliceplan
 
 namespace sliceplan::testing {
 
@@ -32,6 +37,12 @@ std::vector<RefCosts> RefFrontierPruningAcrossLevels(const Query& query,
 
 // An engine plan's costs recomputed from its tree and physical choices.
 RefCosts RefCostsOf(const Query& query, const ClusterParams& params, const Plan& plan);
+
+// The same for a plan of any size: each node's cardinality from its own
+// relations (the product of their rows and of the selectivities of the
+// predicates inside them, summed as logarithms), not from the engine's
+// numbers.
+RefCosts RefCostsOfWide(const WideQuery& query, const ClusterParams& params, const WidePlan& plan);
 
 }  // namespace sliceplan::testing
 

@@ -27,7 +27,7 @@ inline ClusterSearchConfig SmallClusterConfig() {
 
 // REQUIRES: the tree has at most 64 relations.
 inline Plan PlanWithChoices(const WidePlan& tree, const PhysicalPlan& choices) {
-  return ClusterPlanOf(tree, choices);
+  return ToExactPlan(WithPhysicalChoices(tree, choices));
 }
 
 // The smallest alpha such that every plan of `reference` is alpha-covered
