@@ -205,9 +205,16 @@ ScheduleOptions ScheduleOfRequest(grpc::ServerContext* context, const v1::Optimi
 }
 
 // RESOURCE_EXHAUSTED when the outcome's Pareto set has more plans than the
-// server returns.
-absl::Status CheckFrontierSize(const TieredOutcome& outcome, const InputLimits& limits) {
+// server returns; an anytime set is thinned to the limit instead
+// (schedule/frontier_thinning.h).
+absl::Status CheckFrontierSize(TieredOutcome& outcome, const InputLimits& limits) {
   const auto plans = static_cast<int64_t>(outcome.frontier.size());
+  if (plans > limits.max_frontier_plans && outcome.tier == SearchTier::kAnytime) {
+    ThinFrontier(
+        outcome, static_cast<size_t>(std::max<int64_t>(1, limits.max_frontier_plans)),
+        absl::StrCat("the limit of ", limits.max_frontier_plans, " plans, --max_frontier_plans"));
+    return absl::OkStatus();
+  }
   if (plans > limits.max_frontier_plans) {
     return absl::ResourceExhaustedError(absl::StrCat(
         "the Pareto set has ", plans, " plans, over the limit of ", limits.max_frontier_plans,

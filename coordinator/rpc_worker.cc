@@ -7,6 +7,7 @@
 #include "spdlog/spdlog.h"
 #include "wire/query_proto.h"
 #include "wire/service_proto.h"
+#include "wire/tier_proto.h"
 
 namespace sliceplan {
 namespace {
@@ -20,17 +21,37 @@ std::chrono::system_clock::time_point ToSystem(std::chrono::steady_clock::time_p
 // What gRPC says when a server's resource quota has no thread for a call.
 constexpr char kThreadsExhausted[] = "Server Threadpool Exhausted";
 
+// A failed call's status: busy when the worker refused it for lack of
+// room (its own refusal, marked, or its server out of the threads its
+// queue allows: gRPC's own words, rpc/serve.h), else as it came.
+absl::Status CallStatus(const grpc::Status& s, const grpc::ClientContext& context) {
+  if (s.error_code() == grpc::StatusCode::RESOURCE_EXHAUSTED &&
+      (context.GetServerTrailingMetadata().count(kBusyKey) != 0 ||
+       s.error_message() == kThreadsExhausted)) {
+    return BusyError(s.error_message());
+  }
+  return FromGrpc(s);
+}
+
+// A reply that does not read is the worker's fault, not the request's.
+absl::Status BadAnswer(const absl::Status& read) {
+  return absl::InternalError(absl::StrCat("worker sent a bad answer: ", read.message()));
+}
+
+// One asynchronous SolveSlice call (a slice or an anytime part):
+// `finish` reads the reply (or the failure) and answers the caller; it
+// runs once, on a gRPC thread.
 class RpcCall : public SliceCall {
  public:
-  RpcCall(v1::SliceWorker::Stub* stub, const SliceTask& task, SliceDone done,
-          std::function<void(const absl::Status&)> count)
-      : task_(task), done_(std::move(done)), count_(std::move(count)) {
-    request_.mutable_query()->CopyFrom(QueryToProto(*task.query));
-    *request_.mutable_options() = SearchOptionsToProto(task.options);
-    request_.set_slice_index(task.slice.index);
-    request_.set_slice_count(task.slice.count);
-    if (task.deadline) context_.set_deadline(ToSystem(*task.deadline));
-    if (!task.request_id.empty()) context_.AddMetadata(kRequestIdKey, task.request_id);
+  using Finish = std::function<void(const grpc::Status&, const v1::SolveSliceResponse&,
+                                    const grpc::ClientContext&)>;
+
+  RpcCall(v1::SliceWorker::Stub* stub, v1::SolveSliceRequest request,
+          std::optional<std::chrono::steady_clock::time_point> deadline,
+          const std::string& request_id, Finish finish)
+      : request_(std::move(request)), finish_(std::move(finish)) {
+    if (deadline) context_.set_deadline(ToSystem(*deadline));
+    if (!request_id.empty()) context_.AddMetadata(kRequestIdKey, request_id);
     stub->async()->SolveSlice(&context_, &request_, &response_,
                               [this](grpc::Status s) { OnDone(s); });
   }
@@ -44,35 +65,27 @@ class RpcCall : public SliceCall {
 
  private:
   void OnDone(const grpc::Status& s) {
-    absl::StatusOr<SliceResult> result =
-        s.ok() ? SliceResultFromProto(response_, *task_.query, task_.options.cost, task_.slice)
-               : absl::StatusOr<SliceResult>(FromGrpc(s));
-    // Busy: the worker's own refusal (marked), or its server out of the
-    // threads its queue allows (gRPC's own words, rpc/serve.h).
-    if (s.error_code() == grpc::StatusCode::RESOURCE_EXHAUSTED &&
-        (context_.GetServerTrailingMetadata().count(kBusyKey) != 0 ||
-         s.error_message() == kThreadsExhausted)) {
-      result = BusyError(s.error_message());
-    }
-    if (s.ok() && !result.ok()) {
-      result = absl::InternalError(
-          absl::StrCat("worker sent a bad answer: ", result.status().message()));
-    }
-    count_(result.status());
-    done_(std::move(result));
+    finish_(s, response_, context_);
     absl::MutexLock lock(&mu_);
     finished_ = true;
   }
 
-  const SliceTask task_;
-  SliceDone done_;
-  std::function<void(const absl::Status&)> count_;
   grpc::ClientContext context_;
   v1::SolveSliceRequest request_;
   v1::SolveSliceResponse response_;
+  Finish finish_;
   absl::Mutex mu_;
   bool finished_ ABSL_GUARDED_BY(mu_) = false;
 };
+
+v1::SolveSliceRequest SliceRequest(const SliceTask& task) {
+  v1::SolveSliceRequest m;
+  m.mutable_query()->CopyFrom(QueryToProto(*task.query));
+  *m.mutable_options() = SearchOptionsToProto(task.options);
+  m.set_slice_index(task.slice.index);
+  m.set_slice_count(task.slice.count);
+  return m;
+}
 
 }  // namespace
 
@@ -95,8 +108,41 @@ RpcWorker::RpcWorker(std::string address, std::shared_ptr<grpc::ChannelCredentia
 }
 
 std::unique_ptr<SliceCall> RpcWorker::Start(const SliceTask& task, SliceDone done) {
-  return std::make_unique<RpcCall>(stub_.get(), task, std::move(done),
-                                   [this](const absl::Status& s) { Count(s); });
+  return std::make_unique<RpcCall>(
+      stub_.get(), SliceRequest(task), task.deadline, task.request_id,
+      [this, task, done = std::move(done)](const grpc::Status& s,
+                                           const v1::SolveSliceResponse& response,
+                                           const grpc::ClientContext& context) {
+        absl::StatusOr<SliceResult> result =
+            s.ok() ? SliceResultFromProto(response, *task.query, task.options.cost, task.slice)
+                   : absl::StatusOr<SliceResult>(CallStatus(s, context));
+        if (s.ok() && !result.ok()) result = BadAnswer(result.status());
+        Count(result.status());
+        done(std::move(result));
+      });
+}
+
+std::unique_ptr<SliceCall> RpcWorker::StartAnytime(const AnytimeTask& task, AnytimeDone done) {
+  return std::make_unique<RpcCall>(
+      stub_.get(), AnytimeTaskToProto(task), task.deadline, task.request_id,
+      [this, query = task.query, options = task.options, done = std::move(done)](
+          const grpc::Status& s, const v1::SolveSliceResponse& response,
+          const grpc::ClientContext& context) {
+        absl::StatusOr<AnytimeAnswer> answer =
+            s.ok() ? AnytimeAnswerFromProto(response, *query)
+                   : absl::StatusOr<AnytimeAnswer>(CallStatus(s, context));
+        if (s.ok() && !answer.ok()) answer = BadAnswer(answer.status());
+        // Checked here, so a made-up figure counts against this worker.
+        if (answer.ok()) {
+          if (auto bad = CheckAnytimeAnswer(*query, options, *answer); !bad.ok()) {
+            answer = absl::DataLossError(absl::StrCat("bad answer: ", bad.message()));
+          } else {
+            answer->checked = true;
+          }
+        }
+        Count(answer.status());
+        done(std::move(answer));
+      });
 }
 
 void RpcWorker::NoteLostToHedge() {

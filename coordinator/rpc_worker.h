@@ -1,8 +1,9 @@
 // A remote worker as the scheduler sees it (slice_worker.h): one gRPC
-// channel to a sliceplan-worker, calls as asynchronous SolveSlice RPCs, and
-// health from the standard grpc.health.v1 check plus DescribeWorker (for
-// its concurrent slices). Until the first check it counts as healthy with
-// one concurrent slice. Thread-safe.
+// channel to a sliceplan-worker, calls (slices and anytime parts) as
+// asynchronous SolveSlice RPCs, and health from the standard
+// grpc.health.v1 check plus DescribeWorker (for its concurrent slices).
+// Until the first check it counts as healthy with one concurrent slice.
+// Thread-safe.
 #ifndef SLICEPLAN_COORDINATOR_RPC_WORKER_H_
 #define SLICEPLAN_COORDINATOR_RPC_WORKER_H_
 
@@ -41,6 +42,8 @@ class RpcWorker : public SliceWorker {
   int ThreadsPerSlice() const override { return threads_per_slice_.load(); }
   bool Healthy() const override { return healthy_.load(); }
   std::unique_ptr<SliceCall> Start(const SliceTask& task, SliceDone done) override;
+  // An anytime part as a SolveSlice call with its `anytime` field set.
+  std::unique_ptr<SliceCall> StartAnytime(const AnytimeTask& task, AnytimeDone done) override;
   // kDemoteAfterHedgeLosses in a row (no answer between) demote the worker:
   // unhealthy, the reason in last_error and a log line, until a probe
   // slice answers (CheckHealth). Its health service may say SERVING

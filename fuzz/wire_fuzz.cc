@@ -1,6 +1,7 @@
 // libFuzzer target: the wire conversion of every request and reply
-// message. The input's first byte picks the message; the rest is parsed
-// as its binary form and converted; any input gives a value or a status.
+// message (a worker's reply read as a slice's and as an anytime part's,
+// the part's then checked as the coordinator checks it). The input's first byte picks the message;
+// the rest is parsed as its binary form and converted; any input gives a value or a status.
 #include <cstddef>
 #include <cstdint>
 #include <string>
@@ -10,6 +11,7 @@
 #include "wire/capacity_proto.h"
 #include "wire/query_proto.h"
 #include "wire/service_proto.h"
+#include "wire/tier_proto.h"
 
 namespace {
 
@@ -22,6 +24,12 @@ const sliceplan::Query& FixedQuery() {
                            {"relations": ["cranes", "moves"], "selectivity": 0.001}]})");
     return new sliceplan::Query(*parsed);
   }();
+  return *q;
+}
+
+const sliceplan::WideQuery& FixedWideQuery() {
+  static const sliceplan::WideQuery* q =
+      new sliceplan::WideQuery(sliceplan::WideQuery::FromExact(FixedQuery()));
   return *q;
 }
 
@@ -46,6 +54,13 @@ extern "C" int LLVMFuzzerTestOneInput(const uint8_t* data, size_t size) {
       for (CostModelKind model : {CostModelKind::kCout, CostModelKind::kCluster}) {
         (void)SliceResultFromProto(m, FixedQuery(), model, {0, 1});
       }
+      // As an anytime part's answer: read, then checked as the coordinator does.
+      auto answer = AnytimeAnswerFromProto(m, FixedWideQuery());
+      if (answer.ok()) {
+        SearchOptions options;
+        options.cost = CostModelKind::kCluster;
+        (void)CheckAnytimeAnswer(FixedWideQuery(), options, *answer);
+      }
       break;
     }
     case 2: {
@@ -53,6 +68,7 @@ extern "C" int LLVMFuzzerTestOneInput(const uint8_t* data, size_t size) {
       if (!m.ParseFromString(bytes)) return 0;
       for (CostModelKind model : {CostModelKind::kCout, CostModelKind::kCluster}) {
         (void)OutcomeFromProto(m, FixedQuery(), model);
+        (void)TieredFromProto(m, FixedWideQuery(), model);
       }
       break;
     }

@@ -16,7 +16,9 @@
 #include "absl/status/statusor.h"
 #include "absl/strings/cord.h"
 #include "core/model/query.h"
+#include "core/model/wide_query.h"
 #include "core/slice_solver.h"
+#include "tiers/anytime_part.h"
 
 namespace sliceplan {
 
@@ -28,7 +30,29 @@ struct SliceTask {
   std::string request_id;  // the request's, for log lines; may be empty
 };
 
-// One running slice. Destroying it waits for the work to end.
+// One part of the anytime frontier search (tiers/anytime_part.h): the
+// cluster model over a query of any size, until the deadline (the worker
+// keeps a reserve before it to send its answer).
+struct AnytimeTask {
+  const WideQuery* query = nullptr;  // outlives the call
+  SearchOptions options;
+  AnytimePartSpec part;
+  std::chrono::steady_clock::time_point deadline;
+  std::string request_id;
+  // In-process parts only: the part's set size and trees so far, at least
+  // once a second (a remote part reports at its end only). May be empty.
+  std::function<void(size_t plans, uint64_t trees)> on_progress;
+};
+using AnytimeDone = std::function<void(absl::StatusOr<AnytimeAnswer>)>;
+
+// How long before its deadline a part stops searching, to build and send
+// its answer: a twentieth of the time it was given, at least 20 ms, plus
+// 10 us per relation (a tree of 10,000 relations takes tens of ms to
+// evaluate), at most half the time.
+std::chrono::steady_clock::duration AnytimeReserve(double seconds_given, int relations);
+
+// One running slice (or anytime part). Destroying it waits for the work
+// to end.
 class SliceCall {
  public:
   virtual ~SliceCall() = default;
@@ -53,6 +77,9 @@ class SliceWorker {
   // Starts solving `task`; `done` runs exactly once, on any thread. The
   // returned call must not be destroyed from inside `done`.
   virtual std::unique_ptr<SliceCall> Start(const SliceTask& task, SliceDone done) = 0;
+  // The same for an anytime part. The default answers UNIMPLEMENTED at
+  // once (a worker that runs slices only).
+  virtual std::unique_ptr<SliceCall> StartAnytime(const AnytimeTask& task, AnytimeDone done);
   // The scheduler's word that a slice this worker had started first was
   // answered by a hedge on another worker (this call was cancelled): a
   // worker that keeps losing so does not answer (rpc_worker.h demotes it).

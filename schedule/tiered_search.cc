@@ -21,7 +21,8 @@
 #include "core/search/search_control.h"
 #include "core/slice_planner.h"
 #include "core/slice_solver.h"
-#include "tiers/anytime_frontier.h"
+#include "schedule/anytime_fanout.h"
+#include "schedule/local_worker.h"
 #include "tiers/greedy.h"
 #include "tiers/join_forest.h"
 #include "tiers/linear_dp.h"
@@ -336,43 +337,61 @@ class TierRun {
     return Anytime(std::move(exact_plans), std::move(reason));
   }
 
-  // The anytime search stops this much before the deadline: its set is
-  // filtered and converted after it stops, and one more tree may be
-  // evaluated first (tens of ms at 10,000 relations), all before a
-  // deadline answer must leave (schedule/timed_tiers.h). A twentieth of
-  // the time left, at least 20 ms, plus 10 us per relation; at most half
-  // the time left.
-  Clock::duration AnytimeReserve() const {
-    const double left = Remaining();
-    const double reserve = std::min(0.5 * left, std::max(0.05 * left, 0.02) + 1e-5 * query_.size());
-    return std::chrono::duration_cast<Clock::duration>(std::chrono::duration<double>(reserve));
-  }
-
+  // The anytime search across the pool (schedule/anytime_fanout.h): a
+  // part per concurrent slice, all stopped a reserve before the deadline,
+  // since their sets are checked, merged and converted after they stop
+  // and all that before a deadline answer must leave
+  // (schedule/timed_tiers.h). With no healthy worker it runs here, as one
+  // part.
   absl::StatusOr<TieredOutcome> Anytime(std::vector<WidePlan> plans, std::string reason) {
-    SearchControl control(nullptr, deadline_ - AnytimeReserve());
-    if (schedule_.cancelled) control.set_cancel_check(schedule_.cancelled);
-    AnytimeFrontierOptions o;
-    o.shape = options_.shape;
-    o.cross_products = options_.cross_products;
-    o.cap_per_node = query_.size() <= 16 ? 32 : 8;
-    if (schedule_.on_progress) {  // at least once a second, with the set's size
-      o.on_progress = [this](size_t kept, uint64_t trees) {
-        ScheduleProgress p;
-        p.elapsed_seconds = SecondsBetween(start_, Clock::now());
-        p.frontier_plans = kept;
-        p.trees = trees;
-        schedule_.on_progress(p);
-      };
+    AnytimeFanoutRequest fan;
+    fan.query = &query_;
+    fan.options = options_;
+    fan.deadline = deadline_ - AnytimeReserve(Remaining(), query_.size());
+    fan.cancelled = schedule_.cancelled;
+    fan.request_id = schedule_.request_id;
+    // At least once a second the parts' sets' sizes, and at the end the
+    // merged set's.
+    const auto report = [this](uint64_t kept, uint64_t trees) {
+      if (!schedule_.on_progress) return;
+      ScheduleProgress p;
+      p.elapsed_seconds = SecondsBetween(start_, Clock::now());
+      p.frontier_plans = kept;
+      p.trees = trees;
+      schedule_.on_progress(p);
+    };
+    fan.on_progress = report;
+    LocalWorker here("coordinator");
+    SliceWorker* one[] = {&here};
+    absl::StatusOr<AnytimeFanout> run = RunAnytimeFanout(fan, workers_);
+    if (absl::IsFailedPrecondition(run.status())) {  // no healthy worker: one part here
+      absl::StrAppend(&reason, "; no worker is healthy, so one part ran on the coordinator");
+      run = RunAnytimeFanout(fan, one);
+    } else if (run.ok() && run->answered == 0 && plans.empty()) {
+      // Every part failed and nothing else was found: a part here, for
+      // what is left (past its deadline it still answers its seeds' set).
+      absl::StrAppend(&reason, "; every part on the pool failed (", run->failure,
+                      "), so one ran on the coordinator");
+      run = RunAnytimeFanout(fan, one);
     }
-    const AnytimeFrontierResult r = AnytimeFrontier(query_, options_.cluster, o, control);
-    if (absl::IsCancelled(control.status())) return absl::CancelledError("the caller cancelled");
-    for (const FrontierPlan& p : r.frontier)
-      plans.push_back(WithPhysicalChoices(*p.tree, p.physical));
+    RETURN_IF_ERROR(run.status());
+    for (WidePlan& p : run->plans) plans.push_back(std::move(p));
+    if (plans.empty()) {  // no part answered, and no exact slice was solved
+      return absl::UnavailableError(absl::StrCat("anytime: none of the ", run->parts,
+                                                 " parts answered (", run->failure, ")"));
+    }
     RETURN_IF_ERROR(TakeFrontier(std::move(plans)));
+    report(out_.frontier.size(), run->trees);
     out_.tier = SearchTier::kAnytime;
     out_.proven_optimal = false;
-    return Finish(absl::StrFormat("%s; %d trees evaluated, %d plans in the set", reason, r.trees,
-                                  out_.frontier.size()));
+    absl::StrAppendFormat(&reason, "; %d %s, %d trees evaluated, %d plans in the set", run->parts,
+                          run->parts == 1 ? "part" : "parts", run->trees, out_.frontier.size());
+    if (run->answered < run->parts) {
+      const uint32_t failed = run->parts - run->answered;
+      absl::StrAppendFormat(&reason, "; %d %s nothing (first: %s)", failed,
+                            failed == 1 ? "part gave" : "parts gave", run->failure);
+    }
+    return Finish(std::move(reason));
   }
 
   // The answer's Pareto set: the non-dominated plans of `plans` on the

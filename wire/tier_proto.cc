@@ -5,6 +5,7 @@
 #include "core/model/value_range.h"
 #include "wire/join_kind.h"
 #include "wire/node_figures.h"
+#include "wire/query_proto.h"
 #include "wire/service_proto.h"
 
 namespace sliceplan {
@@ -118,6 +119,27 @@ v1::OptimizeResponse TieredToProto(const TieredOutcome& outcome, CostModelKind m
   return m;
 }
 
+namespace {
+
+// Plans of any size from `list`, each named by its index on error.
+absl::StatusOr<std::vector<WidePlan>> WidePlansFromProto(
+    const google::protobuf::RepeatedPtrField<v1::Plan>& list, const WideQuery& query,
+    CostModelKind model) {
+  std::vector<WidePlan> out;
+  out.reserve(static_cast<size_t>(list.size()));
+  for (int i = 0; i < list.size(); ++i) {
+    auto plan = WidePlanFromProto(list[i], query, model);
+    if (!plan.ok()) {
+      return absl::InvalidArgumentError(
+          absl::StrCat("frontier[", i, "].", plan.status().message()));
+    }
+    out.push_back(*std::move(plan));
+  }
+  return out;
+}
+
+}  // namespace
+
 absl::StatusOr<TieredOutcome> TieredFromProto(const v1::OptimizeResponse& m, const WideQuery& query,
                                               CostModelKind model) {
   TieredOutcome out;
@@ -131,14 +153,7 @@ absl::StatusOr<TieredOutcome> TieredFromProto(const v1::OptimizeResponse& m, con
   out.reason = m.tier_reason();
   out.schedule = OutcomeStatsFromProto(m);
   ASSIGN_OR_RETURN(out.plan, WidePlanFromProto(m.plan(), query, model));
-  for (int i = 0; i < m.frontier_size(); ++i) {
-    auto plan = WidePlanFromProto(m.frontier(i), query, model);
-    if (!plan.ok()) {
-      return absl::InvalidArgumentError(
-          absl::StrCat("frontier[", i, "].", plan.status().message()));
-    }
-    out.frontier.push_back(*std::move(plan));
-  }
+  ASSIGN_OR_RETURN(out.frontier, WidePlansFromProto(m.frontier(), query, model));
   if (m.chosen() >= 0 && static_cast<size_t>(m.chosen()) < out.frontier.size()) {
     out.chosen = static_cast<size_t>(m.chosen());
   }
@@ -148,6 +163,40 @@ absl::StatusOr<TieredOutcome> TieredFromProto(const v1::OptimizeResponse& m, con
     out.schedule.result.chosen = out.chosen;
   }
   out.exact_ran = out.tier == SearchTier::kExact && m.slice_count() != 0;
+  return out;
+}
+
+v1::SolveSliceRequest AnytimeTaskToProto(const AnytimeTask& task) {
+  v1::SolveSliceRequest m;
+  *m.mutable_query() = WideQueryToProto(*task.query);
+  *m.mutable_options() = SearchOptionsToProto(task.options);
+  m.mutable_anytime()->set_part(task.part.part);
+  m.mutable_anytime()->set_parts(task.part.parts);
+  return m;
+}
+
+absl::StatusOr<AnytimePartSpec> AnytimePartFromProto(const v1::SolveSliceRequest& m) {
+  const AnytimePartSpec spec{m.anytime().part(), m.anytime().parts()};
+  RETURN_IF_ERROR(ValidateAnytimePart(spec));
+  return spec;
+}
+
+v1::SolveSliceResponse AnytimeAnswerToProto(const AnytimeAnswer& answer) {
+  v1::SolveSliceResponse m;
+  for (const WidePlan& p : answer.frontier) {
+    *m.add_frontier() = WidePlanToProto(p, CostModelKind::kCluster);
+  }
+  m.set_trees(answer.trees);
+  m.mutable_stats()->set_seconds(answer.seconds);
+  return m;
+}
+
+absl::StatusOr<AnytimeAnswer> AnytimeAnswerFromProto(const v1::SolveSliceResponse& m,
+                                                     const WideQuery& query) {
+  AnytimeAnswer out;
+  ASSIGN_OR_RETURN(out.frontier, WidePlansFromProto(m.frontier(), query, CostModelKind::kCluster));
+  out.trees = m.trees();
+  out.seconds = m.stats().seconds();
   return out;
 }
 

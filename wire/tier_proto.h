@@ -10,8 +10,10 @@
 #include "core/model/search_tier.h"
 #include "core/model/wide_query.h"
 #include "core/search_options.h"
+#include "schedule/slice_worker.h"
 #include "schedule/tiered_search.h"
 #include "sliceplan.pb.h"
+#include "tiers/anytime_part.h"
 #include "tiers/wide_plan.h"
 
 namespace sliceplan {
@@ -33,6 +35,20 @@ absl::StatusOr<WidePlan> WidePlanFromProto(const v1::Plan& m, const WideQuery& q
 v1::OptimizeResponse TieredToProto(const TieredOutcome& outcome, CostModelKind model);
 absl::StatusOr<TieredOutcome> TieredFromProto(const v1::OptimizeResponse& m, const WideQuery& query,
                                               CostModelKind model);
+
+// An anytime part's call (schedule/slice_worker.h: the query of any size,
+// the options, the part) and its answer (its set as plans of any size,
+// the trees, its seconds). Reading the answer checks each plan as
+// WidePlanFromProto does and names it ("frontier[3].plan.nodes[7]...");
+// the figures themselves are checked against the query by the caller
+// (CheckAnytimeAnswer).
+v1::SolveSliceRequest AnytimeTaskToProto(const AnytimeTask& task);
+// The part of a request that asks for one (REQUIRES: has_anytime()),
+// validated (ValidateAnytimePart).
+absl::StatusOr<AnytimePartSpec> AnytimePartFromProto(const v1::SolveSliceRequest& m);
+v1::SolveSliceResponse AnytimeAnswerToProto(const AnytimeAnswer& answer);
+absl::StatusOr<AnytimeAnswer> AnytimeAnswerFromProto(const v1::SolveSliceResponse& m,
+                                                     const WideQuery& query);
 
 }  // namespace sliceplan
 

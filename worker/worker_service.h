@@ -1,5 +1,7 @@
 // The worker's gRPC service: solves one slice per call with the core
-// engine and keeps no state between calls. Honours the call's deadline and
+// engine, or runs one part of the cluster model's anytime search (its
+// `anytime` field; tiers/anytime_part.h) until the call's deadline less
+// a reserve, and keeps no state between calls. Honours the call's deadline and
 // cancellation inside the DP loop; refuses a slice over its memo limit with
 // RESOURCE_EXHAUSTED. At most `concurrent_slices` slices run at once, each
 // on `threads_per_slice` threads; at most `max_queued_slices` further
@@ -18,13 +20,16 @@
 #include <chrono>
 #include <cstdint>
 #include <memory>
+#include <optional>
 #include <vector>
 
 #include "absl/base/thread_annotations.h"
 #include "absl/synchronization/mutex.h"
 #include "core/model/input_limits.h"
+#include "core/model/wide_query.h"
 #include "core/slice_solver.h"
 #include "sliceplan.grpc.pb.h"
+#include "tiers/anytime_part.h"
 #include "worker/worker_metrics.h"
 
 namespace sliceplan {
@@ -32,6 +37,10 @@ namespace sliceplan {
 // How long an admitted call may take to send its request: past it the
 // call is ended (DEADLINE_EXCEEDED) and its place in the queue freed.
 inline constexpr std::chrono::seconds kRequestReadLimit{10};
+// An anytime part's answer is thinned to at most about this many bytes
+// over its number of parts, at least 1 MiB (the coordinator receives up
+// to 64 MiB from a worker, all parts at about the same moment).
+inline constexpr uint64_t kAnytimeReplyBytes = uint64_t{32} << 20;
 
 struct WorkerConfig {
   int concurrent_slices = 1;   // slices solved at once
@@ -71,27 +80,43 @@ class WorkerService final
   bool IdleAfterCalls() ABSL_LOCKS_EXCLUDED(mu_);
 
  private:
-  // A request checked and parsed: all a waiting call keeps of it.
+  // A request checked and parsed: all a waiting call keeps of it. A slice
+  // has `query` and `slice`; an anytime part `wide` and `part`.
   struct Parsed {
-    Query query;
+    std::optional<Query> query;
+    std::optional<WideQuery> wide;
     SearchOptions options;
     SliceSpec slice;
+    std::optional<AnytimePartSpec> part;
+  };
+  // A call's answer and what its log line and metrics say of it.
+  struct Reply {
+    v1::SolveSliceResponse message;
+    SearchStats stats;
+    std::optional<uint64_t> trees;  // an anytime part's
   };
   // INVALID_ARGUMENT (or the limits' errors) naming the field.
   static absl::StatusOr<Parsed> Parse(const v1::SolveSliceRequest& request,
                                       const WorkerConfig& config);
+  // A request that asks for an anytime part (its `anytime` field).
+  static absl::StatusOr<Parsed> ParseAnytime(const v1::SolveSliceRequest& request,
+                                             const WorkerConfig& config);
   // What the call's log line says of its request, once read.
   struct CallFacts {
     bool read = false;
+    bool anytime = false;  // index and count are then the part's
     uint32_t index = 0, count = 0;
     int relations = 0;
   };
   // Admits the call, reads and parses its request, waits for a slot and
-  // solves; the call's outcome.
-  absl::StatusOr<SliceResult> Solve(
+  // solves (or runs the anytime part); the call's outcome.
+  absl::StatusOr<Reply> Solve(
       grpc::ServerContext* context,
       grpc::ServerUnaryStreamer<v1::SolveSliceRequest, v1::SolveSliceResponse>& stream,
-      SearchOptions& options, CallFacts& facts);
+      CallFacts& facts);
+  // Runs the parsed request until `deadline` (or the call's cancel).
+  static absl::StatusOr<Reply> Run(const Parsed& parsed, grpc::ServerContext* context,
+                                   std::chrono::steady_clock::time_point deadline);
   // Reads the request (within kRequestReadLimit, onto an arena freed on
   // return) and parses it; fills `facts` once read.
   absl::StatusOr<Parsed> ReadRequest(

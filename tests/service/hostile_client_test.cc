@@ -23,6 +23,8 @@
 #include "tests/support/servers.h"
 #include "tests/support/test_queries.h"
 #include "wire/query_proto.h"
+#include "wire/service_proto.h"
+#include "wire/tier_proto.h"
 
 namespace sliceplan {
 namespace {
@@ -641,6 +643,59 @@ TEST(HostileClientTest, AWorkerRefusesABusyCallBeforeReadingIt) {
   EXPECT_EQ(unread.error_code(), grpc::StatusCode::INVALID_ARGUMENT);
   EXPECT_NE(unread.error_message().find("could not be read"), std::string::npos)
       << unread.error_message();
+}
+
+// An anytime part sent straight to a worker: each bad field refused by
+// name (INVALID_ARGUMENT), and a good part answers its set by its deadline
+// with every plan a tree over the query.
+TEST(HostileClientTest, AnytimePartsAreCheckedByTheWorker) {
+  auto w = testing::StartWorker();
+  ASSERT_TRUE(w);
+  auto stub = WorkerStub(*w);
+  const Query q = testing::MakeQuery(GraphShape::kRandom, 12, 3);
+  const auto part = [&](uint32_t k, uint32_t n, CostModelKind cost) {
+    v1::SolveSliceRequest r = OneSlice(q);
+    SearchOptions options;
+    options.cost = cost;
+    *r.mutable_options() = SearchOptionsToProto(options);
+    r.mutable_anytime()->set_part(k);
+    r.mutable_anytime()->set_parts(n);
+    return r;
+  };
+  const auto refused = [&](const v1::SolveSliceRequest& r, const std::string& words) {
+    const grpc::Status s = SolveOnce(*stub, r);
+    EXPECT_EQ(s.error_code(), grpc::StatusCode::INVALID_ARGUMENT) << s.error_message();
+    EXPECT_NE(s.error_message().find(words), std::string::npos) << s.error_message();
+  };
+  refused(part(0, 0, CostModelKind::kCluster), "anytime.parts: must lie in 1..4096, got 0");
+  refused(part(2, 2, CostModelKind::kCluster), "anytime.part: must be less than parts (2), got 2");
+  refused(part(0, 1, CostModelKind::kCout), "anytime: the anytime search is the cluster model's");
+  v1::SolveSliceRequest one = part(0, 1, CostModelKind::kCluster);
+  one.mutable_query()->mutable_relations()->DeleteSubrange(1, 11);
+  one.mutable_query()->clear_predicates();
+  refused(one, "anytime: the query needs at least 2 relations");
+
+  {  // no deadline: it would hold its slot for the server's maximum
+    grpc::ClientContext context;
+    v1::SolveSliceResponse out;
+    const grpc::Status s = stub->SolveSlice(&context, part(0, 1, CostModelKind::kCluster), &out);
+    EXPECT_EQ(s.error_code(), grpc::StatusCode::INVALID_ARGUMENT);
+    EXPECT_NE(s.error_message().find("the call has none"), std::string::npos) << s.error_message();
+  }
+  grpc::ClientContext context;
+  context.set_deadline(std::chrono::system_clock::now() + 1500ms);
+  v1::SolveSliceResponse out;
+  const auto start = Clock::now();
+  const grpc::Status s = stub->SolveSlice(&context, part(1, 2, CostModelKind::kCluster), &out);
+  ASSERT_TRUE(s.ok()) << s.error_message();
+  EXPECT_LT(Clock::now() - start, 1500ms);  // its reserve: the answer came before the deadline
+  EXPECT_GT(out.trees(), 1u);
+  ASSERT_GT(out.frontier_size(), 0);
+  auto answer = AnytimeAnswerFromProto(out, WideQuery::FromExact(q));
+  ASSERT_TRUE(answer.ok()) << answer.status();
+  SearchOptions cluster;
+  cluster.cost = CostModelKind::kCluster;
+  EXPECT_TRUE(CheckAnytimeAnswer(WideQuery::FromExact(q), cluster, *answer).ok());
 }
 
 TEST(HostileClientTest, BadValuesGetMessagesThatSayWhatIsWrong) {

@@ -124,12 +124,13 @@ TEST(ServiceTest, ClusterFrontierOverRpcEqualsEmbedded) {
 }
 
 // Past 64 relations the coordinator answers the cluster model with the
-// anytime set, plans in the form of any size: each a tree over all 120
-// relations with its physical choices, as the coordinator sent them. A
+// anytime set, one part on each worker, plans in the form of any size:
+// each a tree over all 120 relations with its physical choices, as the
+// coordinator sent them. A
 // set too large for the answer's limit (here 300 kB, about 14 plans) is
 // thinned to fit and says so, never refused after its deadline.
 TEST(ServiceTest, AClusterQueryPastSixtyFourRelationsGetsASetOverRpc) {
-  Cluster c = StartCluster(1, {"--max_response_bytes=300000"});
+  Cluster c = StartCluster(2, {"--max_response_bytes=300000"});
   ASSERT_TRUE(c.coordinator);
   const WideQuery q = testing::MakeWideQuery(testing::WideShape::kSnowflake, 120, 5);
   cli::RemoteRequest r;
@@ -156,6 +157,9 @@ TEST(ServiceTest, AClusterQueryPastSixtyFourRelationsGetsASetOverRpc) {
             std::string::npos)
       << out->reason;
   EXPECT_GE(out->frontier.size(), 5u);
+  // One part on each worker, both answered and checked.
+  EXPECT_NE(out->reason.find("; 2 parts, "), std::string::npos) << out->reason;
+  EXPECT_EQ(out->reason.find("gave nothing"), std::string::npos) << out->reason;
   EXPECT_GE(events, 1u);  // the set's size at least once a second (and at the end)
 }
 
