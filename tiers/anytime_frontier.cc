@@ -7,6 +7,7 @@
 
 #include "core/cost/pareto.h"
 #include "tiers/greedy.h"
+#include "tiers/shared_subplans.h"
 
 namespace sliceplan {
 namespace {
@@ -98,7 +99,11 @@ class Search {
  public:
   Search(const WideQuery& query, const ClusterSearchConfig& config,
          const AnytimeFrontierOptions& options)
-      : query_(query), config_(config), options_(options), rng_(options.seed) {}
+      : query_(query),
+        config_(config),
+        options_(options),
+        rng_(options.seed),
+        cache_(query, config, options.cap_per_node) {}
 
   AnytimeFrontierResult Run(SearchControl& control) {
     const auto start = Clock::now();
@@ -143,16 +148,26 @@ class Search {
     auto shared = std::make_shared<const WidePlan>(std::move(tree));
     ++result_.trees;
     added = 0;
+    if (options_.share_subplans) {
+      // Plans may take sub-trees cached from earlier trees: each is built
+      // as a tree of its own, once it is known to enter.
+      for (const auto& plan : cache_.Evaluate(*shared)) {
+        added += Insert(plan->costs, [&] { return SubPlanCache::Flatten(*plan); });
+      }
+      return shared;
+    }
     for (PhysicalPlan& p : PhysicalFrontier(query_, *shared, config_, {options_.cap_per_node})) {
-      added += Insert({shared, std::move(p)});
+      const ClusterCosts c = p.costs();
+      added += Insert(c, [&] { return FrontierPlan{shared, std::move(p)}; });
     }
     return shared;
   }
 
   // Keeps the archive non-dominated (a plan equal to one there does not
-  // enter); past max_plans only a plan that dominates one enters.
-  bool Insert(FrontierPlan plan) {
-    const ClusterCosts& c = plan.physical.costs();
+  // enter); past max_plans only a plan that dominates one enters. `make`
+  // builds the plan of costs `c`, only when it enters.
+  template <typename Make>
+  bool Insert(const ClusterCosts& c, Make make) {
     for (const FrontierPlan& q : archive_) {
       if (DominatesOrEquals(q.physical.costs(), c, config_.objectives)) return false;
     }
@@ -161,7 +176,7 @@ class Search {
       return DominatesOrEquals(c, q.physical.costs(), config_.objectives);
     });
     if (archive_.size() == before && archive_.size() >= options_.max_plans) return false;
-    archive_.push_back(std::move(plan));
+    archive_.push_back(make());
     return true;
   }
 
@@ -178,6 +193,7 @@ class Search {
   const AnytimeFrontierOptions& options_;
   std::mt19937_64 rng_;
   std::vector<FrontierPlan> archive_;
+  SubPlanCache cache_;
   AnytimeFrontierResult result_;
   Clock::time_point last_report_;
 };

@@ -41,16 +41,14 @@ struct AnytimeFrontierOptions {
   size_t cap_per_node = 8;  // PhysicalFrontierOptions::cap
   size_t max_plans = 1000;  // the archive's bound: past it, only dominating plans enter
   uint64_t max_moves = 0;   // 0: until the control stops the search
+  // Each tree's nodes take the Pareto sub-plans of their sets found in
+  // earlier trees (tiers/shared_subplans.h); false: each tree alone.
+  bool share_subplans = true;
   // Called once a second (each time a second has passed since the last
   // call, checked before every move, so as often as moves allow) and at
   // the end, with the archive's size
   // and the trees evaluated so far.
   std::function<void(size_t plans, uint64_t trees)> on_progress;
-};
-
-struct FrontierPlan {
-  std::shared_ptr<const WidePlan> tree;  // costed (cout cardinalities)
-  PhysicalPlan physical;
 };
 
 struct AnytimeFrontierResult {

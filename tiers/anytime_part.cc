@@ -134,6 +134,7 @@ AnytimeAnswer RunAnytimePart(const WideQuery& query, const SearchOptions& option
   o.seed = uint64_t{spec.part} + 1;
   o.cap_per_node = query.size() <= 16 ? 32 : 8;
   o.max_plans = AnytimeMaxPlans(query.size(), options.memo_limit_bytes);
+  o.share_subplans = query.size() <= kShareSubplansUpTo;
   o.max_moves = max_moves;
   o.on_progress = std::move(on_progress);
   const AnytimeFrontierResult r = AnytimeFrontier(query, options.cluster, o, control);

@@ -23,6 +23,13 @@ namespace sliceplan {
 
 inline constexpr uint32_t kMaxAnytimeParts = 4096;
 
+// Parts share Pareto sub-plans across trees (tiers/shared_subplans.h) up
+// to this many relations: measured better there (bench/
+// shared_subplans_bench, 1,500 moves, mean alpha against the union of all
+// sets: 1.90 -> 1.26 at 20 relations, 1.75 -> 1.25 at 30, 1.97 -> 1.55 at
+// 50), worse at 60 (1.60 -> 1.71), where sets recur less.
+inline constexpr int kShareSubplansUpTo = 50;
+
 struct AnytimePartSpec {
   uint32_t part = 0;
   uint32_t parts = 1;
@@ -47,7 +54,8 @@ size_t AnytimeMaxPlans(int relations, uint64_t memory_bytes);
 // Runs part `spec` until `control` stops it (or, in tests, max_moves):
 // options.shape and cross_products, options.cluster's parameters and
 // objectives; up to 16 relations each node keeps 32 physical entries,
-// past them 8 (docs/tiers.md); the archive keeps at most
+// past them 8 (docs/tiers.md); sub-plans shared up to
+// kShareSubplansUpTo relations; the archive keeps at most
 // AnytimeMaxPlans(n, options.memo_limit_bytes) plans. `on_progress` as AnytimeFrontierOptions'.
 // REQUIRES: options.cost is the cluster model, its parameters valid; the
 // query has at least 2 relations and, without cross products, a

@@ -5,6 +5,7 @@
 
 #include "core/cost/pareto.h"
 #include "core/model/value_range.h"
+#include "tiers/level_pruning.h"
 
 namespace sliceplan {
 namespace {
@@ -20,47 +21,6 @@ struct Entry {
   int nodes = 0;
   double rate = 1;  // leaves
 };
-
-bool SameLevel(double a, double b) {
-  return std::fabs(a - b) <= kCompletenessTolerance * std::max(a, b);
-}
-
-// Keeps, within each completeness level, the entries no other entry of
-// the level alpha-covers (the first of equals).
-std::vector<Entry> PruneInLevels(std::vector<Entry> all, Objectives o, double alpha) {
-  std::sort(all.begin(), all.end(), [](const Entry& a, const Entry& b) {
-    if (a.costs.completeness != b.costs.completeness) {
-      return a.costs.completeness > b.costs.completeness;
-    }
-    if (a.costs.latency_s != b.costs.latency_s) return a.costs.latency_s < b.costs.latency_s;
-    return a.costs.node_seconds < b.costs.node_seconds;
-  });
-  std::vector<Entry> kept;
-  size_t level_start = 0;
-  for (Entry& e : all) {
-    if (kept.empty() || !SameLevel(kept.back().costs.completeness, e.costs.completeness)) {
-      level_start = kept.size();
-    }
-    bool covered = false;
-    for (size_t k = level_start; k < kept.size() && !covered; ++k) {
-      covered = CoversInLevel(kept[k].costs, e.costs, o, alpha);
-    }
-    if (!covered) kept.push_back(std::move(e));
-  }
-  return kept;
-}
-
-// At most `cap` entries, evenly spread over the sorted list (levels and
-// latencies both keep their extremes).
-std::vector<Entry> Thin(std::vector<Entry> entries, size_t cap) {
-  if (cap == 0 || entries.size() <= cap) return entries;
-  std::vector<Entry> out;
-  out.reserve(cap);
-  for (size_t k = 0; k < cap; ++k) {
-    out.push_back(entries[k * (entries.size() - 1) / (cap - 1 == 0 ? 1 : cap - 1)]);
-  }
-  return out;
-}
 
 }  // namespace
 
@@ -113,7 +73,10 @@ std::vector<PhysicalPlan> PhysicalFrontier(const WideQuery& query, const WidePla
         }
       }
     }
-    entries[i] = Thin(PruneInLevels(std::move(all), config.objectives, level_alpha), options.cap);
+    entries[i] =
+        ThinEvenly(PruneInLevels(std::move(all), config.objectives, level_alpha,
+                                 [](const Entry& e) -> const ClusterCosts& { return e.costs; }),
+                   options.cap);
   }
   // The root's entries, exactly non-dominated across levels.
   const std::vector<Entry>& top = entries[n - 1];

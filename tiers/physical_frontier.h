@@ -12,6 +12,7 @@
 #define SLICEPLAN_TIERS_PHYSICAL_FRONTIER_H_
 
 #include <cstdint>
+#include <memory>
 #include <vector>
 
 #include "core/cost/cluster_config.h"
@@ -27,6 +28,12 @@ struct PhysicalPlan {
   std::vector<double> sample_rate;     // by tree node (leaves)
   std::vector<ClusterCosts> metrics;   // by tree node: the subtree's
   const ClusterCosts& costs() const { return metrics.back(); }
+};
+
+// A tree (costed: cout cardinalities) with one of its physical plans.
+struct FrontierPlan {
+  std::shared_ptr<const WidePlan> tree;
+  PhysicalPlan physical;
 };
 
 struct PhysicalFrontierOptions {
