@@ -110,6 +110,7 @@ class Search {
     last_report_ = start;
     size_t added = 0;
     std::shared_ptr<const WidePlan> current = Evaluate(GreedyPlan(query_, options_.shape), added);
+    Report(true);  // the seed's set at once: a caller pooling parts has counts before 1 s
     uint64_t moves = 0;
     while ((options_.max_moves == 0 || moves < options_.max_moves) &&
            !control.Tick(SearchControl::kTickWork)) {

@@ -44,10 +44,10 @@ struct AnytimeFrontierOptions {
   // Each tree's nodes take the Pareto sub-plans of their sets found in
   // earlier trees (tiers/shared_subplans.h); false: each tree alone.
   bool share_subplans = true;
-  // Called once a second (each time a second has passed since the last
-  // call, checked before every move, so as often as moves allow) and at
-  // the end, with the archive's size
-  // and the trees evaluated so far.
+  // Called once the seed is evaluated, then once a second (each time a
+  // second has passed since the last call, checked before every move, so
+  // as often as moves allow) and at the end, with the archive's size and
+  // the trees evaluated so far.
   std::function<void(size_t plans, uint64_t trees)> on_progress;
 };
 
