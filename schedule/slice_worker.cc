@@ -17,7 +17,7 @@ class AnsweredCall : public SliceCall {
 
 std::chrono::steady_clock::duration AnytimeReserve(double seconds_given, int relations) {
   const double left = std::max(0.0, seconds_given);
-  const double reserve = std::min(0.5 * left, std::max(0.05 * left, 0.02) + 1e-5 * relations);
+  const double reserve = std::min(0.5 * left, std::max(0.1 * left, 0.05) + 1e-5 * relations);
   return std::chrono::duration_cast<std::chrono::steady_clock::duration>(
       std::chrono::duration<double>(reserve));
 }
