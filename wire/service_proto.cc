@@ -344,8 +344,16 @@ absl::StatusOr<SliceResult> SliceResultFromProto(const v1::SolveSliceResponse& m
 
 v1::OptimizeResponse OutcomeToProto(const ScheduleOutcome& outcome, CostModelKind model) {
   const OptimizeResult& res = outcome.result;
-  v1::OptimizeResponse m;
+  v1::OptimizeResponse m = OutcomeStatsToProto(outcome);
   *m.mutable_plan() = PlanToProto(res.plan, model);
+  for (const Plan& p : res.frontier) *m.add_frontier() = PlanToProto(p, model);
+  m.set_chosen(res.chosen ? static_cast<int32_t>(*res.chosen) : -1);
+  return m;
+}
+
+v1::OptimizeResponse OutcomeStatsToProto(const ScheduleOutcome& outcome) {
+  const OptimizeResult& res = outcome.result;
+  v1::OptimizeResponse m;
   m.set_slice_count(res.slice_count);
   m.set_best_slice(res.best_slice);
   for (size_t i = 0; i < res.slices.size(); ++i) {
@@ -359,8 +367,6 @@ v1::OptimizeResponse OutcomeToProto(const ScheduleOutcome& outcome, CostModelKin
   m.set_retries(outcome.retries);
   m.set_hedges(outcome.hedges);
   m.set_workers_used(outcome.workers_used);
-  for (const Plan& p : res.frontier) *m.add_frontier() = PlanToProto(p, model);
-  m.set_chosen(res.chosen ? static_cast<int32_t>(*res.chosen) : -1);
   return m;
 }
 

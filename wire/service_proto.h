@@ -38,6 +38,9 @@ absl::StatusOr<SliceResult> SliceResultFromProto(const v1::SolveSliceResponse& m
 
 // The coordinator's answer. `slice_workers` may be empty.
 v1::OptimizeResponse OutcomeToProto(const ScheduleOutcome& outcome, CostModelKind model);
+// The same without the plans (plan, frontier, chosen): the slice table and
+// the run's figures, for an answer whose plans are written in another form.
+v1::OptimizeResponse OutcomeStatsToProto(const ScheduleOutcome& outcome);
 absl::StatusOr<ScheduleOutcome> OutcomeFromProto(const v1::OptimizeResponse& m, const Query& query,
                                                  CostModelKind model);
 // The answer's figures alone (slice count and stats, workers, retries,

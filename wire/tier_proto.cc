@@ -104,11 +104,10 @@ absl::StatusOr<WidePlan> WidePlanFromProto(const v1::Plan& m, const WideQuery& q
 }
 
 v1::OptimizeResponse TieredToProto(const TieredOutcome& outcome, CostModelKind model) {
-  v1::OptimizeResponse m = OutcomeToProto(outcome.schedule, model);
   // The answer's plans in the form of any size (the schedule's are the
   // exact engine's, at most 64 relations, and may be none).
+  v1::OptimizeResponse m = OutcomeStatsToProto(outcome.schedule);
   *m.mutable_plan() = WidePlanToProto(outcome.plan, model);
-  m.clear_frontier();
   for (const WidePlan& p : outcome.frontier) *m.add_frontier() = WidePlanToProto(p, model);
   m.set_chosen(outcome.chosen ? static_cast<int32_t>(*outcome.chosen) : -1);
   m.set_proven_optimal(outcome.proven_optimal);
